@@ -1,0 +1,16 @@
+import { defineConfig } from 'vitest/config';
+import path from 'node:path';
+
+// Unit tests (engine, pure lib code) and integration tests (real PostgreSQL, set up by scripts/test.sh).
+// Browser tests have their own config (vitest.browser.config.ts) because they need the built app.
+export default defineConfig({
+  resolve: { alias: { '@': path.resolve(__dirname) } },
+  test: {
+    include: ['tests/unit/**/*.test.ts', 'tests/integration/**/*.test.ts'],
+    environment: 'node',
+    testTimeout: 120_000,
+    hookTimeout: 120_000,
+    pool: 'forks',
+    maxWorkers: 2,
+  },
+});
