@@ -14,7 +14,12 @@ export type ModelErrorCode =
   | 'invalid_option'
   | 'order_too_large'
   | 'unsupported_format'
-  | 'unstable';
+  | 'unstable'
+  | 'truncated_file'
+  | 'jagged_rows'
+  | 'unsorted_times'
+  | 'unreadable_file'
+  | 'missing_field';
 
 export class ModelError extends Error {
   readonly code: ModelErrorCode;

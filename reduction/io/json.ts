@@ -1,0 +1,174 @@
+/**
+ * Model files in JSON: the first-order form {"A","B","C","D"?} with matrices as lists of rows, and the
+ * second-order form {"form":"second-order","mass","damping","stiffness","force","displacementOutput",
+ * "velocityOutput"}. Optional "inputNames", "outputNames", "stateNames" and "timeUnit" in both.
+ *
+ * JSON has no NaN or infinity; some writers emit them as bare tokens anyway (Python's json module does by
+ * default). Rather than fail with a syntax error at a character offset, those tokens are read as strings
+ * so the error can name the matrix, row and column.
+ */
+import { ModelError } from '../errors';
+import { type Matrix, zeros, toRows } from '../linalg/matrix';
+import type { StateSpaceModel } from '../model';
+import { secondOrderToFirstOrder } from '../second-order';
+import { assembleModel, type ModelNames } from './assemble';
+import { inFile } from './numbers';
+
+const BARE_NON_FINITE = /(?<=[[,:]\s*)(-?Infinity|NaN)(?=\s*[,\]}])/g;
+
+function parseJsonText(text: string, where: string, field: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch (first) {
+    try {
+      return JSON.parse(text.replace(BARE_NON_FINITE, '"$1"'));
+    } catch {
+      throw new ModelError('parse_error', field, `${where}not valid JSON (${(first as Error).message})`);
+    }
+  }
+}
+
+/**
+ * A matrix from a JSON list of rows. Throws ModelError naming `field`: parse_error (not a list of lists),
+ * empty_matrix, jagged_rows, non_numeric and non_finite (row and column, 1-based).
+ */
+export function matrixFromJsonRows(value: unknown, field: string, fileName?: string): Matrix {
+  const where = inFile(fileName);
+  if (!Array.isArray(value)) {
+    throw new ModelError('parse_error', field, `${where}${field} must be a list of rows, e.g. [[1, 0], [0, 1]]`);
+  }
+  if (value.length === 0) throw new ModelError('empty_matrix', field, `${where}${field} is empty (no rows)`);
+  const first = value[0];
+  if (!Array.isArray(first)) {
+    throw new ModelError('parse_error', field, `${where}${field} row 1 is not a list of numbers`);
+  }
+  const cols = first.length;
+  if (cols === 0) throw new ModelError('empty_matrix', field, `${where}${field} is empty (row 1 has no entries)`);
+  const out = zeros(value.length, cols);
+  for (let i = 0; i < value.length; i++) {
+    const row = value[i];
+    if (!Array.isArray(row)) throw new ModelError('parse_error', field, `${where}${field} row ${i + 1} is not a list of numbers`);
+    if (row.length !== cols) {
+      throw new ModelError(
+        'jagged_rows',
+        field,
+        `${where}${field} row ${i + 1} has ${row.length} entries but row 1 has ${cols}`,
+      );
+    }
+    for (let j = 0; j < cols; j++) {
+      const cell: unknown = row[j];
+      if (typeof cell === 'number') {
+        if (!Number.isFinite(cell)) {
+          throw new ModelError('non_finite', field, `${where}${field} row ${i + 1}, column ${j + 1} is not finite`);
+        }
+        out.data[i * cols + j] = cell;
+      } else if (typeof cell === 'string' && /^[+-]?(nan|inf|infinity)$/i.test(cell.trim())) {
+        throw new ModelError(
+          'non_finite',
+          field,
+          `${where}${field} row ${i + 1}, column ${j + 1} is not finite (${cell})`,
+        );
+      } else {
+        throw new ModelError(
+          'non_numeric',
+          field,
+          `${where}${field} row ${i + 1}, column ${j + 1} is not a number: ${JSON.stringify(cell) ?? String(cell)}`,
+        );
+      }
+    }
+  }
+  return out;
+}
+
+function optionalStrings(doc: Record<string, unknown>, key: string, where: string): string[] | undefined {
+  const v = doc[key];
+  if (v === undefined || v === null) return undefined;
+  if (!Array.isArray(v) || v.some((s) => typeof s !== 'string')) {
+    throw new ModelError('parse_error', key, `${where}${key} must be a list of strings`);
+  }
+  return v as string[];
+}
+
+function readNames(doc: Record<string, unknown>, where: string): ModelNames {
+  const names: ModelNames = {
+    inputNames: optionalStrings(doc, 'inputNames', where),
+    outputNames: optionalStrings(doc, 'outputNames', where),
+    stateNames: optionalStrings(doc, 'stateNames', where),
+  };
+  if (doc.timeUnit !== undefined && doc.timeUnit !== null) {
+    if (typeof doc.timeUnit !== 'string') throw new ModelError('parse_error', 'timeUnit', `${where}timeUnit must be a string such as "s"`);
+    names.timeUnit = doc.timeUnit;
+  }
+  return names;
+}
+
+function required(doc: Record<string, unknown>, key: string, where: string, form: string): unknown {
+  if (doc[key] === undefined || doc[key] === null) {
+    throw new ModelError('missing_field', key, `${where}${form} model has no "${key}" matrix`);
+  }
+  return doc[key];
+}
+
+/**
+ * Parse a model JSON document (first- or second-order) into a validated model. `fileName` starts every
+ * message. Throws ModelError (see `assembleModel`, `secondOrderToFirstOrder`, `matrixFromJsonRows`).
+ */
+export function parseModelJson(text: string, fileName?: string): StateSpaceModel {
+  const where = inFile(fileName);
+  const doc = parseJsonText(text, where, fileName ?? 'model');
+  if (typeof doc !== 'object' || doc === null || Array.isArray(doc)) {
+    throw new ModelError('parse_error', fileName ?? 'model', `${where}a model file must be a JSON object with matrices A, B, C (and D)`);
+  }
+  const d = doc as Record<string, unknown>;
+  const names = readNames(d, where);
+  const form = d.form ?? 'first-order';
+  if (form === 'second-order') {
+    const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a second-order'), key, fileName);
+    const optional = (key: string) =>
+      d[key] === undefined || d[key] === null ? undefined : matrixFromJsonRows(d[key], key, fileName);
+    const mass = read('mass');
+    // Degree-of-freedom names (one per q) are expanded to the first-order state [q; q̇].
+    if (names.stateNames && names.stateNames.length === mass.rows) {
+      names.stateNames = [...names.stateNames, ...names.stateNames.map((s) => `d(${s})/dt`)];
+    }
+    return secondOrderToFirstOrder(
+      {
+        mass,
+        damping: optional('damping'),
+        stiffness: read('stiffness'),
+        force: read('force'),
+        displacementOutput: optional('displacementOutput'),
+        velocityOutput: optional('velocityOutput'),
+      },
+      names,
+    );
+  }
+  if (form !== 'first-order') {
+    throw new ModelError('unsupported_format', 'form', `${where}form "${String(form)}" is not "first-order" or "second-order"`);
+  }
+  const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a'), key, fileName);
+  return assembleModel(
+    {
+      A: read('A'),
+      B: read('B'),
+      C: read('C'),
+      D: d.D === undefined || d.D === null ? undefined : matrixFromJsonRows(d.D, 'D', fileName),
+    },
+    names,
+  );
+}
+
+/** The first-order JSON document of a model (exact doubles: JSON numbers round-trip). */
+export function modelToJson(model: StateSpaceModel, indent?: number): string {
+  const doc: Record<string, unknown> = {
+    A: toRows(model.A),
+    B: toRows(model.B),
+    C: toRows(model.C),
+    D: toRows(model.D),
+  };
+  if (model.inputNames) doc.inputNames = model.inputNames;
+  if (model.outputNames) doc.outputNames = model.outputNames;
+  if (model.stateNames) doc.stateNames = model.stateNames;
+  if (model.timeUnit) doc.timeUnit = model.timeUnit;
+  return JSON.stringify(doc, null, indent);
+}
