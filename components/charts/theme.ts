@@ -1,0 +1,89 @@
+/**
+ * The chart look of DESIGN.md §7 in one place: a quiet drafting sheet (warm off-white, graphite ink, one
+ * deep teal accent), full-model curves solid graphite, reduced-model curves dashed teal, bounds as a
+ * shaded teal band, and the Okabe & Ito palette wherever several series need telling apart.
+ *
+ * Palette: M. Okabe and K. Ito, "Color Universal Design (CUD): how to make figures and presentations that
+ * are friendly to colorblind people", J*Fly, 2008 (the eight-colour set, hex values as published there).
+ *
+ * Fonts: canvas text cannot resolve CSS variables, so the React wrappers read `--font-mono` / `--font-sans`
+ * from the page once mounted (see `useChartTheme`) and pass concrete family names into the option builders.
+ */
+
+export const OKABE_ITO = {
+  black: '#000000',
+  orange: '#E69F00',
+  skyBlue: '#56B4E9',
+  bluishGreen: '#009E73',
+  yellow: '#F0E442',
+  blue: '#0072B2',
+  vermillion: '#D55E00',
+  reddishPurple: '#CC79A7',
+} as const;
+
+export const INK = {
+  /** page background of the drafting sheet */
+  paper: '#f6f3ec',
+  /** text and full-model curves */
+  graphite: '#2e3236',
+  /** axis lines and secondary labels */
+  graphiteMuted: '#6f757a',
+  /** the thin grid rule */
+  rule: '#ddd7cb',
+  /** the single accent: reduced-model curves, bounds, the chosen order */
+  teal: '#0b5d5e',
+  /** fill of a bound band: the accent, faint enough that curves inside stay readable */
+  tealBand: 'rgba(11, 93, 94, 0.13)',
+} as const;
+
+/**
+ * Series colours beyond full/reduced, in the order they are handed out. Yellow is left out (too faint on
+ * the off-white sheet) and black too (it reads as the graphite full-model ink).
+ */
+export const SERIES_COLORS: readonly string[] = [
+  OKABE_ITO.blue,
+  OKABE_ITO.vermillion,
+  OKABE_ITO.bluishGreen,
+  OKABE_ITO.orange,
+  OKABE_ITO.reddishPurple,
+  OKABE_ITO.skyBlue,
+];
+
+export function seriesColor(index: number): string {
+  const n = SERIES_COLORS.length;
+  return SERIES_COLORS[((index % n) + n) % n];
+}
+
+/** Colours for the verdict of an acceptance band; always shown beside the words PASS / FAIL. */
+export const VERDICT_COLORS = {
+  pass: OKABE_ITO.bluishGreen,
+  fail: OKABE_ITO.vermillion,
+  notCovered: OKABE_ITO.orange,
+} as const;
+
+export interface ChartTheme {
+  /** concrete font family list for numbers (tabular figures) */
+  readonly fontMono: string;
+  /** concrete font family list for words */
+  readonly fontSans: string;
+}
+
+export const FALLBACK_MONO = 'ui-monospace, "SFMono-Regular", Menlo, Consolas, "Liberation Mono", monospace';
+export const FALLBACK_SANS = 'ui-sans-serif, system-ui, "Segoe UI", Roboto, "Helvetica Neue", Arial, sans-serif';
+
+export const DEFAULT_CHART_THEME: ChartTheme = { fontMono: FALLBACK_MONO, fontSans: FALLBACK_SANS };
+
+/** How the two model curves are drawn everywhere; tests check builders against these. */
+export const FULL_LINE = { color: INK.graphite, type: 'solid', width: 1.6 } as const;
+export const REDUCED_LINE = { color: INK.teal, type: 'dashed', width: 1.8 } as const;
+export const BOUND_LINE = { color: INK.teal, type: 'solid', width: 1.2 } as const;
+
+/** CSS for the HTML the charts and tables render around themselves (tooltips, captions). */
+export const CSS = {
+  paper: INK.paper,
+  graphite: INK.graphite,
+  muted: INK.graphiteMuted,
+  rule: INK.rule,
+  teal: INK.teal,
+  monoFamily: 'var(--font-mono), ' + FALLBACK_MONO,
+} as const;
