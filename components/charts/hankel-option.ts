@@ -1,0 +1,167 @@
+/**
+ * Option builder for the Hankel singular value chart: σi of the stable part on a log axis against index
+ * i, the a-priori error bound against order r on the same axis (both are gains), and the cumulative energy
+ * in % on a second axis. The chosen order r is a vertical marker; with σi plotted at i and the bound at r,
+ * the bound at the marker is twice the sum of the values to its right.
+ *
+ * Index and order here count states of the stable part only; the page adds the unstable and marginal
+ * states it keeps exactly.
+ */
+import { axisInk, baseOption, emptyTitle, legendBox, tooltipBox } from './chart-base';
+import { formatNumber, formatPercent } from './format';
+import { balancedTruncationBound, checkHankelSingularValues, cumulativeEnergy, type EnergyMeasure } from './hankel-data';
+import type { ChartOption, LineSeriesOption } from './option-types';
+import { ChartDataError, decadeRange, requireNonNegative } from './series-checks';
+import { BOUND_LINE, DEFAULT_CHART_THEME, INK, OKABE_ITO, type ChartTheme } from './theme';
+
+export interface HankelChartData {
+  readonly hankelSingularValues: readonly number[];
+  /** number of stable states kept; draws the marker when given */
+  readonly order?: number;
+  /** bound per order r = 0..n as stored by the engine; computed as 2Σσ(r+1..n) when absent */
+  readonly errorBound?: readonly number[];
+  readonly energyMeasure?: EnergyMeasure;
+}
+
+const CHART = 'HankelChart';
+export const HSV_SERIES = 'Hankel singular value σi';
+export const BOUND_SERIES = 'error bound 2Σσ(r+1..n)';
+export const ENERGY_SERIES = 'cumulative energy';
+
+/** Singular values below this fraction of σ1 are rounding noise; the log axis stops there (common practice). */
+const NOISE_FLOOR = 1e-16;
+
+export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEFAULT_CHART_THEME): ChartOption {
+  const hsv = data.hankelSingularValues;
+  checkHankelSingularValues(CHART, hsv);
+  const n = hsv.length;
+  const bound = data.errorBound ? [...data.errorBound] : balancedTruncationBound(hsv);
+  if (data.errorBound) {
+    requireNonNegative(CHART, 'errorBound', bound);
+    if (bound.length !== n + 1) {
+      throw new ChartDataError(CHART, 'errorBound', `must hold one value per order 0..n (${n + 1} entries, got ${bound.length})`);
+    }
+  }
+  if (data.order !== undefined && (!Number.isInteger(data.order) || data.order < 0 || data.order > n)) {
+    throw new ChartDataError(CHART, 'order', `must be an integer from 0 to ${n} (got ${data.order})`);
+  }
+  const base = baseOption(theme, `Hankel singular values of ${n} stable states with cumulative energy and error bound.`);
+  const ink = axisInk(theme);
+  if (n === 0 || hsv[0] === 0) {
+    return { ...base, title: emptyTitle(theme, 'No Hankel singular values (no stable, controllable and observable part)'), series: [] };
+  }
+  const energy = cumulativeEnergy(hsv, data.energyMeasure ?? 'squared');
+  const floor = hsv[0] * NOISE_FLOOR;
+  const range = decadeRange([...hsv, ...bound].filter((v) => v >= floor))!;
+  const positive = (v: number) => (v > 0 ? v : null);
+
+  const hsvSeries: LineSeriesOption = {
+    type: 'line',
+    name: HSV_SERIES,
+    yAxisIndex: 0,
+    data: hsv.map((s, i) => [i + 1, positive(s)]),
+    lineStyle: { color: INK.graphite, width: 1.2, type: 'solid' },
+    itemStyle: { color: INK.graphite },
+    symbol: 'circle',
+    symbolSize: 5,
+    showSymbol: n <= 200,
+    connectNulls: false,
+  };
+  if (data.order !== undefined) {
+    hsvSeries.markLine = {
+      silent: true,
+      symbol: 'none',
+      lineStyle: { color: INK.teal, type: 'solid', width: 1.5 },
+      label: {
+        formatter: `r = ${data.order}, bound ${formatNumber(bound[data.order])}`,
+        color: INK.teal,
+        fontFamily: theme.fontMono,
+        position: 'insideEndTop',
+      },
+      data: [{ xAxis: data.order }],
+    };
+  }
+  const boundSeries: LineSeriesOption = {
+    type: 'line',
+    name: BOUND_SERIES,
+    yAxisIndex: 0,
+    data: bound.slice(0, n).map((b, r) => [r, positive(b)]),
+    lineStyle: { ...BOUND_LINE },
+    itemStyle: { color: BOUND_LINE.color },
+    symbol: 'rect',
+    symbolSize: 4,
+    showSymbol: n <= 200,
+  };
+  const energySeries: LineSeriesOption = {
+    type: 'line',
+    name: ENERGY_SERIES,
+    yAxisIndex: 1,
+    data: energy.map((e, i) => [i + 1, e]),
+    lineStyle: { color: OKABE_ITO.blue, type: 'dotted', width: 1.6 },
+    itemStyle: { color: OKABE_ITO.blue },
+    symbol: 'none',
+  };
+
+  return {
+    ...base,
+    legend: legendBox(theme),
+    grid: { left: 72, right: 64, top: 40, bottom: 52 },
+    tooltip: {
+      ...tooltipBox(theme),
+      trigger: 'axis',
+      formatter: (params: unknown) => {
+        const list = params as { axisValue?: number }[];
+        const at = Math.round(Number(list[0]?.axisValue));
+        return hankelTooltipLines(at, hsv, bound, energy).join('<br/>');
+      },
+    },
+    dataZoom: [{ type: 'inside', xAxisIndex: 0, filterMode: 'none' }],
+    xAxis: {
+      ...ink,
+      type: 'value',
+      min: 0,
+      max: n,
+      minInterval: 1,
+      name: 'index i / order r (stable states)',
+      nameGap: 28,
+      axisLabel: { ...ink.axisLabel, formatter: (v: number) => String(v) },
+    },
+    yAxis: [
+      {
+        ...ink,
+        type: 'log',
+        min: Math.max(range.min, 10 ** Math.floor(Math.log10(floor))),
+        max: range.max,
+        name: 'σi and bound (gain)',
+        nameGap: 52,
+        axisLabel: { ...ink.axisLabel, formatter: (v: number) => formatNumber(v, { significant: 2 }) },
+      },
+      {
+        ...ink,
+        type: 'value',
+        min: 0,
+        max: 100,
+        interval: 20,
+        name: 'cumulative energy (%)',
+        nameGap: 40,
+        splitLine: { show: false },
+        axisLabel: { ...ink.axisLabel, formatter: (v: number) => `${v}` },
+      },
+    ],
+    series: [hsvSeries, boundSeries, energySeries],
+  };
+}
+
+/** Tooltip lines at order/index k: what keeping k stable states means. */
+export function hankelTooltipLines(
+  k: number,
+  hsv: readonly number[],
+  bound: readonly number[],
+  energy: readonly number[],
+): string[] {
+  const lines = [`r = ${k}`];
+  if (k >= 1 && k <= hsv.length) lines.push(`σ${k} = ${formatNumber(hsv[k - 1])}`);
+  if (k >= 0 && k < bound.length) lines.push(`bound = ${formatNumber(bound[k])}`);
+  lines.push(`energy kept = ${formatPercent(k >= 1 && k <= energy.length ? energy[k - 1] / 100 : 0)}`);
+  return lines;
+}
