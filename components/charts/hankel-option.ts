@@ -11,7 +11,7 @@ import { axisInk, baseOption, emptyTitle, legendBox, tooltipBox } from './chart-
 import { formatNumber, formatPercent } from './format';
 import { balancedTruncationBound, checkHankelSingularValues, cumulativeEnergy, type EnergyMeasure } from './hankel-data';
 import type { ChartOption, LineSeriesOption } from './option-types';
-import { ChartDataError, decadeRange, requireNonNegative } from './series-checks';
+import { ChartDataError, decadeRange, powerOfTen, requireNonNegative } from './series-checks';
 import { BOUND_LINE, DEFAULT_CHART_THEME, INK, OKABE_ITO, type ChartTheme } from './theme';
 
 export interface HankelChartData {
@@ -130,7 +130,7 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
       {
         ...ink,
         type: 'log',
-        min: Math.max(range.min, 10 ** Math.floor(Math.log10(floor))),
+        min: Math.max(range.min, powerOfTen(Math.floor(Math.log10(floor)))),
         max: range.max,
         name: 'σi and bound (gain)',
         nameGap: 52,

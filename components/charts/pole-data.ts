@@ -10,7 +10,7 @@
  * a relative tolerance of the spectral radius, because rounding in the eigenvalue solver scales with ‖A‖
  * (common practice).
  */
-import { ChartDataError, requireFinite, requireSameLength } from './series-checks';
+import { ChartDataError, powerOfTen, requireFinite, requireSameLength } from './series-checks';
 
 export type PoleStability = 'stable' | 'marginal' | 'unstable';
 
@@ -78,7 +78,7 @@ export function symlogThreshold(values: readonly number[]): number {
     if (a > 0 && a < smallest) smallest = a;
   }
   if (smallest === Infinity) return 1;
-  let c = 10 ** Math.floor(Math.log10(smallest));
+  let c = powerOfTen(Math.floor(Math.log10(smallest)));
   if (c > smallest) c /= 10;
   return c;
 }

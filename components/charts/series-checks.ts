@@ -57,6 +57,14 @@ export function requireNonNegative(chart: string, field: string, values: readonl
   }
 }
 
+/**
+ * 10^k as the correctly rounded double of the decimal 1ek (JS `10 ** -4` gives 0.00009999999999999999,
+ * which would show in axis bounds and labels).
+ */
+export function powerOfTen(k: number): number {
+  return Number(`1e${k}`);
+}
+
 /** Lowest and highest decades that hold every positive value; used to pin log axes so bands fill them. */
 export function decadeRange(values: readonly number[]): { min: number; max: number } | null {
   let lo = Infinity;
@@ -68,8 +76,8 @@ export function decadeRange(values: readonly number[]): { min: number; max: numb
     }
   }
   if (lo === Infinity) return null;
-  let min = 10 ** Math.floor(Math.log10(lo));
-  let max = 10 ** Math.ceil(Math.log10(hi));
+  let min = powerOfTen(Math.floor(Math.log10(lo)));
+  let max = powerOfTen(Math.ceil(Math.log10(hi)));
   if (max <= min) max = min * 10;
   // 10 ** floor(log10(v)) can land a hair above v through rounding; step down a decade if so.
   if (min > lo) min /= 10;
