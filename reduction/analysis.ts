@@ -1,0 +1,164 @@
+/**
+ * Analysis of a full model: poles with their modal data, the stable / marginal / unstable split,
+ * stiffness ratio, DC gain, H2 and H∞ norms, Hankel singular values of the stable part and the modal
+ * dominance ranking.
+ *
+ * Modal data of a pole λ (e.g. Ogata, "Modern Control Engineering", 5th ed. 2010, ch. 5):
+ * natural frequency ωn = |λ|, damping ratio ζ = −Re λ / |λ|, time constant τ = −1/Re λ (stable poles).
+ * Stiffness ratio: the fastest over the slowest decay rate among the stable poles,
+ * max|Re λ| / min|Re λ| (Lambert, "Numerical Methods for Ordinary Differential Systems", Wiley 1991,
+ * ch. 6). DC gain G(0) = D − C A⁻¹ B, not defined with a pole at s = 0 (integrator or rigid-body mode).
+ * Norms: `norms.ts`; Hankel singular values: `balanced.ts`; dominance: `modal.ts`; the stable part:
+ * `spectral-split.ts`; each cites its method.
+ */
+import { type Matrix, type ComplexVector, solve, matmul, sub } from './linalg/index';
+import type { StateSpaceModel } from './model';
+import { stateCount, inputCount, outputCount } from './model';
+import {
+  classifyPoles,
+  modelPoles,
+  splitStableUnstable,
+  DEFAULT_STABILITY_TOLERANCE,
+  type PoleClassification,
+  type PoleStability,
+} from './spectral-split';
+import { hinfNorm, h2Norm, type HinfResult, type NormValue } from './norms';
+import { balancedRealization } from './balanced';
+import { rankedModalForm, MAX_EIGENVECTOR_CONDITION, type Mode } from './modal';
+
+export interface PoleData {
+  readonly re: number;
+  readonly im: number;
+  /** |λ|, rad per time unit. */
+  readonly naturalFrequency: number;
+  /** −Re λ/|λ|; null for λ = 0. */
+  readonly dampingRatio: number | null;
+  /** −1/Re λ for stable poles, null otherwise. */
+  readonly timeConstant: number | null;
+  readonly stability: PoleStability;
+}
+
+export type DcGain = { readonly defined: true; readonly value: Matrix } | { readonly defined: false; readonly reason: string };
+
+export interface ModalDominance {
+  /** Stable modes, most dominant first (a complex pair is one mode). */
+  readonly modes: readonly Mode[];
+  readonly eigenvectorCondition: number;
+  /** False when A's stable part is (nearly) defective and the ranking's residues are not meaningful. */
+  readonly reliable: boolean;
+}
+
+export interface ModelAnalysis {
+  readonly states: number;
+  readonly inputs: number;
+  readonly outputs: number;
+  readonly poles: readonly PoleData[];
+  /** True when every pole is stable (Re λ < −tol·scale). */
+  readonly stable: boolean;
+  readonly stablePoles: number;
+  readonly marginalPoles: number;
+  readonly unstablePoles: number;
+  readonly stabilityTolerance: number;
+  /** Fastest over slowest decay rate of the stable poles; null without stable poles. */
+  readonly stiffnessRatio: number | null;
+  readonly slowestDecayRate: number | null;
+  readonly fastestDecayRate: number | null;
+  readonly dcGain: DcGain;
+  readonly h2Norm: NormValue;
+  readonly hinfNorm: HinfResult;
+  /** Hankel singular values of the stable part, descending. */
+  readonly hankelSingularValues: Float64Array;
+  readonly modalDominance: ModalDominance;
+}
+
+export interface AnalysisOptions {
+  readonly stabilityTolerance?: number;
+}
+
+export function poleData(classification: PoleClassification): PoleData[] {
+  const { poles, stability } = classification;
+  return stability.map((s, i) => {
+    const re = poles.re[i];
+    const im = poles.im[i];
+    const mag = Math.hypot(re, im);
+    return {
+      re,
+      im,
+      naturalFrequency: mag,
+      dampingRatio: mag > 0 ? -re / mag : null,
+      timeConstant: s === 'stable' ? -1 / re : null,
+      stability: s,
+    };
+  });
+}
+
+/** max|Re λ| / min|Re λ| over the stable poles, with both rates; nulls without stable poles. */
+export function stiffnessOf(classification: PoleClassification): {
+  stiffnessRatio: number | null;
+  slowestDecayRate: number | null;
+  fastestDecayRate: number | null;
+} {
+  let slow = Infinity;
+  let fast = 0;
+  classification.stability.forEach((s, i) => {
+    if (s !== 'stable') return;
+    const rate = -classification.poles.re[i];
+    slow = Math.min(slow, rate);
+    fast = Math.max(fast, rate);
+  });
+  if (fast === 0) return { stiffnessRatio: null, slowestDecayRate: null, fastestDecayRate: null };
+  return { stiffnessRatio: fast / slow, slowestDecayRate: slow, fastestDecayRate: fast };
+}
+
+export function stiffnessRatio(poles: ComplexVector, tolerance = DEFAULT_STABILITY_TOLERANCE): number | null {
+  return stiffnessOf(classifyPoles(poles, tolerance)).stiffnessRatio;
+}
+
+/** G(0) = D − C A⁻¹ B, or why it is not defined (a pole at s = 0 within the relative tolerance). */
+export function dcGain(model: StateSpaceModel, classification?: PoleClassification): DcGain {
+  if (model.A.rows === 0) return { defined: true, value: model.D };
+  const c = classification ?? classifyPoles(modelPoles(model.A));
+  const t = c.tolerance * c.scale;
+  let atZero = 0;
+  for (let i = 0; i < c.poles.re.length; i++) {
+    if (Math.abs(c.poles.re[i]) <= t && Math.abs(c.poles.im[i]) <= t) atZero++;
+  }
+  if (atZero > 0) {
+    return {
+      defined: false,
+      reason: `not defined: ${atZero} pole(s) at s = 0 (integrator or rigid-body mode)`,
+    };
+  }
+  return { defined: true, value: sub(model.D, matmul(model.C, solve(model.A, model.B))) };
+}
+
+/** The full analysis of a model (see the file header). */
+export function analyzeModel(model: StateSpaceModel, options: AnalysisOptions = {}): ModelAnalysis {
+  const tolerance = options.stabilityTolerance ?? DEFAULT_STABILITY_TOLERANCE;
+  const poles = modelPoles(model.A);
+  const classification = classifyPoles(poles, tolerance);
+  const split = splitStableUnstable(model, { tolerance, poles });
+  const modal = rankedModalForm(split.stable, { rule: 'dominance' });
+  const stable = split.unstableStates === 0;
+  return {
+    states: stateCount(model),
+    inputs: inputCount(model),
+    outputs: outputCount(model),
+    poles: poleData(classification),
+    stable,
+    stablePoles: split.stableStates,
+    marginalPoles: split.marginalPoles,
+    unstablePoles: split.unstablePoles,
+    stabilityTolerance: tolerance,
+    ...stiffnessOf(classification),
+    dcGain: dcGain(model, classification),
+    h2Norm: h2Norm(model, { poles, stabilityTolerance: tolerance }),
+    hinfNorm: hinfNorm(model, { poles, stabilityTolerance: tolerance }),
+    hankelSingularValues: balancedRealization(split.stable).hankelSingularValues,
+    modalDominance: {
+      modes: modal.modes,
+      eigenvectorCondition: modal.eigenvectorCondition,
+      reliable: modal.eigenvectorCondition <= MAX_EIGENVECTOR_CONDITION,
+    },
+  };
+}

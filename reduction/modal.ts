@@ -1,0 +1,226 @@
+/**
+ * Modal form, modal dominance and modal truncation of a stable model with diagonalizable A.
+ *
+ * With A V = V Λ (eigenvectors in real packed form), the similarity z = V⁻¹x gives the real modal form:
+ * a 1×1 block λ for a real pole and the 2×2 block [a b; −b a] for a pair a ± jb, so complex pairs stay
+ * together and the realization stays real (e.g. Antoulas, "Approximation of Large-Scale Dynamical Systems",
+ * SIAM 2005, §9.2, modal approximation; Varga, "Enhanced modal approach for model reduction",
+ * Mathematical Modelling of Systems 1, 1995).
+ *
+ * Each mode contributes Rᵢ/(s − λᵢ) (+ its conjugate) to G with the rank-one residue Rᵢ = cᵢ bᵢᵀ, and
+ * ‖Rᵢ/(s − λᵢ)‖∞ = ‖cᵢ‖‖bᵢ‖/|Re λᵢ|. Truncating a set of modes therefore leaves an error bounded by the
+ * sum of these terms over the discarded modes (twice each for a pair), the bound for diagonalizable A
+ * (Antoulas 2005, §9.2; Green & Limebeer, "Linear Robust Control", 1995, §9.1). The same term ranks the
+ * modes by dominance: it is the height of the mode's own resonance peak.
+ *
+ * A defective or nearly defective A (repeated poles in Jordan chains, e.g. a cascade of equal lags) has an
+ * ill-conditioned eigenvector matrix; the similarity, and with it the bound, is then meaningless, so
+ * modal truncation refuses such a model and points to balanced truncation instead.
+ */
+import { type Matrix, zeros, eig, inverse, matmul, svd } from './linalg/index';
+import { ModelError } from './errors';
+import type { StateSpaceModel } from './model';
+import { selectColumns, selectRows } from './realization';
+
+/** Eigenvector condition above which modal truncation refuses (common practice: about 1/√ε·100). */
+export const MAX_EIGENVECTOR_CONDITION = 1e10;
+
+export interface Mode {
+  /** Real part of the pole (pairs: of the member with Im > 0). */
+  readonly re: number;
+  /** Imaginary part, ≥ 0 (a pair is one mode with `states` = 2). */
+  readonly im: number;
+  readonly states: 1 | 2;
+  /** |λ| in rad per time unit. */
+  readonly naturalFrequency: number;
+  /** −Re λ / |λ|. */
+  readonly dampingRatio: number;
+  /** ‖Rᵢ‖₂ of one member's residue cᵢbᵢᵀ. */
+  readonly residueNorm: number;
+  /** ‖mode's contribution‖∞ bound: ‖cᵢ‖‖bᵢ‖/|Re λ| (real), 2‖Rᵢ‖/|Re λ| (pair). */
+  readonly dominance: number;
+}
+
+export interface ModalForm {
+  /** Modes in the order of the realization's states. */
+  readonly modes: readonly Mode[];
+  /** The real modal realization, states grouped by mode in `modes` order; D of the model. */
+  readonly realization: StateSpaceModel;
+  /** σ_max(V)/σ_min(V) of the eigenvector matrix. */
+  readonly eigenvectorCondition: number;
+}
+
+export type ModalSelection =
+  | { readonly rule: 'dominance' }
+  | { readonly rule: 'slowest' }
+  | { readonly rule: 'band'; readonly band: readonly [number, number] };
+
+interface RawMode extends Mode {
+  readonly columns: readonly number[];
+  /** Im λ of the pair member whose eigenvector the packed columns hold (its sign fixes the 2×2 block). */
+  readonly blockIm: number;
+}
+
+function rowNorm2(m: Matrix, i: number): number {
+  let s = 0;
+  for (let j = 0; j < m.cols; j++) s += m.data[i * m.cols + j] ** 2;
+  return s;
+}
+
+function colNorm2(m: Matrix, j: number): number {
+  let s = 0;
+  for (let i = 0; i < m.rows; i++) s += m.data[i * m.cols + j] ** 2;
+  return s;
+}
+
+function conditionNumber(v: Matrix): number {
+  const s = svd(v).s;
+  const smin = s[s.length - 1];
+  return smin > 0 ? s[0] / smin : Infinity;
+}
+
+/** The real modal form in the eigenvalue solver's order (see the file header). */
+export function modalForm(stable: StateSpaceModel): ModalForm {
+  const n = stable.A.rows;
+  if (n === 0) return { modes: [], realization: stable, eigenvectorCondition: 1 };
+  const { values, vectors } = eig(stable.A);
+  const cond = conditionNumber(vectors);
+  const inv = Number.isFinite(cond) ? inverse(vectors) : null;
+  const Bm = inv ? matmul(inv, stable.B) : zeros(n, stable.B.cols);
+  const Cm = matmul(stable.C, vectors);
+  const raw: RawMode[] = [];
+  for (let j = 0; j < n; j++) {
+    const re = values.re[j];
+    const im = values.im[j];
+    const mag = Math.hypot(re, im);
+    const damping = mag > 0 ? -re / mag : 1;
+    if (im !== 0 && j + 1 < n) {
+      // Real packed pair (j, j+1): columns Re v, Im v of the eigenvector of values[j].
+      const c2 = colNorm2(Cm, j) + colNorm2(Cm, j + 1);
+      const b2 = rowNorm2(Bm, j) + rowNorm2(Bm, j + 1);
+      const residue = 0.5 * Math.sqrt(c2 * b2);
+      raw.push({
+        re,
+        im: Math.abs(im),
+        states: 2,
+        naturalFrequency: mag,
+        dampingRatio: damping,
+        residueNorm: residue,
+        dominance: (2 * residue) / Math.abs(re),
+        columns: [j, j + 1],
+        blockIm: im,
+      });
+      j++;
+    } else {
+      const residue = Math.sqrt(colNorm2(Cm, j) * rowNorm2(Bm, j));
+      raw.push({
+        re,
+        im: 0,
+        states: 1,
+        naturalFrequency: mag,
+        dampingRatio: damping,
+        residueNorm: residue,
+        dominance: residue / Math.abs(re),
+        columns: [j],
+        blockIm: 0,
+      });
+    }
+  }
+  return assemble(raw, Bm, Cm, stable.D, cond);
+}
+
+function assemble(raw: readonly RawMode[], Bm: Matrix, Cm: Matrix, D: Matrix, cond: number): ModalForm {
+  const order = raw.flatMap((r) => r.columns);
+  const n = order.length;
+  const A = zeros(n, n);
+  let k = 0;
+  for (const r of raw) {
+    if (r.states === 1) {
+      A.data[k * n + k] = r.re;
+      k += 1;
+    } else {
+      // A [Re v, Im v] = [Re v, Im v] [a b; −b a] for A v = (a + jb) v.
+      A.data[k * n + k] = r.re;
+      A.data[k * n + k + 1] = r.blockIm;
+      A.data[(k + 1) * n + k] = -r.blockIm;
+      A.data[(k + 1) * n + k + 1] = r.re;
+      k += 2;
+    }
+  }
+  const modes = raw.map(({ columns: _columns, blockIm: _blockIm, ...mode }) => mode);
+  return {
+    modes,
+    realization: { A, B: selectRows(Bm, order), C: selectColumns(Cm, order), D },
+    eigenvectorCondition: cond,
+  };
+}
+
+function byDominance(a: Mode, b: Mode): number {
+  return b.dominance - a.dominance;
+}
+
+/** The modal form with modes sorted by a selection rule: the modes to keep first. */
+export function rankedModalForm(stable: StateSpaceModel, selection: ModalSelection = { rule: 'dominance' }): ModalForm {
+  const form = modalForm(stable);
+  const entries = form.modes.map((mode, i) => ({ mode, i }));
+  let offset = 0;
+  const starts = form.modes.map((m) => {
+    const s = offset;
+    offset += m.states;
+    return s;
+  });
+  if (selection.rule === 'dominance') {
+    entries.sort((a, b) => byDominance(a.mode, b.mode));
+  } else if (selection.rule === 'slowest') {
+    entries.sort((a, b) => Math.abs(a.mode.re) - Math.abs(b.mode.re) || byDominance(a.mode, b.mode));
+  } else {
+    const [lo, hi] = selection.band;
+    const inBand = (m: Mode) => m.naturalFrequency >= lo && m.naturalFrequency <= hi;
+    entries.sort((a, b) => Number(inBand(b.mode)) - Number(inBand(a.mode)) || byDominance(a.mode, b.mode));
+  }
+  const A = form.realization.A;
+  const raw: RawMode[] = entries.map(({ mode, i }) => ({
+    ...mode,
+    columns: mode.states === 1 ? [starts[i]] : [starts[i], starts[i] + 1],
+    blockIm: mode.states === 1 ? 0 : A.data[starts[i] * A.cols + starts[i] + 1],
+  }));
+  const { realization } = form;
+  return assemble(raw, realization.B, realization.C, realization.D, form.eigenvectorCondition);
+}
+
+/** Refuse modal truncation on a (nearly) defective A, where its similarity and bound do not hold. */
+export function requireDiagonalizable(form: ModalForm): void {
+  if (!(form.eigenvectorCondition <= MAX_EIGENVECTOR_CONDITION)) {
+    throw new ModelError(
+      'invalid_option',
+      'method',
+      `modal truncation needs a diagonalizable A, but the stable part's eigenvector matrix has condition ` +
+        `${form.eigenvectorCondition.toExponential(1)} (repeated poles in a Jordan chain); use balanced truncation`,
+    );
+  }
+}
+
+/** Stable orders at which the ranked realization can be cut without splitting a complex pair. */
+export function modalCutPoints(form: ModalForm): number[] {
+  const cuts = [0];
+  for (const m of form.modes) cuts.push(cuts[cuts.length - 1] + m.states);
+  return cuts;
+}
+
+/** Σ of the dominance terms of the modes after the first r states (r a cut point). */
+export function modalErrorBound(form: ModalForm, r: number): number {
+  let states = 0;
+  let bound = 0;
+  for (const m of form.modes) {
+    if (states >= r) bound += m.dominance;
+    states += m.states;
+  }
+  return bound;
+}
+
+/** Number of states of the modes inside [lo, hi] rad per time unit (the band rule's default order). */
+export function statesInBand(modes: readonly Mode[], band: readonly [number, number]): number {
+  return modes
+    .filter((m) => m.naturalFrequency >= band[0] && m.naturalFrequency <= band[1])
+    .reduce((s, m) => s + m.states, 0);
+}
