@@ -1,0 +1,49 @@
+/**
+ * The engine's command line: `npx tsx reduction/cli.ts <verb> MODEL [options]`.
+ *
+ * Prints one JSON document on stdout and exits 0. Bad input (a malformed model file, a wrong option)
+ * prints the error, naming the matrix or option and the problem, on stderr and exits 2; any other failure
+ * exits 1. Verbs live in `reduction/cli/`, one module each; importing a module registers its verb.
+ */
+import { ModelError } from './errors';
+import { parseArgs } from './cli/args';
+import { findVerb, listVerbs } from './cli/registry';
+import './cli/analyze';
+import './cli/reduce';
+import './cli/freq';
+
+function usage(): string {
+  const lines = ['usage: npx tsx reduction/cli.ts <verb> MODEL [options]', '', 'MODEL is one .json file, or the A, B, C and optionally D files (.mtx or .csv).', '', 'verbs:'];
+  for (const v of listVerbs()) {
+    lines.push(`  ${v.name} ${v.usage}`, `      ${v.summary}`);
+    for (const [name, spec] of Object.entries(v.options)) lines.push(`      --${name}${spec.value ? ' …' : ''}  ${spec.description}`);
+  }
+  return lines.join('\n');
+}
+
+function main(argv: readonly string[]): number {
+  const [verbName, ...rest] = argv;
+  if (verbName === undefined || verbName === '--help' || verbName === 'help') {
+    process.stderr.write(usage() + '\n');
+    return verbName === undefined ? 2 : 0;
+  }
+  const verb = findVerb(verbName);
+  if (!verb) {
+    process.stderr.write(`error: unknown verb "${verbName}"\n\n${usage()}\n`);
+    return 2;
+  }
+  try {
+    const document = verb.run(parseArgs(rest, verb.options));
+    process.stdout.write(JSON.stringify(document) + '\n');
+    return 0;
+  } catch (e) {
+    if (e instanceof ModelError) {
+      process.stderr.write(`error: ${e.message} (field: ${e.field}, code: ${e.code})\n`);
+      return 2;
+    }
+    process.stderr.write(`error: ${(e as Error).stack ?? String(e)}\n`);
+    return 1;
+  }
+}
+
+process.exitCode = main(process.argv.slice(2));

@@ -1,0 +1,62 @@
+/**
+ * `analyze MODEL`: poles with modal data, stability, stiffness ratio, Hankel singular values, norms,
+ * DC gain and modal dominance of a model (methods and papers: `reduction/analysis.ts`).
+ */
+import { analyzeModel } from '../analysis';
+import { loadModelArgument, numberOption } from './args';
+import { finiteOrNull, matrixRows, numberList } from './output';
+import { registerVerb } from './registry';
+
+registerVerb({
+  name: 'analyze',
+  summary: 'poles, stability, stiffness ratio, Hankel singular values, H2/H∞ norms and DC gain of a model',
+  usage: 'MODEL [--stability-tolerance T]',
+  options: {
+    'stability-tolerance': {
+      value: true,
+      description: 'relative tolerance for marginal poles: Re λ ≥ −T·max|λ| (default 1e-7)',
+    },
+  },
+  run(args) {
+    const model = loadModelArgument(args.positionals);
+    const a = analyzeModel(model, { stabilityTolerance: numberOption(args, 'stability-tolerance') });
+    return {
+      states: a.states,
+      inputs: a.inputs,
+      outputs: a.outputs,
+      poles: a.poles.map((p) => [p.re, p.im]),
+      stable: a.stable,
+      stiffnessRatio: a.stiffnessRatio === null ? null : finiteOrNull(a.stiffnessRatio),
+      hankelSingularValues: numberList(a.hankelSingularValues),
+      hinfNorm: a.hinfNorm.finite ? a.hinfNorm.value : null,
+      h2Norm: a.h2Norm.finite ? a.h2Norm.value : null,
+      dcGain: a.dcGain.defined ? matrixRows(a.dcGain.value) : null,
+      ...(a.hinfNorm.finite ? { peakFrequency: finiteOrNull(a.hinfNorm.peakFrequency) } : { hinfNormNote: a.hinfNorm.reason }),
+      ...(a.h2Norm.finite ? {} : { h2NormNote: a.h2Norm.reason }),
+      ...(a.dcGain.defined ? {} : { dcGainNote: a.dcGain.reason }),
+      stablePoles: a.stablePoles,
+      marginalPoles: a.marginalPoles,
+      unstablePoles: a.unstablePoles,
+      stabilityTolerance: a.stabilityTolerance,
+      slowestDecayRate: a.slowestDecayRate,
+      fastestDecayRate: a.fastestDecayRate,
+      modalData: a.poles.map((p) => ({
+        naturalFrequency: p.naturalFrequency,
+        dampingRatio: p.dampingRatio,
+        timeConstant: p.timeConstant,
+        stability: p.stability,
+      })),
+      modalDominance: {
+        reliable: a.modalDominance.reliable,
+        eigenvectorCondition: finiteOrNull(a.modalDominance.eigenvectorCondition),
+        modes: a.modalDominance.modes.map((m) => ({
+          pole: [m.re, m.im],
+          states: m.states,
+          naturalFrequency: m.naturalFrequency,
+          dampingRatio: m.dampingRatio,
+          dominance: finiteOrNull(m.dominance),
+        })),
+      },
+    };
+  },
+});
