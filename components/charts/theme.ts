@@ -6,8 +6,9 @@
  * Palette: M. Okabe and K. Ito, "Color Universal Design (CUD): how to make figures and presentations that
  * are friendly to colorblind people", J*Fly, 2008 (the eight-colour set, hex values as published there).
  *
- * Fonts: canvas text cannot resolve CSS variables, so the React wrappers read `--font-mono` / `--font-sans`
- * from the page once mounted (see `useChartTheme`) and pass concrete family names into the option builders.
+ * Fonts: canvas text cannot resolve CSS variables, so the React wrappers read the page's font variables
+ * (`--font-plex-mono` / `--font-plex-sans` set by app/fonts.ts, or `--font-mono` / `--font-sans`) once
+ * mounted (see `useChartTheme`) and pass concrete family names into the option builders.
  */
 
 export const OKABE_ITO = {
@@ -21,19 +22,20 @@ export const OKABE_ITO = {
   reddishPurple: '#CC79A7',
 } as const;
 
+/** The same inks as the page's Tailwind tokens (tailwind.config.ts: sheet, graphite, rule, teal). */
 export const INK = {
   /** page background of the drafting sheet */
-  paper: '#f6f3ec',
+  paper: '#f6f3ea',
   /** text and full-model curves */
-  graphite: '#2e3236',
+  graphite: '#2a2c2e',
   /** axis lines and secondary labels */
-  graphiteMuted: '#6f757a',
+  graphiteMuted: '#575a5e',
   /** the thin grid rule */
-  rule: '#ddd7cb',
+  rule: '#d6cfbd',
   /** the single accent: reduced-model curves, bounds, the chosen order */
-  teal: '#0b5d5e',
+  teal: '#0c5b5f',
   /** fill of a bound band: the accent, faint enough that curves inside stay readable */
-  tealBand: 'rgba(11, 93, 94, 0.13)',
+  tealBand: 'rgba(12, 91, 95, 0.13)',
 } as const;
 
 /**
@@ -78,12 +80,17 @@ export const FULL_LINE = { color: INK.graphite, type: 'solid', width: 1.6 } as c
 export const REDUCED_LINE = { color: INK.teal, type: 'dashed', width: 1.8 } as const;
 export const BOUND_LINE = { color: INK.teal, type: 'solid', width: 1.2 } as const;
 
-/** CSS for the HTML the charts and tables render around themselves (tooltips, captions). */
-export const CSS = {
-  paper: INK.paper,
-  graphite: INK.graphite,
-  muted: INK.graphiteMuted,
-  rule: INK.rule,
-  teal: INK.teal,
-  monoFamily: 'var(--font-mono), ' + FALLBACK_MONO,
-} as const;
+/** CSS custom properties that may hold the page's font families, first found wins. */
+export const MONO_FONT_VARIABLES = ['--font-plex-mono', '--font-mono'] as const;
+export const SANS_FONT_VARIABLES = ['--font-plex-sans', '--font-sans'] as const;
+
+/** Builds a chart theme from a variable lookup (getComputedStyle in the browser); blanks fall back. */
+export function chartThemeFrom(lookup: (name: string) => string): ChartTheme {
+  const first = (names: readonly string[]) => names.map((n) => lookup(n).trim()).find((v) => v !== '');
+  const mono = first(MONO_FONT_VARIABLES);
+  const sans = first(SANS_FONT_VARIABLES);
+  return {
+    fontMono: mono ? `${mono}, ${FALLBACK_MONO}` : FALLBACK_MONO,
+    fontSans: sans ? `${sans}, ${FALLBACK_SANS}` : FALLBACK_SANS,
+  };
+}

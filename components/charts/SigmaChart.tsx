@@ -1,0 +1,31 @@
+'use client';
+/** Largest singular value σmax(G(jω)) of full and reduced model over frequency: the MIMO gain plot. */
+import { useState } from 'react';
+import { MagnitudeScaleSwitch } from './BodeChart';
+import { buildSigmaOption, type MagnitudeScale, type SigmaChartData } from './bode-option';
+import { EChart, useBuiltOption } from './EChart';
+import { useChartTheme } from './useChartTheme';
+
+export interface SigmaChartProps extends Omit<SigmaChartData, 'magnitudeScale'> {
+  readonly initialMagnitudeScale?: MagnitudeScale;
+  readonly height?: number | string;
+  readonly title?: string;
+}
+
+export function SigmaChart({ frequencies, full, reduced, timeUnit, initialMagnitudeScale = 'dB', height = 320, title = 'Largest singular value' }: SigmaChartProps) {
+  const [magnitudeScale, setMagnitudeScale] = useState<MagnitudeScale>(initialMagnitudeScale);
+  const theme = useChartTheme();
+  const built = useBuiltOption(
+    () => buildSigmaOption({ frequencies, full, reduced, timeUnit, magnitudeScale }, theme),
+    [frequencies, full, reduced, timeUnit, magnitudeScale, theme],
+  );
+  return (
+    <figure className="panel p-4">
+      <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
+        <figcaption className="text-sm font-medium">{title}</figcaption>
+        <MagnitudeScaleSwitch value={magnitudeScale} onChange={setMagnitudeScale} />
+      </div>
+      <EChart built={built} height={height} testId="sigma-chart" />
+    </figure>
+  );
+}
