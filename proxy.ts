@@ -1,0 +1,41 @@
+// Runs before every page and API request (Next.js 16 "proxy", formerly middleware): a visitor without a
+// session is sent to /signin (pages) or answered 401 in the API error shape (route handlers). This is only
+// the front door; every page and route handler still checks the role itself (lib/auth.ts).
+import { NextResponse, type NextRequest } from 'next/server';
+import { getToken } from 'next-auth/jwt';
+
+// Reachable without a session. /api/v1 is the pull API for controller projects, which authenticate with
+// a project token instead (checked in those route handlers).
+const PUBLIC_PATHS: RegExp[] = [
+  /^\/signin$/,
+  /^\/forgot$/,
+  /^\/invite\/[^/]+$/,
+  /^\/reset\/[^/]+$/,
+  /^\/api\/auth\//,
+  /^\/api\/links\/(redeem|reset-request)$/,
+  /^\/api\/health$/,
+  /^\/api\/v1(\/|$)/,
+];
+
+export async function proxy(request: NextRequest) {
+  const { pathname, search } = request.nextUrl;
+  if (PUBLIC_PATHS.some((re) => re.test(pathname))) return NextResponse.next();
+
+  const token = await getToken({ req: request, secret: process.env.NEXTAUTH_SECRET });
+  if (token) return NextResponse.next();
+
+  if (pathname.startsWith('/api/')) {
+    return NextResponse.json(
+      { error: { code: 'unauthenticated', message: 'Sign in to continue.' } },
+      { status: 401 },
+    );
+  }
+  const signIn = new URL('/signin', request.url);
+  if (pathname !== '/') signIn.searchParams.set('callbackUrl', `${pathname}${search}`);
+  return NextResponse.redirect(signIn);
+}
+
+export const config = {
+  // Static assets and Next.js internals never need a session.
+  matcher: ['/((?!_next/static|_next/image|favicon.ico|robots.txt).*)'],
+};
