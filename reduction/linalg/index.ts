@@ -3,22 +3,36 @@
  * functions and nothing else for dense kernels, so a kernel can be replaced by a faster one without
  * touching the methods that use it.
  *
- * BOOTSTRAP NOTE: the first versions below delegate to ml-matrix so that the methods can be written
- * against a stable interface; each is being replaced by a typed-array kernel in its own file
- * (`gemm.ts`, `lu.ts`, `schur.ts`, `svd.ts`, `lyapunov.ts`, …) as measured speed requires.
- * Contracts (argument order, shapes, what is returned) must not change when that happens.
+ * The kernels are typed-array implementations, one algorithm per file (`gemm.ts`, `lu.ts`,
+ * `hessenberg.ts`, `schur.ts`, `lyapunov.ts`, …), each citing its paper. Functions still delegating to
+ * ml-matrix are marked as such. Contracts (argument order, shapes, what is returned) do not change
+ * when a kernel is replaced.
  */
 import {
   Matrix as MlMatrix,
   EigenvalueDecomposition,
   SingularValueDecomposition,
-  LuDecomposition,
   CholeskyDecomposition,
-  inverse as mlInverse,
 } from 'ml-matrix';
 import { type Matrix, type ComplexVector, zeros } from './matrix';
+import { multiply } from './gemm';
+import { solve as luSolveMatrix, inverse as luInverseMatrix } from './lu';
+import { eigenvalues as schurEigenvalues, eig as schurEig } from './schur';
+import { lyapunov as signLyapunov } from './lyapunov';
 
 export * from './matrix';
+export { gemm, multiply, multiplyTransposeA, multiplyTransposeB } from './gemm';
+export { luFactor, luSolve, luInverse, luLogDeterminant, type LuFactorization } from './lu';
+export { hessenberg } from './hessenberg';
+export { schur, triangularEigenvectors } from './schur';
+export {
+  lyapunovFactor,
+  lowRankGramianFactors,
+  lyapunovResidual,
+  type SignIterationOptions,
+  type SignIterationReport,
+} from './lyapunov';
+export { setLinalgThreads, linalgThreads } from './parallel';
 
 function toMl(m: Matrix): MlMatrix {
   const out = new MlMatrix(m.rows, m.cols);
@@ -32,40 +46,33 @@ function fromMl(m: MlMatrix): Matrix {
   return out;
 }
 
-/** C = A·B. */
+/** C = A·B (blocked, packed product; see `gemm.ts`). */
 export function matmul(a: Matrix, b: Matrix): Matrix {
   if (a.cols !== b.rows) throw new Error(`matmul: ${a.rows}×${a.cols} times ${b.rows}×${b.cols}`);
-  return fromMl(toMl(a).mmul(toMl(b)));
+  return multiply(a, b);
 }
 
 /** Solution X of A·X = B for square nonsingular A. Throws when A is numerically singular. */
 export function solve(a: Matrix, b: Matrix): Matrix {
-  const lu = new LuDecomposition(toMl(a));
-  if (lu.isSingular()) throw new Error('solve: matrix is singular');
-  return fromMl(lu.solve(toMl(b)));
+  return luSolveMatrix(a, b);
 }
 
 export function inverse(a: Matrix): Matrix {
-  return fromMl(mlInverse(toMl(a)));
+  return luInverseMatrix(a);
 }
 
-/** Eigenvalues of a general real square matrix. */
+/** Eigenvalues of a general real square matrix (Hessenberg + Francis double-shift QR, `schur.ts`). */
 export function eigenvalues(a: Matrix): ComplexVector {
-  const e = new EigenvalueDecomposition(toMl(a), { assumeSymmetric: false });
-  return { re: Float64Array.from(e.realEigenvalues), im: Float64Array.from(e.imaginaryEigenvalues) };
+  return schurEigenvalues(a);
 }
 
 /**
  * Eigenvalues and right eigenvectors of a general real matrix. Vectors in the real packed form:
  * for a complex pair at j, j+1 (im[j] > 0), columns j and j+1 hold the real and imaginary parts of the
- * eigenvector of values[j]; the conjugate vector belongs to values[j+1].
+ * eigenvector of values[j]; the conjugate vector belongs to values[j+1]. Each vector has unit 2-norm.
  */
 export function eig(a: Matrix): { values: ComplexVector; vectors: Matrix } {
-  const e = new EigenvalueDecomposition(toMl(a), { assumeSymmetric: false });
-  return {
-    values: { re: Float64Array.from(e.realEigenvalues), im: Float64Array.from(e.imaginaryEigenvalues) },
-    vectors: fromMl(e.eigenvectorMatrix),
-  };
+  return schurEig(a);
 }
 
 /** Thin SVD A = U·diag(s)·Vᵀ with s descending. */
@@ -88,23 +95,9 @@ export function cholesky(a: Matrix): Matrix {
 }
 
 /**
- * X solving A·X + X·Aᵀ + Q = 0 for stable A (all eigenvalues in the open left half-plane).
- * Bootstrap: the matrix sign-function iteration (Roberts 1971) with determinant scaling.
+ * X solving A·X + X·Aᵀ + Q = 0 for stable A (all eigenvalues in the open left half-plane), by the
+ * scaled matrix sign-function iteration (Roberts 1971; Byers 1987), see `lyapunov.ts`.
  */
 export function lyapunov(a: Matrix, q: Matrix): Matrix {
-  let ak = toMl(a);
-  let qk = toMl(q);
-  const n = a.rows;
-  for (let it = 0; it < 100; it++) {
-    const ai = mlInverse(ak);
-    const det = Math.abs(new LuDecomposition(ak).determinant);
-    const c = det > 0 && Number.isFinite(det) ? Math.pow(det, -1 / n) : 1;
-    const aNext = ak.clone().mul(c).add(ai.clone().mul(1 / c)).mul(0.5);
-    const qNext = qk.clone().mul(c).add(ai.mmul(qk).mmul(ai.transpose()).mul(1 / c)).mul(0.5);
-    const diff = aNext.clone().sub(ak).norm('frobenius') / aNext.norm('frobenius');
-    ak = aNext;
-    qk = qNext;
-    if (diff < 1e-12) break;
-  }
-  return fromMl(qk.mul(0.5));
+  return signLyapunov(a, q);
 }
