@@ -1,0 +1,123 @@
+/**
+ * The accuracy report of a reduced-model version as table rows: accuracy against the full model, orders
+ * and stiffness, and the simulation cost of full versus reduced under the same input and tolerances
+ * (the engine's solver statistics: steps, rejected steps, right-hand-side evaluations, factorisations,
+ * points stored, wall time). Every value leaves here formatted with its unit.
+ */
+import { formatCount, formatFactor, formatNumber, formatPercent, formatWallTime } from '../charts/format';
+
+export interface SimulationCost {
+  /** solver as the engine names it, e.g. "exact", "explicit", "stiff" */
+  readonly solver: string;
+  readonly steps: number;
+  readonly rejectedSteps?: number;
+  readonly rhsEvaluations?: number;
+  readonly factorizations?: number;
+  readonly pointsStored: number;
+  readonly wallMs: number;
+}
+
+export interface AccuracyFigures {
+  readonly fullOrder: number;
+  readonly reducedOrder: number;
+  /** ‖G - Gr‖∞, absolute */
+  readonly hinfError: number | null;
+  /** ‖G - Gr‖∞ / ‖G‖∞ as a fraction */
+  readonly hinfErrorRelative: number | null;
+  /** the method's a-priori bound on ‖G - Gr‖∞; null when the method has none */
+  readonly errorBound: number | null;
+  readonly h2Error: number | null;
+  /** largest entry of |G(0) - Gr(0)|; null when the DC gain is not defined (pole at 0) */
+  readonly dcGainError: number | null;
+  /** largest absolute step-response error over all channels */
+  readonly peakStepError: number | null;
+  readonly stiffnessRatioFull: number | null;
+  readonly stiffnessRatioReduced: number | null;
+  readonly simulation?: { readonly full: SimulationCost; readonly reduced: SimulationCost };
+}
+
+export interface FigureRow {
+  readonly label: string;
+  readonly value: string;
+  /** short explanation for a value that needs one (a dash, a bound not met) */
+  readonly note?: string;
+}
+
+export interface CostRow {
+  readonly label: string;
+  readonly full: string;
+  readonly reduced: string;
+  /** full over reduced, e.g. "250×"; dash when either is zero or missing */
+  readonly ratio: string;
+}
+
+/** Measured error above the a-priori bound means a numerical problem; a relative slack of 1e-9 absorbs rounding (common practice). */
+export const BOUND_SLACK = 1e-9;
+
+function optional(x: number | null, format: (v: number) => string): string {
+  return x === null || x === undefined ? '—' : format(x);
+}
+
+export function accuracyRows(f: AccuracyFigures): FigureRow[] {
+  const rows: FigureRow[] = [
+    { label: 'H∞ error ‖G − Gr‖∞', value: optional(f.hinfError, (v) => formatNumber(v)) },
+    { label: 'H∞ error, relative to ‖G‖∞', value: optional(f.hinfErrorRelative, (v) => formatPercent(v)) },
+    {
+      label: 'A-priori bound',
+      value: optional(f.errorBound, (v) => formatNumber(v)),
+      ...(f.errorBound === null ? { note: 'the method gives no bound here' } : {}),
+    },
+  ];
+  if (f.hinfError !== null && f.errorBound !== null) {
+    const holds = f.hinfError <= f.errorBound * (1 + BOUND_SLACK);
+    rows.push({
+      label: 'Error within bound',
+      value: holds ? 'yes' : 'no',
+      ...(holds ? {} : { note: 'measured error exceeds the a-priori bound: check the computation' }),
+    });
+  }
+  rows.push(
+    { label: 'H2 error ‖G − Gr‖2', value: optional(f.h2Error, (v) => formatNumber(v)) },
+    {
+      label: 'DC-gain error',
+      value: optional(f.dcGainError, (v) => formatNumber(v)),
+      ...(f.dcGainError === null ? { note: 'not defined (pole at 0) or not computed' } : {}),
+    },
+    { label: 'Peak step-response error', value: optional(f.peakStepError, (v) => formatNumber(v)) },
+    { label: 'Order, full → reduced', value: `${formatCount(f.fullOrder)} → ${formatCount(f.reducedOrder)}` },
+    {
+      label: 'Stiffness ratio, full → reduced',
+      value: `${optional(f.stiffnessRatioFull, (v) => formatNumber(v))} → ${optional(f.stiffnessRatioReduced, (v) => formatNumber(v))}`,
+    },
+  );
+  return rows;
+}
+
+function ratio(full: number | undefined, reduced: number | undefined): string {
+  if (full === undefined || reduced === undefined || !(full > 0) || !(reduced > 0)) return '—';
+  return formatFactor(full / reduced);
+}
+
+export function simulationCostRows(full: SimulationCost, reduced: SimulationCost): CostRow[] {
+  const count = (x: number | undefined) => (x === undefined ? '—' : formatCount(x));
+  const rows: CostRow[] = [
+    { label: 'Solver', full: full.solver, reduced: reduced.solver, ratio: '' },
+    { label: 'Steps', full: count(full.steps), reduced: count(reduced.steps), ratio: ratio(full.steps, reduced.steps) },
+  ];
+  const optionalCounts: [string, keyof SimulationCost][] = [
+    ['Rejected steps', 'rejectedSteps'],
+    ['Right-hand-side evaluations', 'rhsEvaluations'],
+    ['Factorisations', 'factorizations'],
+  ];
+  for (const [label, key] of optionalCounts) {
+    const a = full[key] as number | undefined;
+    const b = reduced[key] as number | undefined;
+    if (a === undefined && b === undefined) continue;
+    rows.push({ label, full: count(a), reduced: count(b), ratio: ratio(a, b) });
+  }
+  rows.push(
+    { label: 'Points stored', full: count(full.pointsStored), reduced: count(reduced.pointsStored), ratio: ratio(full.pointsStored, reduced.pointsStored) },
+    { label: 'Wall time', full: formatWallTime(full.wallMs), reduced: formatWallTime(reduced.wallMs), ratio: ratio(full.wallMs, reduced.wallMs) },
+  );
+  return rows;
+}
