@@ -11,6 +11,7 @@ import { findVerb, listVerbs } from './cli/registry';
 import './cli/analyze';
 import './cli/reduce';
 import './cli/freq';
+import './cli/simulate';
 
 function usage(): string {
   const lines = ['usage: npx tsx reduction/cli.ts <verb> MODEL [options]', '', 'MODEL is one .json file, or the A, B, C and optionally D files (.mtx or .csv).', '', 'verbs:'];

@@ -1,0 +1,144 @@
+/**
+ * Output times and the recorder that keeps only the outputs asked for. Solvers hand it the state at each
+ * output time (from their dense output); it evaluates y = Cx + Du with the input in effect at that time
+ * (right-continuous: at a jump the new value), so nothing per internal step is stored.
+ */
+import { ModelError } from '../errors';
+import { type Matrix, zeros } from '../linalg/matrix';
+import type { InputSignal } from './inputs';
+import { pieceAt } from './inputs';
+import type { LinearSystem } from './linear-system';
+import { DEFAULT_ATOL, DEFAULT_POINTS, DEFAULT_RTOL, type SimulationOptions } from './types';
+
+export interface CheckedOptions {
+  tEnd: number;
+  rtol: number;
+  atol: number;
+  times: Float64Array;
+  /** True when `times` is the uniform grid k·tEnd/(N−1). */
+  uniform: boolean;
+  x0: Float64Array;
+  fixedStep?: number;
+  maxSteps: number;
+}
+
+function positive(v: unknown, field: string, what: string): number {
+  if (typeof v !== 'number' || !Number.isFinite(v) || v <= 0) {
+    throw new ModelError('invalid_option', field, `${field} must be a positive number (${what}), got ${String(v)}`);
+  }
+  return v;
+}
+
+/** Validate simulation options against a model with n states. Throws invalid_option naming the option. */
+export function checkOptions(opts: SimulationOptions, n: number): CheckedOptions {
+  const tEnd = positive(opts.tEnd, 'tEnd', 'the end time of the simulation');
+  const rtol = opts.rtol ?? DEFAULT_RTOL;
+  const atol = opts.atol ?? DEFAULT_ATOL;
+  if (typeof rtol !== 'number' || !(rtol >= 1e-13 && rtol < 1)) {
+    throw new ModelError('invalid_option', 'rtol', `rtol must be between 1e-13 and 1, got ${String(rtol)}`);
+  }
+  // A step from rest starts at x = 0, where a purely relative tolerance means nothing: atol must be > 0.
+  if (typeof atol !== 'number' || !(atol > 0) || !Number.isFinite(atol)) {
+    throw new ModelError('invalid_option', 'atol', `atol must be a positive finite number, got ${String(atol)}`);
+  }
+  let times: Float64Array;
+  let uniform = false;
+  if (opts.times !== undefined) {
+    if (opts.points !== undefined) {
+      throw new ModelError('invalid_option', 'times', 'give either points (a uniform grid) or times, not both');
+    }
+    if (opts.times.length === 0) throw new ModelError('invalid_option', 'times', 'times must list at least one output time');
+    times = Float64Array.from(opts.times);
+    for (let k = 0; k < times.length; k++) {
+      const t = times[k];
+      if (!Number.isFinite(t) || t < 0 || t > tEnd) {
+        throw new ModelError('invalid_option', 'times', `output time ${k + 1} (${t}) is outside [0, tEnd = ${tEnd}]`);
+      }
+      if (k > 0 && !(t > times[k - 1])) {
+        throw new ModelError('invalid_option', 'times', `output times must increase strictly: time ${k + 1} (${t}) follows ${times[k - 1]}`);
+      }
+    }
+  } else {
+    const points = opts.points ?? DEFAULT_POINTS;
+    if (!Number.isInteger(points) || points < 2) {
+      throw new ModelError('invalid_option', 'points', `points must be a whole number ≥ 2, got ${String(points)}`);
+    }
+    times = new Float64Array(points);
+    for (let k = 0; k < points; k++) times[k] = (tEnd * k) / (points - 1);
+    times[points - 1] = tEnd;
+    uniform = true;
+  }
+  const x0 = new Float64Array(n);
+  if (opts.x0 !== undefined) {
+    if (opts.x0.length !== n) {
+      throw new ModelError('dimension_mismatch', 'x0', `x0 has ${opts.x0.length} entries but the model has ${n} states`);
+    }
+    for (let i = 0; i < n; i++) {
+      if (!Number.isFinite(opts.x0[i])) throw new ModelError('non_finite', 'x0', `x0 entry ${i + 1} is not finite`);
+      x0[i] = opts.x0[i];
+    }
+  }
+  if (opts.fixedStep !== undefined) positive(opts.fixedStep, 'fixedStep', 'the fixed step size');
+  const maxSteps = opts.maxSteps ?? 10_000_000;
+  positive(maxSteps, 'maxSteps', 'the safety limit on steps');
+  return { tEnd, rtol, atol, times, uniform, x0, fixedStep: opts.fixedStep, maxSteps };
+}
+
+export class OutputRecorder {
+  readonly y: Matrix;
+  /** Index of the next output time to fill. */
+  next = 0;
+
+  constructor(
+    readonly times: Float64Array,
+    private readonly system: LinearSystem,
+    private readonly input: InputSignal,
+  ) {
+    this.y = zeros(times.length, system.p);
+  }
+
+  get done(): boolean {
+    return this.next >= this.times.length;
+  }
+
+  /** The next output time (Infinity when all are filled). */
+  get nextTime(): number {
+    return this.next < this.times.length ? this.times[this.next] : Infinity;
+  }
+
+  /** Record y at the next output time from the state x there. */
+  record(x: Float64Array): void {
+    const t = this.times[this.next];
+    const u = this.input.values[pieceAt(this.input, t)];
+    this.system.output(x, u, this.y.data, this.next * this.system.p);
+    this.next++;
+  }
+}
+
+/** The intervals on which u is constant inside [0, tEnd]: [start, end) with the piece index in effect. */
+export function constantInputIntervals(input: InputSignal, tEnd: number): { start: number; end: number; piece: number }[] {
+  const out: { start: number; end: number; piece: number }[] = [];
+  let start = 0;
+  let piece = pieceAt(input, 0);
+  for (let k = piece; k < input.breakpoints.length; k++) {
+    const b = input.breakpoints[k];
+    if (b >= tEnd) break;
+    if (b > start) out.push({ start, end: b, piece });
+    start = Math.max(start, b);
+    piece = k + 1;
+  }
+  out.push({ start, end: tEnd, piece });
+  return out;
+}
+
+/** Weighted RMS norm of e with scale atol + rtol·max(|a|, |b|) (Hairer, Nørsett & Wanner 1993, eq. II.4.11). */
+export function errorNorm(e: Float64Array, a: Float64Array, b: Float64Array, rtol: number, atol: number): number {
+  let s = 0;
+  const n = e.length;
+  for (let i = 0; i < n; i++) {
+    const sc = atol + rtol * Math.max(Math.abs(a[i]), Math.abs(b[i]));
+    const r = e[i] / sc;
+    s += r * r;
+  }
+  return Math.sqrt(s / n);
+}
