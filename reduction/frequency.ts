@@ -9,13 +9,9 @@
  * adjacent rows, which is all the pivoting a Hessenberg matrix needs: Golub & Van Loan, "Matrix
  * Computations", 4th ed. 2013, ch. 4, Hessenberg LU) instead of an O(n³) dense solve.
  *
- * The Hessenberg form comes from the linear-algebra surface. Until that kernel is available there, the
- * evaluator falls back to one real 2n×2n solve per frequency of
- *   [−A  −ωI] [Xr]   [B]
- *   [ωI  −A ] [Xi] = [0],
- * the real form of (jωI − A)X = B, which gives the same numbers at O(n³) cost.
+ * The Hessenberg form itself (Householder reduction) comes from the linear-algebra surface.
  */
-import { type Matrix, zeros, matmul, solve, svd, transpose } from './linalg/index';
+import { type Matrix, zeros, matmul, svd, transpose, hessenberg } from './linalg/index';
 import type { StateSpaceModel } from './model';
 
 /** A complex p×m matrix as two real matrices. */
@@ -27,8 +23,8 @@ export interface ComplexMatrix {
 export interface FrequencyEvaluator {
   /** G(jω) for one frequency ω in rad per time unit. */
   at(w: number): ComplexMatrix;
-  /** How each frequency is computed: on a Hessenberg form, by a dense solve, or a model without states. */
-  readonly form: 'hessenberg' | 'dense' | 'static';
+  /** How each frequency is computed: on a Hessenberg form, or a model without states (G = D). */
+  readonly form: 'hessenberg' | 'static';
 }
 
 export interface HessenbergForm {
@@ -160,39 +156,13 @@ export function hessenbergEvaluator(model: StateSpaceModel, form: HessenbergForm
   };
 }
 
-function denseEvaluator(model: StateSpaceModel): FrequencyEvaluator {
-  const { A, B } = model;
-  const n = A.rows;
-  const m = B.cols;
-  const rhs = zeros(2 * n, m);
-  rhs.data.set(B.data);
-  return {
-    form: 'dense',
-    at(w: number): ComplexMatrix {
-      const big = zeros(2 * n, 2 * n);
-      const N = 2 * n;
-      for (let i = 0; i < n; i++) {
-        for (let j = 0; j < n; j++) {
-          const a = A.data[i * n + j];
-          big.data[i * N + j] = -a;
-          big.data[(n + i) * N + n + j] = -a;
-        }
-        big.data[i * N + n + i] = -w;
-        big.data[(n + i) * N + i] = w;
-      }
-      const x = solve(big, rhs);
-      return outputMap(model.C, model.D, x.data.subarray(0, n * m), x.data.subarray(n * m));
-    },
-  };
-}
-
 /** The evaluator for a model: a one-time transform, then cheap evaluations at any frequency. */
 export function frequencyEvaluator(model: StateSpaceModel): FrequencyEvaluator {
   if (model.A.rows === 0) {
     const im = zeros(model.D.rows, model.D.cols);
     return { form: 'static', at: () => ({ re: model.D, im }) };
   }
-  return denseEvaluator(model);
+  return hessenbergEvaluator(model, hessenberg(model.A));
 }
 
 export interface FrequencyResponse {

@@ -1,16 +1,16 @@
 /**
- * Controllability and observability gramians of a stable model and their low-rank square-root factors.
+ * Controllability and observability gramians of a stable model and their square-root factors.
  *
  *   A P + P Aᵀ + B Bᵀ = 0,   Aᵀ Q + Q A + Cᵀ C = 0   (Moore 1981, "Principal component analysis in linear
  *   systems: controllability, observability, and model reduction", IEEE Trans. AC 26(1)).
  *
- * The Lyapunov equations are solved by the linear-algebra surface. The factors L with P = L Lᵀ come from
- * the symmetric eigendecomposition P = V Λ Vᵀ, L = V_k Λ_k^½ over the eigenvalues above n·ε·λ_max: unlike
- * a Cholesky factorisation this never fails on the semidefinite gramians of non-minimal models (a
- * computed gramian of an uncontrollable model has eigenvalues at rounding level, some of them negative),
- * and it drops those directions instead of dividing by them.
+ * Dense gramians (for the H2 norm and for checks) and the factors P = Lc Lcᵀ, Q = Lo Loᵀ (for balancing)
+ * both come from the linear-algebra surface's matrix sign-function solvers (Roberts 1971). The factors
+ * come from one iteration for both equations, with columns compressed to the numerical rank as they
+ * go: they never need a Cholesky factorisation, which would fail on the semidefinite gramians of
+ * non-minimal models, and they carry no direction below the rounding level.
  */
-import { type Matrix, lyapunov, matmul, transpose, symmetricEig, zeros } from './linalg/index';
+import { type Matrix, lyapunov, lowRankGramianFactors, matmul, transpose, zeros } from './linalg/index';
 import type { StateSpaceModel } from './model';
 import { symmetricPart } from './realization';
 
@@ -27,35 +27,16 @@ export function observabilityGramian(model: StateSpaceModel): Matrix {
   return symmetricPart(lyapunov(transpose(model.A), matmul(Ct, model.C)));
 }
 
-/** L (n×k) with X ≈ L Lᵀ for a symmetric positive semidefinite X; k is X's numerical rank. */
-export function gramianFactor(x: Matrix): Matrix {
-  const n = x.rows;
-  if (n === 0) return zeros(0, 0);
-  const { values, vectors } = symmetricEig(symmetricPart(x));
-  let largest = 0;
-  for (let i = 0; i < n; i++) largest = Math.max(largest, values[i]);
-  const cut = n * Number.EPSILON * largest;
-  const keep: number[] = [];
-  for (let i = n - 1; i >= 0; i--) if (values[i] > cut) keep.push(i);
-  const L = zeros(n, keep.length);
-  for (let r = 0; r < n; r++) {
-    for (let c = 0; c < keep.length; c++) {
-      L.data[r * keep.length + c] = vectors.data[r * n + keep[c]] * Math.sqrt(values[keep[c]]);
-    }
-  }
-  return L;
-}
-
 export interface GramianFactors {
-  /** P ≈ Lc Lcᵀ. */
+  /** P ≈ Lc Lcᵀ, n × (numerical rank of P). */
   readonly controllability: Matrix;
-  /** Q ≈ Lo Loᵀ. */
+  /** Q ≈ Lo Loᵀ, n × (numerical rank of Q). */
   readonly observability: Matrix;
 }
 
 export function gramianFactors(model: StateSpaceModel): GramianFactors {
-  return {
-    controllability: gramianFactor(controllabilityGramian(model)),
-    observability: gramianFactor(observabilityGramian(model)),
-  };
+  const n = model.A.rows;
+  if (n === 0) return { controllability: zeros(0, 0), observability: zeros(0, 0) };
+  const { controllability, observability } = lowRankGramianFactors(model.A, model.B, model.C);
+  return { controllability, observability };
 }

@@ -10,6 +10,7 @@ matrices as lists of rows. Tasks:
           then the singular values of Lo^T Lc with P = Lc Lc^T, Q = Lo Lo^T from numpy.linalg.eigh (more
           accurate for the small values than sqrt(eig(P Q))), descending
   "freq"  G(jw) = C (jwI - A)^-1 B + D at the frequencies "w", by numpy.linalg.solve (LAPACK zgesv)
+  "sv"    singular values of G(jw) at the frequencies "w" (numpy.linalg.svd, LAPACK zgesdd)
   "h2"    sqrt(trace(C P C^T))
   "hinf"  sup_w sigma_max(G(jw)) by a dense log sweep refined with scipy.optimize.minimize_scalar around
           the best grid points: an estimate independent of the Hamiltonian method under test
@@ -105,6 +106,8 @@ def run_case(case):
     if "freq" in tasks:
         resp = [response(A, B, C, D, w) for w in case["w"]]
         out["freq"] = [{"re": g.real.tolist(), "im": g.imag.tolist()} for g in resp]
+    if "sv" in tasks:
+        out["sv"] = [np.linalg.svd(response(A, B, C, D, w), compute_uv=False).tolist() for w in case["w"]]
     if "hinf" in tasks:
         value, w = hinf_sweep(A, B, C, D)
         out["hinf"] = {"value": float(value), "w": w if np.isfinite(w) else None}
