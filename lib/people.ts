@@ -115,8 +115,13 @@ export async function createInvitedUser(trx: Knex.Transaction, input: InviteInpu
 }
 
 /** Role change and (de)activation by an admin. Refuses to leave the shelf without an active admin. */
-export async function updatePerson(id: string, change: PersonUpdate, actorId: string): Promise<Person> {
-  return db().transaction(async (trx) => {
+export async function updatePerson(
+  id: string,
+  change: PersonUpdate,
+  actorId: string,
+  outer: Knex | Knex.Transaction = db(),
+): Promise<Person> {
+  return outer.transaction(async (trx) => {
     const before = await trx<UserRow>('users').where({ id }).forUpdate().first();
     if (!before) throw new ApiError(404, 'not_found', 'That person was not found.');
     const after = { role: change.role ?? before.role, active: change.active ?? before.active };

@@ -69,7 +69,8 @@ function decodeBody(part: Part): string {
   let bytes = part.body;
   if (encoding === 'base64') bytes = Buffer.from(part.body.toString('latin1').replace(/\s+/g, ''), 'base64');
   else if (encoding === 'quoted-printable') bytes = decodeQuotedPrintable(part.body.toString('latin1'));
-  return decodeCharset(bytes, charset);
+  // Lines travel as CRLF (RFC 5322 §2.1); stored text uses plain newlines.
+  return decodeCharset(bytes, charset).replace(/\r\n/g, '\n');
 }
 
 const ENCODED_WORD = /=\?([^?]+)\?([BbQq])\?([^?]*)\?=/g;

@@ -5,7 +5,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 
-export const BASE_URL = (process.env.BASE_URL || 'http://127.0.0.1:3100').replace(/\/+$/, '');
+// Not BASE_URL: vitest sets that one itself (to "/").
+export const BASE_URL = (process.env.MODESHELF_TEST_URL || 'http://127.0.0.1:3100').replace(/\/+$/, '');
 export const SCREENSHOT_DIR = path.resolve(__dirname, '..', '..', 'test-output');
 const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
 

@@ -45,23 +45,27 @@ export default async function MailPage() {
         </section>
       ) : (
         <ol className="space-y-4" aria-label="Captured mail">
-          {messages.map((m) => (
+          {messages.map((m, index) => (
             <li key={m.id} className="panel" data-testid="mail-message" data-to={m.envelopeTo.join(',')}>
-              <header className="grid grid-cols-[7rem_1fr] gap-x-3 gap-y-0.5 border-b border-rule px-4 py-3 text-sm">
-                <span className="field-label">Subject</span>
-                <span className="font-medium">{m.subject || '(no subject)'}</span>
-                <span className="field-label">To</span>
-                <span>{m.envelopeTo.join(', ')}</span>
-                <span className="field-label">From</span>
-                <span>{m.fromHeader ?? m.envelopeFrom ?? '—'}</span>
-                <span className="field-label">Received</span>
-                <time className="num text-xs" dateTime={m.receivedAt}>
-                  {m.receivedAt.replace('T', ' ').slice(0, 19)} UTC
-                </time>
-              </header>
-              <pre className="whitespace-pre-wrap px-4 py-3 font-sans text-sm">
-                {m.textBody ? <TextWithLinks text={m.textBody} /> : '(no plain-text part)'}
-              </pre>
+              {/* The newest few open; older ones fold to their subject line. */}
+              <details open={index < 5}>
+                <summary className="flex cursor-pointer flex-wrap items-baseline gap-x-4 px-4 py-2 text-sm">
+                  <span className="font-medium">{m.subject || '(no subject)'}</span>
+                  <span className="text-graphite-soft">to {m.envelopeTo.join(', ')}</span>
+                  <time className="num ml-auto text-xs text-graphite-soft" dateTime={m.receivedAt}>
+                    {m.receivedAt.replace('T', ' ').slice(0, 19)} UTC
+                  </time>
+                </summary>
+                <div className="grid grid-cols-[7rem_1fr] gap-x-3 gap-y-0.5 border-t border-rule px-4 py-2 text-sm">
+                  <span className="field-label">From</span>
+                  <span>{m.fromHeader ?? m.envelopeFrom ?? '—'}</span>
+                  <span className="field-label">To</span>
+                  <span>{m.envelopeTo.join(', ')}</span>
+                </div>
+                <pre className="whitespace-pre-wrap border-t border-rule px-4 py-3 font-sans text-sm">
+                  {m.textBody ? <TextWithLinks text={m.textBody} /> : '(no plain-text part)'}
+                </pre>
+              </details>
             </li>
           ))}
         </ol>

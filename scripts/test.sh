@@ -1,0 +1,93 @@
+#!/usr/bin/env bash
+# `npm test`: the whole check, from a fresh Debian machine with Node 20.
+#   1. installs what is missing: npm packages, Debian's postgresql, chromium, python3-numpy/scipy
+#   2. starts PostgreSQL (loopback) and re-creates an empty test database, migrates and seeds it
+#   3. starts the fake SMTP on a test port
+#   4. vitest: unit, engine and integration tests (integration against the real PostgreSQL)
+#   5. tsc --noEmit over the whole tree
+#   6. builds the app into .next-test, serves it on a test port, runs the browser tests (playwright-core
+#      driving Debian's chromium), screenshots in test-output/
+# Stops what it started and exits non-zero if any step failed. Set TEST_DATABASE_URL to use another
+# PostgreSQL (its database is migrated, not dropped).
+set -uo pipefail
+source "$(dirname "${BASH_SOURCE[0]}")/env.sh"
+cd "$REPO_ROOT"
+
+TEST_APP_PORT="${TEST_APP_PORT:-3100}"
+export SMTP_PORT="${TEST_SMTP_PORT:-2626}"
+export NEXT_TELEMETRY_DISABLED=1
+export NEXT_DIST_DIR=.next-test
+export NEXTAUTH_URL="http://127.0.0.1:$TEST_APP_PORT"
+export APP_URL="$NEXTAUTH_URL"
+export MODESHELF_TEST_URL="$NEXTAUTH_URL"
+# A fresh secret each run: sessions from an earlier run are not valid in this one.
+NEXTAUTH_SECRET="$(node -e 'process.stdout.write(require("crypto").randomBytes(32).toString("base64url"))')"
+export NEXTAUTH_SECRET
+TEST_LOG_DIR="$RUN_DIR/test"
+mkdir -p "$TEST_LOG_DIR" "$REPO_ROOT/test-output"
+
+set -e
+ensure_node_modules
+ensure_python_reference_installed
+ensure_chromium_installed
+set +e
+
+STARTED_PG=0
+cleanup() {
+  trap - EXIT INT TERM
+  {
+    stop_pidfile "$TEST_LOG_DIR/app.pid"
+    stop_pidfile "$TEST_LOG_DIR/smtp.pid"
+    if [ "$STARTED_PG" = 1 ]; then bash scripts/pg.sh stop; fi
+  } >>"$TEST_LOG_DIR/cleanup.log" 2>&1
+}
+trap cleanup EXIT
+trap 'exit 130' INT TERM
+
+if [ -n "${TEST_DATABASE_URL:-}" ]; then
+  log "using the PostgreSQL in TEST_DATABASE_URL (migrated, not dropped)"
+else
+  if ! bash scripts/pg.sh status >/dev/null 2>&1; then STARTED_PG=1; fi
+  bash scripts/pg.sh start || die "PostgreSQL did not start"
+  bash scripts/pg.sh reset-test >/dev/null || die "could not re-create the test database"
+  export TEST_DATABASE_URL="$LOCAL_TEST_DATABASE_URL"
+fi
+export DATABASE_URL="$TEST_DATABASE_URL"
+
+node_modules/.bin/tsx scripts/db.ts migrate || die "migrating the test database failed"
+node_modules/.bin/tsx scripts/db.ts seed || die "seeding the test database failed"
+
+stop_pidfile "$TEST_LOG_DIR/smtp.pid"
+setsid node_modules/.bin/tsx scripts/fake-smtp.ts >"$TEST_LOG_DIR/smtp.log" 2>&1 &
+echo $! >"$TEST_LOG_DIR/smtp.pid"
+wait_for_port "$SMTP_PORT" 30 || { cat "$TEST_LOG_DIR/smtp.log" >&2; die "the fake SMTP did not start"; }
+
+FAILED=()
+
+log "vitest: unit, engine and integration tests"
+node_modules/.bin/vitest run || FAILED+=("vitest (unit, engine, integration)")
+
+log "tsc --noEmit"
+node_modules/.bin/tsc --noEmit -p . || FAILED+=("tsc --noEmit")
+
+log "next build (into .next-test; log: .run/test/build.log)"
+if node_modules/.bin/next build >"$TEST_LOG_DIR/build.log" 2>&1; then
+  stop_pidfile "$TEST_LOG_DIR/app.pid"
+  setsid node_modules/.bin/next start -H 127.0.0.1 -p "$TEST_APP_PORT" >"$TEST_LOG_DIR/app.log" 2>&1 &
+  echo $! >"$TEST_LOG_DIR/app.pid"
+  if wait_for_http "$MODESHELF_TEST_URL/api/health" 60; then
+    log "browser tests against $MODESHELF_TEST_URL (screenshots: test-output/)"
+    node_modules/.bin/vitest run -c vitest.browser.config.ts || FAILED+=("browser tests")
+  else
+    tail -30 "$TEST_LOG_DIR/app.log" >&2
+    FAILED+=("serving the built app")
+  fi
+else
+  tail -40 "$TEST_LOG_DIR/build.log" >&2
+  FAILED+=("next build")
+fi
+
+if [ "${#FAILED[@]}" -gt 0 ]; then
+  printf '\033[31m[modeshelf] failed: %s\033[0m\n' "$(IFS=', '; echo "${FAILED[*]}")" >&2
+  exit 1
+fi
