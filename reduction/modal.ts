@@ -11,7 +11,8 @@
  * ‖Rᵢ/(s − λᵢ)‖∞ = ‖cᵢ‖‖bᵢ‖/|Re λᵢ|. Truncating a set of modes therefore leaves an error bounded by the
  * sum of these terms over the discarded modes (twice each for a pair), the bound for diagonalizable A
  * (Antoulas 2005, §9.2; Green & Limebeer, "Linear Robust Control", 1995, §9.1). The same term ranks the
- * modes by dominance: it is the height of the mode's own resonance peak.
+ * modes by dominance: it bounds the mode's share of ‖G‖∞ (for a lightly damped pair it is twice the
+ * pair's resonant peak, the two conjugate terms each counting once).
  *
  * A defective or nearly defective A (repeated poles in Jordan chains, e.g. a cascade of equal lags) has an
  * ill-conditioned eigenvector matrix; the similarity, and with it the bound, is then meaningless, so

@@ -298,7 +298,8 @@ export function reduceModel(model: StateSpaceModel, recipe: ReductionRecipe): Re
     rule = { order: basis.unstableStates + statesInBand(basis.modes ?? [], sel.band) };
   }
   const orderChoice = chooseOrder(basis, rule, reference);
-  const reduced = basis.truncateAt(orderChoice.order);
+  // The requested order, so that the note about a raised order is kept.
+  const reduced = basis.truncateAt(orderChoice.requestedOrder ?? orderChoice.order);
   const accuracy = assessReduction(basis, reduced, recipe.stabilityTolerance);
   return {
     ...reduced,
