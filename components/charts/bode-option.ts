@@ -6,7 +6,7 @@
  *    is the H∞ norm.
  * Full model solid graphite, reduced model dashed teal (theme.ts).
  */
-import { axisInk, baseOption, escapeHtml, legendBox, tooltipBox } from './chart-base';
+import { axisInk, baseOption, plotGrid, escapeHtml, legendBox, tooltipBox } from './chart-base';
 import { formatDecibel, formatDegrees, formatFrequency, formatNumber, frequencyUnit } from './format';
 import { alignPhase, checkComplexSamples, magnitude, magnitudeDb, phaseDegrees, type ComplexSamples } from './frequency-data';
 import type { ChartOption, LineSeriesOption } from './option-types';
@@ -164,8 +164,8 @@ export function buildBodeOption(data: BodeChartData, theme: ChartTheme = DEFAULT
       },
     },
     grid: [
-      { left: 72, right: 24, top: 40, height: '40%' },
-      { left: 72, right: 24, top: '60%', bottom: 52 },
+      plotGrid({ top: 40, height: '40%' }),
+      plotGrid({ top: '60%', bottom: 52 }),
     ],
     xAxis: [frequencyAxis(theme, w, 0, timeUnit, false), frequencyAxis(theme, w, 1, timeUnit, true)],
     yAxis: [
@@ -175,7 +175,7 @@ export function buildBodeOption(data: BodeChartData, theme: ChartTheme = DEFAULT
         type: 'value',
         gridIndex: 1,
         ...phaseRange,
-        name: 'phase ∠G (°)',
+        name: 'phase (°)',
         nameGap: 48,
         axisLabel: { ...ink.axisLabel, formatter: (v: number) => formatDegrees(v) },
       },
@@ -223,7 +223,7 @@ export function buildSigmaOption(data: SigmaChartData, theme: ChartTheme = DEFAU
         return lines.join('<br/>');
       },
     },
-    grid: { left: 72, right: 24, top: 40, bottom: 52 },
+    grid: plotGrid({ top: 40, bottom: 52 }),
     xAxis: frequencyAxis(theme, w, 0, timeUnit, true),
     yAxis: magnitudeAxis(theme, scale, [...full, ...(reduced ?? [])], 0, 'largest singular value σmax'),
     dataZoom: [{ type: 'inside', xAxisIndex: 0, filterMode: 'none' }],

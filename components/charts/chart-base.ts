@@ -14,15 +14,28 @@ export function baseOption(theme: ChartTheme, description: string) {
   } as const;
 }
 
-export function axisInk(theme: ChartTheme) {
+/**
+ * Axis ink. `onZero` draws the axis line through the other axis's zero: right for the pole map (the
+ * real and imaginary axes), wrong for Bode or time plots, where it would cut through the curves at 0 dB.
+ */
+export function axisInk(theme: ChartTheme, onZero = false) {
   return {
-    axisLine: { show: true, lineStyle: { color: INK.graphiteMuted, width: 1 } },
+    axisLine: { show: true, onZero, lineStyle: { color: INK.graphiteMuted, width: 1 } },
     axisTick: { show: true, lineStyle: { color: INK.graphiteMuted } },
     axisLabel: { color: INK.graphite, fontFamily: theme.fontMono, fontSize: 11 },
     splitLine: { show: true, lineStyle: { color: INK.rule, width: 1 } },
     nameTextStyle: { color: INK.graphite, fontFamily: theme.fontSans, fontSize: 12 },
     nameLocation: 'middle' as const,
   };
+}
+
+/**
+ * A plot area at fixed margins. ECharts 6 otherwise shrinks each grid to fit its own tick labels, so two
+ * stacked grids (magnitude over phase, response over error) would not share the same frequency or time
+ * positions. The margins leave room for the widest labels our formatter writes ("-1.5e-10").
+ */
+export function plotGrid(box: { top: number | string; bottom?: number | string; height?: number | string; left?: number; right?: number }) {
+  return { left: 80, right: 28, ...box, outerBoundsMode: 'none' as const };
 }
 
 export function tooltipBox(theme: ChartTheme) {

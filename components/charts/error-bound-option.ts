@@ -6,7 +6,7 @@
  * chart title in words (PASS / FAIL / NOT CHECKED); its colour only repeats the word.
  */
 import { acceptanceVerdict, type AcceptanceBand } from './acceptance';
-import { axisInk, baseOption, escapeHtml, legendBox, tooltipBox } from './chart-base';
+import { axisInk, baseOption, plotGrid, escapeHtml, legendBox, tooltipBox } from './chart-base';
 import { formatFrequency, formatNumber, frequencyUnit } from './format';
 import type { ChartOption, LineSeriesOption } from './option-types';
 import { ChartDataError, decadeRange, requireGrid, requireNonNegative, requireSameLength } from './series-checks';
@@ -78,7 +78,8 @@ export function buildErrorBoundOption(
       symbol: 'none',
       lineStyle: { ...BOUND_LINE },
       itemStyle: { color: BOUND_LINE.color },
-      areaStyle: { color: INK.tealBand, origin: 'start' },
+      // opacity 1: the band's alpha is in INK.tealBand (ECharts would otherwise scale it by 0.7)
+      areaStyle: { color: INK.tealBand, origin: 'start', opacity: 1 },
       z: 1,
     });
   }
@@ -123,14 +124,14 @@ export function buildErrorBoundOption(
       ? {
           title: {
             text: verdict.text,
-            right: 24,
+            left: 80,
             top: 22,
             textStyle: { color: verdictColor, fontFamily: theme.fontMono, fontSize: 12, fontWeight: 'bold' as const },
           },
         }
       : {}),
     legend: legendBox(theme),
-    grid: { left: 72, right: 24, top: verdict ? 56 : 40, bottom: 52 },
+    grid: plotGrid({ top: verdict ? 56 : 40, bottom: 52 }),
     tooltip: {
       ...tooltipBox(theme),
       trigger: 'axis',

@@ -7,7 +7,7 @@
  * Index and order here count states of the stable part only; the page adds the unstable and marginal
  * states it keeps exactly.
  */
-import { axisInk, baseOption, emptyTitle, legendBox, tooltipBox } from './chart-base';
+import { axisInk, baseOption, plotGrid, emptyTitle, legendBox, tooltipBox } from './chart-base';
 import { formatNumber, formatPercent } from './format';
 import { balancedTruncationBound, checkHankelSingularValues, cumulativeEnergy, type EnergyMeasure } from './hankel-data';
 import type { ChartOption, LineSeriesOption } from './option-types';
@@ -105,7 +105,7 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
   return {
     ...base,
     legend: legendBox(theme),
-    grid: { left: 72, right: 64, top: 40, bottom: 52 },
+    grid: plotGrid({ right: 64, top: 40, bottom: 52 }),
     tooltip: {
       ...tooltipBox(theme),
       trigger: 'axis',

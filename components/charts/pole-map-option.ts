@@ -9,7 +9,7 @@
  * Stability is carried by marker shape and legend words (circle stable, diamond marginal, triangle
  * unstable), colour only repeats it; kept modes are filled, truncated ones hollow.
  */
-import { axisInk, baseOption, emptyTitle, escapeHtml, legendBox, tooltipBox } from './chart-base';
+import { axisInk, baseOption, plotGrid, emptyTitle, escapeHtml, legendBox, tooltipBox } from './chart-base';
 import { formatComplex, formatFrequency, formatNumber, formatTime } from './format';
 import type { ChartOption, ScatterSeriesOption } from './option-types';
 import {
@@ -151,7 +151,7 @@ export function buildPoleMapOption(data: PoleMapData, theme: ChartTheme = DEFAUL
   }
 
   const base = baseOption(theme, `Pole map of ${n} poles, ${scale === 'symlog' ? 'symmetric-log' : 'linear'} axes.`);
-  const ink = axisInk(theme);
+  const ink = axisInk(theme, true);
   const reUnit = `1/${timeUnit}`;
   const imUnit = `rad/${timeUnit}`;
   const xAxis = {
@@ -187,7 +187,7 @@ export function buildPoleMapOption(data: PoleMapData, theme: ChartTheme = DEFAUL
   return {
     ...base,
     legend: legendBox(theme),
-    grid: { left: 72, right: 24, top: 40, bottom: 52 },
+    grid: plotGrid({ top: 40, bottom: 52 }),
     tooltip: {
       ...tooltipBox(theme),
       trigger: 'item',

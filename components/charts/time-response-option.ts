@@ -3,7 +3,7 @@
  * teal on the upper grid, the absolute error |y - yr| on the lower grid sharing the time axis (linear, or
  * log to see small errors across decades).
  */
-import { axisInk, baseOption, escapeHtml, legendBox, tooltipBox } from './chart-base';
+import { axisInk, baseOption, plotGrid, escapeHtml, legendBox, tooltipBox } from './chart-base';
 import { formatNumber, formatTime } from './format';
 import type { ChartOption, LineSeriesOption } from './option-types';
 import { decadeRange } from './series-checks';
@@ -130,10 +130,10 @@ export function buildTimeResponseOption(data: TimeResponseChartData, theme: Char
     },
     grid: error
       ? [
-          { left: 72, right: 24, top: 40, height: '48%' },
-          { left: 72, right: 24, top: '70%', bottom: 52 },
+          plotGrid({ top: 40, height: '48%' }),
+          plotGrid({ top: '70%', bottom: 52 }),
         ]
-      : [{ left: 72, right: 24, top: 40, bottom: 52 }],
+      : [plotGrid({ top: 40, bottom: 52 })],
     xAxis: error ? [timeAxis(0, false), timeAxis(1, true)] : [timeAxis(0, true)],
     yAxis: [
       {

@@ -84,7 +84,7 @@ describe('buildErrorBoundOption', () => {
     const option = buildErrorBoundOption({ frequencies: W, error: ERR, bound: 0.05 });
     const series = option.series as unknown as Series[];
     const bound = series.find((s) => s.name === DEFAULT_BOUND_LABEL)!;
-    expect(bound.areaStyle).toEqual({ color: INK.tealBand, origin: 'start' });
+    expect(bound.areaStyle).toEqual({ color: INK.tealBand, origin: 'start', opacity: 1 });
     expect(bound.lineStyle.color).toBe(INK.teal);
     // constant bound spans the whole axis
     expect(bound.data).toEqual([[1, 0.05], [1000, 0.05]]);
