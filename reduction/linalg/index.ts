@@ -4,21 +4,17 @@
  * touching the methods that use it.
  *
  * The kernels are typed-array implementations, one algorithm per file (`gemm.ts`, `lu.ts`,
- * `hessenberg.ts`, `schur.ts`, `lyapunov.ts`, …), each citing its paper. Functions still delegating to
- * ml-matrix are marked as such. Contracts (argument order, shapes, what is returned) do not change
- * when a kernel is replaced.
+ * `hessenberg.ts`, `schur.ts`, `lyapunov.ts`, `svd.ts`, …), each citing its paper. Contracts (argument
+ * order, shapes, what is returned) do not change when a kernel is replaced.
  */
-import {
-  Matrix as MlMatrix,
-  EigenvalueDecomposition,
-  SingularValueDecomposition,
-  CholeskyDecomposition,
-} from 'ml-matrix';
-import { type Matrix, type ComplexVector, zeros } from './matrix';
+import type { Matrix, ComplexVector } from './matrix';
 import { multiply } from './gemm';
 import { solve as luSolveMatrix, inverse as luInverseMatrix } from './lu';
 import { eigenvalues as schurEigenvalues, eig as schurEig } from './schur';
 import { lyapunov as signLyapunov } from './lyapunov';
+import { svd as gkSvd } from './svd';
+import { symmetricEig as qlSymmetricEig } from './symmetric-eig';
+import { cholesky as rowCholesky } from './cholesky';
 
 export * from './matrix';
 export { gemm, multiply, multiplyTransposeA, multiplyTransposeB } from './gemm';
@@ -33,18 +29,9 @@ export {
   type SignIterationReport,
 } from './lyapunov';
 export { setLinalgThreads, linalgThreads } from './parallel';
-
-function toMl(m: Matrix): MlMatrix {
-  const out = new MlMatrix(m.rows, m.cols);
-  for (let i = 0; i < m.rows; i++) for (let j = 0; j < m.cols; j++) out.set(i, j, m.data[i * m.cols + j]);
-  return out;
-}
-
-function fromMl(m: MlMatrix): Matrix {
-  const out = zeros(m.rows, m.columns);
-  for (let i = 0; i < m.rows; i++) for (let j = 0; j < m.columns; j++) out.data[i * m.columns + j] = m.get(i, j);
-  return out;
-}
+export { qr, pivotedQr, orthonormalBasis } from './qr';
+export { singularValues } from './svd';
+export { symmetricEigenvalues } from './symmetric-eig';
 
 /** C = A·B (blocked, packed product; see `gemm.ts`). */
 export function matmul(a: Matrix, b: Matrix): Matrix {
@@ -75,23 +62,19 @@ export function eig(a: Matrix): { values: ComplexVector; vectors: Matrix } {
   return schurEig(a);
 }
 
-/** Thin SVD A = U·diag(s)·Vᵀ with s descending. */
+/** Thin SVD A = U·diag(s)·Vᵀ with s descending (Golub–Kahan–Reinsch, `svd.ts`). */
 export function svd(a: Matrix): { U: Matrix; s: Float64Array; V: Matrix } {
-  const d = new SingularValueDecomposition(toMl(a), { autoTranspose: true });
-  return { U: fromMl(d.leftSingularVectors), s: Float64Array.from(d.diagonal), V: fromMl(d.rightSingularVectors) };
+  return gkSvd(a);
 }
 
 /** Eigen-decomposition of a symmetric matrix, eigenvalues ascending, orthonormal vectors in columns. */
 export function symmetricEig(a: Matrix): { values: Float64Array; vectors: Matrix } {
-  const e = new EigenvalueDecomposition(toMl(a), { assumeSymmetric: true });
-  return { values: Float64Array.from(e.realEigenvalues), vectors: fromMl(e.eigenvectorMatrix) };
+  return qlSymmetricEig(a);
 }
 
 /** Lower-triangular L with A = L·Lᵀ; throws when A is not numerically positive definite. */
 export function cholesky(a: Matrix): Matrix {
-  const c = new CholeskyDecomposition(toMl(a));
-  if (!c.isPositiveDefinite()) throw new Error('cholesky: matrix is not positive definite');
-  return fromMl(c.lowerTriangularMatrix);
+  return rowCholesky(a);
 }
 
 /**
