@@ -35,6 +35,22 @@ const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E
 const D1 = -12715105075 / 11282082432, D3 = 87487479700 / 32700410799, D4 = -10690763975 / 1880347072;
 const D5 = 701980252875 / 199316789632, D6 = -1453857185 / 822651844, D7 = 69997945 / 29380423;
 
+/** The Butcher tableau in one piece, for the order-condition tests and for documentation. */
+export const DOPRI5_TABLEAU = {
+  c: [0, C2, C3, C4, C5, 1, 1],
+  a: [
+    [],
+    [A21],
+    [A31, A32],
+    [A41, A42, A43],
+    [A51, A52, A53, A54],
+    [A61, A62, A63, A64, A65],
+    [B1, 0, B3, B4, B5, B6],
+  ],
+  b: [B1, 0, B3, B4, B5, B6, 0],
+  bHat: [B1 - E1, 0, B3 - E3, B4 - E4, B5 - E5, B6 - E6, -E7],
+} as const;
+
 const SAFETY = 0.9;
 const FAC_MIN = 0.2;
 const FAC_MAX = 10;

@@ -15,7 +15,7 @@ import { type Matrix, zeros } from '../linalg/matrix';
 import { zohMatrices } from '../discretize';
 import type { StateSpaceModel } from '../model';
 import type { InputSignal } from './inputs';
-import { pieceAt } from './inputs';
+import { pieceAfter } from './inputs';
 import { LinearSystem, matVec } from './linear-system';
 import { type CheckedOptions, OutputRecorder } from './output-grid';
 import type { SimulationResult } from './types';
@@ -87,7 +87,7 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
       exponentials++;
     }
     matVec(zoh.Phi, x, next);
-    const u = inputVector(pieceAt(input, t));
+    const u = inputVector(pieceAfter(input, t, 1e-12 * opts.tEnd));
     if (u.length > 0) {
       matVec(zoh.Gamma, u, gu);
       for (let i = 0; i < n; i++) x[i] = next[i] + gu[i];

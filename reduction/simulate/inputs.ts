@@ -41,6 +41,15 @@ export function pieceAt(signal: InputSignal, t: number): number {
 }
 
 /**
+ * The piece in effect just after t: output times and interval starts computed as k·T/(N−1) may fall a
+ * rounding error before a jump that is meant to coincide with them; a jump within `tol` after t counts
+ * as at t (right-continuous input).
+ */
+export function pieceAfter(signal: InputSignal, t: number, tol: number): number {
+  return pieceAt(signal, t + tol);
+}
+
+/**
  * Which channels a step or impulse acts on: "all", a 1-based index, or an input name.
  * Throws invalid_option naming `channel`.
  */

@@ -6,7 +6,7 @@
 import { ModelError } from '../errors';
 import { type Matrix, zeros } from '../linalg/matrix';
 import type { InputSignal } from './inputs';
-import { pieceAt } from './inputs';
+import { pieceAfter, pieceAt } from './inputs';
 import type { LinearSystem } from './linear-system';
 import { DEFAULT_ATOL, DEFAULT_POINTS, DEFAULT_RTOL, type SimulationOptions } from './types';
 
@@ -89,12 +89,16 @@ export class OutputRecorder {
   /** Index of the next output time to fill. */
   next = 0;
 
+  /** Jumps this close after an output time count as at it (see `pieceAfter`). */
+  private readonly tol: number;
+
   constructor(
     readonly times: Float64Array,
     private readonly system: LinearSystem,
     private readonly input: InputSignal,
   ) {
     this.y = zeros(times.length, system.p);
+    this.tol = 1e-12 * Math.max(times.length > 0 ? times[times.length - 1] : 0, 1e-300);
   }
 
   get done(): boolean {
@@ -109,7 +113,7 @@ export class OutputRecorder {
   /** Record y at the next output time from the state x there. */
   record(x: Float64Array): void {
     const t = this.times[this.next];
-    const u = this.input.values[pieceAt(this.input, t)];
+    const u = this.input.values[pieceAfter(this.input, t, this.tol)];
     this.system.output(x, u, this.y.data, this.next * this.system.p);
     this.next++;
   }

@@ -37,6 +37,17 @@ import type { SimulationResult } from './types';
 export const TRBDF2_GAMMA = 2 - Math.SQRT2;
 export const TRBDF2_D = TRBDF2_GAMMA / 2;
 export const TRBDF2_W = Math.SQRT2 / 4;
+/** The tableau above, for the order-condition tests. */
+export const TRBDF2_TABLEAU = {
+  c: [0, TRBDF2_GAMMA, 1],
+  a: [
+    [],
+    [TRBDF2_D, TRBDF2_D],
+    [TRBDF2_W, TRBDF2_W, TRBDF2_D],
+  ],
+  b: [TRBDF2_W, TRBDF2_W, TRBDF2_D],
+  bHat: [(1 - TRBDF2_W) / 3, (3 * TRBDF2_W + 1) / 3, TRBDF2_D / 3],
+} as const;
 /** b − b̂ for the error estimate. */
 const E1 = (4 * TRBDF2_W - 1) / 3;
 const E2 = -1 / 3;

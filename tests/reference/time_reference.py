@@ -14,6 +14,11 @@ Reads one JSON request on stdin, writes one JSON answer on stdout. Requests:
       -> {"y": [...], "seconds": {"expm": s, "recursion": s}}
                                              expm of the augmented matrix [[A, B],[0, 0]]·ts (Van Loan 1978)
                                              then x_{k+1} = Phi x_k + Gamma u: the benchmark's reference
+  {"op": "sampled_zoh", "A","B","C","D", "sample_t": [..], "sample_u": [[..]], "t": [..], "x0": [..]}
+      -> {"y": [[..] per t]}                 exact response to u held between samples (zero before the
+                                             first): expm of [[A, B],[0, 0]]*dt on every sub-interval
+  {"op": "impulse", "A","B","C", "t": [..], "w": [..]}
+      -> {"y": [[..] per t]}                 y(t) = C e^{At} B w, e^{At} by scipy.linalg.expm
   {"op": "solve_ivp", "A","B","C", "u": [..], "t_end", "t_eval": [..], "method": "RK45"|"BDF",
    "rtol", "atol"}
       -> {"y", "nfev", "njev", "nlu", "seconds"} scipy.integrate.solve_ivp with the constant Jacobian A
@@ -72,6 +77,39 @@ def main():
         t2 = time.perf_counter()
         out = {"y": ys.tolist() if req.get("return_y", True) else None,
                "seconds": {"expm": t1 - t0, "recursion": t2 - t1}}
+    elif op == "sampled_zoh":
+        A, B, C, D = arr(req["A"]), arr(req["B"]), arr(req["C"]), arr(req["D"])
+        n, m = B.shape
+        st, su = list(req["sample_t"]), arr(req["sample_u"])
+
+        def u_at(t):
+            k = -1
+            for i, ti in enumerate(st):
+                if ti <= t:
+                    k = i
+            return np.zeros(m) if k < 0 else su[k]
+
+        def advance(x, u, dt):
+            M = np.zeros((n + m, n + m))
+            M[:n, :n] = A * dt
+            M[:n, n:] = B * dt
+            E = scipy.linalg.expm(M)
+            return E[:n, :n] @ x + E[:n, n:] @ u
+
+        x = arr(req["x0"])
+        t = 0.0
+        ys = []
+        for tout in req["t"]:
+            stops = sorted(s for s in st if t < s < tout) + [tout]
+            for s in stops:
+                if s > t:
+                    x = advance(x, u_at(t), s - t)
+                    t = s
+            ys.append((C @ x + D @ u_at(tout)).tolist())
+        out = {"y": ys}
+    elif op == "impulse":
+        A, B, C, w = arr(req["A"]), arr(req["B"]), arr(req["C"]), arr(req["w"])
+        out = {"y": [(C @ scipy.linalg.expm(A * t) @ B @ w).tolist() for t in req["t"]]}
     elif op == "solve_ivp":
         A, B, C, u = arr(req["A"]), arr(req["B"]), arr(req["C"]), arr(req["u"])
         b = B @ u
