@@ -6,6 +6,7 @@
 import { useId, useState } from 'react';
 import { EChart, useBuiltOption } from './EChart';
 import { buildPoleMapOption, type PoleMapData, type PoleMapScale } from './pole-map-option';
+import { STABILITY_STYLE } from './theme';
 import { useChartTheme } from './useChartTheme';
 
 export interface PoleMapProps extends Omit<PoleMapData, 'scale'> {
@@ -14,6 +15,8 @@ export interface PoleMapProps extends Omit<PoleMapData, 'scale'> {
   readonly height?: number | string;
   readonly title?: string;
 }
+
+const STABILITY_LEGEND = (['stable', 'marginal', 'unstable'] as const).map((s) => `${STABILITY_STYLE[s].glyph} ${s}`).join(' · ');
 
 const SCALE_WORDS: Record<PoleMapScale, string> = { linear: 'Linear', symlog: 'Symmetric log' };
 
@@ -47,7 +50,8 @@ export function PoleMap({ re, im, stability, kept, timeUnit, initialScale = 'sym
       </div>
       <EChart built={built} height={height} testId="pole-map" />
       <p className="mt-2 text-xs text-graphite-soft">
-        ● stable · ◆ marginal · ▲ unstable{kept ? ' · filled kept, hollow truncated' : ''}. Scroll to zoom.
+        {STABILITY_LEGEND}
+        {kept ? ' · filled kept, hollow truncated' : ''}. Scroll to zoom.
       </p>
     </figure>
   );

@@ -21,7 +21,7 @@ import {
   type PoleStability,
 } from './pole-data';
 import { ChartDataError, requireFinite, requireSameLength } from './series-checks';
-import { DEFAULT_CHART_THEME, INK, OKABE_ITO, type ChartTheme } from './theme';
+import { DEFAULT_CHART_THEME, INK, STABILITY_STYLE, type ChartTheme } from './theme';
 
 export type PoleMapScale = 'linear' | 'symlog';
 
@@ -38,15 +38,15 @@ export interface PoleMapData {
 }
 
 export const POLE_SYMBOL: Record<PoleStability, 'circle' | 'diamond' | 'triangle'> = {
-  stable: 'circle',
-  marginal: 'diamond',
-  unstable: 'triangle',
+  stable: STABILITY_STYLE.stable.symbol,
+  marginal: STABILITY_STYLE.marginal.symbol,
+  unstable: STABILITY_STYLE.unstable.symbol,
 };
 
-export const POLE_COLOR: Record<PoleStability, string> = {
-  stable: OKABE_ITO.blue,
-  marginal: OKABE_ITO.orange,
-  unstable: OKABE_ITO.vermillion,
+const POLE_COLOR: Record<PoleStability, string> = {
+  stable: STABILITY_STYLE.stable.color,
+  marginal: STABILITY_STYLE.marginal.color,
+  unstable: STABILITY_STYLE.unstable.color,
 };
 
 const STABILITY_ORDER: readonly PoleStability[] = ['stable', 'marginal', 'unstable'];

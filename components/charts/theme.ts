@@ -63,6 +63,16 @@ export const VERDICT_COLORS = {
   notCovered: OKABE_ITO.orange,
 } as const;
 
+/**
+ * How a pole's stability is drawn wherever it appears (pole map markers, legend, modes table): the shape
+ * and its text glyph carry the meaning, the Okabe & Ito colour only repeats it.
+ */
+export const STABILITY_STYLE = {
+  stable: { symbol: 'circle', glyph: '●', color: OKABE_ITO.blue },
+  marginal: { symbol: 'diamond', glyph: '◆', color: OKABE_ITO.orange },
+  unstable: { symbol: 'triangle', glyph: '▲', color: OKABE_ITO.vermillion },
+} as const;
+
 export interface ChartTheme {
   /** concrete font family list for numbers (tabular figures) */
   readonly fontMono: string;

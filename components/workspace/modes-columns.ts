@@ -6,6 +6,7 @@ import { createColumnHelper, type ColumnDef, type SortingFn } from '@tanstack/re
 import { formatComplex, formatNumber, frequencyUnit } from '../charts/format';
 import { classifyPoles, modalFigures, type PoleStability } from '../charts/pole-data';
 import { ChartDataError } from '../charts/series-checks';
+import { STABILITY_STYLE } from '../charts/theme';
 
 export interface ModeInput {
   readonly re: number;
@@ -81,7 +82,7 @@ export function modeColumns(timeUnit = 's', withKept = false): ColumnDef<ModeTab
     col.accessor((r) => STABILITY_RANK[r.stability], {
       id: 'stability',
       header: 'Stability',
-      cell: (c) => c.row.original.stability,
+      cell: (c) => `${STABILITY_STYLE[c.row.original.stability].glyph} ${c.row.original.stability}`,
     }),
     col.accessor((r) => sortable(r.naturalFrequency), {
       id: 'naturalFrequency',

@@ -71,8 +71,9 @@ describe('modes table rows', () => {
     const text = table.getRowModel().rows.map((r) =>
       r.getVisibleCells().map((c) => (c.column.columnDef.cell as (ctx: unknown) => string)(c.getContext())),
     );
-    expect(text[0]).toEqual(['-3 ± 4j', 'stable', '5', '0.6', '0.333', '0.2']);
-    expect(text[2]).toEqual(['0', 'marginal', '0', '—', '∞', '—']);
+    expect(text[0]).toEqual(['-3 ± 4j', '● stable', '5', '0.6', '0.333', '0.2']);
+    expect(text[2]).toEqual(['0', '◆ marginal', '0', '—', '∞', '—']);
+    expect(text[3][1]).toBe('▲ unstable');
     expect(text[3][4]).toBe('2 (growth)');
   });
 
