@@ -9,7 +9,7 @@
  * max|Re λ| / min|Re λ| (Lambert, "Numerical Methods for Ordinary Differential Systems", Wiley 1991,
  * ch. 6). DC gain G(0) = D − C A⁻¹ B, not defined with a pole at s = 0 (integrator or rigid-body mode).
  * Norms: `norms.ts`; Hankel singular values: `balanced.ts`; dominance: `modal.ts`; the stable part:
- * `spectral-split.ts`; each cites its method.
+ * `spectral-split.ts`; fixed-step limits: `step-limits.ts`; each cites its method.
  */
 import { type Matrix, type ComplexVector, solve, matmul, sub } from './linalg/index';
 import type { StateSpaceModel } from './model';
@@ -23,8 +23,9 @@ import {
   type PoleStability,
 } from './spectral-split';
 import { hinfNorm, h2Norm, type HinfResult, type NormValue } from './norms';
-import { balancedRealization } from './balanced';
+import { hankelSingularValues } from './balanced';
 import { rankedModalForm, MAX_EIGENVECTOR_CONDITION, type Mode } from './modal';
+import { stepLimitsFromPoles, type StepLimits } from './step-limits';
 
 export interface PoleData {
   readonly re: number;
@@ -69,6 +70,8 @@ export interface ModelAnalysis {
   /** Hankel singular values of the stable part, descending. */
   readonly hankelSingularValues: Float64Array;
   readonly modalDominance: ModalDominance;
+  /** Largest stable fixed step of forward Euler and classical RK4 on the spectrum (`step-limits.ts`). */
+  readonly stepLimits: StepLimits;
 }
 
 export interface AnalysisOptions {
@@ -132,6 +135,23 @@ export function dcGain(model: StateSpaceModel, classification?: PoleClassificati
   return { defined: true, value: sub(model.D, matmul(model.C, solve(model.A, model.B))) };
 }
 
+/**
+ * The poles as the fixed-step limits should see them: a marginal pole's real part is set to 0 (it is
+ * within the tolerance of the axis, and a computed double pole at 0 comes out as ±√ε-sized values of
+ * either sign, which would otherwise read as "unstable for every step").
+ */
+function polesForStepLimits(c: PoleClassification): ComplexVector {
+  const re = Float64Array.from(c.poles.re);
+  const im = Float64Array.from(c.poles.im);
+  const t = c.tolerance * c.scale;
+  c.stability.forEach((s, i) => {
+    if (s !== 'marginal') return;
+    re[i] = 0;
+    if (Math.abs(im[i]) <= t) im[i] = 0;
+  });
+  return { re, im };
+}
+
 /** The full analysis of a model (see the file header). */
 export function analyzeModel(model: StateSpaceModel, options: AnalysisOptions = {}): ModelAnalysis {
   const tolerance = options.stabilityTolerance ?? DEFAULT_STABILITY_TOLERANCE;
@@ -154,11 +174,12 @@ export function analyzeModel(model: StateSpaceModel, options: AnalysisOptions = 
     dcGain: dcGain(model, classification),
     h2Norm: h2Norm(model, { poles, stabilityTolerance: tolerance }),
     hinfNorm: hinfNorm(model, { poles, stabilityTolerance: tolerance }),
-    hankelSingularValues: balancedRealization(split.stable).hankelSingularValues,
+    hankelSingularValues: hankelSingularValues(split.stable),
     modalDominance: {
       modes: modal.modes,
       eigenvectorCondition: modal.eigenvectorCondition,
       reliable: modal.eigenvectorCondition <= MAX_EIGENVECTOR_CONDITION,
     },
+    stepLimits: stepLimitsFromPoles(polesForStepLimits(classification)),
   };
 }

@@ -90,9 +90,16 @@ export function balancedRealization(
   };
 }
 
-/** Hankel singular values of a stable model, descending. */
+/** Hankel singular values of a stable model, descending (length n): the singular values of Loᵀ Lc. */
 export function hankelSingularValues(stable: StateSpaceModel): Float64Array {
-  return balancedRealization(stable).hankelSingularValues;
+  const n = stable.A.rows;
+  const hsv = new Float64Array(n);
+  if (n === 0) return hsv;
+  const { controllability: Lc, observability: Lo } = gramianFactors(stable);
+  if (Lc.cols === 0 || Lo.cols === 0) return hsv;
+  const s = svd(matmul(transpose(Lo), Lc)).s;
+  hsv.set(s.subarray(0, Math.min(n, s.length)));
+  return hsv;
 }
 
 /** 2 Σ_{i>r} σ_i (Enns 1984; Glover 1984). */

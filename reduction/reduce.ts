@@ -287,7 +287,9 @@ export function reduceModel(model: StateSpaceModel, recipe: ReductionRecipe): Re
   let referenceNorm: number | null = null;
   const reference = (): number => {
     // G − Gr = Gs − Gsr, so the natural scale for a relative tolerance is ‖Gs‖∞ (= ‖G‖∞ for stable G).
-    const norm = hinfNorm(basis.split.stable, { stabilityTolerance: recipe.stabilityTolerance });
+    const { split } = basis;
+    const poles = split.unstableStates === 0 ? split.classification.poles : undefined;
+    const norm = hinfNorm(split.stable, { stabilityTolerance: recipe.stabilityTolerance, poles });
     referenceNorm = norm.finite ? norm.value : 0;
     return referenceNorm;
   };

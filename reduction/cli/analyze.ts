@@ -46,6 +46,13 @@ registerVerb({
         timeConstant: p.timeConstant,
         stability: p.stability,
       })),
+      stepLimits: {
+        forwardEuler: {
+          maxStep: finiteOrNull(a.stepLimits.forwardEuler.maxStep),
+          limitingPole: a.stepLimits.forwardEuler.limitingPole,
+        },
+        rk4: { maxStep: finiteOrNull(a.stepLimits.rk4.maxStep), limitingPole: a.stepLimits.rk4.limitingPole },
+      },
       modalDominance: {
         reliable: a.modalDominance.reliable,
         eigenvectorCondition: finiteOrNull(a.modalDominance.eigenvectorCondition),

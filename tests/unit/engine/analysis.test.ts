@@ -161,3 +161,20 @@ describe('norms and Hankel singular values in the analysis', () => {
     expect(ranking.modes.map((m) => m.dominance)).toEqual([5, 1, 0.2].map((x) => expect.closeTo(x, 10)));
   });
 });
+
+describe('fixed-step limits in the analysis (from reduction/step-limits.ts)', () => {
+  it('forward Euler on a real pole −a allows h ≤ 2/a (Hairer & Wanner, Solving ODEs II, §IV.2)', () => {
+    const a = analyzeModel(firstOrderLag(1, 50));
+    expect(a.stepLimits.forwardEuler.maxStep).toBeCloseTo(2 / 50, 12);
+    // Classical RK4 reaches about 2.785 on the negative real axis (Hairer & Wanner §IV.2, value from memory).
+    expect(a.stepLimits.rk4.maxStep * 50).toBeCloseTo(2.785, 2);
+  });
+
+  it('are set by the damped pair of the rigid-body model, not by its rounding-spread poles at 0', () => {
+    const a = analyzeModel(disguise(rigidBodyModel(), 12));
+    // Damped pair −0.1 ± 1.4107j: forward Euler h ≤ −2 Re λ/|λ|² = 0.2/2 (|λ|² = 2k = 2).
+    expect(a.stepLimits.forwardEuler.maxStep).toBeCloseTo(0.1, 9);
+    expect(a.stepLimits.forwardEuler.limitingPole![0]).toBeCloseTo(-0.1, 9);
+    expect(a.stepLimits.rk4.maxStep).toBeGreaterThan(1);
+  });
+});

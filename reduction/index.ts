@@ -1,0 +1,81 @@
+/**
+ * The engine's public surface for the rest of Modeshelf (`lib/`, workers, scripts). Framework-free:
+ * nothing here imports from `app/`, `lib/` or React. Each module named below cites its method.
+ *
+ *   model input         io/ (JSON, Matrix Market, CSV; second-order models), model.ts, errors.ts
+ *   analysis            analysis.ts, spectral-split.ts, norms.ts, frequency.ts, step-limits.ts
+ *   reduction           reduce.ts (entry), balanced.ts, modal.ts, order.ts
+ *   time responses      simulate/, discretize.ts
+ *
+ * Dense kernels stay behind `reduction/linalg`; only the matrix type and its helpers are re-exported.
+ */
+export type { Matrix, ComplexVector } from './linalg/matrix';
+export { zeros, identity, fromRows, toRows } from './linalg/matrix';
+export { type StateSpaceModel, stateCount, inputCount, outputCount } from './model';
+export { ModelError, type ModelErrorCode } from './errors';
+export * from './io/index';
+
+export {
+  analyzeModel,
+  poleData,
+  dcGain,
+  stiffnessRatio,
+  type ModelAnalysis,
+  type AnalysisOptions,
+  type PoleData,
+  type DcGain,
+  type ModalDominance,
+} from './analysis';
+export {
+  splitStableUnstable,
+  classifyPoles,
+  modelPoles,
+  DEFAULT_STABILITY_TOLERANCE,
+  type SpectralSplit,
+  type PoleClassification,
+  type PoleStability,
+} from './spectral-split';
+export { hinfNorm, h2Norm, type HinfNorm, type HinfResult, type NormValue, type NormOptions } from './norms';
+export {
+  frequencyResponse,
+  frequencyEvaluator,
+  bodeData,
+  logFrequencyGrid,
+  defaultFrequencyBand,
+  complexSingularValues,
+  largestSingularValue,
+  type ComplexMatrix,
+  type FrequencyEvaluator,
+  type FrequencyResponse,
+  type BodeData,
+} from './frequency';
+export { controllabilityGramian, observabilityGramian } from './gramians';
+
+export {
+  reduceModel,
+  prepareReduction,
+  assessReduction,
+  REDUCTION_METHODS,
+  type ReductionMethod,
+  type ReductionOptions,
+  type ReductionRecipe,
+  type ReductionBasis,
+  type ReducedModel,
+  type ReductionResult,
+  type AccuracyFigures,
+  type OrderSummary,
+} from './reduce';
+export {
+  hankelSingularValues,
+  balancedRealization,
+  balancedErrorBound,
+  DEFAULT_RANK_TOLERANCE,
+  type BalancedRealization,
+} from './balanced';
+export { modalForm, rankedModalForm, type Mode, type ModalForm, type ModalSelection } from './modal';
+export { chooseOrder, type OrderRule, type OrderChoice } from './order';
+export { errorSystem } from './realization';
+
+export { stepLimits, stepLimitsFromPoles, realTimeReadiness, type StepLimit, type StepLimits, type RealTimeReadiness } from './step-limits';
+export { discretizeZoh, discretePoles, type DiscreteModel } from './discretize';
+export * from './simulate/index';
