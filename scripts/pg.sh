@@ -80,6 +80,9 @@ start() {
   if is_running; then
     log "PostgreSQL already running ($DATA)"
   else
+    if (exec 3<>"/dev/tcp/127.0.0.1/$MODESHELF_PG_PORT") 2>/dev/null; then
+      die "port $MODESHELF_PG_PORT is taken by another server (another checkout's cluster?). Stop it, or set MODESHELF_PG_PORT to a free port."
+    fi
     log "starting PostgreSQL on 127.0.0.1:$MODESHELF_PG_PORT ($DATA)"
     touch "$RUN_DIR/postgres.log"
     chown postgres:postgres "$RUN_DIR/postgres.log" 2>/dev/null || true
