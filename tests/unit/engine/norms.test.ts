@@ -2,6 +2,7 @@ import { describe, it, expect } from 'vitest';
 import { hinfNorm, h2Norm, hamiltonian } from '../../../reduction/norms';
 import { fromRows, eigenvalues } from '../../../reduction/linalg/index';
 import { frequencyEvaluator, largestSingularValue } from '../../../reduction/frequency';
+import { errorSystem } from '../../../reduction/realization';
 import { randomStableModel, firstOrderLag, secondOrder, rigidBodyModel, disguise, heatEquation } from '../../fixtures/engine/models';
 import { runReference } from '../../fixtures/engine/reference';
 
@@ -107,6 +108,21 @@ describe('H2 norm from the controllability gramian (Zhou, Doyle & Glover 1996)',
       expect(r.finite).toBe(true);
       if (r.finite) expect(Math.abs(r.value / ref[i].h2! - 1)).toBeLessThan(1e-9);
     });
+  });
+
+  it('of an error system G − Gr far smaller than G keeps its relative accuracy (factored form, no trace cancellation)', () => {
+    // Gr = G with C → C − δ·C′, in other coordinates: G − Gr = δ·C′(sI − A)⁻¹B exactly, whose norm is
+    // computed without cancellation from the small model. δ = 1e-9 is below the √ε·‖G‖₂ floor of the
+    // dense trace(C P Cᵀ) formula, which is off by a factor of about 20 here.
+    const g = randomStableModel(623, 14, 2, 2);
+    const cPrime = randomStableModel(624, 14, 2, 2).C;
+    const delta = 1e-9;
+    const Cr = { rows: g.C.rows, cols: g.C.cols, data: g.C.data.map((x, k) => x - delta * cPrime.data[k]) };
+    const error = errorSystem(g, disguise({ ...g, C: Cr }, 625));
+    const direct = h2Norm({ ...g, C: cPrime });
+    const measured = h2Norm(error);
+    expect(direct.finite && measured.finite).toBe(true);
+    if (direct.finite && measured.finite) expect(Math.abs(measured.value / (delta * direct.value) - 1)).toBeLessThan(1e-6);
   });
 
   it('is not finite with a direct feedthrough', () => {
