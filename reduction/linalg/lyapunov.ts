@@ -21,10 +21,11 @@
 import { type Matrix, zeros } from './matrix';
 import { gemm } from './gemm';
 import { luFactor, luInverse, luLogDeterminant } from './lu';
-import { sharedFloat64 } from './parallel';
+import { sharedFloat64, pairOnWorker } from './parallel';
+import { pivotedQrOfRows } from './qr';
 
 export interface SignIterationOptions {
-  /** Stop when ‖A_k + I‖_F ≤ tolerance·√n (A_k → −I); default 1e-10, then one more unscaled step. */
+  /** Stop when ‖A_k + I‖_F ≤ tolerance·√n (A_k → −I); default 1e-12. */
   readonly tolerance?: number;
   /** Default 100. */
   readonly maxIterations?: number;
@@ -64,12 +65,11 @@ function signIteration(
   step: (inv: Float64Array, c: number) => void,
 ): SignIterationReport {
   const n = a.rows;
-  const tol = options.tolerance ?? 1e-10;
+  const tol = options.tolerance ?? 1e-12;
   const maxIt = options.maxIterations ?? 100;
   let ak: Matrix = { rows: n, cols: n, data: sharedFloat64(n * n) };
   ak.data.set(a.data);
   let scaling = true;
-  let finishing = false;
   let distance = Infinity;
   for (let it = 1; it <= maxIt; it++) {
     const previous = distance;
@@ -105,9 +105,10 @@ function signIteration(
     distance = Math.sqrt(dist / n);
     // Determinant scaling speeds the early steps but spoils the final quadratic convergence.
     if (Math.sqrt(change) < 1e-2 * Math.sqrt(size)) scaling = false;
-    if (finishing) return { iterations: it, finalDistance: distance };
-    // Converged, or stalled at the rounding level that the eigenvector conditioning of A allows.
-    if (distance <= tol || (!scaling && distance < 1e-6 && distance > 0.5 * previous)) finishing = true;
+    // The solution iterate is as close as A_k is to −I. Stop there, or when the distance stalls at the
+    // rounding level that the eigenvector conditioning of A allows.
+    if (distance <= tol) return { iterations: it, finalDistance: distance };
+    if (!scaling && distance < 1e-6 && distance > 0.5 * previous) return { iterations: it, finalDistance: distance };
     if (!Number.isFinite(distance)) break;
   }
   if (distance < 1e-6) return { iterations: maxIt, finalDistance: distance };
@@ -144,94 +145,13 @@ export function lyapunov(a: Matrix, q: Matrix, options: SignIterationOptions = {
   return x;
 }
 
-/**
- * Replaces the n×w factor `g` (row-major, X ≈ g·gᵀ) by an n×r factor of numerical rank r ≤ min(n, w),
- * with g·gᵀ unchanged up to the dropped part: a Householder QR with column pivoting of gᵀ
- * (Businger & Golub, Numer. Math. 7, 1965), whose columns are the rows of g, truncated where the largest
- * remaining column norm falls below `tol` times the first pivot's. Then gᵀ·Π ≈ U·[R₁₁ R₁₂] and
- * g·gᵀ ≈ (Π·[R₁₁ R₁₂]ᵀ)·(…)ᵀ. Row operations only, so row-major storage is used with unit stride.
- */
-export function compressFactor(g: Float64Array, n: number, w: number, tol: number): { data: Float64Array; cols: number } {
-  const work = new Float64Array(g.subarray(0, n * w));
-  const perm = new Int32Array(n);
-  for (let i = 0; i < n; i++) perm[i] = i;
-  const norms = new Float64Array(n);
-  const exact = new Float64Array(n);
-  for (let j = 0; j < n; j++) {
-    let s = 0;
-    for (let c = 0; c < w; c++) s += work[j * w + c] * work[j * w + c];
-    norms[j] = Math.sqrt(s);
-    exact[j] = norms[j];
-  }
-  const steps = Math.min(n, w);
-  let rank = 0;
-  let first = 0;
-  const v = new Float64Array(w);
-  const tol3z = Math.sqrt(Number.EPSILON);
-  for (let k = 0; k < steps; k++) {
-    let p = k;
-    for (let j = k + 1; j < n; j++) if (norms[j] > norms[p]) p = j;
-    if (k === 0) first = norms[p];
-    if (norms[p] === 0 || norms[p] <= tol * first) break;
-    if (p !== k) {
-      for (let c = 0; c < w; c++) {
-        const t = work[k * w + c];
-        work[k * w + c] = work[p * w + c];
-        work[p * w + c] = t;
-      }
-      let t = perm[k];
-      perm[k] = perm[p];
-      perm[p] = t;
-      t = norms[k];
-      norms[k] = norms[p];
-      norms[p] = t;
-      t = exact[k];
-      exact[k] = exact[p];
-      exact[p] = t;
-    }
-    // Householder reflector from row k, entries k..w−1 (a column of gᵀ).
-    const rk = k * w;
-    const alpha = work[rk + k];
-    let xn = 0;
-    for (let c = k + 1; c < w; c++) xn += work[rk + c] * work[rk + c];
-    let tau = 0;
-    let beta = alpha;
-    if (xn > 0) {
-      beta = -(alpha >= 0 ? 1 : -1) * Math.sqrt(alpha * alpha + xn);
-      tau = (beta - alpha) / beta;
-      const sc = 1 / (alpha - beta);
-      v[k] = 1;
-      for (let c = k + 1; c < w; c++) v[c] = work[rk + c] * sc;
-    }
-    work[rk + k] = beta;
-    for (let c = k + 1; c < w; c++) work[rk + c] = 0;
-    rank = k + 1;
-    // Apply to the remaining rows (columns of gᵀ) and downdate their norms (LAPACK dlaqp2).
-    for (let j = k + 1; j < n; j++) {
-      const rj = j * w;
-      if (tau !== 0) {
-        let d = work[rj + k];
-        for (let c = k + 1; c < w; c++) d += work[rj + c] * v[c];
-        const f = tau * d;
-        work[rj + k] -= f;
-        for (let c = k + 1; c < w; c++) work[rj + c] -= f * v[c];
-      }
-      if (norms[j] !== 0) {
-        let t = Math.abs(work[rj + k]) / norms[j];
-        t = Math.max(0, (1 + t) * (1 - t));
-        const t2 = t * (norms[j] / exact[j]) ** 2;
-        if (t2 <= tol3z) {
-          let s = 0;
-          for (let c = k + 1; c < w; c++) s += work[rj + c] * work[rj + c];
-          norms[j] = Math.sqrt(s);
-          exact[j] = norms[j];
-        } else {
-          norms[j] *= Math.sqrt(t);
-        }
-      }
-    }
-  }
-  // Row perm[j] of the result is row j of the reduced work array (its first `rank` columns).
+interface Factor {
+  data: Float64Array;
+  cols: number;
+}
+
+/** Copies the first `rank` columns of the pivoted rows back into original row order. */
+function unpermute(work: Float64Array, n: number, w: number, rank: number, perm: Int32Array): Factor {
   const out = sharedFloat64(n * rank);
   for (let j = 0; j < n; j++) {
     const src = j * w, dst = perm[j] * rank;
@@ -240,25 +160,48 @@ export function compressFactor(g: Float64Array, n: number, w: number, tol: numbe
   return { data: out, cols: rank };
 }
 
-function factoredStep(
-  n: number,
-  fac: { data: Float64Array; cols: number },
-  inv: Float64Array,
-  transposeInverse: boolean,
-  c: number,
-  tol: number,
-): { data: Float64Array; cols: number } {
+/**
+ * Replaces the n×w factor `g` (row-major, X ≈ g·gᵀ) by an n×r factor of numerical rank r ≤ min(n, w),
+ * with g·gᵀ unchanged up to the dropped part: a Householder QR with column pivoting of gᵀ
+ * (Businger & Golub, Numer. Math. 7, 1965; `pivotedQrOfRows`), truncated where the largest remaining
+ * column norm falls below `tol` times the first pivot's. Then gᵀ·Π ≈ U·[R₁₁ R₁₂] and
+ * g·gᵀ ≈ (Π·[R₁₁ R₁₂]ᵀ)·(…)ᵀ.
+ */
+export function compressFactor(g: Float64Array, n: number, w: number, tol: number): Factor {
+  const work = sharedFloat64(n * w);
+  work.set(g.subarray(0, n * w));
+  const perm = new Int32Array(n);
+  const rank = pivotedQrOfRows(work, n, w, tol, perm);
+  return unpermute(work, n, w, rank, perm);
+}
+
+/** Two independent compressions, the second on the worker thread when one is available. */
+function compressPair(a: { g: Float64Array; w: number }, b: { g: Float64Array; w: number }, n: number, tol: number): [Factor, Factor] {
+  const wa = sharedFloat64(n * a.w);
+  wa.set(a.g.subarray(0, n * a.w));
+  const wb = sharedFloat64(n * b.w);
+  wb.set(b.g.subarray(0, n * b.w));
+  const pa = new Int32Array(n);
+  const pb = new Int32Array(new SharedArrayBuffer(4 * n));
+  const ranks = pairOnWorker(
+    () => pivotedQrOfRows(wa, n, a.w, tol, pa),
+    { kind: 'pivotedQrOfRows', work: wb, n, w: b.w, tol, perm: pb },
+  );
+  return [unpermute(wa, n, a.w, ranks[0], pa), unpermute(wb, n, b.w, ranks[1], pb)];
+}
+
+/** [√(c/2)·G, (A⁻¹ or A⁻ᵀ)·G/√(2c)] as one n×2w array (before compression). */
+function expandFactor(n: number, fac: Factor, inv: Float64Array, transposeInverse: boolean, c: number): { g: Float64Array; w: number } {
   const w = fac.cols;
   const w2 = 2 * w;
-  // [√(c/2)·G, (A⁻¹ or A⁻ᵀ)·G/√(2c)] as one n×2w array.
   const both = sharedFloat64(n * w2);
   const sc = Math.sqrt(c / 2);
   for (let i = 0; i < n; i++) for (let j = 0; j < w; j++) both[i * w2 + j] = sc * fac.data[i * w + j];
   gemm(transposeInverse, false, n, w, n, 1 / Math.sqrt(2 * c), inv, 0, n, fac.data, 0, w, 0, both, w, w2);
-  return compressFactor(both, n, w2, tol);
+  return { g: both, w: w2 };
 }
 
-function asFactor(what: string, a: Matrix, b: Matrix, name: string): { data: Float64Array; cols: number } {
+function asFactor(what: string, a: Matrix, b: Matrix, name: string): Factor {
   if (b.rows !== a.rows) throw new Error(`${what}: ${name} has ${b.rows} rows, A is ${a.rows}×${a.cols}`);
   checkFinite(what, name, b);
   const data = sharedFloat64(b.rows * b.cols);
@@ -266,7 +209,7 @@ function asFactor(what: string, a: Matrix, b: Matrix, name: string): { data: Flo
   return { data, cols: b.cols };
 }
 
-function finishFactor(n: number, f: { data: Float64Array; cols: number }): Matrix {
+function finishFactor(n: number, f: Factor): Matrix {
   const s = zeros(n, f.cols);
   const r = Math.SQRT1_2;
   for (let k = 0; k < s.data.length; k++) s.data[k] = r * f.data[k];
@@ -285,7 +228,8 @@ export function lyapunovFactor(a: Matrix, b: Matrix, options: SignIterationOptio
   const tol = options.compressionTolerance ?? Math.sqrt(Number.EPSILON);
   fac = compressFactor(fac.data, n, fac.cols, tol);
   signIteration('lyapunovFactor', a, options, (inv, c) => {
-    fac = factoredStep(n, fac, inv, false, c, tol);
+    const e = expandFactor(n, fac, inv, false, c);
+    fac = compressFactor(e.g, n, e.w, tol);
   });
   return finishFactor(n, fac);
 }
@@ -315,8 +259,7 @@ export function lowRankGramianFactors(
   fb = compressFactor(fb.data, n, fb.cols, tol);
   fc = compressFactor(fc.data, n, fc.cols, tol);
   const report = signIteration(what, a, options, (inv, cs) => {
-    fb = factoredStep(n, fb, inv, false, cs, tol);
-    fc = factoredStep(n, fc, inv, true, cs, tol);
+    [fb, fc] = compressPair(expandFactor(n, fb, inv, false, cs), expandFactor(n, fc, inv, true, cs), n, tol);
   });
   return { controllability: finishFactor(n, fb), observability: finishFactor(n, fc), report };
 }

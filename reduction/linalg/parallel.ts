@@ -4,9 +4,10 @@
  * `Atomics.wait` until the worker is done. The call stays synchronous, so every kernel above it keeps a
  * plain function signature.
  *
- * Why only products: the blocked LU, inverse and sign-function iterations spend nearly all their flops
- * in `gemm` (level-3 BLAS), so splitting gemm is where a second core measurably pays; the level-2
- * reductions (Hessenberg, QR sweeps) are memory-bound and gain little from it.
+ * What runs there: halves of large products (the blocked LU, inverse and sign-function iterations
+ * spend nearly all their flops in `gemm`), and one of two independent column-pivoted QR compressions
+ * of the factored Lyapunov iteration (`pairOnWorker`), which are level-2 work too large to leave on one
+ * core. Other level-2 reductions (Hessenberg, QR sweeps) stay on the calling thread.
  *
  * Robustness: threads are used only in Node, only above a size where the copy and hand-off cost is
  * negligible, and never when `MODESHELF_LINALG_THREADS=1` (or `setLinalgThreads(1)`). Any failure to
@@ -14,6 +15,7 @@
  * rest of the process and the product is computed on the calling thread.
  */
 import { blockedProduct, microKernel4x4 } from './gemm';
+import { pivotedQrOfRows } from './qr';
 
 /** Multiply-adds below which a product stays on one thread (≈ 200³; the hand-off costs ~0.1 ms). */
 const PARALLEL_THRESHOLD = 8_000_000;
@@ -81,6 +83,7 @@ const { parentPort, workerData } = require('node:worker_threads');
 const __name = (f) => f;
 ${microKernel4x4.toString()}
 ${blockedProduct.toString()}
+${pivotedQrOfRows.toString()}
 const control = new Int32Array(workerData.control);
 let packA = new Float64Array(96 * 256);
 let packB = new Float64Array(0);
@@ -88,6 +91,13 @@ const tile = new Float64Array(16);
 parentPort.on('message', (job) => {
   let status = 1;
   try {
+    if (job.kind === 'pivotedQrOfRows') {
+      const rank = pivotedQrOfRows(new Float64Array(job.work), job.n, job.w, job.tol, new Int32Array(job.perm));
+      Atomics.store(control, 1, rank);
+      Atomics.store(control, 0, 1);
+      Atomics.notify(control, 0);
+      return;
+    }
     const need = Math.ceil(job.width / 4) * 4 * 256;
     if (packB.length < need) packB = new Float64Array(need);
     blockedProduct(job.transA, job.transB, job.m, job.k, job.alpha,
@@ -106,7 +116,7 @@ function startWorker(): WorkerState | null {
   const wt = nodeModule<{ Worker: new (src: string, opts: unknown) => WorkerState['worker'] & { on(e: string, f: (x: unknown) => void): void } }>('node:worker_threads');
   if (!wt || typeof SharedArrayBuffer === 'undefined' || typeof Atomics?.wait !== 'function') return null;
   try {
-    const control = new Int32Array(new SharedArrayBuffer(8));
+    const control = new Int32Array(new SharedArrayBuffer(16));
     const worker = new wt.Worker(workerSource(), { eval: true, workerData: { control: control.buffer } });
     worker.on('error', () => {
       state = null;
@@ -294,4 +304,46 @@ export function parallelProduct(
 /** Whether the worker thread is running (it starts on the first product large enough to split). */
 export function workerRunning(): boolean {
   return !!state;
+}
+
+export interface RowQrJob {
+  readonly kind: 'pivotedQrOfRows';
+  /** n×w row-major, on a SharedArrayBuffer (see `sharedFloat64`). */
+  readonly work: Float64Array;
+  readonly n: number;
+  readonly w: number;
+  readonly tol: number;
+  /** Length n, on a SharedArrayBuffer. */
+  readonly perm: Int32Array;
+}
+
+/** Work (≈ n·w·min(n, w) flops) below which the pair runs on the calling thread. */
+const PAIR_THRESHOLD = 4_000_000;
+
+/**
+ * Runs `local()` on the calling thread while the worker runs `pivotedQrOfRows` on `job`; returns both
+ * ranks. Falls back to running both here when threading is off, unavailable, the job is small, or its
+ * arrays are not shared.
+ */
+export function pairOnWorker(local: () => number, job: RowQrJob): [number, number] {
+  const big = job.n * job.w * Math.min(job.n, job.w) >= PAIR_THRESHOLD;
+  const shared = isShared(job.work) && typeof SharedArrayBuffer !== 'undefined' && job.perm.buffer instanceof SharedArrayBuffer;
+  if (big && shared && linalgThreads() >= 2) {
+    if (state === undefined) state = startWorker();
+    const s = state;
+    if (s) {
+      Atomics.store(s.control, 0, 0);
+      s.worker.postMessage({ kind: job.kind, work: job.work.buffer, n: job.n, w: job.w, tol: job.tol, perm: job.perm.buffer });
+      const mine = local();
+      const timeoutMs = 60_000 + (4 * job.n * job.w * Math.min(job.n, job.w)) / 5e7;
+      if (!await_(s, timeoutMs)) {
+        state = null;
+        s.worker.terminate();
+        throw new Error('lyapunov: the linear-algebra worker thread failed or timed out; set MODESHELF_LINALG_THREADS=1 to compute on one thread');
+      }
+      return [mine, Atomics.load(s.control, 1)];
+    }
+  }
+  const mine = local();
+  return [mine, pivotedQrOfRows(job.work, job.n, job.w, job.tol, job.perm)];
 }

@@ -183,3 +183,91 @@ export function pivotedQr(a: Matrix, tolerance?: number): { Q: Matrix; R: Matrix
 export function orthonormalBasis(a: Matrix, tolerance?: number): Matrix {
   return pivotedQr(a, tolerance).Q;
 }
+
+/**
+ * Column-pivoted Householder QR of Mᵀ where M is the n×w row-major array `work`, in place: the columns
+ * of Mᵀ are the rows of M, so every operation runs along rows with unit stride. Stops at the rank r
+ * where the largest remaining column norm falls below `tol` times the first pivot's. On return,
+ * `perm[j]` is the original index of row j, and row j holds column j of [R₁₁ R₁₂] (entries 0..r−1,
+ * zeros after): with Mᵀ·Π ≈ U·[R₁₁ R₁₂], M·Mᵀ ≈ (Π·[R₁₁ R₁₂]ᵀ)·(Π·[R₁₁ R₁₂]ᵀ)ᵀ. Returns r.
+ * Norm downdating as in LAPACK's dlaqp2. Self-contained (no outside references) because the worker
+ * thread runs the same source.
+ */
+export function pivotedQrOfRows(work: Float64Array, n: number, w: number, tol: number, perm: Int32Array): number {
+  for (let i = 0; i < n; i++) perm[i] = i;
+  const norms = new Float64Array(n);
+  const exact = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    let s = 0;
+    for (let c = 0; c < w; c++) s += work[j * w + c] * work[j * w + c];
+    norms[j] = Math.sqrt(s);
+    exact[j] = norms[j];
+  }
+  const steps = Math.min(n, w);
+  let rank = 0;
+  let first = 0;
+  const v = new Float64Array(w);
+  const tol3z = Math.sqrt(2.220446049250313e-16);
+  for (let k = 0; k < steps; k++) {
+    let p = k;
+    for (let j = k + 1; j < n; j++) if (norms[j] > norms[p]) p = j;
+    if (k === 0) first = norms[p];
+    if (norms[p] === 0 || norms[p] <= tol * first) break;
+    if (p !== k) {
+      for (let c = 0; c < w; c++) {
+        const t = work[k * w + c];
+        work[k * w + c] = work[p * w + c];
+        work[p * w + c] = t;
+      }
+      let t = perm[k];
+      perm[k] = perm[p];
+      perm[p] = t;
+      t = norms[k];
+      norms[k] = norms[p];
+      norms[p] = t;
+      t = exact[k];
+      exact[k] = exact[p];
+      exact[p] = t;
+    }
+    const rk = k * w;
+    const alpha = work[rk + k];
+    let xn = 0;
+    for (let c = k + 1; c < w; c++) xn += work[rk + c] * work[rk + c];
+    let tau = 0;
+    let beta = alpha;
+    if (xn > 0) {
+      beta = -(alpha >= 0 ? 1 : -1) * Math.sqrt(alpha * alpha + xn);
+      tau = (beta - alpha) / beta;
+      const sc = 1 / (alpha - beta);
+      v[k] = 1;
+      for (let c = k + 1; c < w; c++) v[c] = work[rk + c] * sc;
+    }
+    work[rk + k] = beta;
+    for (let c = k + 1; c < w; c++) work[rk + c] = 0;
+    rank = k + 1;
+    for (let j = k + 1; j < n; j++) {
+      const rj = j * w;
+      if (tau !== 0) {
+        let d = work[rj + k];
+        for (let c = k + 1; c < w; c++) d += work[rj + c] * v[c];
+        const f = tau * d;
+        work[rj + k] -= f;
+        for (let c = k + 1; c < w; c++) work[rj + c] -= f * v[c];
+      }
+      if (norms[j] !== 0) {
+        let t = Math.abs(work[rj + k]) / norms[j];
+        t = Math.max(0, (1 + t) * (1 - t));
+        const t2 = t * (norms[j] / exact[j]) * (norms[j] / exact[j]);
+        if (t2 <= tol3z) {
+          let s = 0;
+          for (let c = k + 1; c < w; c++) s += work[rj + c] * work[rj + c];
+          norms[j] = Math.sqrt(s);
+          exact[j] = norms[j];
+        } else {
+          norms[j] *= Math.sqrt(t);
+        }
+      }
+    }
+  }
+  return rank;
+}

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { lyapunov, lyapunovFactor, lowRankGramianFactors, lyapunovResidual } from '../../../reduction/linalg/lyapunov';
 import { multiply, multiplyTransposeA, multiplyTransposeB } from '../../../reduction/linalg/gemm';
 import { svd } from '../../../reduction/linalg/index';
+import { setLinalgThreads, workerRunning } from '../../../reduction/linalg/parallel';
 import { type Matrix, fromRows, zeros, transpose, sub, frobeniusNorm } from '../../../reduction/linalg/matrix';
 import { randomMatrix, stableMatrix, reference, maxAbsDiff, maxAbs } from './linalg-support';
 
@@ -112,6 +113,21 @@ describe('Lyapunov equations by the scaled sign function (Roberts 1971; Byers 19
     const bb = multiplyTransposeB(B, B);
     expect(lyapunovResidual(A, lyapunov(A, bb), bb)).toBeLessThan(1e-12);
     expect(lyapunovResidual(A, gram(lyapunovFactor(A, B)), bb)).toBeLessThan(1e-12);
+  });
+
+  it('gives the same factors whether the two compressions share a core or run on two', () => {
+    const n = 200;
+    const A = stableMatrix(n, 21, 1.1);
+    const B = randomMatrix(n, 8, 22);
+    const C = randomMatrix(8, n, 23);
+    setLinalgThreads(1);
+    const one = lowRankGramianFactors(A, B, C);
+    setLinalgThreads(2);
+    const two = lowRankGramianFactors(A, B, C);
+    expect(workerRunning()).toBe(true);
+    expect(two.controllability.cols).toBe(one.controllability.cols);
+    expect(Array.from(two.controllability.data)).toEqual(Array.from(one.controllability.data));
+    expect(Array.from(two.observability.data)).toEqual(Array.from(one.observability.data));
   });
 
   it('refuses an unstable A, naming the condition', () => {

@@ -1,0 +1,153 @@
+/**
+ * `npm run bench`: the engine against the numpy/scipy reference, case by case, in one run.
+ *
+ *   npm run bench                 all cases at their full sizes
+ *   npm run bench -- --quick      small sizes only
+ *   npm run bench -- --only=ID    one case (IDs: see scripts/bench/*-cases.ts)
+ *
+ * For each case and size: the reference script generates the seeded model, times itself and saves its
+ * results; then a fresh Node process runs our engine on the same .npy inputs (so the peak memory it
+ * reports is the case's own) and checks agreement with the reference. Prints one table with both times,
+ * the ratio ours/reference, both peak resident set sizes, and the agreement figure.
+ * See scripts/bench/types.ts for the case protocol.
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, rmSync } from 'node:fs';
+import { tmpdir, cpus } from 'node:os';
+import path from 'node:path';
+import type { BenchCase } from './bench/types';
+import { linalgThreads } from '../reduction/linalg/parallel';
+
+const ROOT = path.resolve(__dirname, '..');
+const BENCH_DIR = path.join(ROOT, 'scripts', 'bench');
+const PYTHON = '/usr/bin/python3';
+
+async function loadCases(): Promise<BenchCase[]> {
+  const files = readdirSync(BENCH_DIR).filter((f) => f.endsWith('-cases.ts')).sort();
+  const all: BenchCase[] = [];
+  for (const f of files) {
+    const mod = (await import(path.join(BENCH_DIR, f))) as { cases?: BenchCase[]; default?: { cases?: BenchCase[] } };
+    const list = mod.cases ?? mod.default?.cases;
+    if (!Array.isArray(list)) throw new Error(`${f}: expected an exported array \`cases\``);
+    all.push(...list);
+  }
+  return all;
+}
+
+function lastJsonLine(text: string, what: string): Record<string, unknown> {
+  const lines = text.trim().split('\n');
+  for (let i = lines.length - 1; i >= 0; i--) {
+    const l = lines[i].trim();
+    if (l.startsWith('{')) return JSON.parse(l) as Record<string, unknown>;
+  }
+  throw new Error(`${what}: no JSON result line in its output:\n${text.slice(-2000)}`);
+}
+
+function referenceCommand(c: BenchCase, n: number, dir: string, timed = true): { command: string; args: string[] } {
+  if (c.reference) return c.reference(n, dir);
+  const args = [path.join(ROOT, 'tests', 'reference', 'bench_reference.py'), c.id, String(n), dir];
+  if (!timed) args.push('--no-time');
+  return { command: PYTHON, args };
+}
+
+function runReference(c: BenchCase, n: number, dir: string, timed = true): Record<string, unknown> {
+  const { command, args } = referenceCommand(c, n, dir, timed);
+  const r = spawnSync(command, args, { encoding: 'utf8', maxBuffer: 1 << 26 });
+  if (r.status !== 0) throw new Error(`reference for ${c.id} n=${n} failed (${command}): ${r.stderr || r.error}`);
+  return lastJsonLine(r.stdout, `reference ${c.id}`);
+}
+
+/** In the child process: warm up, time, check, print one JSON line. */
+async function child(id: string, n: number, dir: string): Promise<void> {
+  const c = (await loadCases()).find((x) => x.id === id);
+  if (!c) throw new Error(`unknown case ${id}`);
+  const warmDir = mkdtempSync(path.join(tmpdir(), 'bench-warm-'));
+  try {
+    const w = c.warmupSize ?? 60;
+    runReference(c, w, warmDir, false);
+    c.run(c.prepare(warmDir, w));
+  } finally {
+    rmSync(warmDir, { recursive: true, force: true });
+  }
+  const input = c.prepare(dir, n);
+  const times: number[] = [];
+  let output: unknown;
+  do {
+    const t0 = performance.now();
+    output = c.run(input);
+    times.push((performance.now() - t0) / 1000);
+  } while (times.length < 3 && times.reduce((a, b) => a + b, 0) < 2);
+  const agreement = c.check(dir, input, output);
+  const rss = process.resourceUsage().maxRSS;
+  process.stdout.write(`${JSON.stringify({ seconds: Math.min(...times), peakRssKb: rss, agreement })}\n`);
+}
+
+function pad(s: string, w: number, right = false): string {
+  return right ? s.padStart(w) : s.padEnd(w);
+}
+
+function mib(kb: unknown): string {
+  return typeof kb === 'number' ? `${(kb / 1024).toFixed(0)} MiB` : '—';
+}
+
+async function main(): Promise<void> {
+  const argv = process.argv.slice(2);
+  if (argv[0] === '--child') {
+    await child(argv[1], Number(argv[2]), argv[3]);
+    return;
+  }
+  const quick = argv.includes('--quick');
+  const only = argv.find((a) => a.startsWith('--only='))?.slice(7);
+  const cases = (await loadCases()).filter((c) => !only || c.id === only);
+  if (cases.length === 0) throw new Error(`no case matches --only=${only}`);
+
+  const scriptPath = path.resolve(process.argv[1]);
+  const rows: string[][] = [];
+  const header = ['case', 'n', 'ours (s)', 'reference (s)', 'ratio', 'ours peak', 'ref peak', 'agreement'];
+  const widths = [12, 5, 9, 14, 7, 10, 9, 0];
+  const print = (r: string[]) =>
+    console.log(r.map((x, i) => (widths[i] ? pad(x, widths[i], i >= 1 && i <= 6) : x)).join('  '));
+  console.log(`Modeshelf engine benchmark${quick ? ' (quick sizes)' : ''}: Node ${process.version}, ${cpus().length} cores, engine threads ${linalgThreads()}`);
+  let blas = '';
+  let ratio1000: number | undefined;
+  print(header);
+  for (const c of cases) {
+    for (const n of quick ? c.quickSizes : c.sizes) {
+      const dir = mkdtempSync(path.join(tmpdir(), `bench-${c.id}-`));
+      try {
+        const ref = runReference(c, n, dir);
+        if (typeof ref.blas === 'string') blas = ref.blas;
+        const r = spawnSync(process.execPath, [...process.execArgv, scriptPath, '--child', c.id, String(n), dir], {
+          encoding: 'utf8',
+          maxBuffer: 1 << 26,
+          env: process.env,
+        });
+        if (r.status !== 0) throw new Error(`engine run for ${c.id} n=${n} failed:\n${r.stderr}`);
+        const ours = lastJsonLine(r.stdout, `engine ${c.id}`);
+        const os = ours.seconds as number;
+        const rs = ref.seconds as number;
+        const ratio = os / rs;
+        if (c.id === 'balanced' && n === 1000) ratio1000 = ratio;
+        const row = [c.id, String(n), os.toFixed(3), rs.toFixed(3), ratio.toFixed(2), mib(ours.peakRssKb), mib(ref.peakRssKb), String(ours.agreement)];
+        rows.push(row);
+        print(row);
+      } finally {
+        rmSync(dir, { recursive: true, force: true });
+      }
+    }
+  }
+  console.log('');
+  console.log('ratio = ours / reference (below 1: the engine is faster). Peak = maximum resident set size of the process.');
+  console.log(`reference BLAS/LAPACK: ${blas || 'unknown'}`);
+  for (const c of cases) console.log(`  ${c.id}: ${c.title}`);
+  if (ratio1000 !== undefined) {
+    const ok = ratio1000 <= 10;
+    console.log(`requirement (balanced truncation, n = 1000, within 10× of the reference): ${ok ? 'met' : 'NOT met'} at ${ratio1000.toFixed(2)}×`);
+    if (!ok) process.exitCode = 1;
+  }
+}
+
+main().catch((e: unknown) => {
+  console.error(e instanceof Error ? e.message : e);
+  process.exit(1);
+});

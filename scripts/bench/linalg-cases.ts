@@ -1,0 +1,108 @@
+/**
+ * Benchmark cases for the dense engine: eigenvalues, balanced truncation end to end, and frequency
+ * response, each against numpy/scipy on the same seeded model (see tests/reference/bench_reference.py).
+ */
+import path from 'node:path';
+import type { BenchCase } from './types';
+import { readNpy, readNpyMatrix } from './npy';
+import { type Matrix, type ComplexVector, zeros, eigenvalues } from '../../reduction/linalg/index';
+import type { StateSpaceModel } from '../../reduction/model';
+import { balancedRealization, type BalancedRealization } from '../../reduction/balanced';
+import { frequencyResponse, type FrequencyResponse } from '../../reduction/frequency';
+
+function readModel(dir: string): StateSpaceModel {
+  const A = readNpyMatrix(path.join(dir, 'A.npy'));
+  const B = readNpyMatrix(path.join(dir, 'B.npy'));
+  const C = readNpyMatrix(path.join(dir, 'C.npy'));
+  return { A, B, C, D: zeros(C.rows, B.cols) };
+}
+
+/** Largest distance after pairing each reference eigenvalue with the nearest unused one of ours. */
+function eigenvalueDistance(ours: ComplexVector, ref: { re: Float64Array; im: Float64Array }): number {
+  const n = ref.re.length;
+  const used = new Uint8Array(n);
+  let worst = 0;
+  for (let i = 0; i < n; i++) {
+    let best = -1;
+    let bestD = Infinity;
+    for (let j = 0; j < n; j++) {
+      if (used[j]) continue;
+      const d = Math.hypot(ours.re[j] - ref.re[i], ours.im[j] - ref.im[i]);
+      if (d < bestD) {
+        bestD = d;
+        best = j;
+      }
+    }
+    if (best >= 0) used[best] = 1;
+    worst = Math.max(worst, bestD);
+  }
+  return worst;
+}
+
+const eigenvalueCase: BenchCase<Matrix, ComplexVector> = {
+  id: 'eigenvalues',
+  title: 'eigenvalues (Hessenberg + Francis QR)',
+  sizes: [500],
+  quickSizes: [200],
+  prepare: (dir) => readModel(dir).A,
+  run: (a) => eigenvalues(a),
+  check(dir, _a, lam) {
+    const { data, shape } = readNpy(path.join(dir, 'ref_eig.npy'));
+    const n = shape[0];
+    const re = new Float64Array(n), im = new Float64Array(n);
+    let scale = 0;
+    for (let i = 0; i < n; i++) {
+      re[i] = data[2 * i];
+      im[i] = data[2 * i + 1];
+      scale = Math.max(scale, Math.hypot(re[i], im[i]));
+    }
+    return `max |Δλ|/|λ|max ${(eigenvalueDistance(lam, { re, im }) / scale).toExponential(1)}`;
+  },
+};
+
+const balancedCase: BenchCase<StateSpaceModel, BalancedRealization> = {
+  id: 'balanced',
+  title: 'balanced truncation: both gramians, factors, SVD, realization',
+  sizes: [500, 1000, 2000],
+  quickSizes: [200, 400],
+  prepare: (dir) => readModel(dir),
+  run: (model) => balancedRealization(model),
+  check(dir, _m, real) {
+    const ref = readNpy(path.join(dir, 'ref_hsv.npy')).data;
+    const ours = real.hankelSingularValues;
+    // Relative agreement of the HSVs above 1e-6·σ₁ (below that both sides are at their rounding level).
+    let worst = 0;
+    let count = 0;
+    for (let i = 0; i < ref.length && ref[i] > 1e-6 * ref[0]; i++, count++) worst = Math.max(worst, Math.abs(ours[i] - ref[i]) / ref[i]);
+    return `HSV σ>1e-6σ₁ (${count}): max rel diff ${worst.toExponential(1)}; order ${real.minimalOrder}`;
+  },
+};
+
+const frequencyCase: BenchCase<{ model: StateSpaceModel; w: Float64Array }, FrequencyResponse> = {
+  id: 'frequency',
+  title: 'frequency response, 1000 frequencies',
+  sizes: [1000],
+  quickSizes: [200],
+  prepare: (dir) => ({ model: readModel(dir), w: readNpy(path.join(dir, 'w.npy')).data }),
+  run: ({ model, w }) => frequencyResponse(model, w),
+  check(dir, _input, resp) {
+    // ref_freq: (samples, 2, p, m) — every 50th frequency, real and imaginary parts.
+    const { data, shape } = readNpy(path.join(dir, 'ref_freq.npy'));
+    const [samples, , p, m] = shape;
+    let worst = 0;
+    let scale = 0;
+    for (let s = 0; s < samples; s++) {
+      const g = resp.H[s * 50];
+      for (let i = 0; i < p; i++)
+        for (let j = 0; j < m; j++) {
+          const rr = data[((s * 2 + 0) * p + i) * m + j];
+          const ri = data[((s * 2 + 1) * p + i) * m + j];
+          scale = Math.max(scale, Math.hypot(rr, ri));
+          worst = Math.max(worst, Math.hypot(g.re.data[i * m + j] - rr, g.im.data[i * m + j] - ri));
+        }
+    }
+    return `max |ΔG|/max|G| ${(worst / scale).toExponential(1)} (${samples} sampled ω)`;
+  },
+};
+
+export const cases: BenchCase[] = [eigenvalueCase, balancedCase, frequencyCase] as BenchCase[];
