@@ -9,6 +9,18 @@
  * U and V are evaluated with the operation counts of Higham's eqs. (2.9)–(2.10): m = 13 costs six matrix
  * products and one solve; the squarings cost one product each.
  *
+ * Scaling: by default the degree and s are chosen from the norms of powers d_k = ‖A^k‖₁^{1/k} instead of
+ * ‖A‖₁, following A. H. Al-Mohy & N. J. Higham, "A new scaling and squaring algorithm for the matrix
+ * exponential", SIAM J. Matrix Anal. Appl. 31(3):970–989, 2009, Algorithm 5.1 (the algorithm behind
+ * scipy.linalg.expm). For non-normal matrices — stiff state-space models after a similarity, say —
+ * ‖A^k‖^{1/k} is far below ‖A‖, and the 2005 rule over-scales: every extra squaring costs a product and
+ * loses accuracy. d4 and d6 come from the exact powers the Padé evaluation needs anyway; d8 and d10 from
+ * a 1-norm estimate of the products (Hager 1984; Higham 1988). The extra squarings ℓ(A, m) of AH2009
+ * eq. (5.3) guard against the rounding of a large r_m: ℓ = max(⌈log2(α/u)/(2m)⌉, 0) with
+ * α = |c_{2m+1}|·‖|A|^{2m+1}‖₁/‖A‖₁ and c_{2m+1} = (m!)²/((2m)!(2m+1)!) the leading Padé remainder
+ * coefficient (both recalled from the paper; the tests compare every degree with scipy.linalg.expm).
+ * `scaling: 'norm'` gives the plain 2005 rule.
+ *
  * Contract: A square with finite entries. Returns e^A with a relative backward error ~u‖A‖ for the
  * rounding-free evaluation; the forward error is governed by the conditioning of the exponential
  * (Higham 2005, §1). Nothing is checked here beyond squareness: callers validate their models once
@@ -60,19 +72,27 @@ function combine(n: number, terms: readonly (readonly [number, Matrix])[], ident
 }
 
 /** r_m(A) = (V − U)⁻¹(V + U) with U the odd and V the even part of the Padé numerator. */
-function padeApproximant(a: Matrix, m: number): { r: Matrix; products: number } {
+function padeApproximant(
+  a: Matrix,
+  m: number,
+  given: { A2?: Matrix; A4?: Matrix; A6?: Matrix } = {},
+): { r: Matrix; products: number } {
   const n = a.rows;
   const b = PADE[m];
-  const A2 = matmul(a, a);
-  let products = 1;
+  let products = 0;
+  const power = (have: Matrix | undefined, x: Matrix, y: Matrix): Matrix => {
+    if (have) return have;
+    products++;
+    return matmul(x, y);
+  };
+  const A2 = power(given.A2, a, a);
   let U: Matrix;
   let V: Matrix;
   if (m === 13) {
     // Higham (2005) eq. (2.10): U = A[A6(b13 A6 + b11 A4 + b9 A2) + b7 A6 + b5 A4 + b3 A2 + b1 I],
     // V = A6(b12 A6 + b10 A4 + b8 A2) + b6 A6 + b4 A4 + b2 A2 + b0 I.
-    const A4 = matmul(A2, A2);
-    const A6 = matmul(A4, A2);
-    products += 2;
+    const A4 = power(given.A4, A2, A2);
+    const A6 = power(given.A6, A4, A2);
     const innerU = matmul(A6, combine(n, [[b[13], A6], [b[11], A4], [b[9], A2]], 0));
     const u = combine(n, [[1, innerU], [b[7], A6], [b[5], A4], [b[3], A2]], b[1]);
     U = matmul(a, u);
@@ -83,8 +103,8 @@ function padeApproximant(a: Matrix, m: number): { r: Matrix; products: number } 
     // Higham (2005) eq. (2.9): powers A2, A4, …, A_{m−1}; U = A Σ b_{2k+1} A_{2k}, V = Σ b_{2k} A_{2k}.
     const powers: Matrix[] = [identity(n), A2];
     for (let k = 2; 2 * k < m; k++) {
-      powers.push(matmul(powers[k - 1], A2));
-      products++;
+      const known = k === 2 ? given.A4 : k === 3 ? given.A6 : undefined;
+      powers.push(power(known, powers[k - 1], A2));
     }
     const oddTerms: [number, Matrix][] = [];
     const evenTerms: [number, Matrix][] = [];
@@ -101,11 +121,101 @@ function padeApproximant(a: Matrix, m: number): { r: Matrix; products: number } 
   return { r: solve(denominator, numerator), products };
 }
 
-/** e^A with the degree and scaling used (Higham 2005, Algorithm 2.3). */
-export function expmWithInfo(a: Matrix): ExpmResult {
+// ---- 1-norm estimation for the power norms (Al-Mohy & Higham 2009) ----------------------------------
+
+function applyProduct(factors: readonly Matrix[], x: Float64Array, transpose: boolean): Float64Array {
+  let v = x;
+  const order = transpose ? factors : [...factors].reverse();
+  for (const f of order) {
+    const n = f.rows;
+    const out = new Float64Array(n);
+    const d = f.data;
+    if (transpose) {
+      for (let i = 0; i < n; i++) {
+        const vi = v[i];
+        if (vi === 0) continue;
+        const o = i * n;
+        for (let j = 0; j < n; j++) out[j] += d[o + j] * vi;
+      }
+    } else {
+      for (let i = 0; i < n; i++) {
+        const o = i * n;
+        let s = 0;
+        for (let j = 0; j < n; j++) s += d[o + j] * v[j];
+        out[i] = s;
+      }
+    }
+    v = out;
+  }
+  return v;
+}
+
+/**
+ * Lower estimate of ‖F₁F₂…F_k‖₁ without forming the product: Hager's (1984) iteration as refined by
+ * Higham (1988, Algorithm 4.1), at most five sweeps, plus Higham's alternating-sign test vector.
+ */
+function norm1EstimateOfProduct(factors: readonly Matrix[]): number {
+  const n = factors[0].rows;
+  let x = new Float64Array(n).fill(1 / n);
+  let estimate = 0;
+  let lastJ = -1;
+  for (let sweep = 0; sweep < 5; sweep++) {
+    const y = applyProduct(factors, x, false);
+    const ynorm = y.reduce((s, v) => s + Math.abs(v), 0);
+    if (sweep > 0 && ynorm <= estimate) break;
+    estimate = ynorm;
+    const z = applyProduct(factors, y.map((v) => (v >= 0 ? 1 : -1)), true);
+    let j = 0;
+    for (let i = 1; i < n; i++) if (Math.abs(z[i]) > Math.abs(z[j])) j = i;
+    const ztx = z.reduce((s, v, i) => s + v * x[i], 0);
+    if (sweep > 0 && (Math.abs(z[j]) <= ztx || j === lastJ)) break;
+    lastJ = j;
+    x = new Float64Array(n);
+    x[j] = 1;
+  }
+  const alt = new Float64Array(n);
+  for (let i = 0; i < n; i++) alt[i] = (i % 2 === 0 ? 1 : -1) * (1 + (n > 1 ? i / (n - 1) : 0));
+  const altNorm = applyProduct(factors, alt, false).reduce((s, v) => s + Math.abs(v), 0);
+  return Math.max(estimate, (2 * altNorm) / (3 * n));
+}
+
+/** ‖|A|^k‖₁ exactly: for a non-negative matrix the 1-norm is ‖(|A|ᵀ)^k·1‖∞, k transposed products. */
+function norm1OfAbsolutePower(a: Matrix, k: number, scale: number): number {
+  const n = a.rows;
+  const absA = { rows: n, cols: n, data: a.data.map((v) => Math.abs(v) * scale) };
+  let v: Float64Array = new Float64Array(n).fill(1);
+  for (let p = 0; p < k; p++) v = applyProduct([absA], v, true);
+  return v.reduce((m, e) => Math.max(m, e), 0);
+}
+
+const UNIT_ROUNDOFF = 2 ** -53;
+
+function factorial(k: number): number {
+  let f = 1;
+  for (let i = 2; i <= k; i++) f *= i;
+  return f;
+}
+
+/** ℓ(2^−s·A, m): extra squarings so the rounding of r_m stays below u (Al-Mohy & Higham 2009, eq. 5.3). */
+function extraSquarings(a: Matrix, m: number, scale: number, normA: number): number {
+  if (normA === 0) return 0;
+  const c = (factorial(m) ** 2) / (factorial(2 * m) * factorial(2 * m + 1));
+  const alpha = (c * norm1OfAbsolutePower(a, 2 * m + 1, scale)) / (normA * scale);
+  if (!(alpha > 0)) return 0;
+  return Math.max(Math.ceil(Math.log2(alpha / UNIT_ROUNDOFF) / (2 * m)), 0);
+}
+
+export interface ExpmOptions {
+  /** 'powers' (default): Al-Mohy & Higham 2009; 'norm': Higham 2005, Algorithm 2.3. */
+  scaling?: 'powers' | 'norm';
+}
+
+/** e^A with the degree and scaling used. */
+export function expmWithInfo(a: Matrix, options: ExpmOptions = {}): ExpmResult {
   if (a.rows !== a.cols) throw new Error(`expm: matrix must be square, got ${a.rows}×${a.cols}`);
   const n = a.rows;
   if (n === 0) return { value: zeros(0, 0), padeDegree: 0, squarings: 0, products: 0 };
+  if ((options.scaling ?? 'powers') === 'powers') return expmPowers(a);
   const normA = norm1(a);
   for (const m of [3, 5, 7, 9]) {
     if (normA <= THETA[m]) {
@@ -123,7 +233,50 @@ export function expmWithInfo(a: Matrix): ExpmResult {
   return { value: r, padeDegree: 13, squarings: s, products };
 }
 
-/** e^A (Higham 2005, Algorithm 2.3). */
-export function expm(a: Matrix): Matrix {
-  return expmWithInfo(a).value;
+/** Al-Mohy & Higham (2009), Algorithm 5.1, with the Padé evaluation of Higham (2005). */
+function expmPowers(a: Matrix): ExpmResult {
+  const n = a.rows;
+  const normA = norm1(a);
+  if (normA === 0) return { value: identity(n), padeDegree: 3, squarings: 0, products: 0 };
+  // Degrees 3 and 5 from estimates of ‖A⁴‖ and ‖A⁶‖ through A²; A² is needed by every degree.
+  const A2 = matmul(a, a);
+  const eta1 = Math.max(norm1EstimateOfProduct([A2, A2]) ** (1 / 4), norm1EstimateOfProduct([A2, A2, A2]) ** (1 / 6));
+  for (const m of [3, 5]) {
+    if (eta1 <= THETA[m] && extraSquarings(a, m, 1, normA) === 0) {
+      const { r, products } = padeApproximant(a, m, { A2 });
+      return { value: r, padeDegree: m, squarings: 0, products: products + 1 };
+    }
+  }
+  // Degrees 7 and 9 from the exact ‖A⁴‖ and ‖A⁶‖.
+  const A4 = matmul(A2, A2);
+  const A6 = matmul(A4, A2);
+  const d4 = norm1(A4) ** (1 / 4);
+  const d6 = norm1(A6) ** (1 / 6);
+  const eta2 = Math.max(d4, d6);
+  for (const m of [7, 9]) {
+    if (eta2 <= THETA[m] && extraSquarings(a, m, 1, normA) === 0) {
+      const { r, products } = padeApproximant(a, m, { A2, A4, A6 });
+      return { value: r, padeDegree: m, squarings: 0, products: products + 3 };
+    }
+  }
+  // Degree 13: s from min(max(d6, d8), max(d8, d10)), then the rounding guard ℓ.
+  const d8 = norm1EstimateOfProduct([A4, A4]) ** (1 / 8);
+  const d10 = norm1EstimateOfProduct([A4, A6]) ** (1 / 10);
+  const eta5 = Math.min(Math.max(d6, d8), Math.max(d8, d10));
+  let s = Math.max(0, Math.ceil(Math.log2(eta5 / THETA[13])));
+  s += extraSquarings(a, 13, 2 ** -s, normA);
+  const scaledBy = (m: Matrix, k: number): Matrix =>
+    s === 0 ? m : { rows: n, cols: n, data: m.data.map((v) => v * 2 ** (-k * s)) };
+  let { r, products } = padeApproximant(scaledBy(a, 1), 13, { A2: scaledBy(A2, 2), A4: scaledBy(A4, 4), A6: scaledBy(A6, 6) });
+  products += 3;
+  for (let k = 0; k < s; k++) {
+    r = matmul(r, r);
+    products++;
+  }
+  return { value: r, padeDegree: 13, squarings: s, products };
+}
+
+/** e^A (Al-Mohy & Higham 2009 scaling; Higham 2005 Padé evaluation). */
+export function expm(a: Matrix, options: ExpmOptions = {}): Matrix {
+  return expmWithInfo(a, options).value;
 }

@@ -20,6 +20,7 @@ import type { InputSignal } from './inputs';
 import { luSolveVector } from './iteration-matrix';
 import { matVec } from './linear-system';
 import type { CheckedOptions } from './output-grid';
+import { IntervalLengths } from './exact';
 import type { SolverName } from './types';
 
 export const EXACT_ALWAYS = 500;
@@ -100,11 +101,11 @@ export function distinctIntervalLengths(input: InputSignal, opts: CheckedOptions
   const events = [...Array.from(opts.times), ...Array.from(input.breakpoints).filter((b) => b > 0 && b < opts.tEnd)]
     .filter((t) => t > 0)
     .sort((a, b) => a - b);
-  const seen = new Set<string>();
+  const seen = new IntervalLengths<true>();
   let t = 0;
   for (const e of events) {
     if (e - t <= 1e-12 * opts.tEnd) continue;
-    seen.add((e - t).toPrecision(12));
+    if (!seen.get(e - t)) seen.set(e - t, true);
     if (seen.size >= limit) break;
     t = e;
   }

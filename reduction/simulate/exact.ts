@@ -17,98 +17,160 @@ import type { StateSpaceModel } from '../model';
 import type { InputSignal } from './inputs';
 import { pieceAfter } from './inputs';
 import { LinearSystem, matVec } from './linear-system';
+import { ParallelMatVec } from './parallel-matvec';
 import { type CheckedOptions, OutputRecorder } from './output-grid';
 import type { SimulationResult } from './types';
 
-/** Interval lengths equal to 12 significant digits share one exponential (grid points k·T/(N−1) round). */
-function lengthKey(L: number): string {
-  return L.toPrecision(12);
+/**
+ * Interval lengths within 1e-11 relative of each other share one exponential: grid points k·T/(N−1)
+ * are rounded, so the intervals of a uniform grid differ in their last bits. Kept sorted for lookup.
+ */
+export class IntervalLengths<T> {
+  private readonly lengths: number[] = [];
+  private readonly values: T[] = [];
+
+  get size(): number {
+    return this.lengths.length;
+  }
+
+  get(L: number): T | undefined {
+    const k = this.nearest(L);
+    return k >= 0 ? this.values[k] : undefined;
+  }
+
+  set(L: number, value: T): void {
+    let lo = 0;
+    let hi = this.lengths.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (this.lengths[mid] < L) lo = mid + 1;
+      else hi = mid;
+    }
+    this.lengths.splice(lo, 0, L);
+    this.values.splice(lo, 0, value);
+  }
+
+  forEachValue(f: (value: T) => void): void {
+    this.values.forEach(f);
+  }
+
+  private nearest(L: number): number {
+    let lo = 0;
+    let hi = this.lengths.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (this.lengths[mid] < L) lo = mid + 1;
+      else hi = mid;
+    }
+    for (const k of [lo - 1, lo]) {
+      if (k >= 0 && k < this.lengths.length && Math.abs(this.lengths[k] - L) <= 1e-11 * Math.max(L, this.lengths[k])) return k;
+    }
+    return -1;
+  }
 }
 
 export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: CheckedOptions): SimulationResult {
   const start = performance.now();
   const system = new LinearSystem(model);
-  const n = system.n;
-  const recorder = new OutputRecorder(opts.times, system, input);
+  // The first Φ (on a uniform grid the only one) gets a two-thread product for the recursion.
+  const cache = new IntervalLengths<{ Phi: Matrix; Gamma: Matrix; product: ParallelMatVec | null }>();
+  let parallelTaken = false;
+  try {
+    const n = system.n;
+    const recorder = new OutputRecorder(opts.times, system, input);
 
-  // The input matrix the exponential needs: none for an impulse, B·w for a step, B for a sampled input.
-  let G: Matrix;
-  let inputVector: (piece: number) => Float64Array;
-  if (input.kind === 'impulse') {
-    G = zeros(n, 0);
-    inputVector = () => new Float64Array(0);
-  } else if (input.kind === 'step') {
-    G = zeros(n, 1);
-    system.inputTerm(input.values[1], G.data);
-    const on = Float64Array.of(1);
-    const off = Float64Array.of(0);
-    inputVector = (piece) => (piece >= 1 ? on : off);
-  } else {
-    G = model.B;
-    inputVector = (piece) => input.values[piece];
-  }
-
-  const x = Float64Array.from(opts.x0);
-  if (input.impulseWeights) {
-    const jump = system.inputTerm(input.impulseWeights);
-    for (let i = 0; i < n; i++) x[i] += jump[i];
-  }
-
-  // Events: output times and input jumps inside (0, tEnd], merged in order.
-  const events: number[] = [];
-  {
-    const tol = 1e-12 * opts.tEnd;
-    const bp = input.breakpoints.filter((b) => b > 0 && b < opts.tEnd);
-    let i = 0;
-    let j = 0;
-    const out = opts.times;
-    while (i < out.length || j < bp.length) {
-      const next = j >= bp.length || (i < out.length && out[i] <= bp[j]) ? out[i++] : bp[j++];
-      if (next <= 0) continue;
-      if (events.length === 0 || next - events[events.length - 1] > tol) events.push(next);
-    }
-  }
-
-  const cache = new Map<string, { Phi: Matrix; Gamma: Matrix }>();
-  let exponentials = 0;
-  let steps = 0;
-  const next = new Float64Array(n);
-  const gu = new Float64Array(n);
-  let t = 0;
-  while (!recorder.done && recorder.nextTime <= 0) recorder.record(x);
-  for (const e of events) {
-    const L = e - t;
-    const key = lengthKey(L);
-    let zoh = cache.get(key);
-    if (!zoh) {
-      const z = zohMatrices(model.A, G, L);
-      zoh = { Phi: z.Phi, Gamma: z.Gamma };
-      cache.set(key, zoh);
-      exponentials++;
-    }
-    matVec(zoh.Phi, x, next);
-    const u = inputVector(pieceAfter(input, t, 1e-12 * opts.tEnd));
-    if (u.length > 0) {
-      matVec(zoh.Gamma, u, gu);
-      for (let i = 0; i < n; i++) x[i] = next[i] + gu[i];
+    // The input matrix the exponential needs: none for an impulse, B·w for a step, B for a sampled input.
+    let G: Matrix;
+    let inputVector: (piece: number) => Float64Array;
+    if (input.kind === 'impulse') {
+      G = zeros(n, 0);
+      inputVector = () => new Float64Array(0);
+    } else if (input.kind === 'step') {
+      G = zeros(n, 1);
+      system.inputTerm(input.values[1], G.data);
+      const on = Float64Array.of(1);
+      const off = Float64Array.of(0);
+      inputVector = (piece) => (piece >= 1 ? on : off);
     } else {
-      x.set(next);
+      G = model.B;
+      inputVector = (piece) => input.values[piece];
     }
-    steps++;
-    t = e;
-    while (!recorder.done && recorder.nextTime <= t + 1e-12 * opts.tEnd) recorder.record(x);
+
+    const x = Float64Array.from(opts.x0);
+    if (input.impulseWeights) {
+      const jump = system.inputTerm(input.impulseWeights);
+      for (let i = 0; i < n; i++) x[i] += jump[i];
+    }
+
+    // Events: output times and input jumps inside (0, tEnd], merged in order.
+    const events: number[] = [];
+    {
+      const tol = 1e-12 * opts.tEnd;
+      const bp = input.breakpoints.filter((b) => b > 0 && b < opts.tEnd);
+      let i = 0;
+      let j = 0;
+      const out = opts.times;
+      while (i < out.length || j < bp.length) {
+        const next = j >= bp.length || (i < out.length && out[i] <= bp[j]) ? out[i++] : bp[j++];
+        if (next <= 0) continue;
+        if (events.length === 0 || next - events[events.length - 1] > tol) events.push(next);
+      }
+    }
+
+    let exponentials = 0;
+    let steps = 0;
+    const next = new Float64Array(n);
+    const gu = new Float64Array(n);
+    let t = 0;
+    while (!recorder.done && recorder.nextTime <= 0) recorder.record(x);
+    for (const e of events) {
+      const L = e - t;
+      let zoh = cache.get(L);
+      if (!zoh) {
+        const z = zohMatrices(model.A, G, L);
+        let product: ParallelMatVec | null = null;
+        if (!parallelTaken) {
+          parallelTaken = true;
+          const pm = new ParallelMatVec(z.Phi);
+          if (pm.parallel) product = pm;
+        }
+        zoh = { Phi: z.Phi, Gamma: z.Gamma, product };
+        cache.set(L, zoh);
+        exponentials++;
+      }
+      if (zoh.product) {
+        zoh.product.x.set(x);
+        zoh.product.apply();
+        next.set(zoh.product.y);
+      } else {
+        matVec(zoh.Phi, x, next);
+      }
+      const u = inputVector(pieceAfter(input, t, 1e-12 * opts.tEnd));
+      if (u.length > 0) {
+        matVec(zoh.Gamma, u, gu);
+        for (let i = 0; i < n; i++) x[i] = next[i] + gu[i];
+      } else {
+        x.set(next);
+      }
+      steps++;
+      t = e;
+      while (!recorder.done && recorder.nextTime <= t + 1e-12 * opts.tEnd) recorder.record(x);
+    }
+    return {
+      t: opts.times,
+      y: recorder.y,
+      solver: 'exact',
+      stats: {
+        steps,
+        rejectedSteps: 0,
+        rhsEvaluations: system.rhsEvaluations,
+        factorizations: exponentials,
+        pointsStored: recorder.next,
+        wallMs: performance.now() - start,
+      },
+    };
+  } finally {
+    cache.forEachValue((z) => z.product?.dispose());
+    system.dispose();
   }
-  return {
-    t: opts.times,
-    y: recorder.y,
-    solver: 'exact',
-    stats: {
-      steps,
-      rejectedSteps: 0,
-      rhsEvaluations: system.rhsEvaluations,
-      factorizations: exponentials,
-      pointsStored: recorder.next,
-      wallMs: performance.now() - start,
-    },
-  };
 }

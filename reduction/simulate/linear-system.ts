@@ -7,6 +7,7 @@
  */
 import type { Matrix } from '../linalg/matrix';
 import type { StateSpaceModel } from '../model';
+import { ParallelMatVec } from './parallel-matvec';
 
 /** out = M·x for a row-major rows×cols matrix (out must not alias x). */
 export function matVec(m: Matrix, x: Float64Array, out: Float64Array): void {
@@ -41,6 +42,8 @@ export class LinearSystem {
   readonly p: number;
   /** Right-hand-side evaluations so far. */
   rhsEvaluations = 0;
+  /** A·x on two threads for large models (see `parallel-matvec.ts`); created on first use. */
+  private product: ParallelMatVec | null | undefined;
 
   constructor(readonly model: StateSpaceModel) {
     this.n = model.A.rows;
@@ -50,9 +53,26 @@ export class LinearSystem {
 
   /** out = A x + b. */
   rhs(x: Float64Array, b: Float64Array, out: Float64Array): void {
-    matVec(this.model.A, x, out);
-    for (let i = 0; i < this.n; i++) out[i] += b[i];
+    if (this.product === undefined) {
+      const pm = new ParallelMatVec(this.model.A);
+      this.product = pm.parallel ? pm : null;
+    }
+    if (this.product) {
+      this.product.x.set(x);
+      this.product.apply();
+      const y = this.product.y;
+      for (let i = 0; i < this.n; i++) out[i] = y[i] + b[i];
+    } else {
+      matVec(this.model.A, x, out);
+      for (let i = 0; i < this.n; i++) out[i] += b[i];
+    }
     this.rhsEvaluations++;
+  }
+
+  /** Stops the product's worker thread, if any. */
+  dispose(): void {
+    this.product?.dispose();
+    this.product = null;
   }
 
   /** b = B u. */

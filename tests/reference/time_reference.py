@@ -1,7 +1,9 @@
 #!/usr/bin/python3
 """Reference values for the time-response tests and benchmark (Debian python3-numpy / python3-scipy).
 
-Reads one JSON request on stdin, writes one JSON answer on stdout. Requests:
+Reads one JSON request on stdin, writes one JSON answer on stdout. A matrix is a list of rows, or
+{"file": path, "shape": [rows, cols]} naming raw row-major float64 data (the benchmark's n = 1000 models).
+Requests:
 
   {"op": "expm", "matrices": [[[..]], ...]}
       -> {"expm": [...]}                     scipy.linalg.expm of each (Al-Mohy & Higham 2009)
@@ -34,6 +36,10 @@ import scipy.signal
 
 
 def arr(x):
+    """A matrix given inline as rows, or as {"file": path, "shape": [r, c]} of raw float64 (row-major),
+    which the benchmark uses for n = 1000 models."""
+    if isinstance(x, dict):
+        return np.fromfile(x["file"], dtype=np.float64).reshape(x["shape"])
     return np.asarray(x, dtype=float)
 
 

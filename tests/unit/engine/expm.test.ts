@@ -38,17 +38,35 @@ describe('expm against scipy.linalg.expm', () => {
   const ref = scipyReference<{ expm: number[][][] }>({ op: 'expm', matrices: cases.map((c) => rows(c.a)) });
 
   cases.forEach((c, k) => {
-    it(`${c.name}: relative error ≤ 1e-12`, () => {
+    it(`${c.name}: relative error ≤ 1e-12 with either scaling rule`, () => {
       expect(relativeError(expm(c.a), ref.expm[k])).toBeLessThan(1e-12);
+      expect(relativeError(expm(c.a, { scaling: 'norm' }), ref.expm[k])).toBeLessThan(1e-12);
     });
   });
 
   it('picks the Padé degree and scaling of Higham (2005) Algorithm 2.3', () => {
-    const degrees = cases.slice(0, 7).map((c) => expmWithInfo(c.a).padeDegree);
+    const degrees = cases.slice(0, 7).map((c) => expmWithInfo(c.a, { scaling: 'norm' }).padeDegree);
     expect(degrees).toEqual([3, 5, 7, 9, 13, 13, 13]);
     // ‖A‖₁ = 900: s = ⌈log2(900 / θ13)⌉ = ⌈log2(167.54)⌉ = 8.
-    expect(expmWithInfo(cases[6].a).squarings).toBe(8);
-    expect(expmWithInfo(cases[4].a).squarings).toBe(0);
+    expect(expmWithInfo(cases[6].a, { scaling: 'norm' }).squarings).toBe(8);
+    expect(expmWithInfo(cases[4].a, { scaling: 'norm' }).squarings).toBe(0);
+  });
+});
+
+describe('scaling from power norms (Al-Mohy & Higham 2009)', () => {
+  // exp([[a, b], [0, c]]) = [[e^a, b(e^a − e^c)/(a − c)], [0, e^c]] (closed form of a triangular 2×2);
+  // with b ≫ |a|, |c| the matrix is far from normal: ‖A‖₁ ≈ b while ‖A^k‖^{1/k} → max(|a|, |c|).
+  const a = -1, c = -2, b = 1e6;
+  const A = fromRows([[a, b], [0, c]]);
+  const exact = [[Math.exp(a), (b * (Math.exp(a) - Math.exp(c))) / (a - c)], [0, Math.exp(c)]];
+  it('needs far fewer squarings than the ‖A‖₁ rule on a non-normal matrix', () => {
+    const byPowers = expmWithInfo(A);
+    const byNorm = expmWithInfo(A, { scaling: 'norm' });
+    expect(byNorm.squarings).toBeGreaterThanOrEqual(18); // ⌈log2(1e6 / 5.37)⌉ = 18
+    expect(byPowers.squarings).toBeLessThan(byNorm.squarings - 10);
+  });
+  it('and is accurate there to 1e-13 relative (closed form)', () => {
+    expect(relativeError(expm(A), exact)).toBeLessThan(1e-13);
   });
 });
 

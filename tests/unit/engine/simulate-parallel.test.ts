@@ -1,0 +1,56 @@
+/**
+ * The two-thread matrix–vector product behind the solvers' long product chains gives bit-for-bit the
+ * single-thread result (same per-row summation order), so a response does not depend on the thread count.
+ */
+import { afterAll, describe, expect, it } from 'vitest';
+import { ParallelMatVec } from '@/reduction/simulate/parallel-matvec';
+import { matVec } from '@/reduction/simulate/linear-system';
+import { linalgThreads, setLinalgThreads } from '@/reduction/linalg';
+import { simulate, stepInput } from '@/reduction/simulate';
+import { logRates, modelWithRates, randomMatrix, seeded } from './simulate-reference';
+
+const threadsBefore = linalgThreads();
+afterAll(() => setLinalgThreads(threadsBefore));
+
+describe('ParallelMatVec', () => {
+  it('uses a worker above the size threshold and matches matVec exactly, over many products', () => {
+    setLinalgThreads(2);
+    const rand = seeded(77);
+    const M = randomMatrix(403, 403, rand); // odd size: the split and the 4-row remainder both matter
+    const p = new ParallelMatVec(M);
+    try {
+      expect(p.parallel).toBe(true);
+      const y = new Float64Array(403);
+      for (let rep = 0; rep < 50; rep++) {
+        for (let j = 0; j < 403; j++) p.x[j] = rand() - 0.5;
+        p.apply();
+        matVec(M, p.x, y);
+        expect(Array.from(p.y)).toEqual(Array.from(y));
+      }
+    } finally {
+      p.dispose();
+    }
+  });
+
+  it('stays on one thread for small matrices and when limited to one thread', () => {
+    setLinalgThreads(2);
+    const small = new ParallelMatVec(randomMatrix(50, 50, seeded(1)));
+    expect(small.parallel).toBe(false);
+    setLinalgThreads(1);
+    const big = new ParallelMatVec(randomMatrix(400, 400, seeded(2)));
+    expect(big.parallel).toBe(false);
+  });
+
+  it('every solver gives the same response on one and two threads (n = 320)', () => {
+    const model = modelWithRates(logRates(320, 1, 100), 1, 2, 5, 8);
+    const input = stepInput(model);
+    for (const solver of ['exact', 'explicit', 'stiff'] as const) {
+      setLinalgThreads(1);
+      const one = simulate(model, input, { tEnd: 0.5, points: 11, solver, rtol: 1e-4, atol: 1e-7 });
+      setLinalgThreads(2);
+      const two = simulate(model, input, { tEnd: 0.5, points: 11, solver, rtol: 1e-4, atol: 1e-7 });
+      expect(Array.from(two.y.data)).toEqual(Array.from(one.y.data));
+      expect(two.stats.steps).toBe(one.stats.steps);
+    }
+  });
+});
