@@ -13,7 +13,10 @@
  * algorithm to compute the H∞-norm of a transfer function matrix", Systems & Control Letters 14, 1990)
  * starts from a lower bound γ_lb, finds the imaginary-axis eigenvalues jω₁ < … < jω_k of H((1+2ε)γ_lb),
  * raises γ_lb to the largest σ_max(G(jω)) at the midpoints of consecutive ω_i, and stops when H has no
- * imaginary eigenvalue: then γ_lb ≤ ‖G‖∞ ≤ (1+2ε)γ_lb. Convergence is quadratic.
+ * imaginary eigenvalue: then γ_lb ≤ ‖G‖∞ ≤ (1+2ε)γ_lb. Convergence is quadratic. Because those
+ * eigenvalues can be ill-conditioned (error systems far below the model they are computed from), the
+ * peak is then polished by a golden-section search on σ_max(G(jω)) and re-tested; the reported upper
+ * bound is only as reliable as the Hamiltonian's eigenvalues, the value is always attained.
  *
  * H2 norm: ‖G‖₂² = trace(C P Cᵀ) with the controllability gramian P, for stable, strictly proper G
  * (Zhou, Doyle & Glover, "Robust and Optimal Control", 1996, Lemma 4.4), evaluated as ‖C Lc‖_F² with the
@@ -34,7 +37,13 @@ import {
   lyapunovFactor,
 } from './linalg/index';
 import type { StateSpaceModel } from './model';
-import { frequencyEvaluator, largestSingularValue, type FrequencyEvaluator } from './frequency';
+import {
+  frequencyEvaluator,
+  largestSingularValue,
+  defaultFrequencyBand,
+  logFrequencyGrid,
+  type FrequencyEvaluator,
+} from './frequency';
 import { classifyPoles, modelPoles, DEFAULT_STABILITY_TOLERANCE } from './spectral-split';
 
 /** A norm that is finite, or a reason it is not (a pole on or right of the axis; a feedthrough for H2). */
@@ -115,10 +124,16 @@ export function hamiltonian(model: StateSpaceModel, gamma: number): Matrix {
 
 /**
  * Frequencies ω (both signs) with jω (numerically) an eigenvalue of H, ascending. Keeping the negative
- * ones makes the level-set interval that contains ω = 0 show up as the pair (−ω₁, ω₁). An eigenvalue counts as
- * imaginary when |Re λ| ≤ 1e-6·(|λ| + 1e-8·ρ(H)) — loose on purpose: a spurious candidate only costs a
- * frequency evaluation, while a missed one would stop the iteration early (Bruinsma & Steinbuch 1990 use
- * a relative test of this kind).
+ * ones makes the level-set interval that contains ω = 0 show up as the pair (−ω₁, ω₁).
+ *
+ * An eigenvalue counts as imaginary when |Re λ| ≤ 1e-3·(|λ| + 1e-8·ρ(H)). That is loose on purpose.
+ * The imaginary eigenvalues of H(γ) can be ill-conditioned: for an error system G − Gr, which is tiny
+ * beside the realization it is computed from, rounding moves them off the axis by 1e-5·|λ| and more
+ * (seen on a balanced-truncation error of a heat-equation model), and a missed crossing would stop the
+ * iteration below the peak. A spurious candidate is harmless: every candidate only leads to σ_max
+ * evaluations at midpoints, and γ is raised only to a value σ_max actually attains, so the result stays a
+ * true lower bound and the loop still ends when no midpoint raises it (Bruinsma & Steinbuch 1990 use a
+ * relative test of this kind).
  */
 function imaginaryAxisFrequencies(H: Matrix): number[] {
   const ev = eigenvalues(H);
@@ -127,16 +142,18 @@ function imaginaryAxisFrequencies(H: Matrix): number[] {
   const out: number[] = [];
   for (let i = 0; i < ev.re.length; i++) {
     const mag = Math.hypot(ev.re[i], ev.im[i]);
-    if (Math.abs(ev.re[i]) <= 1e-6 * (mag + 1e-8 * radius)) out.push(ev.im[i]);
+    if (Math.abs(ev.re[i]) <= 1e-3 * (mag + 1e-8 * radius)) out.push(ev.im[i]);
   }
   return out.sort((a, b) => a - b);
 }
 
 /**
- * Test frequencies for the starting lower bound (Bruinsma & Steinbuch 1990, step 1): ω = 0 and the
- * natural frequency of the poles with the largest |Im λ / (Re λ · |λ|)|, the ones most likely to make a
- * resonant peak; here the 20 best of that ranking rather than only the first, which costs little and
- * guards against a first guess on a minor resonance.
+ * Test frequencies for the starting lower bound (Bruinsma & Steinbuch 1990, step 1): ω = 0, the natural
+ * frequency of the poles with the largest |Im λ / (Re λ · |λ|)| (the ones most likely to make a resonant
+ * peak; here the 20 best of that ranking rather than only the first), the fastest pole, and a coarse log
+ * grid over the poles' band. The grid matters when the peak is not at a pole, for instance the error of
+ * a residualized model, whose feedthrough D − Dr ≠ 0: starting from γ_lb = σ_max(D) would make
+ * R = γ²I − DᵀD singular in the first Hamiltonian. All of these cost O(n²) each on the Hessenberg form.
  */
 function startingFrequencies(poles: ComplexVector): number[] {
   const scored: { w: number; score: number }[] = [];
@@ -147,9 +164,38 @@ function startingFrequencies(poles: ComplexVector): number[] {
     if (poles.im[i] > 0) scored.push({ w: mag, score: Math.abs(poles.im[i] / (poles.re[i] * mag)) });
   }
   scored.sort((a, b) => b.score - a.score);
-  const ws = [0, ...scored.slice(0, 20).map((s) => s.w)];
-  if (scored.length === 0 && fastest > 0) ws.push(fastest);
-  return ws;
+  const [lo, hi] = defaultFrequencyBand(poles);
+  return [0, fastest, ...scored.slice(0, 20).map((s) => s.w), ...logFrequencyGrid(lo, hi, 40)];
+}
+
+/**
+ * Golden-section search for the largest σ(ω) with log10 ω within ±halfWidth of log10 w0 (Kiefer 1953,
+ * "Sequential minimax search for a maximum", Proc. AMS 4): for the top of a peak that is unimodal there.
+ */
+function maximizeNear(sigmaAt: (w: number) => number, w0: number, halfWidth: number): { w: number; value: number } {
+  const ratio = (Math.sqrt(5) - 1) / 2;
+  let a = Math.log10(w0) - halfWidth;
+  let b = Math.log10(w0) + halfWidth;
+  let x1 = b - ratio * (b - a);
+  let x2 = a + ratio * (b - a);
+  let f1 = sigmaAt(10 ** x1);
+  let f2 = sigmaAt(10 ** x2);
+  for (let it = 0; it < 80 && b - a > 1e-13 * Math.max(1, Math.abs(a)); it++) {
+    if (f1 >= f2) {
+      b = x2;
+      x2 = x1;
+      f2 = f1;
+      x1 = b - ratio * (b - a);
+      f1 = sigmaAt(10 ** x1);
+    } else {
+      a = x1;
+      x1 = x2;
+      f1 = f2;
+      x2 = a + ratio * (b - a);
+      f2 = sigmaAt(10 ** x2);
+    }
+  }
+  return f1 >= f2 ? { w: 10 ** x1, value: f1 } : { w: 10 ** x2, value: f2 };
 }
 
 /** ‖G‖∞ and its peak frequency by the Hamiltonian level-set iteration (see the file header). */
@@ -176,41 +222,56 @@ export function hinfNorm(model: StateSpaceModel, options: NormOptions = {}): Hin
     }
   }
   if (lower === 0) {
-    // G ≡ 0 on every test frequency: either G = 0 or a degenerate start; use a tiny level so the
-    // Hamiltonian test below still runs.
-    const scale = frobeniusNorm(model.B) * frobeniusNorm(model.C);
-    if (scale === 0) return { finite: true, value: 0, peakFrequency: 0, lowerBound: 0, upperBound: 0, iterations: 0 };
-    lower = 1e-300;
+    // σ_max vanishes at every test frequency, more of them than a nonzero transfer function of this
+    // size (up to degree 60) can have zeros: G ≡ 0.
+    return { finite: true, value: 0, peakFrequency: 0, lowerBound: 0, upperBound: 0, iterations: 0 };
   }
   let iterations = 0;
-  for (; iterations < 60; iterations++) {
-    const gamma = (1 + 2 * eps) * lower;
-    const ws = imaginaryAxisFrequencies(hamiltonian(model, gamma));
-    if (ws.length === 0) break;
-    let best = lower;
-    let bestW = peak;
-    for (let k = 0; k + 1 < ws.length; k++) {
-      // σ(G(−jω)) = σ(G(jω)) for a real model, so a midpoint counts by its magnitude.
-      const w = Math.abs(0.5 * (ws[k] + ws[k + 1]));
-      const s = sigmaAt(w);
-      if (s > best) {
-        best = s;
-        bestW = w;
+  let upper = Infinity;
+  const band = defaultFrequencyBand(poles);
+  for (let pass = 0; pass < 3; pass++) {
+    for (; iterations < 60; iterations++) {
+      // Never test at σ_max(D) itself, where R = γ²I − DᵀD is singular.
+      const gamma = Math.max((1 + 2 * eps) * lower, (1 + 1e-7) * dNorm);
+      const ws = imaginaryAxisFrequencies(hamiltonian(model, gamma));
+      if (ws.length === 0) {
+        upper = gamma;
+        break;
       }
+      let best = lower;
+      let bestW = peak;
+      for (let k = 0; k + 1 < ws.length; k++) {
+        // σ(G(−jω)) = σ(G(jω)) for a real model, so a midpoint counts by its magnitude.
+        const w = Math.abs(0.5 * (ws[k] + ws[k + 1]));
+        const s = sigmaAt(w);
+        if (s > best) {
+          best = s;
+          bestW = w;
+        }
+      }
+      if (best <= gamma) {
+        // Candidates without a higher midpoint: spurious near-axis eigenvalues at the top of the peak.
+        upper = gamma;
+        break;
+      }
+      lower = best;
+      peak = bestW;
     }
-    if (best <= gamma) {
-      // Candidates without a higher midpoint: spurious near-axis eigenvalues at the top of the peak.
-      break;
-    }
-    lower = best;
-    peak = bestW;
+    // Polish the peak on σ_max itself, which is evaluated accurately even where the Hamiltonian's
+    // eigenvalues are not (see imaginaryAxisFrequencies); only attained values are accepted, and a raised
+    // value goes through the Hamiltonian test again (so the last pass does not polish).
+    if (pass === 2 || !(peak > 0 && Number.isFinite(peak))) break;
+    const polished = maximizeNear(sigmaAt, peak, Math.log10(band[1] / band[0]) / 39);
+    if (polished.value <= lower * (1 + eps)) break;
+    lower = polished.value;
+    peak = polished.w;
   }
   return {
     finite: true,
     value: lower,
     peakFrequency: peak,
     lowerBound: lower,
-    upperBound: (1 + 2 * eps) * lower,
+    upperBound: Number.isFinite(upper) ? upper : (1 + 2 * eps) * lower,
     iterations,
   };
 }
