@@ -79,7 +79,7 @@ export function checkOptions(opts: SimulationOptions, n: number): CheckedOptions
     }
   }
   if (opts.fixedStep !== undefined) positive(opts.fixedStep, 'fixedStep', 'the fixed step size');
-  const maxSteps = opts.maxSteps ?? 10_000_000;
+  const maxSteps = opts.maxSteps ?? 1_000_000;
   positive(maxSteps, 'maxSteps', 'the safety limit on steps');
   return { tEnd, rtol, atol, times, uniform, x0, fixedStep: opts.fixedStep, maxSteps };
 }

@@ -12,9 +12,11 @@
  *     1 |  w   w   d
  *   ----+------------
  *       |  w   w   d          (order 2, L-stable)
- *       | (1−w)/3  (3w+1)/3  d/3    (the embedded order-3 weights of Hosea & Shampine)
+ *       | (1−w)/3  (3w+1)/3  d/3    (embedded, order 3)
  *
- * The embedded weights satisfy the four order-3 conditions (checked in the tests). The raw estimate
+ * The tableau follows from the two stage equations of the paper; the embedded weights are those of the
+ * paper's error estimate as recalled here, and the tests check the four order-3 conditions they must
+ * satisfy (Butcher trees up to order 3) rather than trust the recollection. The raw estimate
  * h·Σ(bᵢ − b̂ᵢ)fᵢ grows like hλ on stiff components; it is filtered through W⁻¹ as Shampine proposed
  * and as RADAU5 does (Hairer & Wanner, "Solving ODE II", 2nd ed., Springer 1996, §IV.8, eq. (8.20)),
  * which keeps it bounded as hλ → −∞ at the price of one more solve with the factorisation in hand.

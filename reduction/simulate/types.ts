@@ -39,7 +39,7 @@ export interface SimulationOptions {
    * fixed-step real-time target. The last step of each input interval is shortened to land on it.
    */
   fixedStep?: number;
-  /** Safety limit on accepted + rejected steps (default 10 million). */
+  /** Safety limit on accepted + rejected steps (default one million). */
   maxSteps?: number;
 }
 

@@ -21,11 +21,14 @@ Requests:
                                              first): expm of [[A, B],[0, 0]]*dt on every sub-interval
   {"op": "impulse", "A","B","C", "t": [..], "w": [..]}
       -> {"y": [[..] per t]}                 y(t) = C e^{At} B w, e^{At} by scipy.linalg.expm
+  bench CASE N DIR [--no-time]          (command line, not stdin) the benchmark's reference: see bench()
   {"op": "solve_ivp", "A","B","C", "u": [..], "t_end", "t_eval": [..], "method": "RK45"|"BDF",
    "rtol", "atol"}
       -> {"y", "nfev", "njev", "nlu", "seconds"} scipy.integrate.solve_ivp with the constant Jacobian A
 """
 import json
+import os
+import resource
 import sys
 import time
 
@@ -43,7 +46,92 @@ def arr(x):
     return np.asarray(x, dtype=float)
 
 
+def bench_model(n, seed):
+    """The benchmark's stiff model: A = T diag-blocks T^-1 with decay rates log-spaced over 0.5 ... 500
+    rad/s (stiffness ratio 1000), every eighth pole pair complex, T = I + 0.3 R / sqrt(n) with R uniform
+    in [-1, 1] (dense and mildly non-normal); one input, one output. Invented data."""
+    rng = np.random.default_rng(seed)
+    lam = np.zeros((n, n))
+    i = 0
+    while i < n:
+        rate = 0.5 * 1000.0 ** (i / (n - 1))
+        lam[i, i] = -rate
+        if i % 8 == 0 and i + 1 < n:
+            w = rate * (0.5 + 0.5 * rng.random())
+            lam[i + 1, i + 1] = -rate
+            lam[i, i + 1] = w
+            lam[i + 1, i] = -w
+            i += 1
+        i += 1
+    t = np.eye(n) + 0.3 * (2 * rng.random((n, n)) - 1) / np.sqrt(n)
+    a = t @ lam @ np.linalg.inv(t)
+    b = 2 * rng.random((n, 1)) - 1
+    c = 2 * rng.random((1, n)) - 1
+    return a, b, c
+
+
+BENCH = {
+    # case: (t_end, output points, solver settings)
+    "exact-step": (10.0, 2000, None),
+    "explicit-stiff": (4.0, 201, "RK45"),
+    "stiff-stiff": (4.0, 201, "BDF"),
+}
+
+
+def bench(case, n, out, timed):
+    """`time_reference.py bench CASE N DIR [--no-time]` for scripts/bench/time-cases.ts: writes A, B, C
+    (and t) as .npy, times the scipy reference (best of three when under 2 s), saves its outputs as
+    ref_y.npy and its counters as ref_stats.json, and prints one JSON line with "seconds"."""
+    t_end, points, method = BENCH[case]
+    a, b, c = bench_model(n, 7000 + n)
+    t = np.linspace(0.0, t_end, points)
+    for name, m in (("A", a), ("B", b), ("C", c), ("t", t)):
+        np.save(os.path.join(out, name + ".npy"), m)
+    seconds = None
+    stats = {}
+    if timed:
+        runs = []
+        while True:
+            t0 = time.perf_counter()
+            if method is None:
+                # Van Loan (1978): expm of [[A, B], [0, 0]] h gives Phi and Gamma; then the recursion.
+                h = t[1] - t[0]
+                M = np.zeros((n + 1, n + 1))
+                M[:n, :n] = a * h
+                M[:n, n:] = b * h
+                E = scipy.linalg.expm(M)
+                phi = np.ascontiguousarray(E[:n, :n])
+                g = E[:n, n]
+                x = np.zeros(n)
+                y = np.empty((points, 1))
+                y[0] = c @ x
+                for k in range(1, points):
+                    x = phi @ x + g
+                    y[k] = c @ x
+            else:
+                bu = b[:, 0]
+                sol = scipy.integrate.solve_ivp(lambda _t, x: a @ x + bu, (0.0, t_end), np.zeros(n), method=method,
+                                                t_eval=t, rtol=1e-6, atol=1e-9, jac=(a if method == "BDF" else None))
+                y = (c @ sol.y).T
+                stats = {"rhsEvaluations": int(sol.nfev), "jacobians": int(sol.njev), "factorizations": int(sol.nlu)}
+            runs.append(time.perf_counter() - t0)
+            if len(runs) >= 3 or sum(runs) > 2.0:
+                break
+        seconds = min(runs)
+        np.save(os.path.join(out, "ref_y.npy"), np.ascontiguousarray(y))
+        with open(os.path.join(out, "ref_stats.json"), "w") as f:
+            json.dump(stats, f)
+    print(json.dumps({"case": case, "n": n, "seconds": seconds,
+                      "peakRssKb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
+                      "method": "scipy.linalg.expm + numpy recursion" if method is None
+                      else "scipy.integrate.solve_ivp " + method}))
+
+
 def main():
+    if len(sys.argv) > 1 and sys.argv[1] == "bench":
+        args = [x for x in sys.argv[2:] if not x.startswith("--")]
+        bench(args[0], int(args[1]), args[2], "--no-time" not in sys.argv)
+        return
     req = json.load(sys.stdin)
     op = req["op"]
     if op == "expm":
