@@ -6,5 +6,6 @@ export { assembleModel, type ModelMatrices, type ModelNames } from './assemble';
 export { parseCsvMatrix } from './csv';
 export { parseMatrixMarket, writeMatrixMarket } from './matrix-market';
 export { parseModelJson, modelToJson, matrixFromJsonRows } from './json';
-export { loadModelFiles, parseMatrixFile } from './files';
+export { loadModelFiles } from './files';
+export { parseModelFiles, parseMatrixFile, type ModelFileText } from './model-files';
 export { secondOrderToFirstOrder, type SecondOrderMatrices } from '../second-order';

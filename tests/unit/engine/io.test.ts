@@ -15,6 +15,7 @@ import {
   modelToJson,
   parseCsvMatrix,
   parseMatrixMarket,
+  parseModelFiles,
   parseModelJson,
   writeMatrixMarket,
 } from '@/reduction/io';
@@ -242,5 +243,32 @@ describe('loadModelFiles', () => {
     const e = caught(() => loadModelFiles([good('A_crlf.csv'), good('nope.csv'), good('C.csv')]));
     expect(e.code).toBe('unreadable_file');
     expect(e.field).toBe('B');
+  });
+});
+
+describe('parseModelFiles (uploaded texts, no file system)', () => {
+  it('parses A, B, C texts by their names, as the web upload will', () => {
+    const m = parseModelFiles([
+      { name: 'A.mtx', text: text(path.join(IO, 'coordinate_general.mtx')) },
+      { name: 'uploads/B.csv', text: '1\n0\n0\n0\n0\n1\n' },
+      { name: 'C.csv', text: '1,0,0,0,0,0\r\n' },
+    ]);
+    expect(m.A.rows).toBe(6);
+    expect(m.B.cols).toBe(1);
+  });
+  it('names the uploaded file in a cell error', () => {
+    const e = caught(() =>
+      parseModelFiles([
+        { name: 'plant_A.csv', text: '-1,0\n0,oops\n' },
+        { name: 'B.csv', text: '1\n1\n' },
+        { name: 'C.csv', text: '1,1\n' },
+      ]),
+    );
+    expect(e.message).toBe('plant_A.csv: A row 2, column 2 is not a number: "oops"');
+  });
+  it('refuses an unknown extension, naming the matrix', () => {
+    const e = caught(() => parseModelFiles([{ name: 'A.txt', text: '1' }, { name: 'B.csv', text: '1' }, { name: 'C.csv', text: '1' }]));
+    expect(e.code).toBe('unsupported_format');
+    expect(e.field).toBe('A');
   });
 });
