@@ -109,6 +109,28 @@ export function balancedErrorBound(hankel: ArrayLike<number>, r: number): number
   return 2 * tail;
 }
 
+/**
+ * Relative gap below which two Hankel singular values count as equal (common practice: well above the
+ * ~1e-12 relative accuracy of the leading values, well below any gap that matters for the bound).
+ */
+export const EQUAL_HANKEL_TOLERANCE = 1e-8;
+
+/**
+ * Orders at which the balanced realization may be cut: never between equal Hankel singular values,
+ * where the truncated model is not unique and need not be asymptotically stable, and A22 of
+ * residualization can be singular (Pernebo & Silverman 1982 require σ_r > σ_{r+1}). Past the numerical
+ * rank every order is allowed (the values there are rounding noise).
+ */
+export function balancedCutPoints(real: BalancedRealization): number[] {
+  const s = real.hankelSingularValues;
+  const n = s.length;
+  const cuts = [0];
+  for (let r = 1; r <= n; r++) {
+    if (r >= real.minimalOrder || r === n || s[r - 1] - s[r] > EQUAL_HANKEL_TOLERANCE * s[r - 1]) cuts.push(r);
+  }
+  return cuts;
+}
+
 /** Balanced truncation to r states (r ≤ minimalOrder). */
 export function balancedTruncation(real: BalancedRealization, r: number): StateSpaceModel {
   return leadingStates(real.balanced, Math.min(r, real.minimalOrder));

@@ -27,6 +27,7 @@ import {
   balancedTruncation,
   balancedResidualization,
   balancedErrorBound,
+  balancedCutPoints,
   DEFAULT_RANK_TOLERANCE,
   type BalancedRealization,
 } from './balanced';
@@ -160,7 +161,7 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
     });
     hankel = real.hankelSingularValues;
     minimalOrder = real.minimalOrder;
-    cutPoints = Array.from({ length: ns + 1 }, (_, r) => r);
+    cutPoints = balancedCutPoints(real);
     boundAt = (r) => balancedErrorBound(real.hankelSingularValues, r);
     stableReduced = (r) => {
       const notes: string[] = [];
@@ -184,7 +185,9 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
     const allNotes = [...notes];
     if (choice.requestedOrder !== undefined) {
       allNotes.push(
-        `order ${choice.requestedOrder} would split a complex pair; raised to ${choice.order} to keep the pair together`,
+        method === 'modal'
+          ? `order ${choice.requestedOrder} would split a complex pair; raised to ${choice.order} to keep the pair together`
+          : `order ${choice.requestedOrder} would separate equal Hankel singular values; raised to ${choice.order} to keep them together`,
       );
     }
     if (nu > 0) {

@@ -51,6 +51,22 @@ def sigma_max(A, B, C, D, w):
     return np.linalg.svd(response(A, B, C, D, w), compute_uv=False)[0]
 
 
+def sigma_max_batch(A, B, C, D, ws):
+    """sigma_max(G(jw)) for many w at once (batched LAPACK solves), in chunks to bound memory."""
+    n = A.shape[0]
+    out = np.empty(len(ws))
+    for start in range(0, len(ws), 500):
+        w = ws[start : start + 500]
+        if n == 0:
+            G = np.broadcast_to(D.astype(complex), (len(w),) + D.shape)
+        else:
+            M = 1j * w[:, None, None] * np.eye(n) - A
+            X = np.linalg.solve(M, np.broadcast_to(B.astype(complex), (len(w),) + B.shape))
+            G = C @ X + D
+        out[start : start + 500] = np.linalg.svd(G, compute_uv=False)[:, 0]
+    return out
+
+
 def gramians(A, B, C):
     P = linalg.solve_continuous_lyapunov(A, -B @ B.T)
     Q = linalg.solve_continuous_lyapunov(A.T, -C.T @ C)
@@ -70,7 +86,7 @@ def hinf_sweep(A, B, C, D):
     lo = (mags.min() if mags.size else 1.0) / 1e3
     hi = (mags.max() if mags.size else 1.0) * 1e3
     grid = np.concatenate(([0.0], np.logspace(np.log10(lo), np.log10(hi), 6000)))
-    values = np.array([sigma_max(A, B, C, D, w) for w in grid])
+    values = sigma_max_batch(A, B, C, D, grid)
     best = max(values.max(), np.linalg.svd(D, compute_uv=False)[0] if D.size else 0.0)
     best_w = float(grid[values.argmax()]) if values.max() >= best else float("inf")
     for k in np.argsort(values)[::-1][:8]:

@@ -20,6 +20,7 @@ import {
   heatEquation,
 } from '../../fixtures/engine/models';
 import { runReference } from '../../fixtures/engine/reference';
+import { blockDiagonal } from '../../../reduction/realization';
 import type { StateSpaceModel } from '../../../reduction/model';
 
 function allFinite(m: StateSpaceModel): boolean {
@@ -266,6 +267,29 @@ describe('non-minimal and non-stable models', () => {
     expect(() => reduceModel(model, { method: 'balanced', order: 1 })).toThrow(/kept exactly for marginal/);
     expect(() => reduceModel(model, { method: 'balanced' })).toThrow(ModelError);
     expect(() => reduceModel(model, { method: 'balanced', order: 2, tolerance: 0.1 })).toThrow(/exactly one/);
+  });
+});
+
+describe('equal Hankel singular values', () => {
+  it('are never separated: an order between them is raised (Pernebo & Silverman 1982 need σ_r > σ_{r+1})', () => {
+    // Two identical subsystems on separate channels: every HSV appears twice (Moore 1981: the HSVs of a
+    // block-diagonal system are the union of the blocks' HSVs).
+    const g = randomStableModel(330, 4, 1, 1);
+    const twin = disguise(
+      { A: blockDiagonal(g.A, g.A), B: blockDiagonal(g.B, g.B), C: blockDiagonal(g.C, g.C), D: zeros(2, 2) },
+      331,
+    );
+    const hsv = hankelSingularValues(twin);
+    for (let k = 0; k < 8; k += 2) expect(Math.abs(hsv[k] - hsv[k + 1])).toBeLessThan(1e-10 * hsv[0]);
+    for (const method of ['balanced', 'residualization'] as const) {
+      const basis = prepareReduction(twin, { method });
+      expect(basis.allowedOrders()).toEqual([0, 2, 4, 6, 8]);
+      const r = reduceModel(twin, { method, order: 3 });
+      expect(r.order).toBe(4);
+      expect(r.notes.join(' ')).toMatch(/equal Hankel singular values/);
+      expect(allFinite(r.model)).toBe(true);
+      expect(r.hinfError.finite && r.hinfError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-7));
+    }
   });
 });
 
