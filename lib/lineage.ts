@@ -1,0 +1,184 @@
+// Lineage: where a reduced-model version came from and what depends on it. Source-model versions →
+// reduced-model versions (each records its source version, recipe, engine version and the checksums of
+// its input and output) → the controller projects whose pins resolve to them. A version made by re-running
+// a recipe on a newer source version, or as the next draft after a revise decision, records its
+// predecessor, drawn as an edge between reduced versions.
+//
+// Also the old-versus-new accuracy comparison of a version and its predecessor.
+import { db } from '@/lib/db';
+import { ApiError, notFound } from '@/lib/http';
+import type { VersionStatus } from '@/lib/review/state-machine';
+import { versionSummaries, type VersionSummary } from '@/lib/reviews';
+import { pinsForReducedModel } from '@/lib/pins';
+
+export interface SourceVersionNode {
+  kind: 'source_version';
+  id: string;
+  sourceModelName: string;
+  sourceModelSlug: string;
+  number: number;
+  checksum: string;
+  states: number;
+  isNewest: boolean;
+  registeredAt: string;
+}
+
+export interface ReducedVersionNode {
+  kind: 'reduced_version';
+  id: string;
+  reducedModelName: string;
+  reducedModelSlug: string;
+  number: number;
+  status: VersionStatus;
+  order: number;
+  method: string;
+  upstreamChanged: boolean;
+  matricesSha256: string;
+  inputChecksum: string;
+  engineVersion: string;
+}
+
+export interface ProjectNode {
+  kind: 'project';
+  id: string;
+  name: string;
+  slug: string;
+}
+
+export type LineageNode = SourceVersionNode | ReducedVersionNode | ProjectNode;
+
+export interface LineageEdge {
+  from: string;
+  to: string;
+  /** reduced_from: source version → reduced version; predecessor: older → newer reduced version; pinned_by: reduced version → project */
+  kind: 'reduced_from' | 'predecessor' | 'pinned_by';
+  /** e.g. "balanced, r = 12", "re-run", "exact pin" */
+  label: string;
+}
+
+export interface Lineage {
+  title: string;
+  sourceModel: { id: string; name: string; slug: string };
+  nodes: LineageNode[];
+  edges: LineageEdge[];
+}
+
+function methodLabel(method: string, order: number): string {
+  return `${method}, r = ${order}`;
+}
+
+async function buildLineage(sourceModelId: string, reducedModelId: string | null, title: (sm: { name: string }) => string): Promise<Lineage> {
+  const knex = db();
+  const sm = await knex('source_models').where({ id: sourceModelId }).first('id', 'name', 'slug');
+  if (!sm) throw notFound('That source model');
+  const svRows = await knex('source_versions').where({ source_model_id: sourceModelId }).orderBy('number').select('id', 'number', 'checksum', 'states', 'created_at');
+  const rvQuery = knex('reduced_versions as rv')
+    .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
+    .join('recipes as r', 'r.id', 'rv.recipe_id')
+    .join('reduced_version_upstream as up', 'up.reduced_version_id', 'rv.id')
+    .where('up.source_model_id', sourceModelId)
+    .orderBy([{ column: 'rm.name' }, { column: 'rv.number' }])
+    .select(
+      'rv.id',
+      'rv.number',
+      'rv.status',
+      'rv.order',
+      'rv.source_version_id',
+      'rv.predecessor_id',
+      'rv.matrices_sha256',
+      'rv.input_checksum',
+      'rv.engine_version',
+      'rv.reduced_model_id',
+      'rm.name as rm_name',
+      'rm.slug as rm_slug',
+      'r.method',
+      'up.upstream_changed',
+    );
+  if (reducedModelId) rvQuery.where('rv.reduced_model_id', reducedModelId);
+  const rvRows = await rvQuery;
+
+  const newest = svRows.length > 0 ? svRows[svRows.length - 1].number : 0;
+  // A reduced model's page shows the source versions its versions came from, plus the newest one (to show
+  // what an upstream change points at); the source model's page shows them all.
+  const usedSources = new Set(rvRows.map((r) => r.source_version_id));
+  const shownSources = reducedModelId ? svRows.filter((s) => usedSources.has(s.id) || s.number === newest) : svRows;
+
+  const nodes: LineageNode[] = shownSources.map((s) => ({
+    kind: 'source_version',
+    id: s.id,
+    sourceModelName: sm.name,
+    sourceModelSlug: sm.slug,
+    number: s.number,
+    checksum: s.checksum,
+    states: s.states,
+    isNewest: s.number === newest,
+    registeredAt: (s.created_at as Date).toISOString(),
+  }));
+  const edges: LineageEdge[] = [];
+  const shownIds = new Set(rvRows.map((r) => r.id));
+  for (const r of rvRows) {
+    nodes.push({
+      kind: 'reduced_version',
+      id: r.id,
+      reducedModelName: r.rm_name,
+      reducedModelSlug: r.rm_slug,
+      number: r.number,
+      status: r.status,
+      order: r.order,
+      method: r.method,
+      upstreamChanged: r.upstream_changed,
+      matricesSha256: r.matrices_sha256,
+      inputChecksum: r.input_checksum,
+      engineVersion: r.engine_version,
+    });
+    edges.push({ from: r.source_version_id, to: r.id, kind: 'reduced_from', label: methodLabel(r.method, r.order) });
+    if (r.predecessor_id && shownIds.has(r.predecessor_id)) {
+      edges.push({ from: r.predecessor_id, to: r.id, kind: 'predecessor', label: 'made from' });
+    }
+  }
+
+  const modelIds = [...new Set(rvRows.map((r) => r.reduced_model_id as string))];
+  const versionByModelNumber = new Map(rvRows.map((r) => [`${r.reduced_model_id}:${r.number}`, r.id as string]));
+  const projects = new Map<string, ProjectNode>();
+  for (const modelId of modelIds) {
+    for (const pin of await pinsForReducedModel(modelId)) {
+      if (pin.resolvedVersionNumber === null) continue;
+      const versionId = versionByModelNumber.get(`${modelId}:${pin.resolvedVersionNumber}`);
+      if (!versionId) continue;
+      projects.set(pin.project.id, { kind: 'project', id: pin.project.id, name: pin.project.name, slug: pin.project.slug });
+      edges.push({ from: versionId, to: pin.project.id, kind: 'pinned_by', label: pin.mode === 'exact' ? 'exact pin' : 'newest approved' });
+    }
+  }
+  nodes.push(...projects.values());
+  return { title: title(sm), sourceModel: { id: sm.id, name: sm.name, slug: sm.slug }, nodes, edges };
+}
+
+export async function sourceModelLineage(slug: string): Promise<Lineage | null> {
+  const sm = await db()('source_models').where({ slug }).first('id');
+  if (!sm) return null;
+  return buildLineage(sm.id, null, (s) => `Lineage of ${s.name}`);
+}
+
+export async function reducedModelLineage(slug: string): Promise<Lineage | null> {
+  const rm = await db()('reduced_models').where({ slug }).first('id', 'name', 'source_model_id');
+  if (!rm) return null;
+  return buildLineage(rm.source_model_id, rm.id, () => `Lineage of ${rm.name}`);
+}
+
+export interface SideBySide {
+  old: VersionSummary;
+  new: VersionSummary;
+}
+
+/** Two versions of one reduced model for the old-versus-new accuracy view (normally a re-run and its predecessor). */
+export async function accuracySideBySide(oldVersionId: string, newVersionId: string): Promise<SideBySide> {
+  const found = await versionSummaries([oldVersionId, newVersionId]);
+  const old = found.find((v) => v.id === oldVersionId);
+  const now = found.find((v) => v.id === newVersionId);
+  if (!old) throw notFound('The older reduced model version');
+  if (!now) throw notFound('The newer reduced model version');
+  if (old.reducedModel.id !== now.reducedModel.id) {
+    throw new ApiError(400, 'invalid_request', 'Both versions must belong to the same reduced model.', 'new');
+  }
+  return { old, new: now };
+}

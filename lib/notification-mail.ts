@@ -1,0 +1,107 @@
+// The wording of the review and upstream-change mails. Plain text first (it is what Admin › Mail shows),
+// with an HTML alternative carrying the same words, like the account mails in lib/mail/templates.ts.
+
+export interface NotificationMailContent {
+  subject: string;
+  text: string;
+  html: string;
+}
+
+function escapeHtml(s: string): string {
+  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+}
+
+/** Paragraphs, an optional quoted text (note, comment), then the link. */
+function render(
+  subject: string,
+  paragraphs: string[],
+  quote: { who: string; text: string } | null,
+  link: { url: string; label: string },
+  footer: string,
+): NotificationMailContent {
+  const quoted = quote ? [`${quote.who} wrote:`, quote.text.split('\n').map((l) => `> ${l}`).join('\n')] : [];
+  const text = [...paragraphs, ...quoted, `${link.label}: ${link.url}`, footer].join('\n\n') + '\n';
+  const html =
+    [
+      ...paragraphs.map((p) => `<p>${escapeHtml(p)}</p>`),
+      ...(quote
+        ? [`<p>${escapeHtml(quote.who)} wrote:</p>`, `<blockquote>${escapeHtml(quote.text).replace(/\n/g, '<br>')}</blockquote>`]
+        : []),
+      `<p><a href="${escapeHtml(link.url)}">${escapeHtml(link.label)}</a></p>`,
+      `<p><small>${escapeHtml(footer)}</small></p>`,
+    ].join('\n') + '\n';
+  return { subject, text, html };
+}
+
+const FOOTER = 'You receive this because of your notification settings; change them on your Modeshelf profile page.';
+
+export interface VersionMention {
+  /** e.g. "Furnace zone 2 thermal, order 12" */
+  reducedModelName: string;
+  number: number;
+  url: string;
+}
+
+export function reviewRequestedMail(input: {
+  recipientName: string;
+  version: VersionMention;
+  authorName: string;
+  note: string;
+}): NotificationMailContent {
+  const v = input.version;
+  return render(
+    `Review requested: ${v.reducedModelName} v${v.number}`,
+    [
+      `Hello ${input.recipientName}, ${input.authorName} has submitted version ${v.number} of the reduced model "${v.reducedModelName}" for review.`,
+      'Compare it with its source model, then approve it or send it back for revision with a comment. You cannot decide on a version you authored.',
+    ],
+    { who: input.authorName, text: input.note },
+    { url: v.url, label: 'Open the review' },
+    FOOTER,
+  );
+}
+
+export function reviewDecidedMail(input: {
+  recipientName: string;
+  version: VersionMention;
+  reviewerName: string;
+  decision: 'approved' | 'revise';
+  comment: string;
+}): NotificationMailContent {
+  const v = input.version;
+  const approved = input.decision === 'approved';
+  return render(
+    approved
+      ? `Approved: ${v.reducedModelName} v${v.number}`
+      : `Sent back for revision: ${v.reducedModelName} v${v.number}`,
+    [
+      approved
+        ? `Hello ${input.recipientName}, ${input.reviewerName} has approved version ${v.number} of "${v.reducedModelName}". Controller projects can now pin it.`
+        : `Hello ${input.recipientName}, ${input.reviewerName} has sent version ${v.number} of "${v.reducedModelName}" back for revision. Make a new draft version that answers the comment, and submit that.`,
+    ],
+    { who: input.reviewerName, text: input.comment },
+    { url: v.url, label: 'Open the review' },
+    FOOTER,
+  );
+}
+
+export function upstreamChangedMail(input: {
+  recipientName: string;
+  sourceModelName: string;
+  newNumber: number;
+  uploaderName: string;
+  derived: { reducedModelName: string; number: number; sourceNumber: number }[];
+  url: string;
+}): NotificationMailContent {
+  const list = input.derived.map((d) => `${d.reducedModelName} v${d.number} (reduced from v${d.sourceNumber})`).join('; ');
+  return render(
+    `Upstream changed: ${input.sourceModelName} has version ${input.newNumber}`,
+    [
+      `Hello ${input.recipientName}, ${input.uploaderName} has registered version ${input.newNumber} of the source model "${input.sourceModelName}".`,
+      `These reduced model versions of yours were reduced from an older version: ${list}. Re-run their recipe on the new version and compare the accuracy, old against new, before controller projects move on.`,
+    ],
+    null,
+    { url: input.url, label: 'See the lineage' },
+    FOOTER,
+  );
+}

@@ -1,0 +1,252 @@
+// Notification mail: who wants which mail (per-user preferences), the queue of mail to send (mail_queue,
+// written inside the transaction of the change it tells about), and its delivery after commit.
+//
+// Why a queue and not a send inside the request: a review decision must stand whatever the mail server
+// does. The intent row commits with the decision; delivery happens afterwards (lib/notification-sender.ts
+// runs it right after the request and in the worker's loop), a failed send is retried with back-off, and
+// nothing that happens to a mail ever touches the review. A sender that dies mid-send leaves its claim to
+// expire, so another picks the mail up: delivery is at least once.
+import type { Knex } from 'knex';
+import { z } from 'zod';
+import { db } from '@/lib/db';
+import { recordAudit } from '@/lib/audit';
+import { sendMail, type OutgoingMail } from '@/lib/mail/transport';
+import type { NotificationMailContent } from '@/lib/notification-mail';
+import type { Role } from '@/lib/roles';
+
+export const NOTIFICATION_KINDS = ['review_requested', 'review_decided', 'upstream_changed'] as const;
+export type NotificationKind = (typeof NOTIFICATION_KINDS)[number];
+
+export interface NotificationPreferences {
+  /** Reviewers: a version was submitted for review. */
+  reviewRequested: boolean;
+  /** Authors: their version was approved or sent back for revision. */
+  reviewDecided: boolean;
+  /** Authors: the source model of their reduced model has a new version. */
+  upstreamChanged: boolean;
+}
+
+export const DEFAULT_PREFERENCES: NotificationPreferences = { reviewRequested: true, reviewDecided: true, upstreamChanged: true };
+
+const COLUMN: Record<NotificationKind, 'review_requested' | 'review_decided' | 'upstream_changed'> = {
+  review_requested: 'review_requested',
+  review_decided: 'review_decided',
+  upstream_changed: 'upstream_changed',
+};
+
+/** Which roles each mail is for; the profile page offers only these. */
+export const KIND_ROLES: Record<NotificationKind, readonly Role[]> = {
+  review_requested: ['reviewer'],
+  review_decided: ['engineer', 'reviewer', 'admin'],
+  upstream_changed: ['engineer', 'reviewer', 'admin'],
+};
+
+const flag = (name: string) => z.boolean({ error: `${name} must be true or false.` });
+export const preferencesUpdateSchema = z
+  .object({
+    reviewRequested: flag('reviewRequested'),
+    reviewDecided: flag('reviewDecided'),
+    upstreamChanged: flag('upstreamChanged'),
+  })
+  .partial()
+  .strict()
+  .refine((p) => Object.keys(p).length > 0, { message: 'Give at least one setting to change.' });
+export type PreferencesUpdate = z.infer<typeof preferencesUpdateSchema>;
+
+// After this many failed attempts a mail is marked failed and left for an admin to see; common practice
+// for mail queues is a handful of retries over about an hour, which the back-off below spans.
+export const MAX_ATTEMPTS = 6;
+const FIRST_RETRY_SECONDS = 30;
+const LONGEST_RETRY_SECONDS = 3600;
+const CLAIM_SECONDS = 120;
+
+/** Seconds to wait before attempt n + 1 after n failures: 30 s, 60 s, 120 s, … at most an hour. */
+export function retryDelaySeconds(failedAttempts: number): number {
+  return Math.min(LONGEST_RETRY_SECONDS, FIRST_RETRY_SECONDS * 2 ** Math.max(0, failedAttempts - 1));
+}
+
+interface PreferenceRow {
+  user_id: string;
+  review_requested: boolean;
+  review_decided: boolean;
+  upstream_changed: boolean;
+}
+
+function toPreferences(row: PreferenceRow | undefined): NotificationPreferences {
+  if (!row) return { ...DEFAULT_PREFERENCES };
+  return { reviewRequested: row.review_requested, reviewDecided: row.review_decided, upstreamChanged: row.upstream_changed };
+}
+
+export async function getPreferences(userId: string, trx: Knex | Knex.Transaction = db()): Promise<NotificationPreferences> {
+  return toPreferences(await trx<PreferenceRow>('notification_preferences').where({ user_id: userId }).first());
+}
+
+export async function updatePreferences(userId: string, change: PreferencesUpdate): Promise<NotificationPreferences> {
+  return db().transaction(async (trx) => {
+    const before = await getPreferences(userId, trx);
+    const after = { ...before, ...change };
+    await trx('notification_preferences')
+      .insert({
+        user_id: userId,
+        review_requested: after.reviewRequested,
+        review_decided: after.reviewDecided,
+        upstream_changed: after.upstreamChanged,
+        updated_at: trx.fn.now(),
+      })
+      .onConflict('user_id')
+      .merge();
+    await recordAudit(trx, {
+      actorId: userId,
+      action: 'user.notifications_changed',
+      subjectType: 'user',
+      subjectId: userId,
+      details: { from: before, to: after },
+    });
+    return after;
+  });
+}
+
+export interface Recipient {
+  id: string;
+  email: string;
+  name: string;
+}
+
+/**
+ * Active people who want this kind of mail, optionally only among `userIds` and only with `roles`.
+ * Read inside the caller's transaction, so the recipients are those at the moment of the change.
+ */
+export async function recipientsFor(
+  trx: Knex | Knex.Transaction,
+  kind: NotificationKind,
+  filter: { userIds?: readonly string[]; roles?: readonly Role[]; exclude?: readonly string[] },
+): Promise<Recipient[]> {
+  const query = trx('users as u')
+    .leftJoin('notification_preferences as p', 'p.user_id', 'u.id')
+    .where('u.active', true)
+    .whereNotNull('u.password_hash') // an open invitation is not someone to notify yet
+    .andWhere((q) => q.whereNull('p.user_id').orWhere(`p.${COLUMN[kind]}`, true))
+    .select('u.id', 'u.email', 'u.name')
+    .orderBy('u.name');
+  if (filter.userIds) query.whereIn('u.id', filter.userIds as string[]);
+  if (filter.roles) query.whereIn('u.role', filter.roles as string[]);
+  if (filter.exclude && filter.exclude.length > 0) query.whereNotIn('u.id', filter.exclude as string[]);
+  return query;
+}
+
+/** Queues one mail; with a dedupe key, a second queueing of the same key is a no-op. Returns whether queued. */
+export async function queueMail(
+  trx: Knex | Knex.Transaction,
+  input: { kind: NotificationKind; recipient: Recipient; content: NotificationMailContent; dedupeKey?: string },
+): Promise<boolean> {
+  const inserted = await trx('mail_queue')
+    .insert({
+      kind: input.kind,
+      recipient_id: input.recipient.id,
+      to_address: input.recipient.email,
+      subject: input.content.subject,
+      text_body: input.content.text,
+      html_body: input.content.html,
+      dedupe_key: input.dedupeKey ?? null,
+    })
+    .onConflict('dedupe_key')
+    .ignore()
+    .returning('id');
+  return inserted.length > 0;
+}
+
+export interface DeliveryReport {
+  sent: number;
+  /** failed this round and will be tried again */
+  retrying: number;
+  /** failed for the last time (status 'failed') */
+  gaveUp: number;
+}
+
+interface QueuedMailRow {
+  id: string;
+  to_address: string;
+  subject: string;
+  text_body: string;
+  html_body: string;
+  attempts: number;
+}
+
+/**
+ * Sends what is due: pending mail whose next attempt has come, and mail whose sender's claim expired.
+ * Claims rows with SKIP LOCKED so several senders never send one mail at the same moment, and sends
+ * outside any transaction. `send` is the transport (tests pass a failing one).
+ */
+export async function deliverDueMail(
+  options: { limit?: number; send?: (mail: OutgoingMail) => Promise<string>; onlyIds?: readonly string[] } = {},
+): Promise<DeliveryReport> {
+  const limit = options.limit ?? 50;
+  const send = options.send ?? sendMail;
+  const knex = db();
+  const only = options.onlyIds ? `AND id = ANY(?::bigint[])` : '';
+  const claimed = await knex.raw<{ rows: QueuedMailRow[] }>(
+    `UPDATE mail_queue
+        SET status = 'sending', attempts = attempts + 1,
+            claimed_until = clock_timestamp() + make_interval(secs => ?)
+      WHERE id IN (
+        SELECT id FROM mail_queue
+         WHERE ((status = 'pending' AND next_attempt_at <= clock_timestamp())
+            OR (status = 'sending' AND claimed_until < clock_timestamp())) ${only}
+         ORDER BY id
+         LIMIT ?
+         FOR UPDATE SKIP LOCKED)
+      RETURNING id, to_address, subject, text_body, html_body, attempts`,
+    options.onlyIds ? [CLAIM_SECONDS, options.onlyIds as string[], limit] : [CLAIM_SECONDS, limit],
+  );
+  const report: DeliveryReport = { sent: 0, retrying: 0, gaveUp: 0 };
+  for (const row of claimed.rows) {
+    try {
+      const messageId = await send({ to: row.to_address, subject: row.subject, text: row.text_body, html: row.html_body });
+      await knex('mail_queue')
+        .where({ id: row.id, status: 'sending' })
+        .update({ status: 'sent', sent_at: knex.raw('clock_timestamp()'), message_id: messageId ?? null, claimed_until: null, last_error: null });
+      report.sent += 1;
+    } catch (err) {
+      const message = err instanceof Error ? err.message : String(err);
+      const giveUp = row.attempts >= MAX_ATTEMPTS;
+      await knex('mail_queue')
+        .where({ id: row.id, status: 'sending' })
+        .update({
+          status: giveUp ? 'failed' : 'pending',
+          claimed_until: null,
+          last_error: message.slice(0, 1000),
+          next_attempt_at: knex.raw('clock_timestamp() + make_interval(secs => ?)', [retryDelaySeconds(row.attempts)]),
+        });
+      if (giveUp) report.gaveUp += 1;
+      else report.retrying += 1;
+      console.error(`[modeshelf] mail ${row.id} to ${row.to_address} failed (attempt ${row.attempts}): ${message}`);
+    }
+  }
+  return report;
+}
+
+export interface QueuedMailSummary {
+  id: string;
+  kind: NotificationKind;
+  toAddress: string;
+  subject: string;
+  status: 'pending' | 'sending' | 'sent' | 'failed';
+  attempts: number;
+  lastError: string | null;
+  createdAt: string;
+}
+
+/** The newest queued mail (for tests and for an admin wondering why a mail has not arrived). */
+export async function recentQueuedMail(limit = 50): Promise<QueuedMailSummary[]> {
+  const rows = await db()('mail_queue').orderBy('id', 'desc').limit(limit);
+  return rows.map((r) => ({
+    id: String(r.id),
+    kind: r.kind,
+    toAddress: r.to_address,
+    subject: r.subject,
+    status: r.status,
+    attempts: r.attempts,
+    lastError: r.last_error,
+    createdAt: (r.created_at as Date).toISOString(),
+  }));
+}

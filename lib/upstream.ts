@@ -1,0 +1,278 @@
+// Upstream changes: reduced-model versions whose source model has a newer version than the one they were
+// reduced from. Derived, never stored: the view reduced_version_upstream compares version numbers
+// (migration 20261202000200_reviews), so a badge can never disagree with the source versions.
+//
+// Also here: "re-run the recipe on the new version" (a reduction job with the same recipe on the newest
+// source version, recording the old version as predecessor; the old-versus-new comparison of the result is
+// in lib/lineage.ts), and the sweep that queues "upstream changed" mails to the authors of derived versions, once per new source
+// version.
+import type { Knex } from 'knex';
+import { db } from '@/lib/db';
+import { appUrl } from '@/lib/config';
+import { recordAudit } from '@/lib/audit';
+import { ApiError, notFound } from '@/lib/http';
+import type { Role } from '@/lib/roles';
+import type { VersionStatus } from '@/lib/review/state-machine';
+import { queueMail, recipientsFor } from '@/lib/notifications';
+import { upstreamChangedMail } from '@/lib/notification-mail';
+
+/** States in which a version still matters enough to be flagged and re-run (not superseded, not retired). */
+export const LIVE_STATUSES: readonly VersionStatus[] = ['draft', 'in_review', 'approved'];
+export const RERUN_ROLES: readonly Role[] = ['engineer'];
+
+export interface UpstreamChange {
+  reducedVersionId: string;
+  reducedModelId: string;
+  reducedModelName: string;
+  reducedModelSlug: string;
+  number: number;
+  status: VersionStatus;
+  authorId: string;
+  authorName: string;
+  sourceModelId: string;
+  sourceModelName: string;
+  sourceModelSlug: string;
+  sourceNumber: number;
+  newestSourceVersionId: string;
+  newestSourceNumber: number;
+  /** When the newest source version was registered. */
+  newestRegisteredAt: string;
+  /** A version already made from this one on the newest source version, if any. */
+  rerun: { id: string; number: number; status: VersionStatus } | null;
+}
+
+export async function upstreamChangedVersions(
+  filter: { reducedModelId?: string; sourceModelId?: string; authorId?: string; limit?: number } = {},
+  trx: Knex | Knex.Transaction = db(),
+): Promise<UpstreamChange[]> {
+  const query = trx('reduced_version_upstream as up')
+    .join('reduced_versions as rv', 'rv.id', 'up.reduced_version_id')
+    .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
+    .join('users as au', 'au.id', 'rv.author_id')
+    .join('source_models as sm', 'sm.id', 'up.source_model_id')
+    .join('source_versions as nsv', 'nsv.id', 'up.newest_source_version_id')
+    .leftJoin('reduced_versions as nxt', (j) =>
+      j.on('nxt.predecessor_id', 'rv.id').andOn('nxt.source_version_id', 'up.newest_source_version_id'),
+    )
+    .where('up.upstream_changed', true)
+    .whereIn('rv.status', LIVE_STATUSES as string[])
+    .orderBy([{ column: 'nsv.created_at', order: 'desc' }, { column: 'rm.name' }, { column: 'rv.number', order: 'desc' }])
+    .select(
+      'rv.id',
+      'rv.number',
+      'rv.status',
+      'rm.id as rm_id',
+      'rm.name as rm_name',
+      'rm.slug as rm_slug',
+      'au.id as author_id',
+      'au.name as author_name',
+      'sm.id as sm_id',
+      'sm.name as sm_name',
+      'sm.slug as sm_slug',
+      'up.source_number',
+      'up.newest_source_version_id',
+      'up.newest_source_number',
+      'nsv.created_at as newest_created_at',
+      'nxt.id as nxt_id',
+      'nxt.number as nxt_number',
+      'nxt.status as nxt_status',
+    );
+  if (filter.reducedModelId) query.where('rv.reduced_model_id', filter.reducedModelId);
+  if (filter.sourceModelId) query.where('up.source_model_id', filter.sourceModelId);
+  if (filter.authorId) query.where('rv.author_id', filter.authorId);
+  if (filter.limit) query.limit(filter.limit);
+  const rows = await query;
+  return rows.map((r) => ({
+    reducedVersionId: r.id,
+    reducedModelId: r.rm_id,
+    reducedModelName: r.rm_name,
+    reducedModelSlug: r.rm_slug,
+    number: r.number,
+    status: r.status,
+    authorId: r.author_id,
+    authorName: r.author_name,
+    sourceModelId: r.sm_id,
+    sourceModelName: r.sm_name,
+    sourceModelSlug: r.sm_slug,
+    sourceNumber: r.source_number,
+    newestSourceVersionId: r.newest_source_version_id,
+    newestSourceNumber: r.newest_source_number,
+    newestRegisteredAt: (r.newest_created_at as Date).toISOString(),
+    rerun: r.nxt_id ? { id: r.nxt_id, number: r.nxt_number, status: r.nxt_status } : null,
+  }));
+}
+
+export interface ReducedModelUpstream {
+  reducedModelId: string;
+  /** The newest version of the reduced model was reduced from an older source version than the newest. */
+  upstreamChanged: boolean;
+  latestVersionNumber: number;
+  latestSourceNumber: number;
+  newestSourceNumber: number;
+}
+
+/**
+ * Per reduced model, for lists: upstream-changed when its newest version is reduced from an older source
+ * version. Once a re-run registers a version on the newest source, the model is no longer flagged (its
+ * older versions still are, on their own pages).
+ */
+export async function reducedModelsUpstream(
+  reducedModelIds: readonly string[],
+  trx: Knex | Knex.Transaction = db(),
+): Promise<Map<string, ReducedModelUpstream>> {
+  if (reducedModelIds.length === 0) return new Map();
+  const rows = await trx('reduced_version_upstream as up')
+    .join('reduced_versions as rv', 'rv.id', 'up.reduced_version_id')
+    .distinctOn('up.reduced_model_id')
+    .whereIn('up.reduced_model_id', reducedModelIds as string[])
+    .orderBy([{ column: 'up.reduced_model_id' }, { column: 'rv.number', order: 'desc' }])
+    .select('up.reduced_model_id', 'rv.number', 'up.source_number', 'up.newest_source_number', 'up.upstream_changed');
+  return new Map(
+    rows.map((r) => [
+      r.reduced_model_id,
+      {
+        reducedModelId: r.reduced_model_id,
+        upstreamChanged: r.upstream_changed,
+        latestVersionNumber: r.number,
+        latestSourceNumber: r.source_number,
+        newestSourceNumber: r.newest_source_number,
+      },
+    ]),
+  );
+}
+
+// ---------------------------------------------------------------------------------------------------------
+// Re-running a recipe on the newest source version
+
+export interface RerunRequest {
+  jobId: string;
+  /** True when an identical re-run was already queued or running; its job is returned instead. */
+  alreadyQueued: boolean;
+  sourceVersionId: string;
+  sourceNumber: number;
+}
+
+/** What issue 5's reduction job needs to register the new draft; see lib/jobs. */
+export interface RerunJobPayload {
+  sourceVersionId: string;
+  recipeId: string;
+  reducedModelId: string;
+  predecessorId: string;
+}
+
+export type EnqueueRerun = (trx: Knex.Transaction, payload: RerunJobPayload, actorId: string) => Promise<string>;
+
+/**
+ * Queues a reduction with the version's recipe on the newest version of its source model. The job (lib/jobs)
+ * registers the result as a new draft version of the same reduced model with this version as predecessor,
+ * authored by whoever asked for the re-run.
+ */
+export async function rerunRecipe(versionId: string, actor: { id: string; role: Role }, enqueue: EnqueueRerun): Promise<RerunRequest> {
+  if (!RERUN_ROLES.includes(actor.role)) {
+    throw new ApiError(403, 'forbidden', `Your role does not allow re-running a recipe (it needs the ${RERUN_ROLES.join(' or ')} role).`);
+  }
+  return db().transaction(async (trx) => {
+    // Two clicks on the button, or two engineers at once, queue one re-run.
+    await trx.raw('SELECT pg_advisory_xact_lock(hashtext(?))', [`rerun:${versionId}`]);
+    const row = await trx('reduced_version_upstream as up')
+      .join('reduced_versions as rv', 'rv.id', 'up.reduced_version_id')
+      .where('rv.id', versionId)
+      .first('rv.id', 'rv.number', 'rv.status', 'rv.recipe_id', 'rv.reduced_model_id', 'up.upstream_changed', 'up.newest_source_version_id', 'up.newest_source_number', 'up.source_number');
+    if (!row) throw notFound('That reduced model version');
+    if (!row.upstream_changed) {
+      throw new ApiError(409, 'not_upstream_changed', `This version was reduced from v${row.source_number}, the newest version of its source model; there is nothing newer to re-run on.`);
+    }
+    if (!LIVE_STATUSES.includes(row.status)) {
+      throw new ApiError(409, 'state_conflict', `This version is ${row.status.replace('_', ' ')}; re-run the recipe from a version that is still in use.`);
+    }
+    const made = await trx('reduced_versions')
+      .where({ predecessor_id: versionId, source_version_id: row.newest_source_version_id })
+      .first('number');
+    if (made) {
+      throw new ApiError(409, 'already_rerun', `Version ${made.number} is already this recipe re-run on source v${row.newest_source_number}.`);
+    }
+    const pending = await trx('jobs')
+      .where({ kind: 'reduction' })
+      .whereIn('status', ['queued', 'running'])
+      .whereRaw(`payload->>'predecessorId' = ?`, [versionId])
+      .whereRaw(`payload->>'sourceVersionId' = ?`, [row.newest_source_version_id])
+      .first('id');
+    if (pending) {
+      return { jobId: pending.id, alreadyQueued: true, sourceVersionId: row.newest_source_version_id, sourceNumber: row.newest_source_number };
+    }
+    const jobId = await enqueue(
+      trx,
+      { sourceVersionId: row.newest_source_version_id, recipeId: row.recipe_id, reducedModelId: row.reduced_model_id, predecessorId: versionId },
+      actor.id,
+    );
+    await recordAudit(trx, {
+      actorId: actor.id,
+      action: 'reduced_version.rerun_requested',
+      subjectType: 'reduced_version',
+      subjectId: versionId,
+      details: { jobId, sourceVersionId: row.newest_source_version_id, sourceNumber: row.newest_source_number, recipeId: row.recipe_id },
+    });
+    return { jobId, alreadyQueued: false, sourceVersionId: row.newest_source_version_id, sourceNumber: row.newest_source_number };
+  });
+}
+
+// ---------------------------------------------------------------------------------------------------------
+// "Upstream changed" mail
+
+/**
+ * For each source version registered since the last sweep, queues one mail to each author (who wants it)
+ * of a live reduced version derived from an older version of that source model. Each source version is
+ * claimed in upstream_notices inside the same transaction as its mails, so two sweeps never both mail.
+ * Returns how many mails were queued.
+ */
+export async function queueUpstreamNotices(limit = 20): Promise<number> {
+  const fresh = await db()('source_versions as sv')
+    .whereNotExists(db()('upstream_notices as n').whereRaw('n.source_version_id = sv.id'))
+    .orderBy('sv.created_at')
+    .limit(limit)
+    .select('sv.id');
+  let queued = 0;
+  for (const { id } of fresh) {
+    queued += await db().transaction(async (trx) => {
+      const claimed = await trx('upstream_notices').insert({ source_version_id: id }).onConflict('source_version_id').ignore().returning('source_version_id');
+      if (claimed.length === 0) return 0;
+      const sv = await trx('source_versions as sv')
+        .join('source_models as sm', 'sm.id', 'sv.source_model_id')
+        .join('users as u', 'u.id', 'sv.uploaded_by')
+        .where('sv.id', id)
+        .first('sv.number', 'sv.source_model_id', 'sm.name', 'sm.slug', 'u.name as uploader_name');
+      const derived = await trx('reduced_versions as rv')
+        .join('source_versions as old', 'old.id', 'rv.source_version_id')
+        .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
+        .where('old.source_model_id', sv.source_model_id)
+        .andWhere('old.number', '<', sv.number)
+        .whereIn('rv.status', LIVE_STATUSES as string[])
+        .orderBy(['rm.name', 'rv.number'])
+        .select('rv.author_id', 'rv.number', 'old.number as source_number', 'rm.name as rm_name');
+      const byAuthor = new Map<string, { reducedModelName: string; number: number; sourceNumber: number }[]>();
+      for (const d of derived) {
+        const list = byAuthor.get(d.author_id) ?? [];
+        list.push({ reducedModelName: d.rm_name, number: d.number, sourceNumber: d.source_number });
+        byAuthor.set(d.author_id, list);
+      }
+      let count = 0;
+      if (byAuthor.size > 0) {
+        const recipients = await recipientsFor(trx, 'upstream_changed', { userIds: [...byAuthor.keys()] });
+        for (const recipient of recipients) {
+          const content = upstreamChangedMail({
+            recipientName: recipient.name,
+            sourceModelName: sv.name,
+            newNumber: sv.number,
+            uploaderName: sv.uploader_name,
+            derived: byAuthor.get(recipient.id)!,
+            url: `${appUrl()}/lineage/source-models/${sv.slug}`,
+          });
+          if (await queueMail(trx, { kind: 'upstream_changed', recipient, content, dedupeKey: `upstream:${id}:${recipient.id}` })) count += 1;
+        }
+      }
+      await trx('upstream_notices').where({ source_version_id: id }).update({ recipients: count });
+      return count;
+    });
+  }
+  return queued;
+}
