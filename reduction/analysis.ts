@@ -24,7 +24,7 @@ import {
 } from './spectral-split';
 import { hinfNorm, h2Norm, type HinfResult, type NormValue } from './norms';
 import { hankelSingularValues } from './balanced';
-import { rankedModalForm, MAX_EIGENVECTOR_CONDITION, type Mode } from './modal';
+import { rankedModalForm, isReliableModalForm, type Mode } from './modal';
 import { stepLimitsFromPoles, type StepLimits } from './step-limits';
 
 export interface PoleData {
@@ -45,7 +45,7 @@ export interface ModalDominance {
   /** Stable modes, most dominant first (a complex pair is one mode). */
   readonly modes: readonly Mode[];
   readonly eigenvectorCondition: number;
-  /** False when A's stable part is (nearly) defective and the ranking's residues are not meaningful. */
+  /** False when A's stable part is (nearly) defective or its eigenvectors are inaccurate: the residues are then not meaningful. */
   readonly reliable: boolean;
 }
 
@@ -178,7 +178,7 @@ export function analyzeModel(model: StateSpaceModel, options: AnalysisOptions = 
     modalDominance: {
       modes: modal.modes,
       eigenvectorCondition: modal.eigenvectorCondition,
-      reliable: modal.eigenvectorCondition <= MAX_EIGENVECTOR_CONDITION,
+      reliable: isReliableModalForm(modal),
     },
     stepLimits: stepLimitsFromPoles(polesForStepLimits(classification)),
   };

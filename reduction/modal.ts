@@ -18,13 +18,19 @@
  * ill-conditioned eigenvector matrix; the similarity, and with it the bound, is then meaningless, so
  * modal truncation refuses such a model and points to balanced truncation instead.
  */
-import { type Matrix, zeros, eig, inverse, matmul, svd } from './linalg/index';
+import { type Matrix, zeros, eig, inverse, matmul, svd, frobeniusNorm } from './linalg/index';
 import { ModelError } from './errors';
 import type { StateSpaceModel } from './model';
 import { selectColumns, selectRows } from './realization';
 
 /** Eigenvector condition above which modal truncation refuses (common practice: about 1/√ε·100). */
 export const MAX_EIGENVECTOR_CONDITION = 1e10;
+
+/**
+ * Relative residual ‖AV − VΛ‖_F/(‖A‖_F‖V‖_F) above which the computed eigenvectors are not trusted
+ * (common practice: a backward-stable solver delivers about n·ε; 1e-8 leaves a wide margin).
+ */
+export const MAX_EIGENVECTOR_RESIDUAL = 1e-8;
 
 export interface Mode {
   /** Real part of the pole (pairs: of the member with Im > 0). */
@@ -49,6 +55,8 @@ export interface ModalForm {
   readonly realization: StateSpaceModel;
   /** σ_max(V)/σ_min(V) of the eigenvector matrix. */
   readonly eigenvectorCondition: number;
+  /** ‖AV − VΛ‖_F/(‖A‖_F‖V‖_F) of the computed eigenvectors (Λ in real block form). */
+  readonly eigenvectorResidual: number;
 }
 
 export type ModalSelection =
@@ -83,9 +91,10 @@ function conditionNumber(v: Matrix): number {
 /** The real modal form in the eigenvalue solver's order (see the file header). */
 export function modalForm(stable: StateSpaceModel): ModalForm {
   const n = stable.A.rows;
-  if (n === 0) return { modes: [], realization: stable, eigenvectorCondition: 1 };
+  if (n === 0) return { modes: [], realization: stable, eigenvectorCondition: 1, eigenvectorResidual: 0 };
   const { values, vectors } = eig(stable.A);
   const cond = conditionNumber(vectors);
+  const residual = eigenvectorResidual(stable.A, values.re, values.im, vectors);
   const inv = Number.isFinite(cond) ? inverse(vectors) : null;
   const Bm = inv ? matmul(inv, stable.B) : zeros(n, stable.B.cols);
   const Cm = matmul(stable.C, vectors);
@@ -127,10 +136,39 @@ export function modalForm(stable: StateSpaceModel): ModalForm {
       });
     }
   }
-  return assemble(raw, Bm, Cm, stable.D, cond);
+  return assemble(raw, Bm, Cm, stable.D, cond, residual);
 }
 
-function assemble(raw: readonly RawMode[], Bm: Matrix, Cm: Matrix, D: Matrix, cond: number): ModalForm {
+/** ‖AV − VΛ‖_F/(‖A‖_F‖V‖_F) with Λ the real block form of the eigenvalues in the solver's order. */
+function eigenvectorResidual(A: Matrix, re: Float64Array, im: Float64Array, V: Matrix): number {
+  const n = A.rows;
+  const R = matmul(A, V);
+  for (let j = 0; j < n; j++) {
+    if (im[j] !== 0 && j + 1 < n) {
+      // Pair a ± jb in columns (Re v, Im v): A·Re v = a·Re v − b·Im v, A·Im v = b·Re v + a·Im v.
+      for (let i = 0; i < n; i++) {
+        const vr = V.data[i * n + j];
+        const vi = V.data[i * n + j + 1];
+        R.data[i * n + j] -= re[j] * vr - im[j] * vi;
+        R.data[i * n + j + 1] -= im[j] * vr + re[j] * vi;
+      }
+      j++;
+    } else {
+      for (let i = 0; i < n; i++) R.data[i * n + j] -= re[j] * V.data[i * n + j];
+    }
+  }
+  const scale = frobeniusNorm(A) * frobeniusNorm(V);
+  return scale > 0 ? frobeniusNorm(R) / scale : 0;
+}
+
+function assemble(
+  raw: readonly RawMode[],
+  Bm: Matrix,
+  Cm: Matrix,
+  D: Matrix,
+  cond: number,
+  residual: number,
+): ModalForm {
   const order = raw.flatMap((r) => r.columns);
   const n = order.length;
   const A = zeros(n, n);
@@ -153,6 +191,7 @@ function assemble(raw: readonly RawMode[], Bm: Matrix, Cm: Matrix, D: Matrix, co
     modes,
     realization: { A, B: selectRows(Bm, order), C: selectColumns(Cm, order), D },
     eigenvectorCondition: cond,
+    eigenvectorResidual: residual,
   };
 }
 
@@ -186,11 +225,24 @@ export function rankedModalForm(stable: StateSpaceModel, selection: ModalSelecti
     blockIm: mode.states === 1 ? 0 : A.data[starts[i] * A.cols + starts[i] + 1],
   }));
   const { realization } = form;
-  return assemble(raw, realization.B, realization.C, realization.D, form.eigenvectorCondition);
+  return assemble(raw, realization.B, realization.C, realization.D, form.eigenvectorCondition, form.eigenvectorResidual);
+}
+
+/** Whether the modal form can be trusted: well-conditioned eigenvectors that are accurate. */
+export function isReliableModalForm(form: ModalForm): boolean {
+  return form.eigenvectorCondition <= MAX_EIGENVECTOR_CONDITION && form.eigenvectorResidual <= MAX_EIGENVECTOR_RESIDUAL;
 }
 
 /** Refuse modal truncation on a (nearly) defective A, where its similarity and bound do not hold. */
 export function requireDiagonalizable(form: ModalForm): void {
+  if (!(form.eigenvectorResidual <= MAX_EIGENVECTOR_RESIDUAL)) {
+    throw new ModelError(
+      'invalid_option',
+      'method',
+      `modal truncation needs accurate eigenvectors, but those computed for the stable part leave a relative ` +
+        `residual of ${form.eigenvectorResidual.toExponential(1)} (typically repeated poles); use balanced truncation`,
+    );
+  }
   if (!(form.eigenvectorCondition <= MAX_EIGENVECTOR_CONDITION)) {
     throw new ModelError(
       'invalid_option',

@@ -7,6 +7,7 @@ import { frequencyResponse } from '../../../reduction/frequency';
 import { randomStableModel, disguise, lagCascade, rigidBodyModel, secondOrder, appendModels } from '../../fixtures/engine/models';
 import { runReference, spectrumDistance } from '../../fixtures/engine/reference';
 import type { StateSpaceModel } from '../../../reduction/model';
+import { blockDiagonal } from '../../../reduction/realization';
 
 function pairs(v: { re: Float64Array; im: Float64Array }): [number, number][] {
   return Array.from(v.re, (re, i) => [re, v.im[i]] as [number, number]);
@@ -148,6 +149,35 @@ describe('modal truncation', () => {
     const zeta = 0.1 / wn;
     const peak = 0.5 / (wn * wn * 2 * zeta * Math.sqrt(1 - zeta * zeta));
     expect(r.hinfError.finite && Math.abs(r.hinfError.value / peak - 1)).toBeLessThan(1e-7);
+  });
+
+  it('with repeated poles (two identical resonators) meets its bound or refuses — never a wrong bound', () => {
+    // Repeated semisimple poles are where eigenvector solvers are least accurate; the modal form checks
+    // ‖AV − VΛ‖ and refuses rather than report a bound its realization does not satisfy.
+    const g = secondOrder(3, 0.05);
+    const twin = disguise(
+      {
+        A: blockDiagonal(g.A, g.A, randomStableModel(740, 4, 1, 1).A),
+        B: blockDiagonal(g.B, g.B, zeros(4, 0)),
+        C: blockDiagonal(g.C, g.C, zeros(0, 4)),
+        D: zeros(2, 2),
+      },
+      741,
+    );
+    let result: ReturnType<typeof reduceModel> | undefined;
+    try {
+      result = reduceModel(twin, { method: 'modal', order: 4 });
+    } catch (e) {
+      expect(e).toBeInstanceOf(ModelError);
+      expect((e as ModelError).field).toBe('method');
+    }
+    if (result) {
+      expect(result.hinfError.finite).toBe(true);
+      if (result.hinfError.finite) expect(result.hinfError.value).toBeLessThanOrEqual(result.errorBound * (1 + 1e-8) + 1e-12);
+    }
+    // Balanced truncation reduces the same model and keeps both resonators (4 states, error at rounding level).
+    const bt = reduceModel(twin, { method: 'balanced', order: 4 });
+    expect(bt.hinfError.finite && bt.hinfError.value).toBeLessThan(1e-8);
   });
 
   it('rejects a band with low ≥ high, on field "band"', () => {
