@@ -3,7 +3,7 @@
  *
  *   npm run bench                 all cases at their full sizes
  *   npm run bench -- --quick      small sizes only
- *   npm run bench -- --only=ID    one case (IDs: see scripts/bench/*-cases.ts)
+ *   npm run bench -- --only=ID,…  some cases (IDs: see scripts/bench/*-cases.ts)
  *
  * For each case and size: the reference script generates the seeded model, times itself and saves its
  * results; then a fresh Node process runs our engine on the same .npy inputs (so the peak memory it
@@ -97,8 +97,8 @@ async function main(): Promise<void> {
     return;
   }
   const quick = argv.includes('--quick');
-  const only = argv.find((a) => a.startsWith('--only='))?.slice(7);
-  const cases = (await loadCases()).filter((c) => !only || c.id === only);
+  const only = argv.find((a) => a.startsWith('--only='))?.slice(7).split(',');
+  const cases = (await loadCases()).filter((c) => !only || only.includes(c.id));
   if (cases.length === 0) throw new Error(`no case matches --only=${only}`);
 
   const scriptPath = path.resolve(process.argv[1]);

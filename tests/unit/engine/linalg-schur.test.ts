@@ -29,7 +29,8 @@ function heat1d(N: number): Matrix {
 
 describe('Hessenberg reduction (Golub & Van Loan Alg. 7.4.2)', () => {
   it('gives A = Q·H·Qᵀ with orthogonal Q and H zero below the subdiagonal', () => {
-    for (const n of [1, 2, 3, 40, 120]) {
+    // 200 and 260 run through the blocked panels (order ≥ 128), the others unblocked only.
+    for (const n of [1, 2, 3, 40, 120, 200, 260]) {
       const a = randomMatrix(n, n, 100 + n);
       const { H, Q } = hessenberg(a);
       expect(reconstructionError(a, Q, H)).toBeLessThan(10 * n * EPS);
