@@ -47,6 +47,12 @@ clear_stale_pidfile() {
   rm -f "$pidfile"
 }
 
+# The port a running cluster listens on (line 4 of postmaster.pid), which may differ from the one asked for
+# if it was started with another MODESHELF_PG_PORT.
+running_port() {
+  sed -n 4p "$DATA/postmaster.pid" 2>/dev/null
+}
+
 is_running() {
   [ -f "$DATA/postmaster.pid" ] || return 1
   local pid
@@ -78,6 +84,11 @@ start() {
   chmod 700 "$SOCKET_DIR"
   clear_stale_pidfile
   if is_running; then
+    local port
+    port="$(running_port)"
+    if [ -n "$port" ] && [ "$port" != "$MODESHELF_PG_PORT" ]; then
+      die "this checkout's PostgreSQL already runs on port $port, not $MODESHELF_PG_PORT; use MODESHELF_PG_PORT=$port, or stop it first (bash scripts/pg.sh stop)"
+    fi
     log "PostgreSQL already running ($DATA)"
   else
     if (exec 3<>"/dev/tcp/127.0.0.1/$MODESHELF_PG_PORT") 2>/dev/null; then
@@ -138,6 +149,12 @@ status() {
   BIN="$(pg_bindir)" || { echo "PostgreSQL: not installed"; return 3; }
   DATA="$(data_dir)"
   if is_running; then
+    local port
+    port="$(running_port)"
+    if [ -n "$port" ] && [ "$port" != "$MODESHELF_PG_PORT" ]; then
+      echo "PostgreSQL: running on 127.0.0.1:$port (not the requested $MODESHELF_PG_PORT), data in $DATA"
+      return 3
+    fi
     echo "PostgreSQL: running on 127.0.0.1:$MODESHELF_PG_PORT, data in $DATA"
     echo "DATABASE_URL=$LOCAL_DATABASE_URL"
     echo "TEST_DATABASE_URL=$LOCAL_TEST_DATABASE_URL"

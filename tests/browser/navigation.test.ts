@@ -31,7 +31,8 @@ describe('navigation by role', () => {
       const { page } = browser;
       await signIn(page, viewer.email, viewer.password);
       await page.waitForURL((url) => url.pathname === '/');
-      await page.goto('/admin/people');
+      const response = await page.goto('/admin/people');
+      expect(response?.status()).toBe(403);
       await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toBe('Not allowed for your role');
       expect(await page.getByText('Invite someone').count()).toBe(0);
       await screenshot(page, 'admin-refused-viewer');
