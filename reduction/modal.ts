@@ -18,7 +18,7 @@
  * ill-conditioned eigenvector matrix; the similarity, and with it the bound, is then meaningless, so
  * modal truncation refuses such a model and points to balanced truncation instead.
  */
-import { type Matrix, zeros, eig, inverse, matmul, svd, frobeniusNorm } from './linalg/index';
+import { type Matrix, zeros, eig, inverse, matmul, frobeniusNorm, norm1 } from './linalg/index';
 import { ModelError } from './errors';
 import type { StateSpaceModel } from './model';
 import { selectColumns, selectRows } from './realization';
@@ -53,7 +53,7 @@ export interface ModalForm {
   readonly modes: readonly Mode[];
   /** The real modal realization, states grouped by mode in `modes` order; D of the model. */
   readonly realization: StateSpaceModel;
-  /** σ_max(V)/σ_min(V) of the eigenvector matrix. */
+  /** ‖V‖₁‖V⁻¹‖₁ of the eigenvector matrix. */
   readonly eigenvectorCondition: number;
   /** ‖AV − VΛ‖_F/(‖A‖_F‖V‖_F) of the computed eigenvectors (Λ in real block form). */
   readonly eigenvectorResidual: number;
@@ -82,10 +82,16 @@ function colNorm2(m: Matrix, j: number): number {
   return s;
 }
 
-function conditionNumber(v: Matrix): number {
-  const s = svd(v).s;
-  const smin = s[s.length - 1];
-  return smin > 0 ? s[0] / smin : Infinity;
+/** V⁻¹ and the 1-norm condition ‖V‖₁‖V⁻¹‖₁ (within a factor n of the 2-norm one, and free given V⁻¹). */
+function invertWithCondition(v: Matrix): { inv: Matrix | null; cond: number } {
+  let inv: Matrix;
+  try {
+    inv = inverse(v);
+  } catch {
+    return { inv: null, cond: Infinity };
+  }
+  const cond = norm1(v) * norm1(inv);
+  return Number.isFinite(cond) ? { inv, cond } : { inv: null, cond: Infinity };
 }
 
 /** The real modal form in the eigenvalue solver's order (see the file header). */
@@ -93,9 +99,8 @@ export function modalForm(stable: StateSpaceModel): ModalForm {
   const n = stable.A.rows;
   if (n === 0) return { modes: [], realization: stable, eigenvectorCondition: 1, eigenvectorResidual: 0 };
   const { values, vectors } = eig(stable.A);
-  const cond = conditionNumber(vectors);
+  const { inv, cond } = invertWithCondition(vectors);
   const residual = eigenvectorResidual(stable.A, values.re, values.im, vectors);
-  const inv = Number.isFinite(cond) ? inverse(vectors) : null;
   const Bm = inv ? matmul(inv, stable.B) : zeros(n, stable.B.cols);
   const Cm = matmul(stable.C, vectors);
   const raw: RawMode[] = [];
