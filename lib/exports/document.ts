@@ -1,0 +1,129 @@
+// One export of one reduced-model version, independent of its file format: what the JSON carries in full,
+// and what the CSV bundle and the C header lay out in their own ways. Continuous exports carry the
+// registered matrices; discretised ones the zero-order-hold matrices, with the registered digest kept
+// beside theirs so a lock file always records the version's own checksum.
+import { CAUTION_TEXT } from '@/components/workspace/caution-text';
+import type { PinLimits, PinMode } from '@/lib/pins';
+import type { ExportSource, RegisteredMatrices } from './source';
+import type { Discretisation } from './discrete';
+
+export const EXPORT_FORMAT = 'modeshelf-reduced-model';
+export const EXPORT_FORMAT_VERSION = 1;
+
+export interface PinContext {
+  project: { slug: string; name: string };
+  mode: PinMode;
+  exactVersionNumber: number | null;
+  limits: PinLimits;
+  explanation: string;
+}
+
+export interface ExportDocument {
+  source: ExportSource;
+  kind: 'continuous' | 'discrete';
+  /** The matrices this export carries: registered (continuous) or zero-order hold (discrete). */
+  matrices: RegisteredMatrices;
+  /** SHA-256 of `matrices` (lib/checksums.ts). */
+  matricesSha256: string;
+  /** SHA-256 of the registered continuous matrices: what modeshelf.lock.json records. */
+  registeredMatricesSha256: string;
+  discretisation: Discretisation | null;
+  flags: { retired: boolean; upstreamChanged: boolean };
+  pin: PinContext | null;
+  caution: string;
+  generatedAt: Date;
+}
+
+export function buildExportDocument(
+  source: ExportSource,
+  options: { discretisation?: Discretisation | null; pin?: PinContext | null; now?: Date } = {},
+): ExportDocument {
+  const discretisation = options.discretisation ?? null;
+  return {
+    source,
+    kind: discretisation ? 'discrete' : 'continuous',
+    matrices: discretisation ? discretisation.matrices : source.matrices,
+    matricesSha256: discretisation ? discretisation.matricesSha256 : source.matricesSha256,
+    registeredMatricesSha256: source.matricesSha256,
+    discretisation,
+    flags: { retired: source.version.status === 'retired', upstreamChanged: source.lineage.upstreamChanged },
+    pin: options.pin ?? null,
+    caution: CAUTION_TEXT,
+    generatedAt: options.now ?? new Date(),
+  };
+}
+
+/** Sentences a reader must see before use: retired, upstream changed, and the sample-time warning. */
+export function exportWarnings(doc: ExportDocument): string[] {
+  const s = doc.source;
+  const warnings: string[] = [];
+  if (doc.flags.retired) {
+    warnings.push(`${s.reducedModel.slug} v${s.version.number} has been retired: it is exported so a controller can be rebuilt exactly, not for new work.`);
+  }
+  if (doc.flags.upstreamChanged) {
+    warnings.push(
+      `Upstream changed: source model ${s.lineage.sourceModel.slug} now has v${s.lineage.newestSourceVersionNumber}; this reduced model was made from v${s.lineage.sourceVersion.number}.`,
+    );
+  }
+  if (doc.discretisation?.check.warning) warnings.push(doc.discretisation.check.warning);
+  return warnings;
+}
+
+/** The file name stem: "<model>-v<n>" plus "-zoh-<ts>s" when discretised. */
+export function exportStem(doc: ExportDocument): string {
+  const base = `${doc.source.reducedModel.slug}-v${doc.source.version.number}`;
+  return doc.discretisation ? `${base}-zoh-${String(doc.discretisation.ts).replace(/[^0-9a-zA-Z.-]/g, '_')}s` : base;
+}
+
+/** The document as the JSON export writes it (also the manifest of the CSV bundle, without matrices). */
+export function exportJson(doc: ExportDocument, includeMatrices = true) {
+  const s = doc.source;
+  const d = doc.discretisation;
+  return {
+    format: EXPORT_FORMAT,
+    formatVersion: EXPORT_FORMAT_VERSION,
+    reducedModel: { slug: s.reducedModel.slug, name: s.reducedModel.name, description: s.reducedModel.description },
+    version: { number: s.version.number, id: s.version.id, status: s.version.status, registeredAt: s.version.registeredAt.toISOString() },
+    kind: doc.kind,
+    order: s.version.order,
+    inputs: s.names.inputs.length,
+    outputs: s.names.outputs.length,
+    statesKeptUnstable: s.version.statesKeptUnstable,
+    timeUnit: s.timeUnit,
+    names: s.names,
+    ...(includeMatrices ? { matrices: doc.matrices } : {}),
+    matricesSha256: doc.matricesSha256,
+    registeredMatricesSha256: doc.registeredMatricesSha256,
+    checksumRule: 'SHA-256 (hex) of the UTF-8 text JSON.stringify({A, B, C, D}), each matrix an array of rows',
+    discretisation: d
+      ? {
+          method: d.method,
+          ts: d.ts,
+          tsUnit: 's',
+          tsInModelUnit: d.tsInModelUnit,
+          tsSource: d.tsSource,
+          poles: d.poles,
+          check: d.check,
+        }
+      : null,
+    equations: d
+      ? `x[k+1] = A x[k] + B u[k], y[k] = C x[k] + D u[k]; u held constant over each sample of ${d.ts} s`
+      : `dx/dt = A x + B u, y = C x + D u (time in ${s.timeUnit})`,
+    recipe: s.recipe,
+    lineage: {
+      sourceModel: s.lineage.sourceModel,
+      sourceVersion: s.lineage.sourceVersion,
+      newestSourceVersion: s.lineage.newestSourceVersionNumber,
+      upstreamChanged: s.lineage.upstreamChanged,
+      inputChecksum: s.lineage.inputChecksum,
+      predecessorVersion: s.lineage.predecessorVersionNumber,
+      engineVersion: s.version.engineVersion,
+    },
+    accuracyReport: s.accuracyReport,
+    flags: doc.flags,
+    warnings: exportWarnings(doc),
+    pin: doc.pin,
+    caution: doc.caution,
+    generatedAt: doc.generatedAt.toISOString(),
+  };
+}
