@@ -32,6 +32,8 @@ export { setLinalgThreads, linalgThreads } from './parallel';
 export { qr, pivotedQr, orthonormalBasis } from './qr';
 export { singularValues } from './svd';
 export { symmetricEigenvalues } from './symmetric-eig';
+export { sylvester, lyapunovBartelsStewart } from './sylvester';
+export { standardise2x2 } from './schur';
 
 /** C = A·B (blocked, packed product; see `gemm.ts`). */
 export function matmul(a: Matrix, b: Matrix): Matrix {
