@@ -33,42 +33,65 @@ export interface HessenbergForm {
   readonly Q: Matrix;
 }
 
+/** Work arrays for `solveShiftedHessenberg`, reusable across frequencies of one evaluator. */
+export interface HessenbergWorkspace {
+  readonly mr: Float64Array;
+  readonly mi: Float64Array;
+  readonly xr: Float64Array;
+  readonly xi: Float64Array;
+}
+
+export function hessenbergWorkspace(n: number, m: number): HessenbergWorkspace {
+  return {
+    mr: new Float64Array(n * n),
+    mi: new Float64Array(n * n),
+    xr: new Float64Array(n * m),
+    xi: new Float64Array(n * m),
+  };
+}
+
 /**
  * Solve (jωI − H) X = F for upper Hessenberg H and real right-hand sides F (n×m), by Gaussian elimination
  * with adjacent-row partial pivoting (Golub & Van Loan 2013, ch. 4); O(n²) for the elimination and
- * O(n²) per column of F for back substitution. Returns X as (re, im), each n×m.
+ * O(n²·m) for back substitution. Returns X as (re, im), each n×m row-major, in the workspace's arrays
+ * (overwritten by the next call with the same workspace).
  */
-export function solveShiftedHessenberg(H: Matrix, w: number, F: Matrix): { re: Float64Array; im: Float64Array } {
+export function solveShiftedHessenberg(
+  H: Matrix,
+  w: number,
+  F: Matrix,
+  work: HessenbergWorkspace = hessenbergWorkspace(H.rows, F.cols),
+): { re: Float64Array; im: Float64Array } {
   const n = H.rows;
   const m = F.cols;
-  const mr = new Float64Array(n * n);
-  const mi = new Float64Array(n * n);
+  const { mr, mi, xr, xi } = work;
+  const h = H.data;
+  // M = jωI − H on and above the subdiagonal; entries below it are never read.
   for (let i = 0; i < n; i++) {
-    const j0 = i === 0 ? 0 : i - 1;
-    for (let j = j0; j < n; j++) mr[i * n + j] = -H.data[i * n + j];
-    mi[i * n + i] = w;
+    const row = i * n;
+    for (let j = i === 0 ? 0 : i - 1; j < n; j++) {
+      mr[row + j] = -h[row + j];
+      mi[row + j] = 0;
+    }
+    mi[row + i] = w;
   }
-  const xr = new Float64Array(F.data);
-  const xi = new Float64Array(n * m);
+  xr.set(F.data);
+  xi.fill(0);
   for (let k = 0; k < n - 1; k++) {
-    const kk = k * n + k;
-    const sk = (k + 1) * n + k;
-    const pivotMag = Math.abs(mr[kk]) + Math.abs(mi[kk]);
-    const subMag = Math.abs(mr[sk]) + Math.abs(mi[sk]);
-    if (subMag > pivotMag) {
+    const rk = k * n;
+    const rs = rk + n;
+    if (Math.abs(mr[rs + k]) + Math.abs(mi[rs + k]) > Math.abs(mr[rk + k]) + Math.abs(mi[rk + k])) {
       for (let j = k; j < n; j++) {
-        const a = k * n + j;
-        const b = (k + 1) * n + j;
-        let t = mr[a];
-        mr[a] = mr[b];
-        mr[b] = t;
-        t = mi[a];
-        mi[a] = mi[b];
-        mi[b] = t;
+        let t = mr[rk + j];
+        mr[rk + j] = mr[rs + j];
+        mr[rs + j] = t;
+        t = mi[rk + j];
+        mi[rk + j] = mi[rs + j];
+        mi[rs + j] = t;
       }
       for (let j = 0; j < m; j++) {
         const a = k * m + j;
-        const b = (k + 1) * m + j;
+        const b = a + m;
         let t = xr[a];
         xr[a] = xr[b];
         xr[b] = t;
@@ -77,45 +100,54 @@ export function solveShiftedHessenberg(H: Matrix, w: number, F: Matrix): { re: F
         xi[b] = t;
       }
     }
-    if (mr[sk] === 0 && mi[sk] === 0) continue;
+    const sr = mr[rs + k];
+    const si = mi[rs + k];
+    if (sr === 0 && si === 0) continue;
     // l = M[k+1][k] / M[k][k]
-    const pr = mr[kk];
-    const pi = mi[kk];
+    const pr = mr[rk + k];
+    const pi = mi[rk + k];
     const den = pr * pr + pi * pi;
-    const lr = (mr[sk] * pr + mi[sk] * pi) / den;
-    const li = (mi[sk] * pr - mr[sk] * pi) / den;
-    mr[sk] = 0;
-    mi[sk] = 0;
+    const lr = (sr * pr + si * pi) / den;
+    const li = (si * pr - sr * pi) / den;
+    mr[rs + k] = 0;
+    mi[rs + k] = 0;
     for (let j = k + 1; j < n; j++) {
-      const a = k * n + j;
-      const b = (k + 1) * n + j;
-      mr[b] -= lr * mr[a] - li * mi[a];
-      mi[b] -= lr * mi[a] + li * mr[a];
+      const ar = mr[rk + j];
+      const ai = mi[rk + j];
+      mr[rs + j] -= lr * ar - li * ai;
+      mi[rs + j] -= lr * ai + li * ar;
     }
     for (let j = 0; j < m; j++) {
       const a = k * m + j;
-      const b = (k + 1) * m + j;
-      xr[b] -= lr * xr[a] - li * xi[a];
-      xi[b] -= lr * xi[a] + li * xr[a];
+      const ar = xr[a];
+      const ai = xi[a];
+      xr[a + m] -= lr * ar - li * ai;
+      xi[a + m] -= lr * ai + li * ar;
     }
   }
+  // Back substitution row by row: x_i = (f_i − Σ_{k>i} M_ik x_k) / M_ii, all m columns at once.
   for (let i = n - 1; i >= 0; i--) {
-    const dr = mr[i * n + i];
-    const di = mi[i * n + i];
+    const row = i * n;
+    const xo = i * m;
+    for (let k = i + 1; k < n; k++) {
+      const ar = mr[row + k];
+      const ai = mi[row + k];
+      const ko = k * m;
+      for (let j = 0; j < m; j++) {
+        const yr = xr[ko + j];
+        const yi = xi[ko + j];
+        xr[xo + j] -= ar * yr - ai * yi;
+        xi[xo + j] -= ar * yi + ai * yr;
+      }
+    }
+    const dr = mr[row + i];
+    const di = mi[row + i];
     const den = dr * dr + di * di;
     for (let j = 0; j < m; j++) {
-      let sr = xr[i * m + j];
-      let si = xi[i * m + j];
-      for (let k = i + 1; k < n; k++) {
-        const ar = mr[i * n + k];
-        const ai = mi[i * n + k];
-        const yr = xr[k * m + j];
-        const yi = xi[k * m + j];
-        sr -= ar * yr - ai * yi;
-        si -= ar * yi + ai * yr;
-      }
-      xr[i * m + j] = (sr * dr + si * di) / den;
-      xi[i * m + j] = (si * dr - sr * di) / den;
+      const sr = xr[xo + j];
+      const si = xi[xo + j];
+      xr[xo + j] = (sr * dr + si * di) / den;
+      xi[xo + j] = (si * dr - sr * di) / den;
     }
   }
   return { re: xr, im: xi };
@@ -147,10 +179,11 @@ export function hessenbergEvaluator(model: StateSpaceModel, form: HessenbergForm
   const Qt = transpose(form.Q);
   const F = matmul(Qt, model.B);
   const CQ = matmul(model.C, form.Q);
+  const work = hessenbergWorkspace(form.H.rows, F.cols);
   return {
     form: 'hessenberg',
     at(w: number): ComplexMatrix {
-      const x = solveShiftedHessenberg(form.H, w, F);
+      const x = solveShiftedHessenberg(form.H, w, F, work);
       return outputMap(CQ, model.D, x.re, x.im);
     },
   };
