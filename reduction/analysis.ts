@@ -19,6 +19,7 @@ import {
   modelPoles,
   splitStableUnstable,
   DEFAULT_STABILITY_TOLERANCE,
+  relativeToleranceOption,
   type PoleClassification,
   type PoleStability,
 } from './spectral-split';
@@ -154,7 +155,7 @@ function polesForStepLimits(c: PoleClassification): ComplexVector {
 
 /** The full analysis of a model (see the file header). */
 export function analyzeModel(model: StateSpaceModel, options: AnalysisOptions = {}): ModelAnalysis {
-  const tolerance = options.stabilityTolerance ?? DEFAULT_STABILITY_TOLERANCE;
+  const tolerance = relativeToleranceOption(options.stabilityTolerance, DEFAULT_STABILITY_TOLERANCE, 'stabilityTolerance');
   const poles = modelPoles(model.A);
   const classification = classifyPoles(poles, tolerance);
   const split = splitStableUnstable(model, { tolerance, poles });

@@ -20,6 +20,7 @@ import {
   modelPoles,
   classifyPoles,
   DEFAULT_STABILITY_TOLERANCE,
+  relativeToleranceOption,
   type SpectralSplit,
 } from './spectral-split';
 import {
@@ -135,7 +136,12 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
       `method must be one of ${REDUCTION_METHODS.join(', ')}, got "${String(options.method)}"`,
     );
   }
-  const stabilityTolerance = options.stabilityTolerance ?? DEFAULT_STABILITY_TOLERANCE;
+  const stabilityTolerance = relativeToleranceOption(
+    options.stabilityTolerance,
+    DEFAULT_STABILITY_TOLERANCE,
+    'stabilityTolerance',
+  );
+  const rankTolerance = relativeToleranceOption(options.rankTolerance, DEFAULT_RANK_TOLERANCE, 'rankTolerance');
   const split = splitStableUnstable(model, { tolerance: stabilityTolerance });
   const method = options.method;
   const nu = split.unstableStates;
@@ -156,9 +162,7 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
     boundAt = (r) => modalErrorBound(form, r);
     stableReduced = (r) => ({ model: leadingStates(form.realization, r), notes: [] });
   } else {
-    const real: BalancedRealization = balancedRealization(split.stable, {
-      rankTolerance: options.rankTolerance ?? DEFAULT_RANK_TOLERANCE,
-    });
+    const real: BalancedRealization = balancedRealization(split.stable, { rankTolerance });
     hankel = real.hankelSingularValues;
     minimalOrder = real.minimalOrder;
     cutPoints = balancedCutPoints(real);
@@ -292,7 +296,7 @@ export function reduceModel(model: StateSpaceModel, recipe: ReductionRecipe): Re
     // G − Gr = Gs − Gsr, so the natural scale for a relative tolerance is ‖Gs‖∞ (= ‖G‖∞ for stable G).
     const { split } = basis;
     const poles = split.unstableStates === 0 ? split.classification.poles : undefined;
-    const norm = hinfNorm(split.stable, { stabilityTolerance: recipe.stabilityTolerance, poles });
+    const norm = hinfNorm(split.stable, { stabilityTolerance: split.classification.tolerance, poles });
     referenceNorm = norm.finite ? norm.value : 0;
     return referenceNorm;
   };
@@ -305,7 +309,7 @@ export function reduceModel(model: StateSpaceModel, recipe: ReductionRecipe): Re
   const orderChoice = chooseOrder(basis, rule, reference);
   // The requested order, so that the note about a raised order is kept.
   const reduced = basis.truncateAt(orderChoice.requestedOrder ?? orderChoice.order);
-  const accuracy = assessReduction(basis, reduced, recipe.stabilityTolerance);
+  const accuracy = assessReduction(basis, reduced);
   return {
     ...reduced,
     ...accuracy,

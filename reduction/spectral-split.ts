@@ -32,6 +32,7 @@ import {
   normInf,
 } from './linalg/index';
 import type { StateSpaceModel } from './model';
+import { ModelError } from './errors';
 import { stackColumns } from './realization';
 
 /**
@@ -43,6 +44,15 @@ import { stackColumns } from './realization';
 export const DEFAULT_STABILITY_TOLERANCE = 1e-7;
 
 export type PoleStability = 'stable' | 'marginal' | 'unstable';
+
+/** A relative tolerance option: a number in [0, 1), or the default when absent (throws ModelError on `field`). */
+export function relativeToleranceOption(value: number | undefined, fallback: number, field: string): number {
+  if (value === undefined) return fallback;
+  if (!Number.isFinite(value) || value < 0 || value >= 1) {
+    throw new ModelError('invalid_option', field, `${field} must be a relative tolerance in [0, 1), got ${value}`);
+  }
+  return value;
+}
 
 export interface PoleClassification {
   readonly poles: ComplexVector;

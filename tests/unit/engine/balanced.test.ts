@@ -267,6 +267,12 @@ describe('non-minimal and non-stable models', () => {
     expect(() => reduceModel(model, { method: 'balanced', order: 1 })).toThrow(/kept exactly for marginal/);
     expect(() => reduceModel(model, { method: 'balanced' })).toThrow(ModelError);
     expect(() => reduceModel(model, { method: 'balanced', order: 2, tolerance: 0.1 })).toThrow(/exactly one/);
+    expect(() => reduceModel(model, { method: 'balanced', order: 2.5 })).toThrow(expect.objectContaining({ field: 'order' }));
+    expect(() => reduceModel(model, { method: 'balanced', tolerance: -1 })).toThrow(expect.objectContaining({ field: 'tolerance' }));
+    expect(() => reduceModel(model, { method: 'balanced', order: 2, stabilityTolerance: Number.NaN })).toThrow(
+      expect.objectContaining({ field: 'stabilityTolerance' }),
+    );
+    expect(() => reduceModel(model, { method: 'fastest' as never, order: 2 })).toThrow(expect.objectContaining({ field: 'method' }));
   });
 });
 
