@@ -205,7 +205,8 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
       order: full.A.rows,
       stableOrder: stablePart.A.rows,
       unstableStatesKept: nu,
-      errorBound: boundAt(choice.stableOrder),
+      // The bound of the model actually formed (fewer states than asked for past the numerical rank).
+      errorBound: boundAt(stablePart.A.rows),
       notes: allNotes,
     };
   };
