@@ -17,6 +17,7 @@
 import { type Matrix, type ComplexVector, zeros } from './matrix';
 import { reduceToHessenberg, formHessenbergQ } from './hessenberg';
 import { gemm } from './gemm';
+import { balance } from './balance';
 
 const ULP = Number.EPSILON;
 const SAFE_MIN = 2.2250738585072014e-308;
@@ -423,12 +424,14 @@ export function schur(a: Matrix): { T: Matrix; Z: Matrix; values: ComplexVector 
 
 /**
  * Eigenvalues of a general real square matrix (complex pairs consecutive, positive imaginary part
- * first), by Hessenberg reduction and the eigenvalue-only double-shift QR. About 10n³ flops.
+ * first), by balancing (`balance.ts`), Hessenberg reduction and the eigenvalue-only double-shift QR.
+ * About 10n³ flops.
  */
 export function eigenvalues(a: Matrix): ComplexVector {
   checkInput('eigenvalues', a);
   const n = a.rows;
   const h = new Float64Array(a.data);
+  balance(h, n);
   reduceToHessenberg(h, n, false);
   const re = new Float64Array(n), im = new Float64Array(n);
   hessenbergQR(h, n, false, null, re, im);
@@ -583,17 +586,26 @@ function rescale(xr: Float64Array, xi: Float64Array | null, from: number, to: nu
 
 /**
  * Eigenvalues and right eigenvectors A·V = V·Λ in the real packed form (see `triangularEigenvectors`),
- * each vector (complex vector for a pair) scaled to unit 2-norm. Eigenvalues in Schur order, complex
+ * each vector (complex vector for a pair) scaled to unit 2-norm; A is balanced first (`balance.ts`). Eigenvalues in Schur order, complex
  * pairs consecutive with the positive imaginary part first. For a defective A the vectors of a
  * repeated eigenvalue are nearly parallel, as with any backward-stable method.
  */
 export function eig(a: Matrix): { values: ComplexVector; vectors: Matrix } {
-  const { T, Z, values } = schur(a);
+  checkInput('eig', a);
   const n = a.rows;
+  // Balance first (as LAPACK's dgeev does); the vectors of D⁻¹·A·D map back through D.
+  const balanced = zeros(n, n);
+  balanced.data.set(a.data);
+  const d = balance(balanced.data, n);
+  const { T, Z, values } = schur(balanced);
   const X = triangularEigenvectors(T, values.re, values.im);
   const V = zeros(n, n);
   gemm(false, false, n, n, n, 1, Z.data, 0, n, X.data, 0, n, 0, V.data, 0, n);
   const v = V.data;
+  for (let r = 0; r < n; r++) {
+    const dr = d[r];
+    if (dr !== 1) for (let k = 0; k < n; k++) v[r * n + k] *= dr;
+  }
   for (let k = 0; k < n; k++) {
     const pair = values.im[k] > 0;
     let s = 0;
