@@ -20,7 +20,8 @@ ensure_postgres_user() {
   id postgres >/dev/null 2>&1 || die "the postgres system user is missing (is the postgresql package installed?)"
 }
 
-as_postgres() { runuser -u postgres -- "$@"; }
+# From / so that tools run as postgres do not complain about a working folder they cannot enter.
+as_postgres() { (cd / && runuser -u postgres -- "$@"); }
 
 data_dir() {
   if as_postgres test -x "$REPO_ROOT" 2>/dev/null; then
