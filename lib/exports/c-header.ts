@@ -26,6 +26,9 @@ function commentText(text: string): string {
   return text
     .normalize('NFKD')
     .replace(/[\u0300-\u036f]/g, '')
+    .replace(/[\u2010-\u2015\u2212]/g, '-')
+    .replace(/[\u2018\u2019]/g, "'")
+    .replace(/[\u201c\u201d]/g, '"')
     .replace(/[^\x20-\x7e]/g, '?')
     .replace(/\*\//g, '* /');
 }
@@ -82,12 +85,12 @@ export function cHeader(doc: ExportDocument): string {
       : `Continuous time: dx/dt = A x + B u, y = C x + D u (time in ${s.timeUnit})`,
     `${n} states, ${s.names.inputs.length} inputs, ${s.names.outputs.length} outputs`,
     '',
-    `Source model:   ${s.lineage.sourceModel.slug} v${s.lineage.sourceVersion.number} (${s.lineage.sourceVersion.states} states)`,
+    `Source model: ${s.lineage.sourceModel.slug} v${s.lineage.sourceVersion.number} (${s.lineage.sourceVersion.states} states)`,
     `Source checksum: ${s.lineage.sourceVersion.checksum}`,
-    `Recipe:         ${s.recipe.method}, ${s.recipe.order !== null ? `order ${s.recipe.order}` : `tolerance ${s.recipe.tolerance}`}`,
-    `Accuracy:       H-infinity error ${figure('hinfError')}, relative ${figure('hinfErrorRelative')}, bound ${figure('errorBound')}`,
+    `Recipe: ${s.recipe.method}, ${s.recipe.order !== null ? `order ${s.recipe.order}` : `tolerance ${s.recipe.tolerance}`}`,
+    `Accuracy: H-infinity error ${figure('hinfError')}, relative ${figure('hinfErrorRelative')}, bound ${figure('errorBound')}`,
     `Acceptance band: ${s.accuracyReport?.acceptancePassed === true ? 'passed' : s.accuracyReport?.acceptancePassed === false ? 'FAILED' : 'not checked'}`,
-    `Matrices SHA-256 (this file):   ${doc.matricesSha256}`,
+    `Matrices SHA-256 (this file): ${doc.matricesSha256}`,
     `Registered SHA-256 (lock file): ${doc.registeredMatricesSha256}`,
     `Generated ${doc.generatedAt.toISOString()} by Modeshelf`,
   ];
@@ -99,11 +102,14 @@ export function cHeader(doc: ExportDocument): string {
   const warnings = exportWarnings(doc);
   const block = [
     '/*',
-    ...comment.flatMap((line) => (line === '' ? [' *'] : wrapComment(line).map((l) => ` * ${l}`))),
+    // Provenance lines stay whole (a checksum must not be split); only an over-long one is wrapped.
+    ...comment.flatMap((line) => (line === '' ? [' *'] : commentText(line).length <= 110 ? [` * ${commentText(line)}`] : wrapComment(line).map((l) => ` * ${l}`))),
     ' *',
     ' * CAUTION',
     ...wrapComment(doc.caution).map((l) => ` * ${l}`),
-    ...(warnings.length > 0 ? [' *', ' * WARNINGS', ...warnings.flatMap((w) => wrapComment(`- ${w}`).map((l) => ` * ${l}`))] : []),
+    ...(warnings.length > 0
+      ? [' *', ' * WARNINGS', ...warnings.flatMap((w) => wrapComment(w, 90).map((l, i) => (i === 0 ? ` * - ${l}` : ` *   ${l}`)))]
+      : []),
     ' */',
   ].join('\n');
 

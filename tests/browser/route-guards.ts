@@ -24,6 +24,17 @@ export const GUARDED_ROUTES: readonly GuardedRoute[] = [
   { method: 'POST', file: 'api/admin/people/route.ts', path: '/api/admin/people', allowed: ['admin'], invalidBody: { email: 'not-an-address', name: 'X', role: 'viewer' } },
   { method: 'PATCH', file: 'api/admin/people/[id]/route.ts', path: '/api/admin/people/{person}', allowed: ['admin'], invalidBody: { role: 'superuser' } },
   { method: 'POST', file: 'api/admin/people/[id]/link/route.ts', path: '/api/admin/people/not-a-uuid/link', allowed: ['admin'] },
+  // Controller projects: the shelf role is checked here; membership of the project in lib/projects.ts
+  // (tests/integration/projects.test.ts, pull-api.test.ts).
+  { method: 'POST', file: 'api/projects/route.ts', path: '/api/projects', allowed: ['engineer'], invalidBody: { name: '' } },
+  { method: 'PATCH', file: 'api/projects/[project]/route.ts', path: '/api/projects/no-such-project', allowed: ['engineer'], invalidBody: { sampleTime: -1 } },
+  { method: 'POST', file: 'api/projects/[project]/members/route.ts', path: '/api/projects/no-such-project/members', allowed: ['engineer'], invalidBody: { email: 'not-an-address' } },
+  { method: 'DELETE', file: 'api/projects/[project]/members/[user]/route.ts', path: '/api/projects/no-such-project/members/not-a-uuid', allowed: ['engineer'] },
+  { method: 'POST', file: 'api/projects/[project]/pins/route.ts', path: '/api/projects/no-such-project/pins', allowed: ['engineer'], invalidBody: { reducedModel: 'zone-rom', mode: 'sometimes' } },
+  { method: 'PATCH', file: 'api/projects/[project]/pins/[pin]/route.ts', path: '/api/projects/no-such-project/pins/not-a-uuid', allowed: ['engineer'] },
+  { method: 'DELETE', file: 'api/projects/[project]/pins/[pin]/route.ts', path: '/api/projects/no-such-project/pins/not-a-uuid', allowed: ['engineer'] },
+  { method: 'POST', file: 'api/projects/[project]/tokens/route.ts', path: '/api/projects/no-such-project/tokens', allowed: ['engineer'], invalidBody: { name: '' } },
+  { method: 'POST', file: 'api/projects/[project]/tokens/[token]/revoke/route.ts', path: '/api/projects/no-such-project/tokens/not-a-uuid/revoke', allowed: ['engineer'] },
 ];
 
 /** Admin-only reads, refused the same way. */
@@ -37,4 +48,9 @@ export const PUBLIC_MUTATIONS: readonly { method: Method; file: string; why: str
   { method: 'POST', file: 'api/auth/[...nextauth]/route.ts', why: "next-auth's sign-in and sign-out endpoints: they establish the session" },
   { method: 'POST', file: 'api/links/redeem/route.ts', why: 'the single-use token of an invitation or reset link is the authority' },
   { method: 'POST', file: 'api/links/reset-request/route.ts', why: 'the Forgot password form; answers the same for every address' },
+  {
+    method: 'POST',
+    file: 'api/v1/projects/[project]/lock/verify/route.ts',
+    why: 'pull API: the bearer project token is the authority (checked in the handler, tests/integration/pull-api.test.ts); the check changes nothing but the token-use record',
+  },
 ];

@@ -1,0 +1,32 @@
+// GET /api/v1/projects/{project}/models/{model}/versions/{number}?format=json|csv|c&ts=… — one numbered
+// approved or retired version of a model the project pins, e.g. to rebuild from a lock file (scope "pull").
+import { parseParams, parseQuery } from '@/lib/http';
+import { exportQuerySchema, exportResponse, exportVersion } from '@/lib/exports';
+import {
+  authenticatePullRequest,
+  pinContext,
+  pinnedVersionId,
+  pullRoute,
+  requirePinnedModel,
+  versionNumber,
+  versionParamsSchema,
+} from '@/lib/pull-api';
+
+export const dynamic = 'force-dynamic';
+
+export const GET = pullRoute<{ project: string; model: string; number: string }>(async (request, { params }) => {
+  const { project, model, number } = await parseParams(params, versionParamsSchema);
+  const caller = await authenticatePullRequest(request, project, 'pull');
+  const version = versionNumber(number);
+  const query = parseQuery(request, exportQuerySchema);
+  const pin = await requirePinnedModel(caller, model);
+  return exportResponse(
+    await exportVersion({
+      versionId: await pinnedVersionId(pin, version),
+      format: query.format,
+      ts: query.ts,
+      projectSampleTime: caller.project.sample_time,
+      pin: pinContext(caller, pin),
+    }),
+  );
+});
