@@ -6,7 +6,7 @@
 // prompt without waiting for a poll; the worker (scripts/worker.ts) runs rounds on an interval, which
 // retries failures and picks up source versions registered by any process. Rounds in one process never
 // overlap; rounds in several processes are safe because mail rows are claimed with SKIP LOCKED.
-import { deliverDueMail, type DeliveryReport } from '@/lib/notifications';
+import { DELIVERY_BATCH, deliverDueMail, type DeliveryReport } from '@/lib/notifications';
 import { queueUpstreamNotices } from '@/lib/upstream';
 
 export interface RoundReport extends DeliveryReport {
@@ -27,10 +27,14 @@ export async function runNotificationRound(): Promise<RoundReport> {
     do {
       again = false;
       total.upstreamNotices += await queueUpstreamNotices();
-      const delivered = await deliverDueMail();
-      total.sent += delivered.sent;
-      total.retrying += delivered.retrying;
-      total.gaveUp += delivered.gaveUp;
+      let claimed: number;
+      do {
+        const delivered = await deliverDueMail({ limit: DELIVERY_BATCH });
+        total.sent += delivered.sent;
+        total.retrying += delivered.retrying;
+        total.gaveUp += delivered.gaveUp;
+        claimed = delivered.sent + delivered.retrying + delivered.gaveUp;
+      } while (claimed === DELIVERY_BATCH);
     } while (again);
     return total;
   })().finally(() => {

@@ -155,6 +155,10 @@ export async function queueMail(
   return inserted.length > 0;
 }
 
+/** Mails claimed per call; a round calls again while a call comes back full (lib/notification-sender.ts). */
+export const DELIVERY_BATCH = 50;
+const SEND_CONCURRENCY = 8;
+
 export interface DeliveryReport {
   sent: number;
   /** failed this round and will be tried again */
@@ -180,7 +184,7 @@ interface QueuedMailRow {
 export async function deliverDueMail(
   options: { limit?: number; send?: (mail: OutgoingMail) => Promise<string>; onlyIds?: readonly string[] } = {},
 ): Promise<DeliveryReport> {
-  const limit = options.limit ?? 50;
+  const limit = options.limit ?? DELIVERY_BATCH;
   const send = options.send ?? sendMail;
   const knex = db();
   const only = options.onlyIds ? `AND id = ANY(?::bigint[])` : '';
@@ -199,7 +203,7 @@ export async function deliverDueMail(
     options.onlyIds ? [CLAIM_SECONDS, options.onlyIds as string[], limit] : [CLAIM_SECONDS, limit],
   );
   const report: DeliveryReport = { sent: 0, retrying: 0, gaveUp: 0 };
-  for (const row of claimed.rows) {
+  const deliverOne = async (row: QueuedMailRow) => {
     try {
       const messageId = await send({ to: row.to_address, subject: row.subject, text: row.text_body, html: row.html_body });
       await knex('mail_queue')
@@ -221,7 +225,13 @@ export async function deliverDueMail(
       else report.retrying += 1;
       console.error(`[modeshelf] mail ${row.id} to ${row.to_address} failed (attempt ${row.attempts}): ${message}`);
     }
-  }
+  };
+  // A send is mostly waiting on the SMTP dialogue, so a few run side by side.
+  const rows = [...claimed.rows];
+  const lanes = Array.from({ length: Math.min(SEND_CONCURRENCY, rows.length) }, async () => {
+    for (let row = rows.shift(); row; row = rows.shift()) await deliverOne(row);
+  });
+  await Promise.all(lanes);
   return report;
 }
 

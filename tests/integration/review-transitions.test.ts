@@ -4,7 +4,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
 import { addComment, reviewHistory, reviewQueue, reviewSheet, startNextDraft, transitionVersion, versionSummary, type Actor } from '@/lib/reviews';
-import { setAfterCommitDelivery } from '@/lib/notification-sender';
+import { startFakeSmtp, type FakeSmtp } from '@/lib/mail/fake-smtp';
+import { runNotificationRound } from '@/lib/notification-sender';
 import type { UserRow } from '@/lib/people';
 import { makeUser, migrateTestDatabase } from './helpers';
 import { makeShelf, markApproved, markInReview, SAMPLE_FIGURES } from './fixtures/shelf';
@@ -17,10 +18,14 @@ let reviewer: UserRow;
 let secondReviewer: UserRow;
 let admin: UserRow;
 let viewer: UserRow;
+let smtp: FakeSmtp;
 
 beforeAll(async () => {
   await migrateTestDatabase();
-  setAfterCommitDelivery(false); // mail delivery is tested in review-notifications.test.ts
+  // The mails these transitions queue are delivered after each commit, as in the server (what they say is
+  // checked in review-notifications.test.ts).
+  smtp = await startFakeSmtp(db(), 0);
+  process.env.SMTP_PORT = String(smtp.port);
   engineer = await makeUser({ role: 'engineer', label: 'author' });
   otherEngineer = await makeUser({ role: 'engineer', label: 'colleague' });
   reviewer = await makeUser({ role: 'reviewer', label: 'reviewer' });
@@ -31,6 +36,8 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
+  await runNotificationRound();
+  await smtp?.close();
   await closeDb();
 });
 
