@@ -79,3 +79,27 @@ describe('validation on public routes', () => {
     expect(result.body.error.field).toBe('token');
   });
 });
+
+describe('guards read the account on every request', () => {
+  it('apply a role change and a deactivation to a session that already exists', async () => {
+    const email = `promoted-${randomUUID().slice(0, 8)}@quillmere.example`;
+    const invited = await call('POST', '/api/admin/people', { cookie: cookies.admin, body: { email, name: 'Ilse Promoted', role: 'viewer' } });
+    expect(invited.status).toBe(201);
+    const mail = await call('GET', '/api/admin/mail?limit=20', { cookie: cookies.admin });
+    const message = mail.body.messages.find((m: { envelopeTo: string[] }) => m.envelopeTo.includes(email));
+    const token = /\/invite\/([A-Za-z0-9_-]{43})/.exec(message.textBody)![1];
+    expect((await call('POST', '/api/links/redeem', { body: { token, password: 'promoted password 1' } })).status).toBe(200);
+
+    const session = await signInOverHttp(email, 'promoted password 1');
+    expect((await call('GET', '/api/admin/people', { cookie: session })).status).toBe(403);
+
+    const id = invited.body.person.id;
+    expect((await call('PATCH', `/api/admin/people/${id}`, { cookie: cookies.admin, body: { role: 'admin' } })).status).toBe(200);
+    expect((await call('GET', '/api/admin/people', { cookie: session })).status).toBe(200);
+
+    expect((await call('PATCH', `/api/admin/people/${id}`, { cookie: cookies.admin, body: { active: false } })).status).toBe(200);
+    const afterDeactivation = await call('GET', '/api/admin/people', { cookie: session });
+    expect(afterDeactivation.status).toBe(401);
+    expect(afterDeactivation.body.error.code).toBe('unauthenticated');
+  });
+});
