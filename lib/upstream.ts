@@ -15,6 +15,7 @@ import type { Role } from '@/lib/roles';
 import type { VersionStatus } from '@/lib/review/state-machine';
 import { queueMail, recipientsFor } from '@/lib/notifications';
 import { upstreamChangedMail } from '@/lib/notification-mail';
+import { createJob, dispatchJob } from '@/lib/jobs/jobs';
 
 /** States in which a version still matters enough to be flagged and re-run (not superseded, not retired). */
 export const LIVE_STATUSES: readonly VersionStatus[] = ['draft', 'in_review', 'approved'];
@@ -152,26 +153,17 @@ export interface RerunRequest {
   sourceNumber: number;
 }
 
-/** What issue 5's reduction job needs to register the new draft; see lib/jobs. */
-export interface RerunJobPayload {
-  sourceVersionId: string;
-  recipeId: string;
-  reducedModelId: string;
-  predecessorId: string;
-}
-
-export type EnqueueRerun = (trx: Knex.Transaction, payload: RerunJobPayload, actorId: string) => Promise<string>;
-
 /**
- * Queues a reduction with the version's recipe on the newest version of its source model. The job (lib/jobs)
- * registers the result as a new draft version of the same reduced model with this version as predecessor,
- * authored by whoever asked for the re-run.
+ * Queues a reduction with the version's recipe on the newest version of its source model, through the jobs
+ * of lib/jobs (created in this transaction, handed to the queue after commit). The job registers the result
+ * as a new draft version of the same reduced model that records this version as its predecessor, authored
+ * by whoever asked for the re-run.
  */
-export async function rerunRecipe(versionId: string, actor: { id: string; role: Role }, enqueue: EnqueueRerun): Promise<RerunRequest> {
+export async function rerunRecipe(versionId: string, actor: { id: string; role: Role }): Promise<RerunRequest> {
   if (!RERUN_ROLES.includes(actor.role)) {
     throw new ApiError(403, 'forbidden', `Your role does not allow re-running a recipe (it needs the ${RERUN_ROLES.join(' or ')} role).`);
   }
-  return db().transaction(async (trx) => {
+  const result = await db().transaction(async (trx) => {
     // Two clicks on the button, or two engineers at once, queue one re-run.
     await trx.raw('SELECT pg_advisory_xact_lock(hashtext(?))', [`rerun:${versionId}`]);
     const row = await trx('reduced_version_upstream as up')
@@ -179,41 +171,50 @@ export async function rerunRecipe(versionId: string, actor: { id: string; role: 
       .where('rv.id', versionId)
       .first('rv.id', 'rv.number', 'rv.status', 'rv.recipe_id', 'rv.reduced_model_id', 'up.upstream_changed', 'up.newest_source_version_id', 'up.newest_source_number', 'up.source_number');
     if (!row) throw notFound('That reduced model version');
+    const newest = { sourceVersionId: row.newest_source_version_id as string, sourceNumber: row.newest_source_number as number };
     if (!row.upstream_changed) {
       throw new ApiError(409, 'not_upstream_changed', `This version was reduced from v${row.source_number}, the newest version of its source model; there is nothing newer to re-run on.`);
     }
     if (!LIVE_STATUSES.includes(row.status)) {
       throw new ApiError(409, 'state_conflict', `This version is ${row.status.replace('_', ' ')}; re-run the recipe from a version that is still in use.`);
     }
-    const made = await trx('reduced_versions')
-      .where({ predecessor_id: versionId, source_version_id: row.newest_source_version_id })
-      .first('number');
+    const made = await trx('reduced_versions').where({ predecessor_id: versionId, source_version_id: newest.sourceVersionId }).first('number');
     if (made) {
-      throw new ApiError(409, 'already_rerun', `Version ${made.number} is already this recipe re-run on source v${row.newest_source_number}.`);
+      throw new ApiError(409, 'already_rerun', `Version ${made.number} is already this recipe re-run on source v${newest.sourceNumber}.`);
     }
     const pending = await trx('jobs')
       .where({ kind: 'reduction' })
       .whereIn('status', ['queued', 'running'])
       .whereRaw(`payload->>'predecessorId' = ?`, [versionId])
-      .whereRaw(`payload->>'sourceVersionId' = ?`, [row.newest_source_version_id])
+      .whereRaw(`payload->>'sourceVersionId' = ?`, [newest.sourceVersionId])
       .first('id');
-    if (pending) {
-      return { jobId: pending.id, alreadyQueued: true, sourceVersionId: row.newest_source_version_id, sourceNumber: row.newest_source_number };
+    if (pending) return { jobId: pending.id as string, alreadyQueued: true, ...newest };
+    if (!(await trx('analyses').where({ source_version_id: newest.sourceVersionId }).first('id'))) {
+      throw new ApiError(409, 'not_analysed', `Source v${newest.sourceNumber} has not been analysed yet; re-run the recipe once its analysis has finished.`);
     }
-    const jobId = await enqueue(
-      trx,
-      { sourceVersionId: row.newest_source_version_id, recipeId: row.recipe_id, reducedModelId: row.reduced_model_id, predecessorId: versionId },
-      actor.id,
-    );
+    const job = await createJob(trx, {
+      kind: 'reduction',
+      subjectType: 'source_version',
+      subjectId: newest.sourceVersionId,
+      payload: {
+        recipeId: row.recipe_id,
+        sourceVersionId: newest.sourceVersionId,
+        target: { kind: 'existing', reducedModelId: row.reduced_model_id },
+        predecessorId: versionId,
+      },
+      createdBy: actor.id,
+    });
     await recordAudit(trx, {
       actorId: actor.id,
       action: 'reduced_version.rerun_requested',
       subjectType: 'reduced_version',
       subjectId: versionId,
-      details: { jobId, sourceVersionId: row.newest_source_version_id, sourceNumber: row.newest_source_number, recipeId: row.recipe_id },
+      details: { jobId: job.id, sourceVersionId: newest.sourceVersionId, sourceNumber: newest.sourceNumber, recipeId: row.recipe_id },
     });
-    return { jobId, alreadyQueued: false, sourceVersionId: row.newest_source_version_id, sourceNumber: row.newest_source_number };
+    return { jobId: job.id, alreadyQueued: false, ...newest };
   });
+  if (!result.alreadyQueued) await dispatchJob(result.jobId);
+  return result;
 }
 
 // ---------------------------------------------------------------------------------------------------------
