@@ -32,3 +32,64 @@ export function cholesky(a: Matrix): Matrix {
   }
   return l;
 }
+
+/**
+ * Rank-revealing Cholesky factorisation with diagonal pivoting of a symmetric positive semidefinite X:
+ * X ≈ F·Fᵀ with F n×r, stopping when the largest remaining diagonal falls to tol²·max(diag X), so a
+ * semidefinite X (a gramian of a non-minimal model) never fails (N. J. Higham, "Analysis of the
+ * Cholesky decomposition of a semi-definite matrix", in Reliable Numerical Computation, 1990; LAPACK
+ * dpstrf). Left-looking: column k comes from dot products of rows of F, contiguous in row-major
+ * storage; X is read through the permutation, never swapped. F's rows are in X's original order.
+ */
+export function pivotedCholesky(x: Matrix, tol: number): Matrix {
+  if (x.rows !== x.cols) throw new Error(`pivotedCholesky: matrix must be square, got ${x.rows}×${x.cols}`);
+  const n = x.rows;
+  const X = x.data;
+  const perm = new Int32Array(n);
+  const d = new Float64Array(n);
+  let dmax = 0;
+  for (let i = 0; i < n; i++) {
+    perm[i] = i;
+    d[i] = X[i * n + i];
+    if (!Number.isFinite(d[i])) throw new Error(`pivotedCholesky: entry (${i}, ${i}) is not finite`);
+    dmax = Math.max(dmax, d[i]);
+  }
+  // Rows in pivot order; row i holds F[perm[i], 0..k).
+  const L = new Float64Array(n * n);
+  let rank = 0;
+  const stop = tol * tol * dmax;
+  for (let k = 0; k < n; k++) {
+    let p = k;
+    for (let j = k + 1; j < n; j++) if (d[j] > d[p]) p = j;
+    if (!(d[p] > stop) || d[p] <= 0) break;
+    if (p !== k) {
+      let t = perm[k];
+      perm[k] = perm[p];
+      perm[p] = t;
+      t = d[k];
+      d[k] = d[p];
+      d[p] = t;
+      for (let c = 0; c < k; c++) {
+        const u = L[k * n + c];
+        L[k * n + c] = L[p * n + c];
+        L[p * n + c] = u;
+      }
+    }
+    const lkk = Math.sqrt(d[k]);
+    L[k * n + k] = lkk;
+    const pk = perm[k];
+    const rk = k * n;
+    for (let i = k + 1; i < n; i++) {
+      const ri = i * n;
+      let s = X[perm[i] * n + pk];
+      for (let c = 0; c < k; c++) s -= L[ri + c] * L[rk + c];
+      const lik = s / lkk;
+      L[ri + k] = lik;
+      d[i] -= lik * lik;
+    }
+    rank = k + 1;
+  }
+  const f = zeros(n, rank);
+  for (let i = 0; i < n; i++) f.data.set(L.subarray(i * n, i * n + rank), perm[i] * rank);
+  return f;
+}

@@ -33,6 +33,8 @@ export { qr, pivotedQr, orthonormalBasis } from './qr';
 export { singularValues } from './svd';
 export { symmetricEigenvalues } from './symmetric-eig';
 export { sylvester, lyapunovBartelsStewart } from './sylvester';
+export { pivotedCholesky } from './cholesky';
+export { balance } from './balance';
 export { standardise2x2 } from './schur';
 
 /** C = A·B (blocked, packed product; see `gemm.ts`). */

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { svd, singularValues } from '../../../reduction/linalg/svd';
 import { symmetricEig, symmetricEigenvalues } from '../../../reduction/linalg/symmetric-eig';
-import { cholesky } from '../../../reduction/linalg/cholesky';
+import { cholesky, pivotedCholesky } from '../../../reduction/linalg/cholesky';
 import { qr, pivotedQr, orthonormalBasis } from '../../../reduction/linalg/qr';
 import { multiply, multiplyTransposeA, multiplyTransposeB } from '../../../reduction/linalg/gemm';
 import { type Matrix, fromRows, identity, sub, frobeniusNorm, zeros } from '../../../reduction/linalg/matrix';
@@ -132,6 +132,16 @@ describe('Cholesky factorisation (Golub & Van Loan §4.2)', () => {
     for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) p.data[i * n + j] = binom(i + j, i);
     const l = cholesky(p);
     for (let i = 0; i < n; i++) for (let j = 0; j <= i; j++) expect(l.data[i * n + j]).toBeCloseTo(binom(i, j), 8);
+  });
+
+  it('factors a positive semidefinite matrix of rank 3 with diagonal pivoting (Higham 1990): X = F·Fᵀ, F n×3', () => {
+    const g = randomMatrix(40, 3, 77);
+    const x = multiplyTransposeB(g, g);
+    const f = pivotedCholesky(x, Math.sqrt(EPS));
+    expect(f.cols).toBe(3);
+    expect(frobeniusNorm(sub(multiplyTransposeB(f, f), x)) / frobeniusNorm(x)).toBeLessThan(1e-14);
+    // Plain Cholesky cannot factor it (rounding leaves a zero or negative pivot).
+    expect(() => cholesky(x)).toThrow(/not positive definite/);
   });
 
   it('refuses an indefinite or non-square matrix, naming the pivot', () => {

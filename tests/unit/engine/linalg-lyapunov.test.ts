@@ -17,12 +17,25 @@ function hsvFromFactors(s: Matrix, r: Matrix): Float64Array {
 
 describe('Lyapunov equations by the scaled sign function (Roberts 1971; Byers 1987)', () => {
   it('matches scipy.linalg.solve_continuous_lyapunov (Bartels–Stewart) on seeded random stable models', () => {
+    // A stiff model with one input and one output (fast HSV decay: the factors stay thin, so the
+    // factored iteration runs to the end) and random dense ones (high numerical rank: the iteration
+    // switches to dense gramian updates and pivoted Cholesky factors).
+    const stiff = (() => {
+      const n = 150;
+      const a = randomMatrix(n, n, 31);
+      for (let i = 0; i < n; i++) {
+        for (let j = 0; j < n; j++) a.data[i * n + j] *= 0.02;
+        a.data[i * n + i] = -Math.pow(10, (4 * i) / (n - 1));
+      }
+      return { A: a, B: randomMatrix(n, 1, 32), C: randomMatrix(1, n, 33), dense: false };
+    })();
     const cases = [
-      { A: stableMatrix(40, 1), B: randomMatrix(40, 2, 2), C: randomMatrix(3, 40, 3) },
-      { A: stableMatrix(120, 4, 1.2), B: randomMatrix(120, 4, 5), C: randomMatrix(2, 120, 6) },
+      stiff,
+      { A: stableMatrix(40, 1), B: randomMatrix(40, 2, 2), C: randomMatrix(3, 40, 3), dense: true },
+      { A: stableMatrix(120, 4, 1.2), B: randomMatrix(120, 4, 5), C: randomMatrix(2, 120, 6), dense: true },
     ];
-    const ref = reference(cases.map((c) => ({ op: 'gramians', ...c }))) as { P: number[][]; Q: number[][]; hsv: number[] }[];
-    cases.forEach(({ A, B, C }, k) => {
+    const ref = reference(cases.map(({ A, B, C }) => ({ op: 'gramians', A, B, C }))) as { P: number[][]; Q: number[][]; hsv: number[] }[];
+    cases.forEach(({ A, B, C, dense }, k) => {
       const bb = multiplyTransposeB(B, B);
       const P = lyapunov(A, bb);
       const Q = lyapunov(transpose(A), multiplyTransposeA(C, C));
@@ -33,7 +46,8 @@ describe('Lyapunov equations by the scaled sign function (Roberts 1971; Byers 19
       expect(lyapunovResidual(A, P, bb)).toBeLessThan(1e-12);
 
       // Factored form from one shared iteration: same gramians, same Hankel singular values.
-      const { controllability: S, observability: R } = lowRankGramianFactors(A, B, C);
+      const { controllability: S, observability: R, denseFrom } = lowRankGramianFactors(A, B, C);
+      expect(denseFrom !== null).toBe(dense);
       expect(maxAbsDiff(gram(S), ref[k].P) / scaleP).toBeLessThan(1e-11);
       expect(maxAbsDiff(gram(R), ref[k].Q) / scaleQ).toBeLessThan(1e-11);
       const hsv = hsvFromFactors(S, R);
