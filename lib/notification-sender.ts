@@ -1,6 +1,6 @@
 // Runs notification delivery outside the transactions that queue it. One round: queue the "upstream
-// changed" mails for source versions registered since the last round (lib/upstream.ts), then send what is
-// due (lib/notifications.ts).
+// changed" mails for source versions registered since the last round (lib/upstream.ts) and the pin notices
+// to controller project members (lib/project-notices.ts), then send what is due (lib/notifications.ts).
 //
 // Two callers: the request that queued mail kicks a round right after its transaction commits, so mail is
 // prompt without waiting for a poll; the worker (scripts/worker.ts) runs rounds on an interval, which
@@ -8,9 +8,12 @@
 // overlap; rounds in several processes are safe because mail rows are claimed with SKIP LOCKED.
 import { DELIVERY_BATCH, deliverDueMail, type DeliveryReport } from '@/lib/notifications';
 import { queueUpstreamNotices } from '@/lib/upstream';
+import { queuePinNotices } from '@/lib/project-notices';
 
 export interface RoundReport extends DeliveryReport {
   upstreamNotices: number;
+  /** Mails to controller project members about their pins (lib/project-notices.ts). */
+  pinNotices: number;
 }
 
 let running: Promise<RoundReport> | null = null;
@@ -23,10 +26,11 @@ export async function runNotificationRound(): Promise<RoundReport> {
     return running;
   }
   running = (async () => {
-    const total: RoundReport = { upstreamNotices: 0, sent: 0, retrying: 0, gaveUp: 0 };
+    const total: RoundReport = { upstreamNotices: 0, pinNotices: 0, sent: 0, retrying: 0, gaveUp: 0 };
     do {
       again = false;
       total.upstreamNotices += await queueUpstreamNotices();
+      total.pinNotices += (await queuePinNotices()).queued;
       let claimed: number;
       do {
         const delivered = await deliverDueMail({ limit: DELIVERY_BATCH });

@@ -509,7 +509,9 @@ export async function transitionVersion(
       return { version, mailsQueued };
     })
     .catch(fromDatabaseRefusal);
-  if (result.mailsQueued > 0) kickNotificationSender();
+  // An approval or retirement may also change what controller projects' pins resolve to; the round queues
+  // those notices (lib/project-notices.ts) even when this transition queued no mail itself.
+  if (result.mailsQueued > 0 || action === 'approve' || action === 'retire') kickNotificationSender();
   return result;
 }
 
