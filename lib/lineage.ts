@@ -33,6 +33,8 @@ export interface ReducedVersionNode {
   order: number;
   method: string;
   upstreamChanged: boolean;
+  sourceNumber: number;
+  newestSourceNumber: number;
   matricesSha256: string;
   inputChecksum: string;
   engineVersion: string;
@@ -93,6 +95,8 @@ async function buildLineage(sourceModelId: string, reducedModelId: string | null
       'rm.slug as rm_slug',
       'r.method',
       'up.upstream_changed',
+      'up.source_number',
+      'up.newest_source_number',
     );
   if (reducedModelId) rvQuery.where('rv.reduced_model_id', reducedModelId);
   const rvRows = await rvQuery;
@@ -127,6 +131,8 @@ async function buildLineage(sourceModelId: string, reducedModelId: string | null
       order: r.order,
       method: r.method,
       upstreamChanged: r.upstream_changed,
+      sourceNumber: r.source_number,
+      newestSourceNumber: r.newest_source_number,
       matricesSha256: r.matrices_sha256,
       inputChecksum: r.input_checksum,
       engineVersion: r.engine_version,

@@ -320,6 +320,7 @@ export interface QueueEntry {
   errorBound: number | null;
   acceptancePassed: boolean | null;
   upstreamChanged: boolean;
+  newestSourceNumber: number;
   note: string | null;
   /** The viewer may approve or send back this one (a reviewer, and not its author). */
   yoursToDecide: boolean;
@@ -351,6 +352,7 @@ export async function reviewQueue(viewer: Actor): Promise<QueueEntry[]> {
       errorBound: numberOrNull(figures.errorBound),
       acceptancePassed: s.accuracy?.acceptancePassed ?? null,
       upstreamChanged: s.upstreamChanged,
+      newestSourceNumber: s.newestSourceNumber,
       note: notes.get(s.id) ?? null,
       yoursToDecide: availableActions('in_review', viewer, s.author.id).includes('approve'),
     };

@@ -35,6 +35,18 @@ export const GUARDED_ROUTES: readonly GuardedRoute[] = [
   { method: 'DELETE', file: 'api/projects/[project]/pins/[pin]/route.ts', path: '/api/projects/no-such-project/pins/not-a-uuid', allowed: ['engineer'] },
   { method: 'POST', file: 'api/projects/[project]/tokens/route.ts', path: '/api/projects/no-such-project/tokens', allowed: ['engineer'], invalidBody: { name: '' } },
   { method: 'POST', file: 'api/projects/[project]/tokens/[token]/revoke/route.ts', path: '/api/projects/no-such-project/tokens/not-a-uuid/revoke', allowed: ['engineer'] },
+  // Review (issue 6): roles from lib/review/state-machine.ts; four-eyes, authorship and state are decided
+  // under the row lock (tests/integration/review-transitions.test.ts). The id is well formed but names no
+  // version, so an admitted role's valid call would answer 404 and changes nothing.
+  { method: 'POST', file: 'api/reduced-versions/[id]/submit/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/submit', allowed: ['engineer'], invalidBody: { note: '   ' } },
+  { method: 'POST', file: 'api/reduced-versions/[id]/approve/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/approve', allowed: ['reviewer'], invalidBody: { comment: '' } },
+  { method: 'POST', file: 'api/reduced-versions/[id]/revise/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/revise', allowed: ['reviewer'], invalidBody: {} },
+  { method: 'POST', file: 'api/reduced-versions/[id]/retire/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/retire', allowed: ['reviewer', 'admin'], invalidBody: { reason: '' } },
+  { method: 'POST', file: 'api/reduced-versions/[id]/comments/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/comments', allowed: ['engineer', 'reviewer', 'admin'], invalidBody: { body: '' } },
+  { method: 'POST', file: 'api/reduced-versions/[id]/next-draft/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/next-draft', allowed: ['engineer'] },
+  { method: 'POST', file: 'api/reduced-versions/[id]/rerun/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/rerun', allowed: ['engineer'] },
+  // Everyone's own notification settings: nobody is refused by role, a visitor is (401).
+  { method: 'PATCH', file: 'api/profile/notifications/route.ts', path: '/api/profile/notifications', allowed: ['viewer', 'engineer', 'reviewer', 'admin'], invalidBody: { reviewDecided: 'yes' } },
 ];
 
 /** Admin-only reads, refused the same way. */
