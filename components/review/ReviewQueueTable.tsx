@@ -1,0 +1,183 @@
+'use client';
+// The review queue: versions waiting for a decision, the longest-waiting first, sortable and filterable.
+// Each row opens the version's review sheet (comparison figures, review panel and history).
+import Link from 'next/link';
+import { useMemo, useState } from 'react';
+import { useQuery } from '@tanstack/react-query';
+import {
+  createColumnHelper,
+  flexRender,
+  getCoreRowModel,
+  getFilteredRowModel,
+  getSortedRowModel,
+  useReactTable,
+  type SortingState,
+} from '@tanstack/react-table';
+import { apiFetch } from '@/components/api-client';
+import { formatCount, formatNumber, formatOptional, formatPercent } from '@/components/charts/format';
+import type { DecisionEntry, QueueEntry } from '@/lib/reviews';
+import { UpstreamChangedBadge } from './StatusBadge';
+import { formatWhen } from './when';
+
+const column = createColumnHelper<QueueEntry>();
+
+export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: QueueEntry[]; canDecide: boolean }) {
+  const { data: queue = initialQueue } = useQuery({
+    queryKey: ['reviews', 'queue'],
+    queryFn: async () => (await apiFetch<{ queue: QueueEntry[]; decisions: DecisionEntry[] }>('/api/reviews')).queue,
+    initialData: initialQueue,
+    refetchInterval: 30_000,
+  });
+  const [sorting, setSorting] = useState<SortingState>([{ id: 'submittedAt', desc: false }]);
+  const [filter, setFilter] = useState('');
+  const [mineOnly, setMineOnly] = useState(canDecide);
+  const rows = useMemo(() => (mineOnly ? queue.filter((q) => q.yoursToDecide) : queue), [queue, mineOnly]);
+
+  const columns = useMemo(
+    () => [
+      column.accessor((q) => `${q.reducedModelName} v${q.number}`, {
+        id: 'version',
+        header: 'Version',
+        cell: (info) => (
+          <Link href={`/reviews/${info.row.original.versionId}`} className="font-medium">
+            {info.getValue()}
+          </Link>
+        ),
+      }),
+      column.accessor('authorName', { header: 'Author' }),
+      column.accessor('submittedAt', {
+        header: 'Submitted',
+        cell: (info) => <span className="num text-xs">{formatWhen(info.getValue())}</span>,
+      }),
+      column.accessor((q) => `${q.sourceModelName} v${q.sourceNumber}`, {
+        id: 'source',
+        header: 'Source',
+        cell: (info) => (
+          <span className="flex flex-wrap items-center gap-1">
+            {info.getValue()}
+            {info.row.original.upstreamChanged ? <UpstreamChangedBadge sourceNumber={info.row.original.sourceNumber} newestSourceNumber={info.row.original.newestSourceNumber} /> : null}
+          </span>
+        ),
+      }),
+      column.accessor((q) => `${q.method}, ${q.fullOrder === null ? '?' : formatCount(q.fullOrder)} → ${formatCount(q.order)}`, {
+        id: 'reduction',
+        header: 'Method, order',
+        cell: (info) => <span className="num text-xs">{info.getValue()}</span>,
+      }),
+      column.accessor('hinfErrorRelative', {
+        header: '‖G − Gr‖∞ / ‖G‖∞',
+        cell: (info) => <span className="num">{formatOptional(info.getValue(), (v) => formatPercent(v))}</span>,
+        sortUndefined: 'last',
+      }),
+      column.accessor('errorBound', {
+        header: 'Bound',
+        cell: (info) => <span className="num">{formatOptional(info.getValue(), (v) => formatNumber(v))}</span>,
+        sortUndefined: 'last',
+      }),
+      column.accessor((q) => (q.acceptancePassed === null ? '—' : q.acceptancePassed ? 'PASS' : 'FAIL'), {
+        id: 'acceptance',
+        header: 'Acceptance',
+      }),
+      column.accessor((q) => (q.yoursToDecide ? 'yours to decide' : ''), {
+        id: 'decider',
+        header: () => <span className="sr-only">Yours to decide</span>,
+        cell: (info) => (info.getValue() ? <span className="text-xs font-medium text-teal-deep">◆ yours to decide</span> : null),
+      }),
+    ],
+    [],
+  );
+
+  const table = useReactTable({
+    data: rows,
+    columns,
+    state: { sorting, globalFilter: filter },
+    onSortingChange: setSorting,
+    onGlobalFilterChange: setFilter,
+    globalFilterFn: 'includesString',
+    getCoreRowModel: getCoreRowModel(),
+    getSortedRowModel: getSortedRowModel(),
+    getFilteredRowModel: getFilteredRowModel(),
+  });
+
+  return (
+    <section aria-label="Review queue" className="panel">
+      <div className="flex flex-wrap items-end gap-4 border-b border-rule px-4 py-3">
+        <label className="min-w-64 flex-1">
+          <span className="field-label">Filter</span>
+          <input
+            className="field-input"
+            type="search"
+            placeholder="Reduced model, author or source"
+            value={filter}
+            onChange={(e) => setFilter(e.target.value)}
+          />
+        </label>
+        {canDecide ? (
+          <label className="flex items-center gap-2 pb-2 text-sm">
+            <input type="checkbox" checked={mineOnly} onChange={(e) => setMineOnly(e.target.checked)} />
+            Only versions I may decide (not my own)
+          </label>
+        ) : null}
+        <p className="num pb-2 text-xs text-graphite-soft">
+          {table.getRowModel().rows.length} of {queue.length} in review
+        </p>
+      </div>
+      <div className="overflow-x-auto">
+        <table className="w-full text-left text-sm">
+          <thead>
+            {table.getHeaderGroups().map((group) => (
+              <tr key={group.id} className="border-b border-rule">
+                {group.headers.map((header) => {
+                  const sorted = header.column.getIsSorted();
+                  return (
+                    <th
+                      key={header.id}
+                      scope="col"
+                      className="px-4 py-2 font-medium"
+                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
+                    >
+                      {header.column.getCanSort() ? (
+                        <button
+                          type="button"
+                          className="field-label inline-flex items-center gap-1 hover:text-teal"
+                          onClick={header.column.getToggleSortingHandler()}
+                        >
+                          {flexRender(header.column.columnDef.header, header.getContext())}
+                          <span aria-hidden="true">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '·'}</span>
+                        </button>
+                      ) : (
+                        flexRender(header.column.columnDef.header, header.getContext())
+                      )}
+                    </th>
+                  );
+                })}
+              </tr>
+            ))}
+          </thead>
+          <tbody>
+            {table.getRowModel().rows.map((row) => (
+              <tr key={row.id} className="border-b border-rule last:border-0" data-testid="queue-row" data-version={row.original.versionId}>
+                {row.getVisibleCells().map((cell) => (
+                  <td key={cell.id} className="px-4 py-2 align-middle">
+                    {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                  </td>
+                ))}
+              </tr>
+            ))}
+            {table.getRowModel().rows.length === 0 ? (
+              <tr>
+                <td colSpan={columns.length} className="px-4 py-6 text-center text-graphite-soft">
+                  {queue.length === 0
+                    ? 'Nothing is waiting for review.'
+                    : mineOnly
+                      ? 'Nothing here is yours to decide: the versions in review are your own or match no filter.'
+                      : 'Nothing matches this filter.'}
+                </td>
+              </tr>
+            ) : null}
+          </tbody>
+        </table>
+      </div>
+    </section>
+  );
+}

@@ -1,0 +1,105 @@
+/**
+ * An accuracy report's figures as table lines, for one report or several side by side (at approval
+ * against now; an old version against its re-run). Reads accuracy_reports.figures as the reduction job
+ * writes it (lib/engine-tasks/records.ts, AccuracyFiguresRecord), tolerating older or partial reports: a
+ * figure that is missing or not a finite number shows as a dash, never as zero. Values leave formatted
+ * with their units (components/charts/format.ts).
+ */
+import { formatCount, formatFrequency, formatNumber, formatPercent } from '@/components/charts/format';
+
+export interface FigureLine {
+  key: string;
+  label: string;
+  /** one formatted value per figure set, in the order given */
+  values: string[];
+  /** the raw numbers, for telling which set is better; null where missing */
+  numbers: (number | null)[];
+  /** smaller is better (errors); false for counts and ratios that are neither */
+  lowerIsBetter: boolean;
+}
+
+type Figures = Record<string, unknown> | null | undefined;
+
+const finite = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+
+interface LineSpec {
+  key: string;
+  /** other names the same figure has had */
+  aliases?: string[];
+  label: string;
+  format: (v: number, figures: Record<string, unknown>) => string;
+  lowerIsBetter: boolean;
+}
+
+const LINES: readonly LineSpec[] = [
+  { key: 'fullOrder', label: 'Full order', format: (v) => formatCount(v), lowerIsBetter: false },
+  { key: 'reducedOrder', aliases: ['order'], label: 'Reduced order', format: (v) => formatCount(v), lowerIsBetter: false },
+  { key: 'hinfError', label: '‖G − Gr‖∞', format: (v) => formatNumber(v), lowerIsBetter: true },
+  { key: 'hinfErrorRelative', label: '‖G − Gr‖∞ / ‖G‖∞', format: (v) => formatPercent(v), lowerIsBetter: true },
+  {
+    key: 'hinfErrorFrequency',
+    label: 'Frequency of the largest error',
+    format: (v, f) => formatFrequency(v, typeof f.timeUnit === 'string' ? f.timeUnit : 's'),
+    lowerIsBetter: false,
+  },
+  { key: 'errorBound', label: 'A-priori error bound', format: (v) => formatNumber(v), lowerIsBetter: true },
+  { key: 'h2Error', label: '‖G − Gr‖₂', format: (v) => formatNumber(v), lowerIsBetter: true },
+  { key: 'dcGainError', label: 'DC gain error (largest entry)', format: (v) => formatNumber(v), lowerIsBetter: true },
+  { key: 'peakStepError', label: 'Peak step-response error', format: (v) => formatNumber(v), lowerIsBetter: true },
+  { key: 'stiffnessRatioFull', aliases: ['fullStiffnessRatio'], label: 'Stiffness ratio, full', format: (v) => formatNumber(v), lowerIsBetter: false },
+  { key: 'stiffnessRatioReduced', aliases: ['reducedStiffnessRatio'], label: 'Stiffness ratio, reduced', format: (v) => formatNumber(v), lowerIsBetter: false },
+];
+
+function valueOf(figures: Figures, spec: LineSpec): number | null {
+  if (!figures) return null;
+  for (const key of [spec.key, ...(spec.aliases ?? [])]) {
+    const v = finite(figures[key]);
+    if (v !== null) return v;
+  }
+  return null;
+}
+
+/** The acceptance verdict in words: PASS / FAIL with the worst error, or a dash. */
+export function acceptanceText(figures: Figures, acceptancePassed: boolean | null | undefined): string {
+  const acceptance = figures && typeof figures.acceptance === 'object' && figures.acceptance !== null ? (figures.acceptance as Record<string, unknown>) : null;
+  const passed = typeof acceptancePassed === 'boolean' ? acceptancePassed : typeof acceptance?.passed === 'boolean' ? (acceptance.passed as boolean) : null;
+  if (passed === null) return '—';
+  const worst = finite(acceptance?.worstError);
+  const limit = finite(acceptance?.maxError);
+  const detail = worst !== null && limit !== null ? ` (worst ${formatNumber(worst)} against ${formatNumber(limit)})` : '';
+  return `${passed ? 'PASS' : 'FAIL'}${detail}`;
+}
+
+/**
+ * One line per known figure that at least one set states. `acceptance` gives each set's
+ * accuracy_reports.acceptance_passed, which wins over the figures' own verdict.
+ */
+export function figureLines(sets: readonly Figures[], acceptance?: readonly (boolean | null | undefined)[]): FigureLine[] {
+  const lines: FigureLine[] = [];
+  for (const spec of LINES) {
+    const numbers = sets.map((f) => valueOf(f, spec));
+    if (numbers.every((n) => n === null)) continue;
+    lines.push({
+      key: spec.key,
+      label: spec.label,
+      numbers,
+      values: numbers.map((n, i) => (n === null ? '—' : spec.format(n, sets[i] ?? {}))),
+      lowerIsBetter: spec.lowerIsBetter,
+    });
+  }
+  const verdicts = sets.map((f, i) => acceptanceText(f, acceptance?.[i]));
+  if (verdicts.some((v) => v !== '—')) {
+    lines.push({ key: 'acceptance', label: 'Acceptance band', values: verdicts, numbers: sets.map(() => null), lowerIsBetter: false });
+  }
+  return lines;
+}
+
+/** For two sets: which one is better on a line, in words ('' when equal, unknown, or not comparable). */
+export function comparisonNote(line: FigureLine): string {
+  if (!line.lowerIsBetter || line.numbers.length !== 2) return '';
+  const [a, b] = line.numbers;
+  if (a === null || b === null || a === b) return '';
+  if (a === 0 || b === 0) return b < a ? 'smaller' : 'larger';
+  const ratio = b / a;
+  return ratio < 1 ? `${formatNumber(1 / ratio, { significant: 2 })}× smaller` : `${formatNumber(ratio, { significant: 2 })}× larger`;
+}
