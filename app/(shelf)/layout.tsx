@@ -19,6 +19,7 @@ export default async function ShelfLayout({ children }: { children: ReactNode })
         <div className="grid-rule mx-3 mb-4" aria-hidden="true" />
         <Nav items={navItemsFor(user.role)} />
         <div className="mt-auto px-1">
+          <Link href="/profile" className="mb-2 block px-2 text-xs">Profile and notifications</Link>
           <TitleBlock name={user.name} email={user.email} role={user.role} />
         </div>
       </aside>
