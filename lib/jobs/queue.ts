@@ -1,0 +1,85 @@
+// The job queue: pg-boss 10 in the application's own PostgreSQL (schema "pgboss"), so any number of
+// workers on any number of machines share the work through the database, and a job survives every
+// process. Our `jobs` table is the record people see (stage, fraction, error, result); a pg-boss job is
+// only the delivery of "run jobs.id X" to one worker at a time, with its retries.
+//
+// Delivery rules (per queue): a failed attempt is retried after RETRY_DELAY_SECONDS, at most RETRY_LIMIT
+// times; an attempt whose worker vanished is handed back by the heartbeat reaper (reaper.ts) long before
+// pg-boss's own expiry (EXPIRE_SECONDS, the backstop for a reaper that is not running).
+import PgBoss from 'pg-boss';
+import { databaseUrl } from '@/lib/config';
+
+export type JobKind = 'analysis' | 'reduction' | 'response';
+export const JOB_KINDS: readonly JobKind[] = ['analysis', 'reduction', 'response'];
+
+export const QUEUE_NAMES: Record<JobKind, string> = {
+  analysis: 'modeshelf-analysis',
+  reduction: 'modeshelf-reduction',
+  response: 'modeshelf-response',
+};
+
+export const RETRY_LIMIT = 2;
+export const RETRY_DELAY_SECONDS = 2;
+export const EXPIRE_SECONDS = 4 * 3600;
+
+export interface QueueMessage {
+  jobId: string;
+}
+
+type Role = 'web' | 'worker';
+
+const globalForBoss = globalThis as unknown as { modeshelfBoss?: { role: Role; url: string; started: Promise<PgBoss> } };
+
+async function ensureQueues(boss: PgBoss): Promise<void> {
+  for (const kind of JOB_KINDS) {
+    const name = QUEUE_NAMES[kind];
+    if (await boss.getQueue(name)) continue;
+    try {
+      await boss.createQueue(name, {
+        name,
+        retryLimit: RETRY_LIMIT,
+        retryDelay: RETRY_DELAY_SECONDS,
+        expireInSeconds: EXPIRE_SECONDS,
+      });
+    } catch (err) {
+      // Another process created it between our look and our insert.
+      if (!(await boss.getQueue(name))) throw err;
+    }
+  }
+}
+
+/**
+ * The process's pg-boss instance, started once. The web server only sends ("web": no maintenance loop);
+ * workers also run pg-boss's maintenance (expiry, archiving), which any number of them may do at once.
+ */
+export function queue(role: Role = 'web'): Promise<PgBoss> {
+  const url = databaseUrl();
+  const current = globalForBoss.modeshelfBoss;
+  if (current && current.url === url && (current.role === role || current.role === 'worker')) return current.started;
+  const boss = new PgBoss({
+    connectionString: url,
+    max: role === 'worker' ? 4 : 2,
+    application_name: `modeshelf-${role}`,
+    supervise: role === 'worker',
+    schedule: false,
+  });
+  boss.on('error', (err) => console.error('[modeshelf] job queue error', err));
+  const started = boss.start().then(async (b) => {
+    await ensureQueues(b);
+    return b;
+  });
+  globalForBoss.modeshelfBoss = { role, url, started };
+  started.catch(() => {
+    if (globalForBoss.modeshelfBoss?.started === started) globalForBoss.modeshelfBoss = undefined;
+  });
+  return started;
+}
+
+/** Stops the process's queue connection (scripts, tests, worker shutdown). */
+export async function closeQueue(): Promise<void> {
+  const current = globalForBoss.modeshelfBoss;
+  if (!current) return;
+  globalForBoss.modeshelfBoss = undefined;
+  const boss = await current.started.catch(() => null);
+  await boss?.stop({ graceful: false, close: true, wait: true });
+}
