@@ -1,0 +1,225 @@
+// The figures the order slider shows for every order it offers, worked out once when a source version is
+// analysed, so moving the slider never starts a decomposition (issue 5, "Choose how many states to keep").
+//
+// Per order r: the a-priori bound, the states kept exactly for marginal and unstable poles, the reduced
+// model's stiffness ratio (fastest over slowest decay rate of its stable poles; reduction/analysis.ts) and
+// the largest stable fixed step of forward Euler and classical RK4 for its spectrum (reduction/step-limits.ts,
+// after Hairer & Wanner 1996, §IV.2). The reduced model's poles are those of its reduced stable part plus
+// the full model's marginal and unstable poles, which every method keeps exactly (reduction/reduce.ts).
+//
+//   balanced methods: one ReductionBasis (split and balanced realization, Laub et al. 1987 square-root form);
+//     each order is a slice of it (truncation) or one Schur complement (residualization, Liu & Anderson
+//     1989), and the eigenvalues of that r×r matrix. Offered up to the numerical minimal order (the further
+//     states carry no input–output behaviour) and at most MAX_BALANCED_STABLE_ORDER stable states.
+//   modal truncation: the kept poles are a prefix of the ranked modes, so everything follows from the
+//     analysis' mode list by running sums and minima, without any matrix work.
+import {
+  modelPoles,
+  prepareReduction,
+  stepLimitsFromPoles,
+  type ComplexVector,
+  type ReductionMethod,
+  type StateSpaceModel,
+} from '../../reduction/index';
+import type { ModeRecord, OrderFigureTable, OrderFiguresRecord, PoleStability } from './records';
+
+/** Balanced orders beyond this many stable states are not offered on the slider (common practice: a reduced model
+ *  meant for control design or real-time use has tens of states; the "by tolerance" rule still reaches any order). */
+export const MAX_BALANCED_STABLE_ORDER = 150;
+
+export interface KeptPoles {
+  /** the full model's marginal and unstable poles, kept exactly by every method */
+  readonly re: readonly number[];
+  readonly im: readonly number[];
+  readonly stability: readonly PoleStability[];
+  readonly unstable: number;
+  readonly marginal: number;
+  /** relative stability tolerance and spectral radius of the full model (reduction/spectral-split.ts) */
+  readonly tolerance: number;
+  readonly scale: number;
+}
+
+export function keptPolesOf(
+  poles: { re: readonly number[]; im: readonly number[]; stability: readonly PoleStability[] },
+  tolerance: number,
+): KeptPoles {
+  const re: number[] = [];
+  const im: number[] = [];
+  const stability: PoleStability[] = [];
+  let scale = 0;
+  poles.re.forEach((r, i) => {
+    scale = Math.max(scale, Math.hypot(r, poles.im[i]));
+    if (poles.stability[i] === 'stable') return;
+    re.push(r);
+    im.push(poles.im[i]);
+    stability.push(poles.stability[i]);
+  });
+  return {
+    re,
+    im,
+    stability,
+    unstable: stability.filter((s) => s === 'unstable').length,
+    marginal: stability.filter((s) => s === 'marginal').length,
+    tolerance,
+    scale: scale > 0 ? scale : 1,
+  };
+}
+
+/**
+ * The kept poles as the step limits should see them: a marginal pole's real part is put on the axis, as
+ * reduction/analysis.ts does (a computed double pole at 0 comes out as ±√ε-sized values of either sign,
+ * which would otherwise read as "unstable for every step").
+ */
+function keptForStepLimits(kept: KeptPoles): { re: number[]; im: number[] } {
+  const t = kept.tolerance * kept.scale;
+  return {
+    re: kept.re.map((r, i) => (kept.stability[i] === 'marginal' ? 0 : r)),
+    im: kept.im.map((v, i) => (kept.stability[i] === 'marginal' && Math.abs(v) <= t ? 0 : v)),
+  };
+}
+
+const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
+
+/** Figures of a reduced model from the poles of its reduced stable part and the exactly kept poles. */
+export function figuresFromPoles(
+  stableRe: ArrayLike<number>,
+  stableIm: ArrayLike<number>,
+  kept: KeptPoles,
+  errorBound: number | null,
+): OrderFiguresRecord {
+  const keptStep = keptForStepLimits(kept);
+  const re = Float64Array.from([...Array.from(stableRe), ...keptStep.re]);
+  const im = Float64Array.from([...Array.from(stableIm), ...keptStep.im]);
+  const limits = stepLimitsFromPoles({ re, im });
+  // Stiffness over the stable poles only; the reduced stable part's poles are stable by construction
+  // (Pernebo & Silverman 1982), and classifying them again would count a rounding-level one as marginal.
+  let fast = 0;
+  let slow = Infinity;
+  for (let k = 0; k < stableRe.length; k++) {
+    const rate = -stableRe[k];
+    if (rate > 0) {
+      fast = Math.max(fast, rate);
+      slow = Math.min(slow, rate);
+    }
+  }
+  return {
+    errorBound: errorBound === null ? null : finiteOrNull(errorBound),
+    keptUnstable: kept.unstable,
+    keptMarginal: kept.marginal,
+    stiffnessRatio: fast > 0 ? fast / slow : null,
+    maxStableStepEuler: finiteOrNull(limits.forwardEuler.maxStep),
+    maxStableStepRk4: finiteOrNull(limits.rk4.maxStep),
+  };
+}
+
+/**
+ * Figures for balanced truncation or residualization at each offered order. `onOrder(done, total)` reports
+ * progress. Throws what prepareReduction throws (ModelError).
+ */
+export function balancedOrderFigures(
+  model: StateSpaceModel,
+  method: Extract<ReductionMethod, 'balanced' | 'residualization'>,
+  kept: KeptPoles,
+  onOrder?: (done: number, total: number) => void,
+): OrderFigureTable {
+  const basis = prepareReduction(model, { method, stabilityTolerance: kept.tolerance });
+  if (basis.stableStates === 0) {
+    return { available: false, reason: 'the model has no stable part to reduce: every pole is marginal or unstable' };
+  }
+  const nu = basis.unstableStates;
+  const stableLimit = Math.min(basis.minimalOrder, MAX_BALANCED_STABLE_ORDER);
+  const orders = basis.allowedOrders().filter((r) => r >= 1 && r - nu <= stableLimit);
+  if (orders.length === 0) {
+    return { available: false, reason: 'the stable part has no input–output behaviour (all Hankel singular values are negligible)' };
+  }
+  const figures: Record<number, OrderFiguresRecord> = {};
+  orders.forEach((order, k) => {
+    const reduced = basis.truncateAt(order);
+    const poles: ComplexVector = reduced.stablePart.A.rows > 0 ? modelPoles(reduced.stablePart.A) : { re: new Float64Array(0), im: new Float64Array(0) };
+    figures[order] = figuresFromPoles(poles.re, poles.im, kept, reduced.errorBound);
+    onOrder?.(k + 1, orders.length);
+  });
+  let limitNote: string | null = null;
+  if (basis.minimalOrder < basis.stableStates && basis.minimalOrder <= MAX_BALANCED_STABLE_ORDER) {
+    limitNote =
+      `The stable part is numerically of order ${basis.minimalOrder}: its other ${basis.stableStates - basis.minimalOrder} ` +
+      'Hankel singular values are below the rank tolerance, so more states would add nothing.';
+  } else if (basis.minimalOrder > MAX_BALANCED_STABLE_ORDER) {
+    limitNote = `The slider offers up to ${MAX_BALANCED_STABLE_ORDER} stable states; choose "by tolerance" for a larger order.`;
+  }
+  return { available: true, orders, figures, limitNote };
+}
+
+export type ModalRanking = { rule: 'dominance' } | { rule: 'slowest' } | { rule: 'band'; band: readonly [number, number] };
+
+/**
+ * The stable modes in the order modal truncation keeps them, by the same rules as reduction/modal.ts
+ * (rankedModalForm): by dominance; slowest first (smallest |Re λ|, then dominance); or the modes whose
+ * natural frequency lies in the band first, then by dominance.
+ */
+export function rankModes(modes: readonly ModeRecord[], ranking: ModalRanking): ModeRecord[] {
+  const stable = modes.filter((m) => m.stability === 'stable' && m.dominance !== null);
+  const dominance = (a: ModeRecord, b: ModeRecord) => (b.dominance ?? 0) - (a.dominance ?? 0);
+  if (ranking.rule === 'dominance') return [...stable].sort(dominance);
+  if (ranking.rule === 'slowest') return [...stable].sort((a, b) => Math.abs(a.re) - Math.abs(b.re) || dominance(a, b));
+  const [lo, hi] = ranking.band;
+  const inBand = (m: ModeRecord) => {
+    const wn = Math.hypot(m.re, m.im);
+    return wn >= lo && wn <= hi;
+  };
+  return [...stable].sort((a, b) => Number(inBand(b)) - Number(inBand(a)) || dominance(a, b));
+}
+
+/** Number of states of the modes inside the band: the band rule's own order (reduction/modal.ts, statesInBand). */
+export function statesInBand(modes: readonly ModeRecord[], band: readonly [number, number]): number {
+  return modes
+    .filter((m) => m.stability === 'stable' && Math.hypot(m.re, m.im) >= band[0] && Math.hypot(m.re, m.im) <= band[1])
+    .reduce((s, m) => s + m.states, 0);
+}
+
+/**
+ * Modal truncation figures at every cut point of the ranking: the modal bound Σ dominance over the
+ * discarded modes (reduction/modal.ts; Antoulas 2005, §9.2), and stiffness and step limits from the kept
+ * modes by running minima (each step limit is the minimum of per-pole limits, reduction/step-limits.ts).
+ */
+export function modalOrderFigures(modes: readonly ModeRecord[], kept: KeptPoles, ranking: ModalRanking, reliable: boolean): OrderFigureTable {
+  if (!reliable) {
+    return {
+      available: false,
+      reason: 'modal truncation needs a diagonalizable A, and this model has (nearly) repeated poles in a Jordan chain; use balanced truncation',
+    };
+  }
+  const ranked = rankModes(modes, ranking);
+  if (ranked.length === 0) return { available: false, reason: 'the model has no stable modes to choose from' };
+  const nu = kept.unstable + kept.marginal;
+  const keptStep = keptForStepLimits(kept);
+  const keptLimits = stepLimitsFromPoles({ re: Float64Array.from(keptStep.re), im: Float64Array.from(keptStep.im) });
+  let euler = keptLimits.forwardEuler.maxStep;
+  let rk4 = keptLimits.rk4.maxStep;
+  let fast = 0;
+  let slow = Infinity;
+  let tail = ranked.reduce((s, m) => s + (m.dominance ?? 0), 0);
+  let states = 0;
+  const orders: number[] = [];
+  const figures: Record<number, OrderFiguresRecord> = {};
+  for (const mode of ranked) {
+    tail -= mode.dominance ?? 0;
+    states += mode.states;
+    const one = stepLimitsFromPoles({ re: Float64Array.of(mode.re, mode.re), im: Float64Array.of(mode.im, -mode.im) });
+    euler = Math.min(euler, one.forwardEuler.maxStep);
+    rk4 = Math.min(rk4, one.rk4.maxStep);
+    fast = Math.max(fast, -mode.re);
+    slow = Math.min(slow, -mode.re);
+    const order = states + nu;
+    orders.push(order);
+    figures[order] = {
+      errorBound: Math.max(0, tail),
+      keptUnstable: kept.unstable,
+      keptMarginal: kept.marginal,
+      stiffnessRatio: fast > 0 ? fast / slow : null,
+      maxStableStepEuler: finiteOrNull(euler),
+      maxStableStepRk4: finiteOrNull(rk4),
+    };
+  }
+  return { available: true, orders, figures, limitNote: null };
+}

@@ -1,0 +1,215 @@
+// The shapes the engine tasks hand back and the database keeps (analyses.result, accuracy_reports.figures
+// and .curves, jobs.result). Plain JSON: no typed arrays, and every non-finite number already turned into
+// null with its meaning stated beside the field, because PostgreSQL's jsonb holds neither NaN nor Infinity.
+//
+// Type-only module: pages and client components may import it.
+import type { SourceFormat } from './model-files';
+
+export type PoleStability = 'stable' | 'marginal' | 'unstable';
+
+/** A norm that is finite, or why it is not. */
+export type NormRecord = { finite: true; value: number } | { finite: false; reason: string };
+
+export interface StepLimitRecord {
+  /** Largest stable fixed step in the model's time unit; null when no pole limits it (integrators only). */
+  maxStep: number | null;
+  limitingPole: [number, number] | null;
+}
+
+/** The figures the order slider shows for one order (components/workspace/order-steps.ts, OrderFigures). */
+export interface OrderFiguresRecord {
+  errorBound: number | null;
+  keptUnstable: number;
+  keptMarginal: number;
+  stiffnessRatio: number | null;
+  maxStableStepEuler: number | null;
+  maxStableStepRk4: number | null;
+}
+
+export type OrderFigureTable =
+  | {
+      available: true;
+      /** Allowed total orders, ascending (every state kept for marginal/unstable poles included). */
+      orders: number[];
+      figures: Record<number, OrderFiguresRecord>;
+      /** Why the list stops where it does, when it stops before the full order. */
+      limitNote: string | null;
+    }
+  | { available: false; reason: string };
+
+export interface ModeRecord {
+  re: number;
+  im: number;
+  /** a complex pair, listed once with im > 0 */
+  pair: boolean;
+  stability: PoleStability;
+  /** ‖mode's contribution‖∞ bound (reduction/modal.ts); null for marginal and unstable poles */
+  dominance: number | null;
+  states: 1 | 2;
+}
+
+export interface AnalysisRecord {
+  engineVersion: string;
+  format: SourceFormat;
+  states: number;
+  inputs: number;
+  outputs: number;
+  nonzerosA: number;
+  inputNames: string[] | null;
+  outputNames: string[] | null;
+  timeUnit: string | null;
+  poles: { re: number[]; im: number[]; stability: PoleStability[] };
+  stable: boolean;
+  stablePoles: number;
+  marginalPoles: number;
+  unstablePoles: number;
+  stabilityTolerance: number;
+  stiffnessRatio: number | null;
+  slowestDecayRate: number | null;
+  fastestDecayRate: number | null;
+  dcGain: { defined: true; value: number[][] } | { defined: false; reason: string };
+  h2Norm: NormRecord;
+  /** ‖G‖∞ with its peak frequency (null: the peak is σmax(D) as ω → ∞) */
+  hinfNorm: ({ finite: true; value: number; peakFrequency: number | null }) | { finite: false; reason: string };
+  /** ‖Gs‖∞ of the stable part: the scale of relative errors (= ‖G‖∞ when G is stable) */
+  stablePartHinfNorm: number | null;
+  hankelSingularValues: number[];
+  /** 2Σσ(r+1..n) for r = 0..n, the balanced methods' bound on the stable part */
+  hankelBound: number[];
+  modes: ModeRecord[];
+  modalDominanceReliable: boolean;
+  eigenvectorCondition: number | null;
+  stepLimits: { forwardEuler: StepLimitRecord; rk4: StepLimitRecord };
+  /** band that shows every pole's corner, rad per time unit (reduction/frequency.ts) */
+  frequencyBand: [number, number];
+  orderFigures: {
+    balanced: OrderFigureTable;
+    residualization: OrderFigureTable;
+    modalDominance: OrderFigureTable;
+    modalSlowest: OrderFigureTable;
+  };
+  wallMs: number;
+}
+
+export interface ChannelCurves {
+  /** [output][input][k] */
+  re: number[][][];
+  im: number[][][];
+}
+
+export interface TimeCurves {
+  t: number[];
+  /** [input][output][k]: response of each output to a unit step (or impulse) on one input */
+  full: number[][][];
+  reduced: number[][][];
+  solverFull: string;
+  solverReduced: string;
+}
+
+export interface ReductionCurves {
+  frequency: {
+    w: number[];
+    full: ChannelCurves;
+    reduced: ChannelCurves;
+    sigmaFull: number[];
+    sigmaReduced: number[];
+    /** σmax(G(jω) − Gr(jω)), from the error system itself */
+    error: number[];
+  };
+  step: TimeCurves;
+  impulse: TimeCurves;
+}
+
+export interface SolverCostRecord {
+  solver: string;
+  steps: number;
+  rejectedSteps: number;
+  rhsEvaluations: number;
+  factorizations: number;
+  pointsStored: number;
+  wallMs: number;
+}
+
+export interface CostRowRecord {
+  solver: string;
+  full: SolverCostRecord | null;
+  reduced: SolverCostRecord;
+  /** why the full model was not run with this solver (too many steps to be worth it) */
+  skippedFull: string | null;
+  maxOutputDifference: number | null;
+}
+
+export interface AcceptanceRecord {
+  minFrequency: number;
+  maxFrequency: number;
+  maxError: number;
+  passed: boolean;
+  worstError: number;
+  worstFrequency: number;
+  samplesChecked: number;
+}
+
+/** accuracy_reports.figures: the FiguresTable's fields (components/workspace/figures-rows.ts) and more. */
+export interface AccuracyFiguresRecord {
+  fullOrder: number;
+  reducedOrder: number;
+  stableOrder: number;
+  unstableStatesKept: number;
+  method: string;
+  hinfError: number | null;
+  hinfErrorFrequency: number | null;
+  hinfErrorRelative: number | null;
+  referenceHinfNorm: number | null;
+  errorBound: number | null;
+  h2Error: number | null;
+  h2ErrorNote: string | null;
+  dcGainError: number | null;
+  peakStepError: number | null;
+  stiffnessRatioFull: number | null;
+  stiffnessRatioReduced: number | null;
+  /** the reduced model's own slider figures: kept states, stiffness, largest stable explicit steps */
+  reducedOrderFigures: OrderFiguresRecord;
+  /** the adaptive solver each model needs (stiff or explicit), side by side */
+  simulation: { full: SolverCostRecord; reduced: SolverCostRecord } | null;
+  simulationInput: string;
+  simulationEnd: number;
+  costRows: CostRowRecord[];
+  acceptance: AcceptanceRecord | null;
+  orderRule: 'order' | 'tolerance';
+  toleranceTarget: number | null;
+  notes: string[];
+  engineWallMs: number;
+}
+
+export interface ReducedMatricesRecord {
+  A: number[][];
+  B: number[][];
+  C: number[][];
+  D: number[][];
+  inputNames?: string[];
+  outputNames?: string[];
+  timeUnit?: string;
+}
+
+export interface ReductionRecord {
+  matrices: ReducedMatricesRecord;
+  order: number;
+  unstableStatesKept: number;
+  figures: AccuracyFiguresRecord;
+  curves: ReductionCurves;
+  acceptancePassed: boolean | null;
+  engineVersion: string;
+}
+
+/** jobs.result of a response job: one channel set of an uploaded input signal. */
+export interface InputResponseRecord {
+  description: string;
+  t: number[];
+  /** [output][k] */
+  full: number[][];
+  reduced: number[][];
+  solverFull: string;
+  solverReduced: string;
+  wallMsFull: number;
+  wallMsReduced: number;
+}

@@ -1,0 +1,361 @@
+// One reduction run, in a worker thread: the recipe through the engine's reduce entry (reduction/reduce.ts:
+// balanced truncation, Laub et al. 1987; balanced residualization, Liu & Anderson 1989; modal truncation,
+// reduction/modal.ts), then everything the comparison page draws and the accuracy report states:
+//
+//   frequency: G and Gr per channel on a log grid over the poles' band (reduction/frequency.ts, Laub 1981
+//     Hessenberg evaluation), with the H∞ error peak and the acceptance band sampled densely; σmax of each;
+//     and σmax of the error system G − Gr itself (errorSystem), not the difference of two large numbers;
+//   time: step and impulse responses per input (reduction/simulate, auto solver), and the simulation cost of
+//     full versus reduced with the same solvers, input and output grid (simulationCostReport);
+//   figures: measured H∞ (Bruinsma & Steinbuch 1990) and H2 errors and the DC-gain error from
+//     assessReduction, the a-priori bound, stiffness ratios, and the acceptance verdict.
+import {
+  errorSystem,
+  frequencyEvaluator,
+  largestSingularValue,
+  logFrequencyGrid,
+  modelPoles,
+  reduceModel,
+  simulate,
+  stepInput,
+  impulseInput,
+  toRows,
+  ModelError,
+  type ModalSelection,
+  type ReductionRecipe,
+  type SimulationResult,
+  type SolverStats,
+  type StateSpaceModel,
+} from '../../reduction/index';
+// The cost report is not re-exported by reduction/index.ts (yet); it is a public function of its module.
+import { simulationCostReport } from '../../reduction/simulate/cost-report';
+import { loadModel, type ModelFile } from './model-files';
+import { figuresFromPoles, keptPolesOf } from './order-figures';
+import type { ProgressReporter } from './progress';
+import type {
+  AcceptanceRecord,
+  AccuracyFiguresRecord,
+  AnalysisRecord,
+  ChannelCurves,
+  CostRowRecord,
+  ReductionCurves,
+  ReductionRecord,
+  SolverCostRecord,
+  TimeCurves,
+} from './records';
+
+export interface RecipeInput {
+  method: 'balanced' | 'residualization' | 'modal';
+  order: number | null;
+  tolerance: number | null;
+  modal?: { selection: 'dominance' | 'slowest' | 'band'; band?: { minFrequency: number; maxFrequency: number } } | null;
+  acceptance?: { minFrequency: number; maxFrequency: number; maxError: number } | null;
+}
+
+/** What the reduction needs from the stored analysis, so it is not computed twice. */
+export type AnalysisSummary = Pick<AnalysisRecord, 'frequencyBand' | 'stablePartHinfNorm' | 'stiffnessRatio' | 'modes' | 'fastestDecayRate' | 'poles' | 'stabilityTolerance'>;
+
+const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
+
+/** Points of the frequency grid over the poles' band, and inside an acceptance band. */
+const GRID_POINTS = 240;
+const BAND_POINTS = 120;
+const TIME_POINTS = 401;
+/** Stiffness ratio from which a model counts as stiff (common practice; reduction/simulate/auto.ts uses the same). */
+const STIFF_RATIO = 1e3;
+/** Explicit (Dormand–Prince) runs are skipped above these estimates: the point is made long before. */
+const EXPLICIT_MAX_STEPS = 200_000;
+const EXPLICIT_MAX_FLOPS = 3e9;
+
+export function reductionRecipe(recipe: RecipeInput): ReductionRecipe {
+  let modalSelection: ModalSelection | undefined;
+  if (recipe.method === 'modal' && recipe.modal) {
+    const { selection, band } = recipe.modal;
+    if (selection === 'band') {
+      if (!band) throw new ModelError('invalid_option', 'band', 'the band rule needs a frequency band');
+      modalSelection = { rule: 'band', band: [band.minFrequency, band.maxFrequency] };
+    } else {
+      modalSelection = { rule: selection };
+    }
+  }
+  return {
+    method: recipe.method,
+    order: recipe.order ?? undefined,
+    tolerance: recipe.tolerance ?? undefined,
+    modalSelection,
+  };
+}
+
+function sortedUnique(values: number[]): number[] {
+  const sorted = values.filter((w) => Number.isFinite(w) && w > 0).sort((a, b) => a - b);
+  const out: number[] = [];
+  for (const w of sorted) if (out.length === 0 || w > out[out.length - 1] * (1 + 1e-12)) out.push(w);
+  return out;
+}
+
+function channelCurves(evaluator: ReturnType<typeof frequencyEvaluator>, w: readonly number[], p: number, m: number) {
+  const curves: ChannelCurves = {
+    re: Array.from({ length: p }, () => Array.from({ length: m }, () => new Array<number>(w.length))),
+    im: Array.from({ length: p }, () => Array.from({ length: m }, () => new Array<number>(w.length))),
+  };
+  const sigma: number[] = new Array(w.length);
+  w.forEach((wk, k) => {
+    const g = evaluator.at(wk);
+    for (let i = 0; i < p; i++) {
+      for (let j = 0; j < m; j++) {
+        curves.re[i][j][k] = g.re.data[i * m + j];
+        curves.im[i][j][k] = g.im.data[i * m + j];
+      }
+    }
+    sigma[k] = largestSingularValue(g);
+  });
+  return { curves, sigma };
+}
+
+/**
+ * End time of the step and impulse responses: five time constants of the slowest of the modes that carry
+ * 95 % of the dominance (so a negligible slow mode does not stretch the plot), common practice for a
+ * settling window; but no more than 20 periods of the most dominant oscillating mode, so a lightly damped
+ * structure's ringing is drawn with ~20 points per period on the 401-point grid instead of aliased.
+ */
+export function simulationEnd(summary: AnalysisSummary): number {
+  const stable = summary.modes.filter((m) => m.stability === 'stable' && m.dominance !== null).sort((a, b) => (b.dominance ?? 0) - (a.dominance ?? 0));
+  const total = stable.reduce((s, m) => s + (m.dominance ?? 0), 0);
+  let sum = 0;
+  let slowest = Infinity;
+  for (const m of stable) {
+    slowest = Math.min(slowest, -m.re);
+    sum += m.dominance ?? 0;
+    if (sum >= 0.95 * total) break;
+  }
+  if (!(Number.isFinite(slowest) && slowest > 0)) {
+    const fastest = summary.fastestDecayRate;
+    return fastest && fastest > 0 ? 50 / fastest : 10;
+  }
+  let tEnd = 5 / slowest;
+  const ringing = stable.find((m) => m.im > 0);
+  if (ringing) tEnd = Math.min(tEnd, (20 * 2 * Math.PI) / ringing.im);
+  return tEnd;
+}
+
+function timeCurves(full: StateSpaceModel, reduced: StateSpaceModel, kind: 'step' | 'impulse', tEnd: number): TimeCurves {
+  const m = full.B.cols;
+  const p = full.C.rows;
+  const perInput = (model: StateSpaceModel) => {
+    const results: SimulationResult[] = [];
+    for (let j = 0; j < m; j++) {
+      const input = kind === 'step' ? stepInput(model, j + 1) : impulseInput(model, j + 1);
+      results.push(simulate(model, input, { tEnd, points: TIME_POINTS, solver: 'auto' }));
+    }
+    return results;
+  };
+  const f = perInput(full);
+  const r = perInput(reduced);
+  const column = (res: SimulationResult, i: number) => Array.from({ length: res.y.rows }, (_, k) => res.y.data[k * p + i]);
+  return {
+    t: Array.from(f[0].t),
+    full: f.map((res) => Array.from({ length: p }, (_, i) => column(res, i))),
+    reduced: r.map((res) => Array.from({ length: p }, (_, i) => column(res, i))),
+    solverFull: f[0].solver,
+    solverReduced: r[0].solver,
+  };
+}
+
+function costOf(solver: string, s: SolverStats): SolverCostRecord {
+  return {
+    solver,
+    steps: s.steps,
+    rejectedSteps: s.rejectedSteps,
+    rhsEvaluations: s.rhsEvaluations,
+    factorizations: s.factorizations,
+    pointsStored: s.pointsStored,
+    wallMs: s.wallMs,
+  };
+}
+
+/** Dormand–Prince is stable along the negative real axis for |hλ| ≲ 3.3 (Hairer & Wanner 1996, §IV.2). */
+function explicitEstimate(model: StateSpaceModel, spectralRadius: number, tEnd: number): { steps: number; flops: number } {
+  const steps = (tEnd * spectralRadius) / 3.3;
+  const n = model.A.rows;
+  return { steps, flops: steps * 6 * 2 * n * (n + model.B.cols) };
+}
+
+function spectralRadiusOf(re: ArrayLike<number>, im: ArrayLike<number>): number {
+  let rho = 0;
+  for (let k = 0; k < re.length; k++) rho = Math.max(rho, Math.hypot(re[k], im[k]));
+  return rho;
+}
+
+function costRows(full: StateSpaceModel, reduced: StateSpaceModel, fullRadius: number, reducedRadius: number, tEnd: number) {
+  const input = stepInput(full);
+  const options = { tEnd, points: TIME_POINTS };
+  const both = simulationCostReport(full, reduced, input, options, ['exact', 'stiff']);
+  const rows: CostRowRecord[] = both.rows.map((row) => ({
+    solver: row.solver,
+    full: costOf(row.solver, row.full),
+    reduced: costOf(row.solver, row.reduced),
+    skippedFull: null,
+    maxOutputDifference: row.maxOutputDifference,
+  }));
+  const estimate = explicitEstimate(full, fullRadius, tEnd);
+  const reducedEstimate = explicitEstimate(reduced, reducedRadius, tEnd);
+  const affordable = (e: { steps: number; flops: number }) => e.steps <= EXPLICIT_MAX_STEPS && e.flops <= EXPLICIT_MAX_FLOPS;
+  if (affordable(estimate)) {
+    const explicit = simulationCostReport(full, reduced, input, options, ['explicit']).rows[0];
+    rows.push({
+      solver: 'explicit',
+      full: costOf('explicit', explicit.full),
+      reduced: costOf('explicit', explicit.reduced),
+      skippedFull: null,
+      maxOutputDifference: explicit.maxOutputDifference,
+    });
+  } else if (affordable(reducedEstimate)) {
+    const r = simulate(reduced, input, { ...options, solver: 'explicit' });
+    rows.push({
+      solver: 'explicit',
+      full: null,
+      reduced: costOf('explicit', r.stats),
+      skippedFull:
+        `not run: its fastest pole (|λ| = ${fullRadius.toPrecision(3)}) holds an explicit solver to about ` +
+        `${Math.ceil(estimate.steps).toLocaleString('en-US')} steps over ${tEnd.toPrecision(3)} time units`,
+      maxOutputDifference: null,
+    });
+  }
+  return { rows, description: both.input };
+}
+
+function checkAcceptance(
+  band: NonNullable<RecipeInput['acceptance']>,
+  w: readonly number[],
+  error: readonly number[],
+): AcceptanceRecord {
+  let worstError = -Infinity;
+  let worstFrequency = band.minFrequency;
+  let samples = 0;
+  w.forEach((wk, k) => {
+    if (wk < band.minFrequency || wk > band.maxFrequency) return;
+    samples++;
+    if (error[k] > worstError) {
+      worstError = error[k];
+      worstFrequency = wk;
+    }
+  });
+  return {
+    minFrequency: band.minFrequency,
+    maxFrequency: band.maxFrequency,
+    maxError: band.maxError,
+    passed: samples > 0 && worstError <= band.maxError,
+    worstError: Math.max(0, worstError),
+    worstFrequency,
+    samplesChecked: samples,
+  };
+}
+
+export function runReduction(
+  files: readonly ModelFile[],
+  recipe: RecipeInput,
+  summary: AnalysisSummary,
+  engineVersion: string,
+  report: ProgressReporter,
+): ReductionRecord {
+  const started = Date.now();
+  report('Reading the model files', 0);
+  const { model } = loadModel(files);
+  const methodWords = { balanced: 'balanced truncation', residualization: 'balanced residualization', modal: 'modal truncation' }[recipe.method];
+  report(`Reducing by ${methodWords} and measuring the H∞ and H2 errors`, 0.03);
+  const r = reduceModel(model, reductionRecipe(recipe));
+  const reduced = r.model;
+  const p = model.C.rows;
+  const m = model.B.cols;
+
+  report('Frequency responses of the full and the reduced model', 0.5);
+  const [lo, hi] = summary.frequencyBand;
+  const gridValues = Array.from(logFrequencyGrid(lo, hi, GRID_POINTS));
+  if (r.hinfError.finite && Number.isFinite(r.hinfError.peakFrequency) && r.hinfError.peakFrequency > 0) {
+    gridValues.push(r.hinfError.peakFrequency);
+  }
+  if (recipe.acceptance) {
+    gridValues.push(...logFrequencyGrid(recipe.acceptance.minFrequency, recipe.acceptance.maxFrequency, BAND_POINTS));
+  }
+  const w = sortedUnique(gridValues);
+  const full = channelCurves(frequencyEvaluator(model), w, p, m);
+  const red = channelCurves(frequencyEvaluator(reduced), w, p, m);
+  report('Error of the reduced model across frequency', 0.6);
+  const errorEvaluator = frequencyEvaluator(errorSystem(r.basis.split.stable, r.stablePart));
+  const error = w.map((wk) => largestSingularValue(errorEvaluator.at(wk)));
+
+  const tEnd = simulationEnd(summary);
+  report('Step responses of the full and the reduced model', 0.66);
+  const step = timeCurves(model, reduced, 'step', tEnd);
+  report('Impulse responses of the full and the reduced model', 0.76);
+  const impulse = timeCurves(model, reduced, 'impulse', tEnd);
+  let peakStepError = 0;
+  step.full.forEach((outputs, j) =>
+    outputs.forEach((ys, i) => ys.forEach((y, k) => (peakStepError = Math.max(peakStepError, Math.abs(y - step.reduced[j][i][k]))))),
+  );
+
+  report('Simulation cost: full and reduced model with the same solvers', 0.86);
+  const stablePartPoles = r.stablePart.A.rows > 0 ? modelPoles(r.stablePart.A) : { re: new Float64Array(0), im: new Float64Array(0) };
+  const reducedOrderFigures = figuresFromPoles(stablePartPoles.re, stablePartPoles.im, keptPolesOf(summary.poles, summary.stabilityTolerance), r.errorBound);
+  const fullRadius = spectralRadiusOf(summary.poles.re, summary.poles.im);
+  const reducedPoles = modelPoles(reduced.A);
+  const cost = costRows(model, reduced, fullRadius, spectralRadiusOf(reducedPoles.re, reducedPoles.im), tEnd);
+  const needs = (ratio: number | null) => (ratio !== null && ratio >= STIFF_RATIO ? 'stiff' : 'explicit');
+  const fullRow = cost.rows.find((row) => row.solver === needs(summary.stiffnessRatio) && row.full) ?? cost.rows.find((row) => row.solver === 'stiff');
+  const reducedRow = cost.rows.find((row) => row.solver === needs(reducedOrderFigures.stiffnessRatio)) ?? cost.rows.find((row) => row.solver === 'stiff');
+
+  const acceptance = recipe.acceptance ? checkAcceptance(recipe.acceptance, w, error) : null;
+  const hinfError = r.hinfError.finite ? r.hinfError.value : null;
+  const reference = summary.stablePartHinfNorm;
+  const figures: AccuracyFiguresRecord = {
+    fullOrder: model.A.rows,
+    reducedOrder: r.order,
+    stableOrder: r.stableOrder,
+    unstableStatesKept: r.unstableStatesKept,
+    method: r.method,
+    hinfError,
+    hinfErrorFrequency: r.hinfError.finite ? finiteOrNull(r.hinfError.peakFrequency) : null,
+    hinfErrorRelative: hinfError !== null && reference !== null && reference > 0 ? hinfError / reference : null,
+    referenceHinfNorm: reference,
+    errorBound: finiteOrNull(r.errorBound),
+    h2Error: r.h2Error.finite ? r.h2Error.value : null,
+    h2ErrorNote: r.h2Error.finite ? null : r.h2Error.reason,
+    dcGainError: finiteOrNull(r.dcGainError),
+    peakStepError,
+    stiffnessRatioFull: summary.stiffnessRatio,
+    stiffnessRatioReduced: reducedOrderFigures.stiffnessRatio,
+    reducedOrderFigures,
+    simulation: fullRow?.full && reducedRow ? { full: fullRow.full, reduced: reducedRow.reduced } : null,
+    simulationInput: cost.description,
+    simulationEnd: tEnd,
+    costRows: cost.rows,
+    acceptance,
+    orderRule: r.orderChoice.rule,
+    toleranceTarget: r.orderChoice.target ?? null,
+    notes: [...r.notes],
+    engineWallMs: Date.now() - started,
+  };
+  const curves: ReductionCurves = {
+    frequency: { w, full: full.curves, reduced: red.curves, sigmaFull: full.sigma, sigmaReduced: red.sigma, error },
+    step,
+    impulse,
+  };
+  report('Writing the reduced model', 0.98);
+  return {
+    matrices: {
+      A: toRows(reduced.A),
+      B: toRows(reduced.B),
+      C: toRows(reduced.C),
+      D: toRows(reduced.D),
+      ...(model.inputNames ? { inputNames: [...model.inputNames] } : {}),
+      ...(model.outputNames ? { outputNames: [...model.outputNames] } : {}),
+      ...(model.timeUnit ? { timeUnit: model.timeUnit } : {}),
+    },
+    order: r.order,
+    unstableStatesKept: r.unstableStatesKept,
+    figures,
+    curves,
+    acceptancePassed: acceptance ? acceptance.passed : null,
+    engineVersion,
+  };
+}

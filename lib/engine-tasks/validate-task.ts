@@ -1,0 +1,56 @@
+// The check an upload passes before anything is registered: the files load into a valid model through
+// the engine's one validation boundary (model-files.ts). What it reports is what the version row records.
+import { readFileSync } from 'node:fs';
+import { ModelError, parseSampledInput } from '../../reduction/index';
+import { loadModel, nonzeros, type ModelFile, type SourceFormat } from './model-files';
+
+export interface ValidatedModel {
+  format: SourceFormat;
+  states: number;
+  inputs: number;
+  outputs: number;
+  nonzerosA: number;
+  timeUnit: string | null;
+}
+
+export type ValidationOutcome =
+  | { ok: true; model: ValidatedModel }
+  | { ok: false; error: { code: string; field: string; message: string } };
+
+export function validateModelFiles(files: readonly ModelFile[]): ValidationOutcome {
+  try {
+    const { model, format } = loadModel(files);
+    return {
+      ok: true,
+      model: {
+        format,
+        states: model.A.rows,
+        inputs: model.B.cols,
+        outputs: model.C.rows,
+        nonzerosA: nonzeros(model.A),
+        timeUnit: model.timeUnit ?? null,
+      },
+    };
+  } catch (e) {
+    if (e instanceof ModelError) return { ok: false, error: { code: e.code, field: e.field, message: e.message } };
+    // A file that is not text the parsers can read at all (binary, wrong encoding) ends up here.
+    const message = e instanceof Error ? e.message : String(e);
+    return { ok: false, error: { code: 'parse_error', field: files[0]?.role ?? 'model', message: `the model files cannot be read: ${message}` } };
+  }
+}
+
+export type SignalOutcome =
+  | { ok: true; samples: number; description: string }
+  | { ok: false; error: { code: string; field: string; message: string } };
+
+/** An input signal for the comparison page: time, then one column per model input (reduction/simulate/inputs.ts). */
+export function validateSignalFile(file: { path: string; name: string }, inputs: number): SignalOutcome {
+  try {
+    const signal = parseSampledInput(readFileSync(file.path, 'utf8'), inputs, file.name);
+    return { ok: true, samples: signal.breakpoints.length, description: signal.description };
+  } catch (e) {
+    if (e instanceof ModelError) return { ok: false, error: { code: e.code, field: 'signal', message: e.message } };
+    const message = e instanceof Error ? e.message : String(e);
+    return { ok: false, error: { code: 'parse_error', field: 'signal', message: `the input signal cannot be read: ${message}` } };
+  }
+}
