@@ -36,6 +36,8 @@ export async function proxy(request: NextRequest) {
 }
 
 export const config = {
-  // Static assets and Next.js internals never need a session.
-  matcher: ['/((?!_next/static|_next/image|favicon.ico|robots.txt).*)'],
+  // Static assets and Next.js internals never need a session. Upload routes (/api/uploads/…) are left out
+  // because Next.js buffers, and cuts at 10 MB, the whole body of a request that passes through the proxy;
+  // those handlers stream the body to disk and check the session themselves (requireRole).
+  matcher: ['/((?!_next/static|_next/image|favicon.ico|robots.txt|api/uploads/).*)'],
 };

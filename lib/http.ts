@@ -5,7 +5,7 @@ import { NextResponse } from 'next/server';
 import { z, ZodError } from 'zod';
 
 export interface ApiErrorBody {
-  error: { code: string; message: string; field?: string };
+  error: { code: string; message: string; field?: string; link?: string };
 }
 
 /** A refusal the client can act on: the status, a stable machine code, a sentence, and the field at fault. */
@@ -15,6 +15,8 @@ export class ApiError extends Error {
     readonly code: string,
     message: string,
     readonly field?: string,
+    /** a page the client should offer, e.g. the existing version a duplicate upload matches */
+    readonly link?: string,
   ) {
     super(message);
     this.name = 'ApiError';
@@ -29,6 +31,7 @@ export const notFound = (what: string) => new ApiError(404, 'not_found', `${what
 export function errorResponse(error: ApiError): NextResponse<ApiErrorBody> {
   const body: ApiErrorBody = { error: { code: error.code, message: error.message } };
   if (error.field) body.error.field = error.field;
+  if (error.link) body.error.link = error.link;
   return NextResponse.json(body, { status: error.status });
 }
 

@@ -45,6 +45,12 @@ export const GUARDED_ROUTES: readonly GuardedRoute[] = [
   { method: 'POST', file: 'api/reduced-versions/[id]/comments/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/comments', allowed: ['engineer', 'reviewer', 'admin'], invalidBody: { body: '' } },
   { method: 'POST', file: 'api/reduced-versions/[id]/next-draft/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/next-draft', allowed: ['engineer'] },
   { method: 'POST', file: 'api/reduced-versions/[id]/rerun/route.ts', path: '/api/reduced-versions/00000000-0000-4000-8000-000000000000/rerun', allowed: ['engineer'] },
+  // Source models and reductions (issue 5): uploads are multipart (a JSON body is refused as not multipart,
+  // 400) and streamed, so proxy.ts leaves /api/uploads/ to the handlers' own guard.
+  { method: 'POST', file: 'api/uploads/source-models/route.ts', path: '/api/uploads/source-models', allowed: ['engineer'], invalidBody: {} },
+  { method: 'POST', file: 'api/uploads/input-signals/route.ts', path: '/api/uploads/input-signals', allowed: ['engineer', 'reviewer'], invalidBody: {} },
+  { method: 'POST', file: 'api/reductions/route.ts', path: '/api/reductions', allowed: ['engineer'], invalidBody: { sourceVersionId: 'not-a-uuid' } },
+  { method: 'POST', file: 'api/jobs/[id]/retry/route.ts', path: '/api/jobs/not-a-uuid/retry', allowed: ['engineer'] },
   // Everyone's own notification settings: nobody is refused by role, a visitor is (401).
   { method: 'PATCH', file: 'api/profile/notifications/route.ts', path: '/api/profile/notifications', allowed: ['viewer', 'engineer', 'reviewer', 'admin'], invalidBody: { reviewDecided: 'yes' } },
 ];

@@ -1,0 +1,545 @@
+// Source models and their numbered versions (DESIGN.md §2, §4): the upload and its registration, the
+// list the source-model table pages through, and the reads behind the model and version pages.
+//
+// Registering a version is one transaction (the model row for a first upload, the version row, its
+// analysis job, the audit record), after the files have been streamed to disk, checked by the engine in a
+// separate process, and moved to their content address. Anything that fails before the commit removes
+// the files this upload placed, so a refused upload leaves no row and no file behind.
+import { createHash } from 'node:crypto';
+import { rmSync } from 'node:fs';
+import type { Knex } from 'knex';
+import { z } from 'zod';
+import { db } from '@/lib/db';
+import { recordAudit } from '@/lib/audit';
+import { ApiError, notFound } from '@/lib/http';
+import type { SessionUser } from '@/lib/auth';
+import { receiveUpload, type ReceivedFile } from '@/lib/uploads/receive';
+import { storeFile, storagePath, type StoredFile } from '@/lib/uploads/store';
+import { validateInChildProcess } from '@/lib/engine-tasks/validate-process';
+import { FILE_ROLES, type FileRole, type ModelFile, type SourceFormat } from '@/lib/engine-tasks/model-files';
+import type { AnalysisRecord } from '@/lib/engine-tasks/records';
+import { keptPolesOf, modalOrderFigures, statesInBand } from '@/lib/engine-tasks/order-figures';
+import { createJob, dispatchJob, latestJobFor, toJobView, type JobRow, type JobView } from '@/lib/jobs/jobs';
+
+// ---------------------------------------------------------------------------------------------------
+// Schemas: one base, the create and version forms derived from it (STYLE.md).
+
+const tagList = z
+  .string()
+  .max(400, 'Tags must be at most 400 characters in all.')
+  .transform((s) =>
+    Array.from(
+      new Set(
+        s
+          .split(',')
+          .map((t) => t.trim().toLowerCase())
+          .filter(Boolean),
+      ),
+    ),
+  )
+  .pipe(z.array(z.string().max(40, 'Each tag must be at most 40 characters.')).max(12, 'Give at most 12 tags.'));
+
+const sourceModelBase = z.object({
+  name: z.string({ error: 'Name is required.' }).trim().min(1, 'Name is required.').max(120, 'Name must be at most 120 characters.'),
+  description: z.string().trim().max(4000, 'Description must be at most 4000 characters.').default(''),
+  timeUnit: z
+    .string()
+    .trim()
+    .max(16, 'Time unit must be at most 16 characters.')
+    .regex(/^[A-Za-zµ]*$/, 'Time unit must be a unit name such as s, ms or h.')
+    .default(''),
+  tags: tagList.default([]),
+  notes: z.string().trim().max(2000, 'Notes must be at most 2000 characters.').default(''),
+  sourceModelId: z.uuid({ error: 'The source model id must be a UUID.' }),
+});
+
+export const newSourceModelSchema = sourceModelBase.omit({ sourceModelId: true });
+export const newVersionSchema = sourceModelBase.pick({ sourceModelId: true, notes: true });
+
+export type NewSourceModelInput = z.infer<typeof newSourceModelSchema>;
+
+// ---------------------------------------------------------------------------------------------------
+// Rows and views
+
+export interface SourceModelRow {
+  id: string;
+  name: string;
+  slug: string;
+  description: string;
+  time_unit: string;
+  tags: string[];
+  created_by: string;
+  created_at: Date;
+}
+
+export interface StoredFileEntry {
+  role: FileRole;
+  name: string;
+  size: number;
+  sha256: string;
+  storageKey: string;
+}
+
+export interface SourceVersionRow {
+  id: string;
+  source_model_id: string;
+  number: number;
+  checksum: string;
+  format: SourceFormat;
+  files: StoredFileEntry[];
+  states: number;
+  inputs: number;
+  outputs: number;
+  nonzeros_a: string | number;
+  notes: string;
+  uploaded_by: string;
+  created_at: Date;
+}
+
+export interface SourceVersionView {
+  id: string;
+  number: number;
+  checksum: string;
+  format: SourceFormat;
+  files: StoredFileEntry[];
+  states: number;
+  inputs: number;
+  outputs: number;
+  nonzerosA: number;
+  notes: string;
+  uploadedBy: { id: string; name: string };
+  createdAt: string;
+  analysed: boolean;
+  job: JobView | null;
+}
+
+export interface SourceModelView {
+  id: string;
+  name: string;
+  slug: string;
+  description: string;
+  timeUnit: string;
+  tags: string[];
+  createdAt: string;
+}
+
+export function versionPath(slug: string, number: number): string {
+  return `/source-models/${slug}/versions/${number}`;
+}
+
+function toModelView(row: SourceModelRow): SourceModelView {
+  return {
+    id: row.id,
+    name: row.name,
+    slug: row.slug,
+    description: row.description,
+    timeUnit: row.time_unit,
+    tags: row.tags,
+    createdAt: new Date(row.created_at).toISOString(),
+  };
+}
+
+// ---------------------------------------------------------------------------------------------------
+// Upload and registration
+
+/** The checksum of a version: one file's digest, or the digest of its "role:digest" lines in role order. */
+export function versionChecksum(files: readonly { role: FileRole; sha256: string }[]): string {
+  if (files.length === 1) return files[0].sha256;
+  const ordered = FILE_ROLES.flatMap((role) => files.filter((f) => f.role === role));
+  const text = ordered.map((f) => `${f.role}:${f.sha256}`).join('\n');
+  return createHash('sha256').update(text, 'utf8').digest('hex');
+}
+
+export function slugFromName(name: string): string {
+  const base = name
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, 60);
+  return base || 'model';
+}
+
+async function uniqueSlug(trx: Knex.Transaction, table: string, name: string): Promise<string> {
+  const base = slugFromName(name);
+  const taken = new Set(
+    (await trx(table).where('slug', base).orWhere('slug', 'like', `${base}-%`).pluck('slug')) as string[],
+  );
+  if (!taken.has(base)) return base;
+  for (let k = 2; ; k++) if (!taken.has(`${base}-${k}`)) return `${base}-${k}`;
+}
+
+const FILE_FIELDS: readonly FileRole[] = FILE_ROLES;
+
+/** Which uploaded files make the model: one JSON, or A, B, C and optionally D. Throws ApiError naming the field. */
+function modelFilesOf(files: Readonly<Record<string, ReceivedFile>>): ReceivedFile[] {
+  const given = FILE_FIELDS.filter((f) => files[f]);
+  if (given.length === 0) {
+    throw new ApiError(400, 'missing_file', 'Choose the model file (JSON) or the matrix files A, B, C (and optionally D).', 'model');
+  }
+  if (files.model && given.length > 1) {
+    throw new ApiError(400, 'invalid_request', 'Give either one JSON model file or the matrix files A, B, C, D, not both.', 'model');
+  }
+  if (!files.model) {
+    for (const role of ['A', 'B', 'C'] as const) {
+      if (!files[role]) throw new ApiError(400, 'missing_file', `The ${role} matrix file is missing (A, B and C are required; D is optional).`, role);
+    }
+  }
+  return given.map((f) => files[f]);
+}
+
+export interface RegisteredVersion {
+  sourceModel: SourceModelView;
+  version: { id: string; number: number; checksum: string; states: number; inputs: number; outputs: number };
+  job: JobView;
+  url: string;
+}
+
+async function storageKeyInUse(key: string): Promise<boolean> {
+  const row = await db()('source_versions')
+    .whereRaw(`files @> ?::jsonb`, [JSON.stringify([{ storageKey: key }])])
+    .first('id');
+  return Boolean(row);
+}
+
+function fieldErrorFromZod(err: z.ZodError): ApiError {
+  const issue = err.issues[0];
+  const field = issue?.path.map(String).join('.') || undefined;
+  return new ApiError(400, 'invalid_request', field ? `${field}: ${issue.message}` : issue?.message ?? 'The form is not valid.', field);
+}
+
+/**
+ * Receives a multipart upload (a new source model, or a new version when `sourceModelId` is given),
+ * checks it, stores it and registers it with its analysis job. Throws ApiError with the field at fault.
+ */
+export async function registerUpload(request: Request, user: SessionUser): Promise<RegisteredVersion> {
+  const upload = await receiveUpload(request, { fileFields: FILE_FIELDS });
+  const placed: StoredFile[] = [];
+  try {
+    const isNewVersion = Boolean(upload.fields.sourceModelId);
+    const parsed = isNewVersion ? newVersionSchema.safeParse(upload.fields) : newSourceModelSchema.safeParse(upload.fields);
+    if (!parsed.success) throw fieldErrorFromZod(parsed.error);
+    const received = modelFilesOf(upload.files);
+
+    let existingModel: SourceModelRow | undefined;
+    if (isNewVersion) {
+      existingModel = await db()<SourceModelRow>('source_models').where({ id: upload.fields.sourceModelId }).first();
+      if (!existingModel) throw new ApiError(404, 'not_found', 'The source model to add a version to was not found.', 'sourceModelId');
+    }
+
+    const checksum = versionChecksum(received.map((f) => ({ role: f.field as FileRole, sha256: f.sha256 })));
+    if (existingModel) await refuseDuplicate(existingModel, checksum, received[0].field);
+
+    const check = await validateInChildProcess(
+      received.map((f): ModelFile => ({ role: f.field as FileRole, name: f.originalName, path: f.tempPath })),
+    ).catch((e: Error) => {
+      throw new ApiError(422, 'check_failed', `The model could not be checked: ${e.message}`, received[0].field);
+    });
+    if (!check.ok) {
+      const field = FILE_FIELDS.includes(check.error.field as FileRole) ? check.error.field : received[0].field;
+      throw new ApiError(422, `invalid_model_${check.error.code}`, check.error.message, field);
+    }
+
+    for (const f of received) placed.push(storeFile(f.tempPath, f.sha256));
+    const files: StoredFileEntry[] = received.map((f, k) => ({
+      role: f.field as FileRole,
+      name: f.originalName,
+      size: f.size,
+      sha256: f.sha256,
+      storageKey: placed[k].storageKey,
+    }));
+
+    const registered = await db().transaction(async (trx) => {
+      let model: SourceModelRow;
+      if (existingModel) {
+        // Lock the model row: two versions uploaded at once get consecutive numbers, not the same one.
+        model = (await trx<SourceModelRow>('source_models').where({ id: existingModel.id }).forUpdate().first())!;
+      } else {
+        const input = parsed.data as NewSourceModelInput;
+        [model] = await trx<SourceModelRow>('source_models')
+          .insert({
+            name: input.name,
+            slug: await uniqueSlug(trx, 'source_models', input.name),
+            description: input.description,
+            time_unit: input.timeUnit || check.model.timeUnit || 's',
+            tags: input.tags,
+            created_by: user.id,
+          })
+          .returning('*');
+      }
+      const { max } = (await trx('source_versions').where({ source_model_id: model.id }).max('number as max').first()) as { max: number | null };
+      const number = (max ?? 0) + 1;
+      const [version] = await trx<SourceVersionRow>('source_versions')
+        .insert({
+          source_model_id: model.id,
+          number,
+          checksum,
+          format: check.model.format,
+          files: JSON.stringify(files) as unknown as StoredFileEntry[],
+          states: check.model.states,
+          inputs: check.model.inputs,
+          outputs: check.model.outputs,
+          nonzeros_a: check.model.nonzerosA,
+          notes: (parsed.data as { notes: string }).notes,
+          uploaded_by: user.id,
+        })
+        .returning('*');
+      const job = await createJob(trx, {
+        kind: 'analysis',
+        subjectType: 'source_version',
+        subjectId: version.id,
+        payload: { sourceVersionId: version.id },
+        createdBy: user.id,
+      });
+      await recordAudit(trx, {
+        actorId: user.id,
+        action: existingModel ? 'source_version.uploaded' : 'source_model.created',
+        subjectType: 'source_version',
+        subjectId: version.id,
+        details: { sourceModel: model.slug, number, checksum, states: version.states, format: version.format },
+      });
+      return { model, version, job };
+    });
+
+    await dispatchJob(registered.job.id);
+    return {
+      sourceModel: toModelView(registered.model),
+      version: {
+        id: registered.version.id,
+        number: registered.version.number,
+        checksum,
+        states: registered.version.states,
+        inputs: registered.version.inputs,
+        outputs: registered.version.outputs,
+      },
+      job: toJobView(registered.job),
+      url: versionPath(registered.model.slug, registered.version.number),
+    };
+  } catch (err) {
+    for (const f of placed) {
+      if (f.placed && !(await storageKeyInUse(f.storageKey))) rmSync(storagePath(f.storageKey), { force: true });
+    }
+    throw translateConstraint(err, upload.files);
+  } finally {
+    await upload.discard();
+  }
+}
+
+async function refuseDuplicate(model: SourceModelRow, checksum: string, field: string): Promise<void> {
+  const existing = await db()('source_versions').where({ source_model_id: model.id, checksum }).first('number');
+  if (existing) {
+    const url = versionPath(model.slug, existing.number);
+    throw new ApiError(
+      409,
+      'duplicate_version',
+      `These files are already version v${existing.number} of “${model.name}” (same SHA-256); nothing was added.`,
+      field,
+      url,
+    );
+  }
+}
+
+/** Two identical uploads racing past refuseDuplicate meet the unique constraint; say the same thing. */
+function translateConstraint(err: unknown, files: Readonly<Record<string, ReceivedFile>>): unknown {
+  const pg = err as { code?: string; constraint?: string };
+  if (pg?.code === '23505' && pg.constraint === 'source_versions_source_model_id_checksum_unique') {
+    const field = FILE_FIELDS.find((f) => files[f]) ?? 'model';
+    return new ApiError(409, 'duplicate_version', 'These files were just uploaded as a version of this model; nothing was added.', field);
+  }
+  return err;
+}
+
+// ---------------------------------------------------------------------------------------------------
+// The list (server-side sorted, filtered and paginated for the TanStack table)
+
+export const SOURCE_MODEL_SORTS = ['name', 'latestVersion', 'states', 'inputs', 'outputs', 'stiffnessRatio', 'stable', 'uploadedBy', 'uploadedAt'] as const;
+export type SourceModelSort = (typeof SOURCE_MODEL_SORTS)[number];
+
+export const sourceModelListSchema = z.object({
+  q: z.string().trim().max(100, 'The filter must be at most 100 characters.').default(''),
+  stable: z.enum(['', 'yes', 'no'], { error: 'stable must be yes, no or empty.' }).default(''),
+  sort: z.enum(SOURCE_MODEL_SORTS, { error: `sort must be one of ${SOURCE_MODEL_SORTS.join(', ')}.` }).default('uploadedAt'),
+  dir: z.enum(['asc', 'desc'], { error: 'dir must be asc or desc.' }).default('desc'),
+  page: z.coerce.number({ error: 'page must be a number.' }).int('page must be a whole number.').min(0, 'page must be 0 or more.').default(0),
+  pageSize: z.coerce.number({ error: 'pageSize must be a number.' }).int('pageSize must be a whole number.').min(5, 'pageSize must be at least 5.').max(100, 'pageSize must be at most 100.').default(20),
+});
+export type SourceModelListQuery = z.infer<typeof sourceModelListSchema>;
+
+export interface SourceModelListRow {
+  id: string;
+  name: string;
+  slug: string;
+  tags: string[];
+  latestVersion: number;
+  states: number;
+  inputs: number;
+  outputs: number;
+  stiffnessRatio: number | null;
+  stable: boolean | null;
+  uploadedBy: string;
+  uploadedAt: string;
+}
+
+const SORT_SQL: Record<SourceModelSort, string> = {
+  name: 'lower(sm.name)',
+  latestVersion: 'l.number',
+  states: 'l.states',
+  inputs: 'l.inputs',
+  outputs: 'l.outputs',
+  stiffnessRatio: 'stiffness_ratio',
+  stable: 'stable',
+  uploadedBy: 'lower(l.uploader_name)',
+  uploadedAt: 'l.created_at',
+};
+
+export async function listSourceModels(query: SourceModelListQuery): Promise<{ rows: SourceModelListRow[]; total: number }> {
+  const where: string[] = [];
+  const bindings: (string | number)[] = [];
+  if (query.q) {
+    where.push(`(sm.name ILIKE ? OR sm.description ILIKE ? OR EXISTS (SELECT 1 FROM unnest(sm.tags) t WHERE t ILIKE ?) OR l.uploader_name ILIKE ?)`);
+    const like = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+    bindings.push(like, like, like, like);
+  }
+  if (query.stable) where.push(query.stable === 'yes' ? `(a.result->>'stable')::boolean IS TRUE` : `(a.result->>'stable')::boolean IS FALSE`);
+  const base = `
+    FROM source_models sm
+    JOIN LATERAL (
+      SELECT sv.id, sv.number, sv.states, sv.inputs, sv.outputs, sv.created_at, u.name AS uploader_name
+      FROM source_versions sv JOIN users u ON u.id = sv.uploaded_by
+      WHERE sv.source_model_id = sm.id ORDER BY sv.number DESC LIMIT 1
+    ) l ON TRUE
+    LEFT JOIN analyses a ON a.source_version_id = l.id
+    ${where.length ? `WHERE ${where.join(' AND ')}` : ''}`;
+  const count = await db().raw(`SELECT count(*)::int AS total ${base}`, bindings);
+  const total = count.rows[0]?.total ?? 0;
+  const order = `${SORT_SQL[query.sort]} ${query.dir === 'asc' ? 'ASC' : 'DESC'} NULLS LAST, lower(sm.name) ASC, sm.id`;
+  const result = await db().raw(
+    `SELECT sm.id, sm.name, sm.slug, sm.tags, l.number, l.states, l.inputs, l.outputs, l.created_at, l.uploader_name,
+            CASE WHEN jsonb_typeof(a.result->'stiffnessRatio') = 'number' THEN (a.result->>'stiffnessRatio')::float8 END AS stiffness_ratio,
+            (a.result->>'stable')::boolean AS stable
+     ${base} ORDER BY ${order} LIMIT ? OFFSET ?`,
+    [...bindings, query.pageSize, query.page * query.pageSize],
+  );
+  const rows: SourceModelListRow[] = result.rows.map((r: Record<string, unknown>) => ({
+    id: r.id as string,
+    name: r.name as string,
+    slug: r.slug as string,
+    tags: r.tags as string[],
+    latestVersion: r.number as number,
+    states: r.states as number,
+    inputs: r.inputs as number,
+    outputs: r.outputs as number,
+    stiffnessRatio: (r.stiffness_ratio as number | null) ?? null,
+    stable: (r.stable as boolean | null) ?? null,
+    uploadedBy: r.uploader_name as string,
+    uploadedAt: new Date(r.created_at as string).toISOString(),
+  }));
+  return { rows, total };
+}
+
+// ---------------------------------------------------------------------------------------------------
+// Model and version pages
+
+export async function findSourceModel(slug: string): Promise<SourceModelView | null> {
+  const row = await db()<SourceModelRow>('source_models').where({ slug }).first();
+  return row ? toModelView(row) : null;
+}
+
+async function versionViews(rows: (SourceVersionRow & { uploader_name: string; analysed: boolean })[]): Promise<SourceVersionView[]> {
+  return Promise.all(
+    rows.map(async (v) => ({
+      id: v.id,
+      number: v.number,
+      checksum: v.checksum,
+      format: v.format,
+      files: v.files,
+      states: v.states,
+      inputs: v.inputs,
+      outputs: v.outputs,
+      nonzerosA: Number(v.nonzeros_a),
+      notes: v.notes,
+      uploadedBy: { id: v.uploaded_by, name: v.uploader_name },
+      createdAt: new Date(v.created_at).toISOString(),
+      analysed: v.analysed,
+      job: await latestJobFor('analysis', 'source_version', v.id),
+    })),
+  );
+}
+
+function versionsQuery(trx: Knex = db()) {
+  return trx('source_versions as sv')
+    .join('users as u', 'u.id', 'sv.uploaded_by')
+    .select('sv.*', 'u.name as uploader_name', trx.raw('EXISTS (SELECT 1 FROM analyses a WHERE a.source_version_id = sv.id) AS analysed'));
+}
+
+export async function listVersions(sourceModelId: string): Promise<SourceVersionView[]> {
+  const rows = await versionsQuery().where('sv.source_model_id', sourceModelId).orderBy('sv.number', 'desc');
+  return versionViews(rows);
+}
+
+export interface VersionPageData {
+  model: SourceModelView;
+  version: SourceVersionView;
+  analysis: AnalysisRecord | null;
+  latestNumber: number;
+}
+
+export async function getVersionPage(slug: string, number: number): Promise<VersionPageData | null> {
+  const model = await findSourceModel(slug);
+  if (!model) return null;
+  const row = await versionsQuery().where({ 'sv.source_model_id': model.id, 'sv.number': number }).first();
+  if (!row) return null;
+  const [version] = await versionViews([row]);
+  const analysisRow = await db()('analyses').where({ source_version_id: row.id }).first('result');
+  const { max } = (await db()('source_versions').where({ source_model_id: model.id }).max('number as max').first()) as { max: number };
+  return { model, version, analysis: analysisRow ? (analysisRow.result as AnalysisRecord) : null, latestNumber: max };
+}
+
+/** A version row by id, for the jobs and the reduction routes. */
+export async function findSourceVersion(id: string, trx: Knex | Knex.Transaction = db()): Promise<(SourceVersionRow & { model: SourceModelRow }) | null> {
+  const version = await trx<SourceVersionRow>('source_versions').where({ id }).first();
+  if (!version) return null;
+  const model = (await trx<SourceModelRow>('source_models').where({ id: version.source_model_id }).first())!;
+  return { ...version, model };
+}
+
+export async function requireSourceVersion(id: string): Promise<SourceVersionRow & { model: SourceModelRow }> {
+  const found = await findSourceVersion(id);
+  if (!found) throw notFound('The source version');
+  return found;
+}
+
+/** The engine's view of a version's files: absolute paths in the uploads folder. */
+export function modelFilesOfVersion(version: Pick<SourceVersionRow, 'files'>): ModelFile[] {
+  return version.files.map((f) => ({ role: f.role, name: f.name, path: storagePath(f.storageKey) }));
+}
+
+export async function analysisOf(sourceVersionId: string, trx: Knex | Knex.Transaction = db()): Promise<AnalysisRecord | null> {
+  const row = await trx('analyses').where({ source_version_id: sourceVersionId }).first('result');
+  return row ? (row.result as AnalysisRecord) : null;
+}
+
+/**
+ * Writes an analysis inside the job's finishing transaction. A second write for the same version (an
+ * attempt that was presumed dead and finished after all) changes nothing.
+ */
+export async function writeAnalysis(trx: Knex.Transaction, sourceVersionId: string, record: AnalysisRecord): Promise<void> {
+  await trx('analyses')
+    .insert({ source_version_id: sourceVersionId, result: JSON.stringify(record), engine_version: record.engineVersion })
+    .onConflict('source_version_id')
+    .ignore();
+}
+
+export type { JobRow };
+
+/** The order slider's figures for modal truncation with the band rule (lib/engine-tasks/order-figures.ts). */
+export async function bandOrderFigures(sourceVersionId: string, band: [number, number]) {
+  const analysis = await analysisOf(sourceVersionId);
+  if (!analysis) throw notFound('The analysis of this source version');
+  const kept = keptPolesOf(analysis.poles, analysis.stabilityTolerance);
+  return {
+    figures: modalOrderFigures(analysis.modes, kept, { rule: 'band', band }, analysis.modalDominanceReliable),
+    statesInBand: statesInBand(analysis.modes, band) + kept.unstable + kept.marginal,
+  };
+}
