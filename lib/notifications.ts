@@ -182,25 +182,33 @@ interface QueuedMailRow {
  * outside any transaction. `send` is the transport (tests pass a failing one).
  */
 export async function deliverDueMail(
-  options: { limit?: number; send?: (mail: OutgoingMail) => Promise<string>; onlyIds?: readonly string[] } = {},
+  options: {
+    limit?: number;
+    send?: (mail: OutgoingMail) => Promise<string>;
+    /** Only these queue rows (tests, and an admin's "send now"). */
+    onlyIds?: readonly string[];
+    /** The moment to judge "due" and to schedule retries from; the database clock when absent (tests move it). */
+    now?: Date;
+  } = {},
 ): Promise<DeliveryReport> {
   const limit = options.limit ?? DELIVERY_BATCH;
   const send = options.send ?? sendMail;
   const knex = db();
+  const clock = options.now ? knex.raw('?::timestamptz', [options.now.toISOString()]) : knex.raw('clock_timestamp()');
   const only = options.onlyIds ? `AND id = ANY(?::bigint[])` : '';
   const claimed = await knex.raw<{ rows: QueuedMailRow[] }>(
     `UPDATE mail_queue
         SET status = 'sending', attempts = attempts + 1,
-            claimed_until = clock_timestamp() + make_interval(secs => ?)
+            claimed_until = ? + make_interval(secs => ?)
       WHERE id IN (
         SELECT id FROM mail_queue
-         WHERE ((status = 'pending' AND next_attempt_at <= clock_timestamp())
-            OR (status = 'sending' AND claimed_until < clock_timestamp())) ${only}
+         WHERE ((status = 'pending' AND next_attempt_at <= ?)
+            OR (status = 'sending' AND claimed_until < ?)) ${only}
          ORDER BY id
          LIMIT ?
          FOR UPDATE SKIP LOCKED)
       RETURNING id, to_address, subject, text_body, html_body, attempts`,
-    options.onlyIds ? [CLAIM_SECONDS, options.onlyIds as string[], limit] : [CLAIM_SECONDS, limit],
+    [clock, CLAIM_SECONDS, clock, clock, ...(options.onlyIds ? [options.onlyIds as string[]] : []), limit],
   );
   const report: DeliveryReport = { sent: 0, retrying: 0, gaveUp: 0 };
   const deliverOne = async (row: QueuedMailRow) => {
@@ -219,7 +227,7 @@ export async function deliverDueMail(
           status: giveUp ? 'failed' : 'pending',
           claimed_until: null,
           last_error: message.slice(0, 1000),
-          next_attempt_at: knex.raw('clock_timestamp() + make_interval(secs => ?)', [retryDelaySeconds(row.attempts)]),
+          next_attempt_at: knex.raw('? + make_interval(secs => ?)', [clock, retryDelaySeconds(row.attempts)]),
         });
       if (giveUp) report.gaveUp += 1;
       else report.retrying += 1;
