@@ -5,7 +5,7 @@
 import path from 'node:path';
 import type { BenchCase } from './types';
 import { readNpy, readNpyMatrix } from './npy';
-import { type Matrix, type ComplexVector, zeros, eigenvalues } from '../../reduction/linalg/index';
+import { type Matrix, type ComplexVector, zeros, eigenvalues, multiply } from '../../reduction/linalg/index';
 import type { StateSpaceModel } from '../../reduction/model';
 import { balancedRealization, type BalancedRealization } from '../../reduction/balanced';
 import { frequencyResponse, type FrequencyResponse } from '../../reduction/frequency';
@@ -38,6 +38,24 @@ function eigenvalueDistance(ours: ComplexVector, ref: { re: Float64Array; im: Fl
   }
   return worst;
 }
+
+const productCase: BenchCase<Matrix, Matrix> = {
+  id: 'product',
+  title: 'matrix product A·A (packed gemm, two threads)',
+  sizes: [1000],
+  quickSizes: [400],
+  prepare: (dir) => readModel(dir).A,
+  run: (a) => multiply(a, a),
+  check(dir, a, c) {
+    const ref = readNpy(path.join(dir, 'ref_prod.npy')).data;
+    let worst = 0, scale = 0;
+    for (let k = 0; k < ref.length; k++) {
+      worst = Math.max(worst, Math.abs(c.data[k] - ref[k]));
+      scale = Math.max(scale, Math.abs(ref[k]));
+    }
+    return `max |ΔC|/max|C| ${(worst / scale).toExponential(1)}; ${a.rows}³ product`;
+  },
+};
 
 const eigenvalueCase: BenchCase<Matrix, ComplexVector> = {
   id: 'eigenvalues',
@@ -105,4 +123,4 @@ const frequencyCase: BenchCase<{ model: StateSpaceModel; w: Float64Array }, Freq
   },
 };
 
-export const cases: BenchCase[] = [eigenvalueCase, balancedCase, frequencyCase] as BenchCase[];
+export const cases: BenchCase[] = [productCase, eigenvalueCase, balancedCase, frequencyCase] as BenchCase[];

@@ -8,6 +8,7 @@ the very same matrices, writes the reference's results next to them (ref_*.npy) 
 check, and prints one JSON line: {"case", "n", "seconds", "peakRssKb", "blas", "method"}.
 
 Cases
+  product       A @ A (BLAS dgemm)
   eigenvalues   numpy.linalg.eigvals (LAPACK dgeev, no vectors)
   balanced      balanced truncation end to end, square-root method (Laub, Heath, Paige & Ward 1987):
                 two scipy.linalg.solve_continuous_lyapunov (Bartels-Stewart), Cholesky factors
@@ -112,7 +113,7 @@ def main():
     if len(args) != 3:
         sys.exit("usage: bench_reference.py CASE N DIR [--no-time]")
     case, n, out = args[0], int(args[1]), args[2]
-    seed = {"eigenvalues": 1, "balanced": 2, "frequency": 3}.get(case)
+    seed = {"eigenvalues": 1, "balanced": 2, "frequency": 3, "product": 4}.get(case)
     if seed is None:
         sys.exit(f"bench_reference.py: unknown case {case!r}")
     a, b, c = stable_model(n, 1000 * seed + n)
@@ -128,7 +129,9 @@ def main():
         runs = []
         while True:
             t0 = time.perf_counter()
-            if case == "eigenvalues":
+            if case == "product":
+                prod = a @ a
+            elif case == "eigenvalues":
                 lam = np.linalg.eigvals(a)
             elif case == "balanced":
                 hsv, _ = balanced(a, b, c)
@@ -138,7 +141,9 @@ def main():
             if len(runs) >= 3 or sum(runs) > 2.0:
                 break
         seconds = min(runs)
-        if case == "eigenvalues":
+        if case == "product":
+            np.save(os.path.join(out, "ref_prod.npy"), prod)
+        elif case == "eigenvalues":
             np.save(os.path.join(out, "ref_eig.npy"), np.stack([lam.real, lam.imag], axis=1))
         elif case == "balanced":
             np.save(os.path.join(out, "ref_hsv.npy"), hsv)
@@ -155,6 +160,7 @@ def main():
                 "peakRssKb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
                 "blas": blas_library(),
                 "method": {
+                    "product": "numpy matmul (dgemm)",
                     "eigenvalues": "numpy.linalg.eigvals (dgeev)",
                     "balanced": "2x solve_continuous_lyapunov + cholesky + svd + projection",
                     "frequency": "eigendecomposition, diagonal solve per frequency",
