@@ -7,15 +7,19 @@
 import { closeDb } from '../lib/db';
 import { closeQueue } from '../lib/jobs/queue';
 import { startWorker } from '../lib/jobs/worker-loop';
+import { startNotificationSender } from '../lib/notification-sender';
 
 async function main(): Promise<void> {
   const concurrency = Math.max(1, Number(process.env.MODESHELF_WORKER_CONCURRENCY) || 1);
   const worker = await startWorker({ concurrency });
+  // Review and project mail: retries, and notices for source versions registered by any process.
+  const stopNotifications = startNotificationSender();
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
     await worker.stop(`the worker got ${signal}`);
+    await stopNotifications();
     await closeQueue();
     await closeDb();
     process.exit(0);
