@@ -227,6 +227,16 @@ export interface PullRequestFacts {
 
 const unauthorised = (code: string, message: string) => new ApiError(401, code, message);
 
+type TokenLookupRow = ProjectTokenRow & {
+  p_name: string;
+  p_slug: string;
+  p_description: string;
+  p_sample_time: number | null;
+  p_created_by: string;
+  p_created_at: Date;
+  p_updated_at: Date;
+};
+
 /**
  * Checks the bearer token of a pull API request against the project named in its path, and records the use.
  *   401  no token, a token that is not ours, revoked, expired
@@ -245,27 +255,29 @@ export async function authenticatePull(
   if (!match) throw unauthorised('token_missing', 'The Authorization header must read "Bearer msp_…".');
   const token = match[1];
   if (!TOKEN_PATTERN.test(token)) throw unauthorised('token_invalid', 'That is not a Modeshelf project token.');
-  const row: (ProjectTokenRow & { p_id: string; p_name: string; p_slug: string; p_description: string; p_sample_time: number | null; p_created_by: string; p_created_at: Date; p_updated_at: Date }) | undefined =
-    await trx('project_tokens as t')
-      .join('controller_projects as p', 'p.id', 't.project_id')
-      .where('t.token_hash', hashProjectToken(token))
-      .first(
-        't.*',
-        'p.id as p_id',
-        'p.name as p_name',
-        'p.slug as p_slug',
-        'p.description as p_description',
-        'p.sample_time as p_sample_time',
-        'p.created_by as p_created_by',
-        'p.created_at as p_created_at',
-        'p.updated_at as p_updated_at',
-      );
+  // One round trip: find the token and, if it is live, record this use (the pull API's hot path). A
+  // data-modifying WITH runs once whether or not the outer query reads it (PostgreSQL manual,
+  // "Data-Modifying Statements in WITH").
+  const result = await trx.raw<{ rows: TokenLookupRow[] }>(
+    `WITH found AS (
+       SELECT t.*, p.name AS p_name, p.slug AS p_slug, p.description AS p_description,
+              p.sample_time AS p_sample_time, p.created_by AS p_created_by,
+              p.created_at AS p_created_at, p.updated_at AS p_updated_at
+         FROM project_tokens t JOIN controller_projects p ON p.id = t.project_id
+        WHERE t.token_hash = ?
+     ), recorded AS (
+       INSERT INTO token_uses (token_id, at, address, method, path)
+       SELECT id, ?, ?, ?, ? FROM found
+        WHERE revoked_at IS NULL AND (expires_at IS NULL OR expires_at > ?)
+     )
+     SELECT * FROM found`,
+    [hashProjectToken(token), now, facts.address, facts.method, facts.path.slice(0, 500), now],
+  );
+  const row = result.rows[0];
   if (!row) throw unauthorised('token_invalid', 'That project token is not known here.');
   const state = tokenState(row, now);
   if (state === 'revoked') throw unauthorised('token_revoked', `The project token "${row.name}" was revoked; ask a project engineer for a new one.`);
   if (state === 'expired') throw unauthorised('token_expired', `The project token "${row.name}" expired; ask a project engineer for a new one.`);
-
-  await trx('token_uses').insert({ token_id: row.id, at: now, address: facts.address, method: facts.method, path: facts.path.slice(0, 500) });
 
   if (row.p_slug !== facts.projectSlug) {
     throw new ApiError(403, 'wrong_project', 'This token belongs to another controller project.');
@@ -277,7 +289,7 @@ export async function authenticatePull(
     tokenId: row.id,
     scope: row.scope,
     project: {
-      id: row.p_id,
+      id: row.project_id,
       name: row.p_name,
       slug: row.p_slug,
       description: row.p_description,
