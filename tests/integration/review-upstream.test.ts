@@ -9,7 +9,8 @@ import { reducedModelsUpstream, queueUpstreamNotices, rerunRecipe, upstreamChang
 import { accuracySideBySide, reducedModelLineage, sourceModelLineage } from '@/lib/lineage';
 import { dashboardActivity } from '@/lib/activity';
 import { transitionVersion, versionSummary, type Actor } from '@/lib/reviews';
-import { setAfterCommitDelivery } from '@/lib/notification-sender';
+import { runNotificationRound, setAfterCommitDelivery } from '@/lib/notification-sender';
+import { startFakeSmtp, type FakeSmtp } from '@/lib/mail/fake-smtp';
 import { updatePreferences } from '@/lib/notifications';
 import type { UserRow } from '@/lib/people';
 import { makeUser, migrateTestDatabase } from './helpers';
@@ -18,15 +19,21 @@ import { addReducedVersion, addSourceVersion, makeShelf, markAnalysed, markAppro
 const actor = (u: UserRow): Actor => ({ id: u.id, name: u.name, role: u.role });
 let engineer: UserRow;
 let reviewer: UserRow;
+let smtp: FakeSmtp;
 
 beforeAll(async () => {
   await migrateTestDatabase();
-  setAfterCommitDelivery(false); // nothing here checks delivery; the queue rows are what is checked
+  // The queue rows are what is checked here; they are sent only at the end, so nothing is left pending.
+  setAfterCommitDelivery(false);
+  smtp = await startFakeSmtp(db(), 0);
+  process.env.SMTP_PORT = String(smtp.port);
   engineer = await makeUser({ role: 'engineer', label: 'author' });
   reviewer = await makeUser({ role: 'reviewer', label: 'reviewer' });
 });
 
 afterAll(async () => {
+  await runNotificationRound();
+  await smtp?.close();
   await closeQueue();
   await closeDb();
 });
