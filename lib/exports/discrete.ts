@@ -87,15 +87,23 @@ export function unitSeconds(timeUnit: string): number {
   return factor;
 }
 
-/** The sample-time check on the continuous poles (in the model's unit; unitToSeconds converts). */
-export function checkSampleTime(poles: { re: ArrayLike<number>; im: ArrayLike<number> }, tsSeconds: number, unitToSeconds: number): SampleTimeCheck {
+/**
+ * The sample-time check on the continuous poles (in the model's unit; unitToSeconds converts). `scale` is
+ * the size of A (its infinity norm): a pole whose modulus is below 1e-10 of it is taken to be at the origin,
+ * since eigenvalues of a singular A come back at rounding level rather than exactly zero.
+ */
+export function checkSampleTime(
+  poles: { re: ArrayLike<number>; im: ArrayLike<number> },
+  tsSeconds: number,
+  unitToSeconds: number,
+  scale: number,
+): SampleTimeCheck {
+  const origin = 1e-10 * scale;
   let fastestRate = 0;
-  const moduli: number[] = [];
-  for (let i = 0; i < poles.re.length; i++) moduli.push(Math.hypot(poles.re[i], poles.im[i]));
-  const largest = Math.max(0, ...moduli);
-  // "At the origin" relative to the model's own scale: eigenvalues of a singular A come back at ~eps*|A|.
-  const origin = largest * 1e-10;
-  for (const m of moduli) if (m > origin && m > fastestRate) fastestRate = m;
+  for (let i = 0; i < poles.re.length; i++) {
+    const modulus = Math.hypot(poles.re[i], poles.im[i]);
+    if (modulus > origin && modulus > fastestRate) fastestRate = modulus;
+  }
   if (fastestRate === 0) {
     return { fastestTimeConstant: null, fraction: SAMPLE_TIME_FRACTION, largestAdvisedTs: null, resolvesDynamics: true, warning: null };
   }
@@ -160,6 +168,6 @@ export function discretise(source: ExportSource, ts: number, tsSource: 'query' |
     matrices,
     matricesSha256: matricesSha256(matrices as StateSpaceRows),
     poles,
-    check: checkSampleTime(modelPoles(model.A), ts, toSeconds),
+    check: checkSampleTime(modelPoles(model.A), ts, toSeconds, Math.max(...source.matrices.A.map((r) => r.reduce((sum, x) => sum + Math.abs(x), 0)))),
   };
 }
