@@ -2,9 +2,9 @@
  * Cholesky factorisation A = L·Lᵀ of a symmetric positive definite matrix.
  *
  * Method: the row-oriented (dot-product) Cholesky–Banachiewicz ordering (Golub & Van Loan, Matrix
- * Computations, 4th ed., 2013, §4.2.5): L(i, j) = (A(i, j) − Σ_{k<j} L(i, k)·L(j, k)) / L(j, j), whose
+ * Computations, 4th ed., 2013, §4.2): L(i, j) = (A(i, j) − Σ_{k<j} L(i, k)·L(j, k)) / L(j, j), whose
  * inner loop is a dot product of two rows of L, contiguous in row-major storage. Only the lower
- * triangle of A is read. Backward stable without pivoting (ibid. §4.2.6).
+ * triangle of A is read. Backward stable without pivoting (ibid. §4.2).
  */
 import { type Matrix, zeros } from './matrix';
 

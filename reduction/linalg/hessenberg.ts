@@ -2,7 +2,7 @@
  * Orthogonal reduction to upper Hessenberg form, A = Q·H·Qᵀ.
  *
  * Method: Householder reflections applied from both sides (Golub & Van Loan, Matrix Computations,
- * 4th ed., 2013, Algorithm 7.4.2), with Q accumulated backwards from the stored reflectors (ibid. §5.1.6).
+ * 4th ed., 2013, §7.4), with Q accumulated backwards from the stored reflectors (ibid. §5.1).
  * Both one-sided updates are written as row operations, which is what row-major storage favours:
  * the left update combines rows, the right update is one dot product and one axpy per row.
  *
@@ -38,7 +38,7 @@ export function reduceToHessenberg(h: Float64Array, n: number, keepReflectors: b
   return vAll ? { tau: tauAll, v: vAll } : null;
 }
 
-/** Householder steps start..n−3, one reflector at a time (Golub & Van Loan Alg. 7.4.2). */
+/** Householder steps start..n−3, one reflector at a time (Golub & Van Loan §7.4). */
 function reduceUnblocked(h: Float64Array, n: number, start: number, tauAll: Float64Array, vAll: Float64Array | null): void {
   const steps = Math.max(0, n - 2);
   const v = new Float64Array(n);
@@ -237,7 +237,7 @@ export function formHessenbergQ(r: Reflectors, n: number): Matrix {
  * Upper Hessenberg H and orthogonal Q with A = Q·H·Qᵀ.
  *
  * Parameters: `a`, square, finite. Returns new matrices (A untouched). ‖A − Q·H·Qᵀ‖ and ‖QᵀQ − I‖ are
- * of the order n·ε·‖A‖ and n·ε (Householder backward stability, Golub & Van Loan §5.1.12).
+ * of the order n·ε·‖A‖ and n·ε (Householder backward stability, Golub & Van Loan §5.1).
  */
 export function hessenberg(a: Matrix): { H: Matrix; Q: Matrix } {
   if (a.rows !== a.cols) throw new Error(`hessenberg: matrix must be square, got ${a.rows}×${a.cols}`);

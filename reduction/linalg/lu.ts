@@ -2,7 +2,7 @@
  * LU factorisation with partial pivoting, P·A = L·U, and the solves and inverse built on it.
  *
  * Method: the right-looking blocked algorithm of LAPACK's dgetrf (Anderson et al., LAPACK Users' Guide,
- * 3rd ed., SIAM 1999; Golub & Van Loan, Matrix Computations, 4th ed., 2013, Alg. 3.4.2): an nb-column
+ * 3rd ed., SIAM 1999; Golub & Van Loan, Matrix Computations, 4th ed., 2013, §3.4): an nb-column
  * panel is factorised with level-2 operations, the block row of U is found by a unit-lower triangular
  * solve, and the trailing matrix is updated by one matrix product (`gemm`), which carries ~all the flops.
  * The inverse follows dgetri's operation count (2n³ in all): L⁻¹ exploiting its triangular shape, then

@@ -9,8 +9,8 @@
  * with the matrix sign function", Linear Algebra Appl. 85, 1987). Every step is an inversion and matrix
  * products (level-3 work), which is why it is fast on blocked kernels.
  *
- * Factored form for Q = B·Bᵀ (P. Benner, J. M. Claver & E. S. Quintana-Ortí, "Efficient numerical
- * algorithms for balanced stochastic truncation", 1999; P. Benner, E. S. Quintana-Ortí &
+ * Factored form for Q = B·Bᵀ (P. Benner, J. M. Claver & E. S. Quintana-Ortí, 1999, the coupled factored
+ * sign iteration — cited from memory, title not checked; P. Benner, E. S. Quintana-Ortí &
  * G. Quintana-Ortí, "Balanced truncation model reduction of large-scale dense systems on parallel
  * computers", Math. Comput. Model. Dyn. Syst. 6(4), 2000): B ← [√(c/2)·B, A⁻¹B/√(2c)], re-compressed every
  * step by a rank-revealing (column-pivoted) QR of Bᵀ, so X ≈ S·Sᵀ with S = B∞/√2 of numerical rank only.
@@ -24,7 +24,7 @@
 import { type Matrix, zeros } from './matrix';
 import { gemm } from './gemm';
 import { luFactor, luInverse, luLogDeterminant } from './lu';
-import { sharedFloat64, pairOnWorker } from './parallel';
+import { sharedFloat64, sharedInt32, pairOnWorker } from './parallel';
 import { pivotedQrOfRows } from './qr';
 import { pivotedCholesky } from './cholesky';
 
@@ -179,19 +179,18 @@ export function compressFactor(g: Float64Array, n: number, w: number, tol: numbe
   return unpermute(work, n, w, rank, perm);
 }
 
-/** Two independent compressions, the second on the worker thread when one is available. */
+/**
+ * Two independent compressions, the second on the worker thread when one is available. The inputs are
+ * the fresh arrays of `expandFactor` (on SharedArrayBuffers) and are overwritten.
+ */
 function compressPair(a: { g: Float64Array; w: number }, b: { g: Float64Array; w: number }, n: number, tol: number): [Factor, Factor] {
-  const wa = sharedFloat64(n * a.w);
-  wa.set(a.g.subarray(0, n * a.w));
-  const wb = sharedFloat64(n * b.w);
-  wb.set(b.g.subarray(0, n * b.w));
   const pa = new Int32Array(n);
-  const pb = new Int32Array(new SharedArrayBuffer(4 * n));
+  const pb = sharedInt32(n);
   const ranks = pairOnWorker(
-    () => pivotedQrOfRows(wa, n, a.w, tol, pa),
-    { kind: 'pivotedQrOfRows', work: wb, n, w: b.w, tol, perm: pb },
+    () => pivotedQrOfRows(a.g, n, a.w, tol, pa),
+    { kind: 'pivotedQrOfRows', work: b.g, n, w: b.w, tol, perm: pb },
   );
-  return [unpermute(wa, n, a.w, ranks[0], pa), unpermute(wb, n, b.w, ranks[1], pb)];
+  return [unpermute(a.g, n, a.w, ranks[0], pa), unpermute(b.g, n, b.w, ranks[1], pb)];
 }
 
 /** [√(c/2)·G, (A⁻¹ or A⁻ᵀ)·G/√(2c)] as one n×2w array (before compression). */

@@ -62,6 +62,12 @@ export function sharedFloat64(length: number): Float64Array {
   return new Float64Array(new SharedArrayBuffer(length * 8));
 }
 
+/** An Int32Array on a SharedArrayBuffer (a plain one where shared memory is unavailable). */
+export function sharedInt32(length: number): Int32Array {
+  if (typeof SharedArrayBuffer === 'undefined') return new Int32Array(length);
+  return new Int32Array(new SharedArrayBuffer(length * 4));
+}
+
 function isShared(x: Float64Array): boolean {
   return typeof SharedArrayBuffer !== 'undefined' && x.buffer instanceof SharedArrayBuffer;
 }

@@ -2,9 +2,9 @@
  * Householder QR factorisation A = Q·R, and QR with column pivoting A·Π = Q·R (rank-revealing).
  *
  * Method: Householder reflections (A. S. Householder, "Unitary triangularization of a nonsymmetric
- * matrix", J. ACM 5, 1958; Golub & Van Loan, Matrix Computations, 4th ed., 2013, Alg. 5.2.1), with the
+ * matrix", J. ACM 5, 1958; Golub & Van Loan, Matrix Computations, 4th ed., 2013, §5.2), with the
  * column pivoting of Businger & Golub ("Linear least squares solutions by Householder
- * transformations", Numer. Math. 7, 1965; Golub & Van Loan Alg. 5.4.1) and the safe norm downdating of
+ * transformations", Numer. Math. 7, 1965; Golub & Van Loan §5.4) and the safe norm downdating of
  * LAPACK's dlaqp2 (Drmač & Bujanović, LAPACK Working Note 176, 2008). In row-major storage each
  * reflector is applied as one combination of rows (w = vᵀ·A) and one rank-one row update.
  *
@@ -153,7 +153,7 @@ function upperPart(h: HouseholderResult, n: number, rows: number): Matrix {
 
 /**
  * Thin QR: A (m×n) = Q·R with Q m×k orthonormal columns and R k×n upper triangular, k = min(m, n).
- * ‖A − QR‖ and ‖QᵀQ − I‖ are of order ε (Golub & Van Loan §5.2.2).
+ * ‖A − QR‖ and ‖QᵀQ − I‖ are of order ε (Golub & Van Loan §5.2).
  */
 export function qr(a: Matrix): { Q: Matrix; R: Matrix } {
   checkFinite('qr', a);

@@ -4,7 +4,7 @@
  *
  * Method: Hessenberg reduction (`hessenberg.ts`), then the Francis implicit double-shift QR algorithm
  * (J. G. F. Francis, "The QR transformation, parts I and II", Computer J. 4, 1961–62; Golub & Van Loan,
- * Matrix Computations, 4th ed., 2013, Algorithm 7.5.2) in the form of LAPACK's dlahqr: deflation by the
+ * Matrix Computations, 4th ed., 2013, §7.5) in the form of LAPACK's dlahqr: deflation by the
  * conservative small-subdiagonal test of Ahues & Tisseur (LAPACK Working Note 122, 1997), a search for two
  * consecutive small subdiagonals to start the bulge, exceptional shifts after 10 and 20 stalled
  * iterations, and each converged 2×2 block standardised (dlanv2: equal diagonal for a complex pair,
@@ -408,7 +408,7 @@ function checkInput(what: string, a: Matrix): void {
  * Real Schur form A = Z·T·Zᵀ with T quasi-upper-triangular (1×1 blocks for real eigenvalues,
  * standardised 2×2 blocks with equal diagonal for complex pairs) and Z orthogonal.
  * Guarantees ‖A − Z·T·Zᵀ‖_F and ‖ZᵀZ − I‖_F of order n·ε relative (backward stability of the QR
- * algorithm, Golub & Van Loan §7.5.6). The eigenvalues are returned in T's diagonal order.
+ * algorithm, Golub & Van Loan §7.5). The eigenvalues are returned in T's diagonal order.
  */
 export function schur(a: Matrix): { T: Matrix; Z: Matrix; values: ComplexVector } {
   checkInput('schur', a);

@@ -10,7 +10,7 @@
  * keeps contiguous; `singularValues` skips the vectors entirely (about 4mn² − 4n³/3 flops).
  *
  * Accuracy: backward stable; each σᵢ has an absolute error of order ε·σ₁ (Golub & Van Loan,
- * Matrix Computations, 4th ed., 2013, §8.6.3).
+ * Matrix Computations, 4th ed., 2013, §8.6).
  */
 import { type Matrix, zeros } from './matrix';
 

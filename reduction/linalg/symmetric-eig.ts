@@ -2,7 +2,7 @@
  * Eigen-decomposition of a real symmetric matrix, A = V·diag(λ)·Vᵀ.
  *
  * Method: Householder tridiagonalisation (Golub & Van Loan, Matrix Computations, 4th ed., 2013,
- * Alg. 8.3.1, the symmetric rank-two update form) and the implicitly shifted QL algorithm on the
+ * §8.3, the symmetric rank-two update form) and the implicitly shifted QL algorithm on the
  * tridiagonal (Bowdler, Martin, Reinsch & Wilkinson, "The QR and QL algorithms for symmetric
  * matrices", Numer. Math. 11, 1968; the tql2 procedure of the Handbook for Automatic Computation II).
  * Only the lower triangle of A is read. Rotations act on rows of Vᵀ so they run with unit stride.

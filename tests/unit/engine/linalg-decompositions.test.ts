@@ -56,7 +56,7 @@ describe('SVD by Golub–Kahan bidiagonalisation and implicit QR (Golub & Reinsc
       const s2 = svd(a).s;
       const top = ref[k].s[0];
       for (let i = 0; i < s1.length; i++) {
-        // Absolute accuracy ε·σ₁ for any backward-stable SVD (Golub & Van Loan 2013, §8.6.3).
+        // Absolute accuracy ε·σ₁ for any backward-stable SVD (Golub & Van Loan 2013, §8.6).
         expect(Math.abs(s1[i] - ref[k].s[i])).toBeLessThan(100 * EPS * top);
         expect(Math.abs(s2[i] - ref[k].s[i])).toBeLessThan(100 * EPS * top);
       }

@@ -20,7 +20,7 @@ describe('LU with partial pivoting (blocked, LAPACK dgetrf scheme)', () => {
       const b = randomMatrix(n, 3, n + 1);
       const x = solve(a, b);
       const r = frobeniusNorm(sub(multiply(a, x), b)) / (frobeniusNorm(a) * frobeniusNorm(x) + frobeniusNorm(b));
-      // Backward stability of GEPP: residual of order n·ε (Golub & Van Loan 2013, §3.4.6).
+      // Backward stability of GEPP: residual of order n·ε (Golub & Van Loan 2013, §3.4).
       expect(r).toBeLessThan(n * EPS * 10);
     }
   });

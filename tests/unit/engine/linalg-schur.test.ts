@@ -27,7 +27,7 @@ function heat1d(N: number): Matrix {
   return a;
 }
 
-describe('Hessenberg reduction (Golub & Van Loan Alg. 7.4.2)', () => {
+describe('Hessenberg reduction (Golub & Van Loan §7.4)', () => {
   it('gives A = Q·H·Qᵀ with orthogonal Q and H zero below the subdiagonal', () => {
     // 200 and 260 run through the blocked panels (order ≥ 128), the others unblocked only.
     for (const n of [1, 2, 3, 40, 120, 200, 260]) {
@@ -40,7 +40,7 @@ describe('Hessenberg reduction (Golub & Van Loan Alg. 7.4.2)', () => {
   });
 });
 
-describe('real Schur form by the Francis double-shift QR (Golub & Van Loan Alg. 7.5.2)', () => {
+describe('real Schur form by the Francis double-shift QR (Golub & Van Loan §7.5)', () => {
   it('reconstructs A = Z·T·Zᵀ with orthogonal Z and standardised quasi-triangular T', () => {
     for (const n of [1, 2, 5, 60, 150]) {
       const a = randomMatrix(n, n, 200 + n);
@@ -106,7 +106,7 @@ describe('real Schur form by the Francis double-shift QR (Golub & Van Loan Alg. 
   });
 
   it('finds the roots of a companion matrix: (s+1)(s+2)(s²+2s+5) has −1, −2, −1 ± 2i', () => {
-    // s⁴ + 5s³ + 13s² + 19s + 10, in companion form (Golub & Van Loan §7.4.6).
+    // s⁴ + 5s³ + 13s² + 19s + 10, in companion form (Golub & Van Loan §7.4).
     const a = fromRows([
       [-5, -13, -19, -10],
       [1, 0, 0, 0],
