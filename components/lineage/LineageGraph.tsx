@@ -8,14 +8,14 @@ import { useMemo } from 'react';
 import { useRouter } from 'next/navigation';
 import * as echarts from 'echarts/core';
 import { GraphChart } from 'echarts/charts';
-import { AriaComponent, TooltipComponent } from 'echarts/components';
+import { AriaComponent, GridComponent, TooltipComponent } from 'echarts/components';
 import { CanvasRenderer } from 'echarts/renderers';
 import ReactEChartsCore from 'echarts-for-react/lib/core';
 import { useChartTheme } from '@/components/charts/useChartTheme';
 import type { Lineage } from '@/lib/lineage';
 import { buildLineageOption, graphHeight } from './lineage-option';
 
-echarts.use([GraphChart, AriaComponent, TooltipComponent, CanvasRenderer]);
+echarts.use([GraphChart, AriaComponent, GridComponent, TooltipComponent, CanvasRenderer]);
 
 export function LineageGraph({ lineage }: { lineage: Lineage }) {
   const theme = useChartTheme();

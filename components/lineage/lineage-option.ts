@@ -10,7 +10,8 @@ import { INK } from '@/components/charts/theme';
 import { PROJECT_STYLE, SOURCE_VERSION_STYLE, STATUS_STYLE, UPSTREAM_CHANGED_TEXT, type NodeStyle } from '@/components/review/status-style';
 import type { Lineage, LineageNode } from '@/lib/lineage';
 
-export const COLUMN_X = { source_version: 0, reduced_version: 360, project: 720 } as const;
+/** Columns on a hidden value axis (0 … 2); rows are whole numbers on a hidden, inverted value axis. */
+export const COLUMN_X = { source_version: 0, reduced_version: 1, project: 2 } as const;
 export const ROW_HEIGHT = 64;
 const SYMBOL_SIZE = 18;
 
@@ -46,8 +47,8 @@ export function buildLineageOption(lineage: Lineage, fonts: { fontSans: string }
     return {
       id: node.id,
       name: nodeLabel(node),
-      x: COLUMN_X[node.kind],
-      y: rowOf.get(node.id)! * ROW_HEIGHT,
+      // On a cartesian grid with fixed axis ranges, so one node per column does not stretch the layout.
+      value: [COLUMN_X[node.kind], rowOf.get(node.id)!],
       symbol: style.symbol,
       symbolSize: node.kind === 'project' ? SYMBOL_SIZE + 4 : SYMBOL_SIZE,
       itemStyle: { color: hollow ? INK.paper : style.color, borderColor: style.color, borderWidth: 2 },
@@ -76,7 +77,11 @@ export function buildLineageOption(lineage: Lineage, fonts: { fontSans: string }
     },
     label: { show: edge.kind !== 'reduced_from', formatter: edge.label, fontSize: 10, color: INK.graphiteMuted, fontFamily: fonts.fontSans },
   }));
+  const rows = Math.max(2, ...Object.values(seen));
   return {
+    grid: { left: 24, right: 240, top: 16, bottom: 40 },
+    xAxis: { type: 'value', show: false, min: -0.08, max: 2.05 },
+    yAxis: { type: 'value', show: false, inverse: true, min: -0.4, max: rows - 0.6 },
     aria: { enabled: true, label: { description: `${lineage.title}: ${lineage.nodes.length} items, ${lineage.edges.length} links. The list below the graph gives the same in words.` } },
     tooltip: { trigger: 'item', formatter: (p: { dataType?: string; name?: string; value?: unknown }) => (p.dataType === 'edge' ? String(p.value ?? '') : String(p.name ?? '').replace(/\n/g, '<br>')) },
     animation: false,
@@ -84,11 +89,8 @@ export function buildLineageOption(lineage: Lineage, fonts: { fontSans: string }
       {
         type: 'graph',
         layout: 'none',
+        coordinateSystem: 'cartesian2d',
         roam: false,
-        left: 40,
-        right: 220,
-        top: 20,
-        bottom: 40,
         edgeSymbol: ['none', 'arrow'],
         edgeSymbolSize: 7,
         data,

@@ -26,7 +26,7 @@ export function FigureComparison({
   }
   return (
     <table className="w-full text-left text-sm" data-testid={testId}>
-      <caption className="field-label pb-2 text-left">{caption}</caption>
+      <caption className="pb-2 text-left text-xs font-medium uppercase tracking-wider text-graphite-soft">{caption}</caption>
       <thead>
         <tr className="border-b border-rule">
           <th scope="col" className="py-1.5 pr-4 font-medium">

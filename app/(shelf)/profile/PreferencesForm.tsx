@@ -30,11 +30,21 @@ export function PreferencesForm({ initial, offered }: { initial: NotificationPre
   const save = useMutation({
     mutationFn: (change: Partial<NotificationPreferences>) =>
       apiFetch<{ preferences: NotificationPreferences }>('/api/profile/notifications', { method: 'PATCH', body: change }),
+    // The box changes at once; a refusal puts it back and says why.
+    onMutate: (change) => {
+      const before = preferences;
+      setPreferences({ ...preferences, ...change });
+      setNotice(null);
+      return { before };
+    },
     onSuccess: ({ preferences: saved }) => {
       setPreferences(saved);
       setNotice({ tone: 'ok', text: 'Saved.' });
     },
-    onError: (err: Error) => setNotice({ tone: 'error', text: err.message }),
+    onError: (err: Error, _change, context) => {
+      if (context) setPreferences(context.before);
+      setNotice({ tone: 'error', text: err.message });
+    },
   });
 
   return (

@@ -3,12 +3,12 @@
 import { describe, expect, it } from 'vitest';
 import * as echarts from 'echarts/core';
 import { GraphChart } from 'echarts/charts';
-import { AriaComponent, TooltipComponent } from 'echarts/components';
+import { AriaComponent, GridComponent, TooltipComponent } from 'echarts/components';
 import { SVGRenderer } from 'echarts/renderers';
 import { buildLineageOption, COLUMN_X, graphHeight, nodeLabel } from '@/components/lineage/lineage-option';
 import type { Lineage } from '@/lib/lineage';
 
-echarts.use([GraphChart, AriaComponent, TooltipComponent, SVGRenderer]);
+echarts.use([GraphChart, AriaComponent, GridComponent, TooltipComponent, SVGRenderer]);
 
 const LINEAGE: Lineage = {
   title: 'Lineage of Kiln zone 2',
@@ -28,7 +28,7 @@ const LINEAGE: Lineage = {
   ],
 };
 
-type Series = { data: { id: string; x: number; y: number; symbol: string; name: string }[]; links: { source: string; lineStyle: { type: string } }[] };
+type Series = { data: { id: string; value: [number, number]; symbol: string; name: string }[]; links: { source: string; lineStyle: { type: string } }[] };
 const seriesOf = (option: ReturnType<typeof buildLineageOption>) => (option.series as Series[])[0];
 
 describe('the lineage graph option', () => {
@@ -40,15 +40,31 @@ describe('the lineage graph option', () => {
 
   it('places each kind in its own column, one row per node, and draws states as distinct shapes', () => {
     const { data, links } = seriesOf(buildLineageOption(LINEAGE, { fontSans: 'sans-serif' }));
-    expect(data.map((d) => [d.id, d.x, d.y, d.symbol])).toEqual([
+    expect(data.map((d) => [d.id, ...d.value, d.symbol])).toEqual([
       ['s1', COLUMN_X.source_version, 0, 'roundRect'],
-      ['s2', COLUMN_X.source_version, 64, 'roundRect'],
+      ['s2', COLUMN_X.source_version, 1, 'roundRect'],
       ['r1', COLUMN_X.reduced_version, 0, 'circle'],
-      ['r2', COLUMN_X.reduced_version, 64, 'diamond'],
+      ['r2', COLUMN_X.reduced_version, 1, 'diamond'],
       ['p1', COLUMN_X.project, 0, 'pin'],
     ]);
     expect(links.map((l) => l.lineStyle.type)).toEqual(['solid', 'solid', 'dashed', 'solid']);
     expect(graphHeight(LINEAGE)).toBe(2 * 64 + 40);
+  });
+
+  it('keeps nodes at their size and in the drawing when a column holds a single node', () => {
+    const single: Lineage = { ...LINEAGE, nodes: [LINEAGE.nodes[0], LINEAGE.nodes[2]], edges: [LINEAGE.edges[0]] };
+    const chart = echarts.init(null, null, { renderer: 'svg', ssr: true, width: 960, height: graphHeight(single) });
+    try {
+      chart.setOption(buildLineageOption(single, { fontSans: 'sans-serif' }));
+      const svg = chart.renderToSVGString();
+      // Every drawn coordinate lies inside the picture (a degenerate layout sends them to ±∞ or far off).
+      const numbers = [...svg.matchAll(/(?:x|y|cx|cy)="(-?[0-9.]+)"/g)].map((m) => Number(m[1]));
+      expect(numbers.length).toBeGreaterThan(0);
+      for (const n of numbers) expect(Math.abs(n)).toBeLessThan(1000);
+      expect(svg).toContain('● approved · r = 1');
+    } finally {
+      chart.dispose();
+    }
   });
 
   it('is drawn by ECharts with every label in the picture', () => {
