@@ -1,8 +1,8 @@
 #!/usr/bin/env bash
 # `npm start`: everything from a fresh Debian machine with Node 20 to the app on http://localhost:3000.
 # Installs what is missing (npm packages, Debian's PostgreSQL), starts PostgreSQL and the fake SMTP on
-# loopback, migrates, seeds the demo accounts, builds, and serves (plus one worker, once the jobs feature
-# provides scripts/worker.ts). Ctrl-C stops the app, the fake SMTP and the worker; PostgreSQL keeps running
+# loopback, migrates, seeds the demo accounts and models, builds, and serves, with one background worker
+# beside the app (`npm run worker` starts more). Ctrl-C stops the app, the fake SMTP and the worker; PostgreSQL keeps running
 # (stop it with `bash scripts/pg.sh stop`).
 #
 # Settings: DATABASE_URL (another PostgreSQL: then no local cluster is started), PORT (3000),

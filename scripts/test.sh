@@ -5,7 +5,8 @@
 #   3. starts the fake SMTP on a test port
 #   4. vitest: unit, engine and integration tests (integration against the real PostgreSQL)
 #   5. tsc --noEmit over the whole tree
-#   6. builds the app into .next-test, serves it on a test port, runs the browser tests (playwright-core
+#   6. builds the app into .next-test, serves it on a test port with one background worker (the jobs of
+#      uploads and reductions), runs the browser tests (playwright-core
 #      driving Debian's chromium), screenshots in test-output/
 # Stops what it started and exits non-zero if any step failed. Set TEST_DATABASE_URL to use another
 # PostgreSQL (its database is migrated, not dropped).
@@ -37,6 +38,7 @@ cleanup() {
   trap - EXIT INT TERM
   {
     stop_pidfile "$TEST_LOG_DIR/app.pid"
+    stop_pidfile "$TEST_LOG_DIR/worker.pid"
     stop_pidfile "$TEST_LOG_DIR/smtp.pid"
     if [ "$STARTED_PG" = 1 ]; then bash scripts/pg.sh stop; fi
   } >>"$TEST_LOG_DIR/cleanup.log" 2>&1
@@ -76,7 +78,10 @@ if node_modules/.bin/next build >"$TEST_LOG_DIR/build.log" 2>&1; then
   setsid node_modules/.bin/next start -H 127.0.0.1 -p "$TEST_APP_PORT" >"$TEST_LOG_DIR/app.log" 2>&1 &
   echo $! >"$TEST_LOG_DIR/app.pid"
   if wait_for_http "$MODESHELF_TEST_URL/api/health" 60; then
-    log "browser tests against $MODESHELF_TEST_URL (screenshots: test-output/)"
+    stop_pidfile "$TEST_LOG_DIR/worker.pid"
+    setsid bash scripts/worker.sh >"$TEST_LOG_DIR/worker.log" 2>&1 &
+    echo $! >"$TEST_LOG_DIR/worker.pid"
+    log "browser tests against $MODESHELF_TEST_URL (screenshots: test-output/; worker log: .run/test/worker.log)"
     node_modules/.bin/vitest run -c vitest.browser.config.ts || FAILED+=("browser tests")
   else
     tail -30 "$TEST_LOG_DIR/app.log" >&2

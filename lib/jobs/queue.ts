@@ -12,11 +12,26 @@ import { databaseUrl } from '@/lib/config';
 export type JobKind = 'analysis' | 'reduction' | 'response';
 export const JOB_KINDS: readonly JobKind[] = ['analysis', 'reduction', 'response'];
 
-export const QUEUE_NAMES: Record<JobKind, string> = {
+/**
+ * MODESHELF_QUEUE_PREFIX namespaces the queues, so a test's workers take only that test's jobs while other
+ * test files share the database; unset (the app, the worker, `npm test`'s browser run) it is empty.
+ */
+export function queuePrefix(): string {
+  const prefix = process.env.MODESHELF_QUEUE_PREFIX ?? '';
+  if (!/^[A-Za-z0-9_-]*$/.test(prefix)) throw new Error(`MODESHELF_QUEUE_PREFIX may hold letters, digits, _ and - only, got "${prefix}"`);
+  return prefix;
+}
+
+const BASE_QUEUE_NAMES: Record<JobKind, string> = {
   analysis: 'modeshelf-analysis',
   reduction: 'modeshelf-reduction',
   response: 'modeshelf-response',
 };
+
+/** The queue of each kind of job (read at each use, so a test can set its prefix first). */
+export const QUEUE_NAMES: Readonly<Record<JobKind, string>> = new Proxy(BASE_QUEUE_NAMES, {
+  get: (base, kind: string) => `${queuePrefix()}${base[kind as JobKind]}`,
+});
 
 export const RETRY_LIMIT = 2;
 export const RETRY_DELAY_SECONDS = 2;
