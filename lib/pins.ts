@@ -230,18 +230,22 @@ interface FactsRow {
   acceptance_passed: boolean | null;
 }
 
-/** Approved and retired versions of the given reduced models, grouped by model id. */
+/**
+ * Approved and retired versions of the given reduced models, grouped by model id. The models are given by
+ * id, or as a subquery selecting reduced_model_id, so the facts can be read side by side with the pins
+ * that name them (one round trip less on the pull API's path).
+ */
 export async function loadVersionFacts(
-  reducedModelIds: readonly string[],
+  reducedModels: readonly string[] | Knex.QueryBuilder,
   trx: Knex | Knex.Transaction = db(),
 ): Promise<Map<string, VersionFacts[]>> {
   const byModel = new Map<string, VersionFacts[]>();
-  if (reducedModelIds.length === 0) return byModel;
+  if (Array.isArray(reducedModels) && reducedModels.length === 0) return byModel;
   const rows: FactsRow[] = await trx('reduced_versions as rv')
     .join('source_versions as sv', 'sv.id', 'rv.source_version_id')
     .join('source_models as sm', 'sm.id', 'sv.source_model_id')
     .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id')
-    .whereIn('rv.reduced_model_id', [...new Set(reducedModelIds)])
+    .whereIn('rv.reduced_model_id', Array.isArray(reducedModels) ? [...new Set(reducedModels as readonly string[])] : (reducedModels as Knex.QueryBuilder))
     .whereIn('rv.status', ['approved', 'retired'])
     .select(
       'rv.id',
@@ -296,8 +300,7 @@ function pinsQuery(trx: Knex | Knex.Transaction) {
     .select('p.*', 'rm.slug as model_slug', 'rm.name as model_name', 'xv.number as exact_number');
 }
 
-async function resolveRows(rows: PinJoinRow[], trx: Knex | Knex.Transaction): Promise<ResolvedPin[]> {
-  const facts = await loadVersionFacts(rows.map((r) => r.reduced_model_id), trx);
+function resolveRows(rows: PinJoinRow[], facts: Map<string, VersionFacts[]>): ResolvedPin[] {
   return rows.map((r) => ({
     id: r.id,
     projectId: r.project_id,
@@ -310,20 +313,29 @@ async function resolveRows(rows: PinJoinRow[], trx: Knex | Knex.Transaction): Pr
   }));
 }
 
+/** The pins a query selects, resolved; the version facts are read alongside, by the same filter. */
+async function resolvedPins(
+  trx: Knex | Knex.Transaction,
+  filter: (q: Knex.QueryBuilder) => Knex.QueryBuilder,
+  order?: string,
+): Promise<ResolvedPin[]> {
+  const rowsQuery = filter(pinsQuery(trx));
+  const modelIds = filter(trx('pins as p').join('reduced_models as rm', 'rm.id', 'p.reduced_model_id').select('p.reduced_model_id'));
+  const [rows, facts] = await Promise.all([order ? rowsQuery.orderBy(order) : rowsQuery, loadVersionFacts(modelIds, trx)]);
+  return resolveRows(rows as PinJoinRow[], facts);
+}
+
 export async function listProjectPins(projectId: string, trx: Knex | Knex.Transaction = db()): Promise<ResolvedPin[]> {
-  const rows: PinJoinRow[] = await pinsQuery(trx).where('p.project_id', projectId).orderBy('rm.slug');
-  return resolveRows(rows, trx);
+  return resolvedPins(trx, (q) => q.where('p.project_id', projectId), 'rm.slug');
 }
 
 /** The project's pin of the reduced model with that slug, or undefined (a model pinned elsewhere is not told apart). */
 export async function findPinByModelSlug(projectId: string, modelSlug: string, trx: Knex | Knex.Transaction = db()): Promise<ResolvedPin | undefined> {
-  const rows: PinJoinRow[] = await pinsQuery(trx).where('p.project_id', projectId).andWhere('rm.slug', modelSlug);
-  return (await resolveRows(rows, trx))[0];
+  return (await resolvedPins(trx, (q) => q.where('p.project_id', projectId).andWhere('rm.slug', modelSlug)))[0];
 }
 
 export async function findPinById(projectId: string, pinId: string, trx: Knex | Knex.Transaction = db()): Promise<ResolvedPin | undefined> {
-  const rows: PinJoinRow[] = await pinsQuery(trx).where('p.project_id', projectId).andWhere('p.id', pinId);
-  return (await resolveRows(rows, trx))[0];
+  return (await resolvedPins(trx, (q) => q.where('p.project_id', projectId).andWhere('p.id', pinId)))[0];
 }
 
 /**
@@ -474,7 +486,7 @@ export async function pinsForReducedModel(reducedModelId: string, trx: Knex | Kn
     .select('cp.slug as project_slug', 'cp.name as project_name')
     .where('p.reduced_model_id', reducedModelId)
     .orderBy('cp.slug');
-  const resolved = await resolveRows(rows, trx);
+  const resolved = resolveRows(rows, await loadVersionFacts([reducedModelId], trx));
   return resolved.map((pin, i) => ({
     project: { id: pin.projectId, slug: rows[i].project_slug, name: rows[i].project_name },
     pinId: pin.id,
