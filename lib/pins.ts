@@ -497,3 +497,14 @@ export async function pinsForReducedModel(reducedModelId: string, trx: Knex | Kn
     upstreamChanged: pin.resolution.upstreamChanged,
   }));
 }
+
+/** Per project, how many of its pins need a look: retired, upstream changed, or resolving to nothing. */
+export async function pinsNeedingAttention(trx: Knex | Knex.Transaction = db()): Promise<Map<string, number>> {
+  const pins = await resolvedPins(trx, (q) => q);
+  const counts = new Map<string, number>();
+  for (const pin of pins) {
+    const r = pin.resolution;
+    if (r.retired || r.upstreamChanged || r.version === null) counts.set(pin.projectId, (counts.get(pin.projectId) ?? 0) + 1);
+  }
+  return counts;
+}

@@ -2,6 +2,7 @@
 // A project's pins: what each resolves to now and why, its flags (retired, upstream changed, unresolved),
 // downloads (JSON, CSV bundle, C header; continuous or discretised at a sample time), and, for engineer
 // members, pinning another reduced model, changing a pin and removing one.
+import Link from 'next/link';
 import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { useMutation } from '@tanstack/react-query';
@@ -71,7 +72,9 @@ export function PinsPanel({
               return (
                 <tr key={pin.id} className="border-b border-rule align-top last:border-0" data-testid="pin-row" data-model={pin.reducedModel.slug}>
                   <td className="px-4 py-2">
-                    <div className="font-medium">{pin.reducedModel.name}</div>
+                    <Link className="font-medium" href={`/lineage/reduced-models/${pin.reducedModel.slug}`} title="Lineage: source model, versions and the projects that pin them">
+                      {pin.reducedModel.name}
+                    </Link>
                     <div className="num text-xs text-graphite-soft">{pin.reducedModel.slug}</div>
                   </td>
                   <td className="px-4 py-2">

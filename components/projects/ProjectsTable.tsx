@@ -19,9 +19,12 @@ import { formatTime } from '@/components/charts/format';
 import { numberField } from './form-values';
 import type { Project, ProjectSummary } from '@/lib/projects';
 
-const column = createColumnHelper<ProjectSummary>();
+/** A project row: its summary and how many of its pins are retired, upstream changed or unresolved. */
+export type ProjectRowData = ProjectSummary & { pinsNeedingAttention: number };
 
-export function ProjectsTable({ projects, canCreate }: { projects: ProjectSummary[]; canCreate: boolean }) {
+const column = createColumnHelper<ProjectRowData>();
+
+export function ProjectsTable({ projects, canCreate }: { projects: ProjectRowData[]; canCreate: boolean }) {
   const [sorting, setSorting] = useState<SortingState>([{ id: 'name', desc: false }]);
   const [filter, setFilter] = useState('');
   const [mineOnly, setMineOnly] = useState(false);
@@ -35,6 +38,17 @@ export function ProjectsTable({ projects, canCreate }: { projects: ProjectSummar
       }),
       column.accessor('slug', { header: 'Slug', cell: (info) => <span className="num text-xs">{info.getValue()}</span> }),
       column.accessor('pinCount', { header: 'Pins', cell: (info) => <span className="num">{info.getValue()}</span> }),
+      column.accessor('pinsNeedingAttention', {
+        header: 'Needs a look',
+        cell: (info) =>
+          info.getValue() > 0 ? (
+            <span className="rounded-sheet border border-okabe-orange px-1.5 py-0.5 text-xs" title="Pins whose version is retired, upstream changed, or that resolve to nothing">
+              <span className="num">{info.getValue()}</span> pin{info.getValue() === 1 ? '' : 's'}
+            </span>
+          ) : (
+            <span className="text-graphite-faint">—</span>
+          ),
+      }),
       column.accessor('memberCount', { header: 'Members', cell: (info) => <span className="num">{info.getValue()}</span> }),
       column.accessor('sampleTime', {
         header: 'Sample time',

@@ -6,7 +6,7 @@ import { closeDb, db } from '@/lib/db';
 import type { SessionUser } from '@/lib/auth';
 import type { UserRow } from '@/lib/people';
 import { addMember, createProject, listMembers, listProjects, removeMember, updateProject } from '@/lib/projects';
-import { createPin, deletePin, listProjectPins, pinCandidates, pinInputSchema, pinsForReducedModel, updatePin, type PinInput } from '@/lib/pins';
+import { createPin, deletePin, listProjectPins, pinCandidates, pinInputSchema, pinsForReducedModel, pinsNeedingAttention, updatePin, type PinInput } from '@/lib/pins';
 import { makeUser, migrateTestDatabase } from './helpers';
 import { addUpstreamVersion, addVersion, makeProjectShelf, retireVersion, stiffTestModel, uniqueSlug, type ProjectShelf } from './fixtures/projects';
 
@@ -156,6 +156,7 @@ describe('pin resolution', () => {
     const [pin] = await listProjectPins(project.id);
     expect(pin.resolution.version).toBeNull();
     expect(pin.resolution.explanation).toBe('No approved version meets the limits (newest approved v1: order 6 > 2).');
+    expect((await pinsNeedingAttention()).get(project.id)).toBe(1);
   });
 
   it('flags upstream changed when the source model has a newer version than the one reduced from', async () => {
