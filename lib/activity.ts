@@ -50,7 +50,7 @@ export interface DashboardActivity {
   recent: ActivityItem[];
 }
 
-export async function recentActivity(limit = 25): Promise<ActivityItem[]> {
+export async function recentActivity(limit = 15): Promise<ActivityItem[]> {
   const knex = db();
   const reviewRows = await knex('reviews as rw')
     .join('reduced_versions as rv', 'rv.id', 'rw.reduced_version_id')

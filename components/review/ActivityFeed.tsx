@@ -18,7 +18,7 @@ export function ActivityFeed({ items }: { items: ActivityItem[] }) {
             <span aria-hidden="true" style={{ color: style.color }} className="w-4 shrink-0 text-center">
               {style.glyph}
             </span>
-            <span>
+            <span className="min-w-0">
               {item.kind === 'source_version' ? (
                 <>
                   {item.actorName} registered <Link href={`/lineage/source-models/${item.sourceModelSlug}`}>{item.sourceModelName} v{item.number}</Link>
