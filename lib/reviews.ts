@@ -62,7 +62,7 @@ function fromDatabaseRefusal(err: unknown): never {
   if (e && (e.code === '23514' || e.code === '23001') && typeof e.constraint === 'string' && e.constraint.startsWith('reduced_versions_')) {
     throw new ApiError(409, 'state_conflict', `The database refused the change: ${e.message}`);
   }
-  if (e && e.code === '23514' && typeof e.constraint === 'string' && e.constraint.startsWith('reviews_')) {
+  if (e && e.code === '23514' && (e.constraint === 'reviews_four_eyes_check' || e.constraint === 'reviews_submitted_by_author_check')) {
     throw new ApiError(403, 'four_eyes', `The database refused the review: ${e.message}`);
   }
   throw err;
