@@ -95,12 +95,12 @@ let packA = new Float64Array(96 * 256);
 let packB = new Float64Array(0);
 const tile = new Float64Array(16);
 parentPort.on('message', (job) => {
-  let status = 1;
+  let status = job.id;
   try {
     if (job.kind === 'pivotedQrOfRows') {
       const rank = pivotedQrOfRows(new Float64Array(job.work), job.n, job.w, job.tol, new Int32Array(job.perm));
       Atomics.store(control, 1, rank);
-      Atomics.store(control, 0, 1);
+      Atomics.store(control, 0, job.id);
       Atomics.notify(control, 0);
       return;
     }
@@ -110,7 +110,7 @@ parentPort.on('message', (job) => {
       new Float64Array(job.a), job.aOff, job.lda, new Float64Array(job.b), job.bOff, job.ldb,
       new Float64Array(job.c), job.cOff, job.ldc, 0, job.width, packA, packB, tile);
   } catch (e) {
-    status = 2;
+    status = -job.id;
   }
   Atomics.store(control, 0, status);
   Atomics.notify(control, 0);
@@ -173,19 +173,34 @@ interface Job {
   width: number;
 }
 
-function post(s: WorkerState, job: Job): void {
+let jobSequence = 0;
+
+/**
+ * Posts a job under a fresh id; the worker writes that id (negated on failure) to control[0] when done,
+ * so a late answer to an abandoned job can never be taken for the current one.
+ */
+function post(s: WorkerState, job: Job | Record<string, unknown>): number {
+  jobSequence = (jobSequence % 1_000_000_000) + 1;
   Atomics.store(s.control, 0, 0);
-  s.worker.postMessage(job);
+  s.worker.postMessage({ ...job, id: jobSequence });
+  return jobSequence;
 }
 
-function await_(s: WorkerState, timeoutMs: number): boolean {
-  const r = Atomics.wait(s.control, 0, 0, timeoutMs);
-  return r !== 'timed-out' && Atomics.load(s.control, 0) === 1;
+/** Blocks until the worker reports job `id`; false on failure or timeout. */
+function await_(s: WorkerState, id: number, timeoutMs: number): boolean {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const v = Atomics.load(s.control, 0);
+    if (v === id) return true;
+    if (v === -id) return false;
+    const left = deadline - Date.now();
+    if (left <= 0) return false;
+    Atomics.wait(s.control, 0, v, left);
+  }
 }
 
 function dispatch(s: WorkerState, job: Job, timeoutMs: number): boolean {
-  post(s, job);
-  return await_(s, timeoutMs);
+  return await_(s, post(s, job), timeoutMs);
 }
 
 function grow(name: 'a' | 'b' | 'c', length: number): Float64Array {
@@ -282,7 +297,7 @@ export function parallelProduct(
     cL = wn;
   }
 
-  post(s, { transA, transB, m: wm, k, alpha, a: aBuf.buffer, aOff: aO, lda: aL, b: bBuf.buffer, bOff: bO, ldb: bL, c: cBuf.buffer, cOff: cO, ldc: cL, width: wn });
+  const id = post(s, { transA, transB, m: wm, k, alpha, a: aBuf.buffer, aOff: aO, lda: aL, b: bBuf.buffer, bOff: bO, ldb: bL, c: cBuf.buffer, cOff: cO, ldc: cL, width: wn });
 
   // The calling thread's half, straight from the original arrays.
   const mm = byColumns ? m : split;
@@ -293,7 +308,7 @@ export function parallelProduct(
 
   // Generous: at a pessimistic 0.05 GFLOP/s, plus a minute for a descheduled thread.
   const timeoutMs = 60_000 + (2 * wm * wn * k) / 5e7;
-  if (!await_(s, timeoutMs)) {
+  if (!await_(s, id, timeoutMs)) {
     state = null;
     s.worker.terminate();
     throw new Error('gemm: the linear-algebra worker thread failed or timed out; set MODESHELF_LINALG_THREADS=1 to compute on one thread');
@@ -338,11 +353,10 @@ export function pairOnWorker(local: () => number, job: RowQrJob): [number, numbe
     if (state === undefined) state = startWorker();
     const s = state;
     if (s) {
-      Atomics.store(s.control, 0, 0);
-      s.worker.postMessage({ kind: job.kind, work: job.work.buffer, n: job.n, w: job.w, tol: job.tol, perm: job.perm.buffer });
+      const id = post(s, { kind: job.kind, work: job.work.buffer, n: job.n, w: job.w, tol: job.tol, perm: job.perm.buffer });
       const mine = local();
       const timeoutMs = 60_000 + (4 * job.n * job.w * Math.min(job.n, job.w)) / 5e7;
-      if (!await_(s, timeoutMs)) {
+      if (!await_(s, id, timeoutMs)) {
         state = null;
         s.worker.terminate();
         throw new Error('lyapunov: the linear-algebra worker thread failed or timed out; set MODESHELF_LINALG_THREADS=1 to compute on one thread');
