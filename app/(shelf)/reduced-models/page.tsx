@@ -1,26 +1,74 @@
 import type { Metadata } from 'next';
+import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth';
+import { listReducedModels } from '@/lib/reduced-models';
+import type { VersionStatus } from '@/lib/review/state-machine';
 import { PageHeader } from '@/components/shell/PageHeader';
 import { EmptyState } from '@/components/shell/EmptyState';
+import { StatusBadge } from '@/components/review/StatusBadge';
+import { formatPercent } from '@/components/charts/format';
 
 export const metadata: Metadata = { title: 'Reduced models' };
+export const dynamic = 'force-dynamic';
+
+const METHOD_WORDS: Record<string, string> = { balanced: 'balanced truncation', residualization: 'balanced residualization', modal: 'modal truncation' };
 
 export default async function ReducedModelsPage() {
   await requirePageRole();
+  const models = await listReducedModels();
   return (
     <>
       <PageHeader
         title="Reduced models"
-        lead="Reduced-order models registered on the shelf, with their recipe, accuracy report and review state."
+        lead="Reduced-order models registered on the shelf, with their recipe, accuracy report and review state. A reduced model is an approximation valid within its reported error bounds and frequency band."
       />
-      <EmptyState
-        title="No reduced models yet"
-        willAppear="Each reduced model will show its versions with the source version and recipe that produced it (method, order, tolerance), its state (draft, in review, approved, revise, retired), and an accuracy report: frequency and step responses of full and reduced model side by side, with the error against its bound."
-        meanwhile={[
-          'Reduced models are made from source models; the first one appears once an engineer uploads a source model and runs a reduction.',
-          'A reduced model is an approximation valid within its reported error bounds and frequency band; approval here records a review, not a certification.',
-        ]}
-      />
+      {models.length === 0 ? (
+        <EmptyState
+          title="No reduced models yet"
+          willAppear="Each reduced model will show its versions with the source version and recipe that produced it, its state, and its accuracy report."
+          meanwhile={['Reduced models are made from source models: open an analysed source version and run a recipe.']}
+        />
+      ) : (
+        <section aria-label="Reduced models" className="panel overflow-x-auto">
+          <table className="w-full text-left text-sm" data-testid="reduced-models-table">
+            <thead>
+              <tr className="border-b border-rule-strong">
+                {['Reduced model', 'Source model', 'Latest', 'State', 'Order', 'Method', 'H∞ error, relative', 'Acceptance', 'Author', 'When'].map((h) => (
+                  <th key={h} scope="col" className="px-4 py-2 font-medium">
+                    {h}
+                  </th>
+                ))}
+              </tr>
+            </thead>
+            <tbody>
+              {models.map((m) => (
+                <tr key={m.id} className="border-b border-rule last:border-b-0">
+                  <td className="px-4 py-2">
+                    <Link href={`/reduced-models/${m.slug}`}>{m.name}</Link>
+                  </td>
+                  <td className="px-4 py-2">
+                    <Link href={`/source-models/${m.sourceModel.slug}`}>{m.sourceModel.name}</Link>
+                  </td>
+                  <td className="px-4 py-2">
+                    <Link className="num" href={`/reduced-models/${m.slug}/versions/${m.latestVersion}`}>
+                      v{m.latestVersion}
+                    </Link>
+                  </td>
+                  <td className="px-4 py-2">
+                    <StatusBadge status={m.status as VersionStatus} />
+                  </td>
+                  <td className="num px-4 py-2">{m.order}</td>
+                  <td className="px-4 py-2">{METHOD_WORDS[m.method] ?? m.method}</td>
+                  <td className="num px-4 py-2">{m.hinfErrorRelative === null ? '—' : formatPercent(m.hinfErrorRelative)}</td>
+                  <td className="px-4 py-2">{m.acceptancePassed === null ? '—' : m.acceptancePassed ? 'PASS' : 'FAIL'}</td>
+                  <td className="px-4 py-2">{m.author}</td>
+                  <td className="num px-4 py-2 text-xs">{m.updatedAt.replace('T', ' ').slice(0, 16)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </section>
+      )}
     </>
   );
 }

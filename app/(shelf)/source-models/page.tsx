@@ -1,26 +1,30 @@
 import type { Metadata } from 'next';
+import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth';
+import { listSourceModels, sourceModelListSchema } from '@/lib/source-models';
 import { PageHeader } from '@/components/shell/PageHeader';
-import { EmptyState } from '@/components/shell/EmptyState';
+import { SourceModelsTable } from '@/components/source-models/SourceModelsTable';
 
 export const metadata: Metadata = { title: 'Source models' };
+export const dynamic = 'force-dynamic';
 
 export default async function SourceModelsPage() {
-  await requirePageRole();
+  const user = await requirePageRole();
+  const initial = await listSourceModels(sourceModelListSchema.parse({}));
   return (
     <>
       <PageHeader
         title="Source models"
-        lead="Full-order state-space models as uploaded, each with numbered versions (v1, v2, …) and its analysis."
+        lead="Full-order state-space models as uploaded, each with numbered versions (v1, v2, …) and its analysis: poles, stiffness and Hankel singular values."
+        actions={
+          user.role === 'engineer' ? (
+            <Link className="button-primary no-underline hover:no-underline" href="/source-models/new">
+              Upload a source model
+            </Link>
+          ) : null
+        }
       />
-      <EmptyState
-        title="No source models yet"
-        willAppear="Each uploaded model will be listed here with its versions, size (states, inputs, outputs), checksum and uploader. Opening a version will show its poles, damping, stiffness ratio and Hankel singular values, so you can judge how many states a reduced model needs."
-        meanwhile={[
-          'Gather the full models you want to reduce as JSON (A, B, C, D, or M, D, K for second-order models), Matrix Market or CSV files.',
-          'Decide which inputs and outputs your controller needs: a reduced model keeps the behaviour between exactly those channels, so trimming them first makes a smaller, more accurate model.',
-        ]}
-      />
+      <SourceModelsTable initial={initial} />
     </>
   );
 }

@@ -1,0 +1,73 @@
+import type { Metadata } from 'next';
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { requirePageRole } from '@/lib/auth';
+import { getVersionPage } from '@/lib/source-models';
+import { reducedModelsOfSource } from '@/lib/reduced-models';
+import { PageHeader } from '@/components/shell/PageHeader';
+import { AnalysisFigures } from '@/components/source-models/AnalysisFigures';
+import { JobProgress } from '@/components/source-models/JobProgress';
+import { VersionWorkspace } from '@/components/source-models/VersionWorkspace';
+
+export const metadata: Metadata = { title: 'Source version' };
+export const dynamic = 'force-dynamic';
+
+export default async function SourceVersionPage({ params }: { params: Promise<{ slug: string; number: string }> }) {
+  const user = await requirePageRole();
+  const { slug, number } = await params;
+  const n = Number(number);
+  if (!Number.isInteger(n) || n < 1) notFound();
+  const data = await getVersionPage(slug, n);
+  if (!data) notFound();
+  const { model, version, analysis } = data;
+  const timeUnit = model.timeUnit || 's';
+  const reducedModels = analysis ? await reducedModelsOfSource(model.id) : [];
+  return (
+    <>
+      <PageHeader
+        title={`${model.name} v${version.number}`}
+        lead={
+          <>
+            <span className="num">
+              {version.states} states, {version.inputs} inputs, {version.outputs} outputs
+            </span>{' '}
+            · {version.format} · uploaded by {version.uploadedBy.name} on <span className="num">{version.createdAt.slice(0, 10)}</span>
+            {data.latestNumber > version.number ? (
+              <>
+                {' '}
+                · a newer version exists: <Link href={`/source-models/${model.slug}/versions/${data.latestNumber}`}>v{data.latestNumber}</Link>
+              </>
+            ) : null}
+          </>
+        }
+        actions={
+          <Link className="button-quiet" href={`/source-models/${model.slug}`}>
+            All versions
+          </Link>
+        }
+      />
+      <p className="num mb-4 text-xs text-graphite-soft" title="SHA-256 of the uploaded files">
+        checksum {version.checksum} · files {version.files.map((f) => f.name).join(', ')}
+        {version.notes ? ` · ${version.notes}` : ''}
+      </p>
+      {analysis ? (
+        <div className="space-y-6">
+          <AnalysisFigures analysis={analysis} timeUnit={timeUnit} />
+          <VersionWorkspace
+            analysis={analysis}
+            sourceVersionId={version.id}
+            sourceName={model.name}
+            versionNumber={version.number}
+            timeUnit={timeUnit}
+            canRun={user.role === 'engineer'}
+            reducedModels={reducedModels}
+          />
+        </div>
+      ) : version.job ? (
+        <JobProgress initial={version.job} label={`Analysis of v${version.number}`} canRetry={user.role === 'engineer'} />
+      ) : (
+        <p className="panel p-4 text-sm">This version has no analysis and no analysis job.</p>
+      )}
+    </>
+  );
+}

@@ -1,0 +1,163 @@
+'use client';
+// Full against reduced, for one reduced-model version (issue 5, "Compare full and reduced"): Bode magnitude
+// and phase of the chosen channel, the largest singular value, the error against its bound with the
+// acceptance band and its verdict, step and impulse responses with their error, the response to an
+// uploaded input signal, and the figures with the simulation cost. Everything is drawn from the accuracy
+// report the reduction job stored; the input signal is a job of its own.
+import { useMemo, useState } from 'react';
+import { BodeChart } from '@/components/charts/BodeChart';
+import { ChannelPicker } from '@/components/charts/ChannelPicker';
+import { ErrorBoundChart } from '@/components/charts/ErrorBoundChart';
+import { SigmaChart } from '@/components/charts/SigmaChart';
+import { TimeResponseChart } from '@/components/charts/TimeResponseChart';
+import { channelLabel, signalNames, type Channel } from '@/components/charts/channel-names';
+import { formatCount, formatFactor, formatNumber, formatTime, formatWallTime } from '@/components/charts/format';
+import { FiguresTable } from '@/components/workspace/FiguresTable';
+import type { AccuracyFigures } from '@/components/workspace/figures-rows';
+import type { AccuracyFiguresRecord, CostRowRecord, ReductionCurves } from '@/lib/engine-tasks/records';
+import type { JobView } from '@/lib/jobs/jobs';
+import { InputSignalPanel } from './InputSignalPanel';
+
+export interface ComparisonViewProps {
+  reducedVersionId: string;
+  figures: AccuracyFiguresRecord;
+  curves: ReductionCurves;
+  acceptance: { minFrequency: number; maxFrequency: number; maxError: number } | null;
+  timeUnit: string;
+  inputNames: string[] | null;
+  outputNames: string[] | null;
+  responseJob: JobView | null;
+  canUploadSignal: boolean;
+}
+
+export function toFiguresTable(f: AccuracyFiguresRecord): AccuracyFigures {
+  return {
+    fullOrder: f.fullOrder,
+    reducedOrder: f.reducedOrder,
+    hinfError: f.hinfError,
+    hinfErrorRelative: f.hinfErrorRelative,
+    errorBound: f.errorBound,
+    h2Error: f.h2Error,
+    dcGainError: f.dcGainError,
+    peakStepError: f.peakStepError,
+    stiffnessRatioFull: f.stiffnessRatioFull,
+    stiffnessRatioReduced: f.stiffnessRatioReduced,
+    ...(f.simulation ? { simulation: f.simulation } : {}),
+  };
+}
+
+function CostRows({ rows, input, tEnd, timeUnit }: { rows: CostRowRecord[]; input: string; tEnd: number; timeUnit: string }) {
+  return (
+    <div className="panel p-4" data-testid="cost-rows">
+      <table className="w-full border-collapse text-sm">
+        <caption className="pb-2 text-left text-sm font-medium">
+          Each solver on both models: {input}, 0 to {formatTime(tEnd, timeUnit)}
+        </caption>
+        <thead>
+          <tr className="border-b border-rule-strong">
+            {['Solver', 'Steps, full', 'Steps, reduced', 'Wall time, full', 'Wall time, reduced', 'Full ÷ reduced (time)', 'Largest output difference'].map((h) => (
+              <th key={h} scope="col" className="py-1.5 pr-3 text-left font-medium">
+                {h}
+              </th>
+            ))}
+          </tr>
+        </thead>
+        <tbody>
+          {rows.map((r) => (
+            <tr key={r.solver} className="border-b border-rule last:border-b-0">
+              <th scope="row" className="py-1.5 pr-3 text-left font-normal">
+                {r.solver}
+              </th>
+              <td className="num py-1.5 pr-3">{r.full ? formatCount(r.full.steps) : '—'}</td>
+              <td className="num py-1.5 pr-3">{formatCount(r.reduced.steps)}</td>
+              <td className="num py-1.5 pr-3">{r.full ? formatWallTime(r.full.wallMs) : '—'}</td>
+              <td className="num py-1.5 pr-3">{formatWallTime(r.reduced.wallMs)}</td>
+              <td className="num py-1.5 pr-3">{r.full && r.reduced.wallMs > 0 ? formatFactor(r.full.wallMs / r.reduced.wallMs) : '—'}</td>
+              <td className="num py-1.5 pr-3">{r.maxOutputDifference === null ? '—' : formatNumber(r.maxOutputDifference)}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      {rows
+        .filter((r) => r.skippedFull)
+        .map((r) => (
+          <p key={r.solver} className="mt-2 text-xs text-graphite-soft">
+            Full model, {r.solver} solver: {r.skippedFull}.
+          </p>
+        ))}
+    </div>
+  );
+}
+
+export function ComparisonView(p: ComparisonViewProps) {
+  const { curves, figures, timeUnit } = p;
+  const inputs = curves.frequency.full.re[0]?.length ?? 0;
+  const outputs = curves.frequency.full.re.length;
+  const [channel, setChannel] = useState<Channel>({ input: 0, output: 0 });
+  const inputNames = signalNames(p.inputNames ?? undefined, inputs, 'u');
+  const outputNames = signalNames(p.outputNames ?? undefined, outputs, 'y');
+  const label = channelLabel(inputNames, outputNames, channel);
+  const { input: j, output: i } = channel;
+  const f = curves.frequency;
+  const bode = useMemo(
+    () => ({
+      full: { re: f.full.re[i][j], im: f.full.im[i][j] },
+      reduced: { re: f.reduced.re[i][j], im: f.reduced.im[i][j] },
+    }),
+    [f, i, j],
+  );
+  const series = (c: ReductionCurves['step'], which: 'full' | 'reduced') => ({ t: c.t, y: c[which][j][i] });
+
+  return (
+    <div className="space-y-6">
+      <div className="flex flex-wrap items-end justify-between gap-4">
+        <ChannelPicker inputCount={inputs} outputCount={outputs} inputNames={p.inputNames ?? undefined} outputNames={p.outputNames ?? undefined} value={channel} onChange={setChannel} />
+        <p className="text-xs text-graphite-soft">Full model solid graphite, reduced model dashed teal.</p>
+      </div>
+      <div className="grid gap-6 xl:grid-cols-2">
+        <BodeChart frequencies={f.w} full={bode.full} reduced={bode.reduced} timeUnit={timeUnit} channelLabel={label} title="Bode plot" />
+        <div className="space-y-6">
+          <SigmaChart frequencies={f.w} full={f.sigmaFull} reduced={f.sigmaReduced} timeUnit={timeUnit} title="Largest singular value σmax(G(jω))" />
+          <ErrorBoundChart
+            frequencies={f.w}
+            error={f.error}
+            bound={figures.errorBound ?? undefined}
+            errorLabel="σmax(G − Gr)"
+            boundLabel={figures.method === 'modal' ? 'modal bound Σ‖cᵢbᵢᵀ‖/|Re λᵢ|' : 'bound 2Σσ(r+1..n)'}
+            acceptance={p.acceptance ?? undefined}
+            timeUnit={timeUnit}
+            title="Error |G − Gr| against its bound"
+          />
+        </div>
+      </div>
+      <div className="grid gap-6 xl:grid-cols-2">
+        <TimeResponseChart kind="step" full={series(curves.step, 'full')} reduced={series(curves.step, 'reduced')} timeUnit={timeUnit} channelLabel={label} />
+        <TimeResponseChart kind="impulse" full={series(curves.impulse, 'full')} reduced={series(curves.impulse, 'reduced')} timeUnit={timeUnit} channelLabel={label} />
+      </div>
+      <p className="text-xs text-graphite-soft">
+        Responses from rest to a unit step and a unit impulse on input {inputNames[j]}, over {formatTime(figures.simulationEnd, timeUnit)}; solvers: full {curves.step.solverFull},
+        reduced {curves.step.solverReduced}.
+      </p>
+      <InputSignalPanel
+        reducedVersionId={p.reducedVersionId}
+        initialJob={p.responseJob}
+        canUpload={p.canUploadSignal}
+        channel={channel}
+        channelLabel={label}
+        inputCount={inputs}
+        timeUnit={timeUnit}
+      />
+      <div className="grid gap-6 xl:grid-cols-2">
+        <FiguresTable figures={toFiguresTable(figures)} caption="Accuracy report" />
+        <CostRows rows={figures.costRows} input={figures.simulationInput} tEnd={figures.simulationEnd} timeUnit={timeUnit} />
+      </div>
+      {figures.notes.length ? (
+        <ul className="list-disc pl-5 text-sm" aria-label="Notes from the reduction">
+          {figures.notes.map((n) => (
+            <li key={n}>{n}</li>
+          ))}
+        </ul>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,346 @@
+'use client';
+// The recipe form (DESIGN.md §2, "recipe"): method, modal selection rule and band, order by number (the
+// order slider, with the figures of each order read from the analysis) or by tolerance, an optional
+// acceptance band, and where the result goes (a new reduced model, or the next version of one). Running
+// it posts to /api/reductions and follows the reduction job until its draft version exists.
+import { useRouter } from 'next/navigation';
+import { useEffect, useId, useMemo, useState, type FormEvent } from 'react';
+import { useMutation, useQuery } from '@tanstack/react-query';
+import { apiFetch, ApiClientError } from '@/components/api-client';
+import { formatFrequency, formatNumber, frequencyUnit } from '@/components/charts/format';
+import { OrderSlider } from '@/components/workspace/OrderSlider';
+import type { AnalysisRecord, OrderFigureTable } from '@/lib/engine-tasks/records';
+import type { JobView } from '@/lib/jobs/jobs';
+import { JobProgress } from './JobProgress';
+import { orderForTolerance, storedTable, suggestedOrder, type Method, type ModalSelection } from './recipe-choices';
+
+export interface ReducedModelChoice {
+  id: string;
+  name: string;
+  latestVersion: number;
+}
+
+export interface RecipeFormProps {
+  analysis: AnalysisRecord;
+  sourceVersionId: string;
+  sourceName: string;
+  versionNumber: number;
+  timeUnit: string;
+  canRun: boolean;
+  reducedModels: ReducedModelChoice[];
+  method: Method;
+  onMethod: (m: Method) => void;
+  selection: ModalSelection;
+  onSelection: (s: ModalSelection) => void;
+  order: number;
+  onOrder: (r: number) => void;
+}
+
+const METHOD_WORDS: Record<Method, string> = {
+  balanced: 'Balanced truncation',
+  residualization: 'Balanced residualization (keeps the DC gain)',
+  modal: 'Modal truncation',
+};
+
+function num(text: string): number | undefined {
+  const t = text.trim();
+  if (t === '') return undefined;
+  const v = Number(t);
+  return Number.isFinite(v) ? v : NaN;
+}
+
+export function RecipeForm(p: RecipeFormProps) {
+  const { analysis, method, selection, order, timeUnit } = p;
+  const router = useRouter();
+  const id = useId();
+  const [orderRule, setOrderRule] = useState<'order' | 'tolerance'>('order');
+  const [tolerance, setTolerance] = useState('1e-3');
+  const [bandLo, setBandLo] = useState('');
+  const [bandHi, setBandHi] = useState('');
+  const [withAcceptance, setWithAcceptance] = useState(false);
+  const [accLo, setAccLo] = useState('');
+  const [accHi, setAccHi] = useState('');
+  const [accMax, setAccMax] = useState('');
+  const [target, setTarget] = useState<'new' | string>(p.reducedModels.length ? p.reducedModels[0].id : 'new');
+  const [name, setName] = useState(`${p.sourceName}, reduced`);
+  const [description, setDescription] = useState('');
+  const [errors, setErrors] = useState<Record<string, string>>({});
+  const [job, setJob] = useState<JobView | null>(null);
+
+  const band = useMemo(() => {
+    const lo = num(bandLo);
+    const hi = num(bandHi);
+    return lo !== undefined && hi !== undefined && lo > 0 && hi > lo ? ([lo, hi] as [number, number]) : null;
+  }, [bandLo, bandHi]);
+  const bandQuery = useQuery({
+    queryKey: ['modal-band-figures', p.sourceVersionId, band],
+    enabled: method === 'modal' && selection === 'band' && band !== null,
+    queryFn: () =>
+      apiFetch<{ figures: OrderFigureTable; statesInBand: number }>(
+        `/api/source-versions/${p.sourceVersionId}/modal-figures?minFrequency=${band![0]}&maxFrequency=${band![1]}`,
+      ),
+  });
+
+  const table: OrderFigureTable | null = storedTable(analysis, method, selection) ?? bandQuery.data?.figures ?? null;
+  const available = table?.available ? table : null;
+
+  // A change of method or rule keeps the order when the new table allows it, else picks a sensible one.
+  useEffect(() => {
+    if (!available) return;
+    if (!available.orders.includes(order)) {
+      const inBand = bandQuery.data?.statesInBand;
+      const wanted = method === 'modal' && selection === 'band' && inBand ? inBand : suggestedOrder(available, analysis.stablePartHinfNorm);
+      const nearest = available.orders.reduce((a, b) => (Math.abs(b - wanted) < Math.abs(a - wanted) ? b : a), available.orders[0]);
+      p.onOrder(nearest);
+    }
+    // p.onOrder is a state setter; the effect runs when the table changes.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [available, bandQuery.data]);
+
+  const toleranceValue = num(tolerance);
+  const byTolerance = available && toleranceValue ? orderForTolerance(available, toleranceValue, analysis.stablePartHinfNorm) : null;
+
+  const run = useMutation({
+    mutationFn: (body: unknown) => apiFetch<{ job: JobView }>('/api/reductions', { method: 'POST', body }),
+    onSuccess: ({ job: queued }) => setJob(queued),
+    onError: (err: Error) => {
+      if (err instanceof ApiClientError && err.field) setErrors({ [err.field]: err.message });
+      else setErrors({ form: err.message });
+    },
+  });
+
+  const onSubmit = (e: FormEvent) => {
+    e.preventDefault();
+    const found: Record<string, string> = {};
+    const recipe: Record<string, unknown> = { method, orderRule, modalSelection: selection };
+    if (orderRule === 'order') recipe.order = order;
+    else if (!(toleranceValue! > 0)) found['recipe.tolerance'] = 'Give a positive tolerance, e.g. 1e-3.';
+    else recipe.tolerance = toleranceValue;
+    if (method === 'modal' && selection === 'band') {
+      if (!band) found['recipe.band'] = 'Give the band as two frequencies, the lower first.';
+      else recipe.band = { minFrequency: band[0], maxFrequency: band[1] };
+    }
+    if (withAcceptance) {
+      const lo = num(accLo);
+      const hi = num(accHi);
+      const max = num(accMax);
+      if (!(lo! > 0 && hi! > lo!)) found['recipe.acceptance.maxFrequency'] = 'Give the band as two positive frequencies, the lower first.';
+      else if (!(max! > 0)) found['recipe.acceptance.maxError'] = 'Give the largest error allowed in the band (a positive gain).';
+      else recipe.acceptance = { minFrequency: lo, maxFrequency: hi, maxError: max };
+    }
+    if (target === 'new' && name.trim() === '') found['target.name'] = 'Name the reduced model.';
+    setErrors(found);
+    if (Object.keys(found).length > 0) return;
+    run.mutate({
+      sourceVersionId: p.sourceVersionId,
+      recipe,
+      target: target === 'new' ? { kind: 'new', name: name.trim(), description: description.trim() } : { kind: 'existing', reducedModelId: target },
+    });
+  };
+
+  const err = (key: string) =>
+    errors[key] ? (
+      <p role="alert" className="mt-1 text-sm text-okabe-vermillion" data-testid={`error-${key}`}>
+        {errors[key]}
+      </p>
+    ) : null;
+
+  const unit = frequencyUnit(timeUnit);
+  return (
+    <form onSubmit={onSubmit} className="panel space-y-4 p-5" aria-label="Recipe" data-testid="recipe-form">
+      <h2 className="text-base font-semibold">Recipe: how to reduce v{p.versionNumber}</h2>
+      <div className="grid gap-4 md:grid-cols-2">
+        <div>
+          <label htmlFor={`${id}-method`} className="field-label">
+            Method
+          </label>
+          <select id={`${id}-method`} className="field-input" value={method} onChange={(e) => p.onMethod(e.target.value as Method)} disabled={!p.canRun}>
+            {(Object.keys(METHOD_WORDS) as Method[]).map((m) => (
+              <option key={m} value={m}>
+                {METHOD_WORDS[m]}
+              </option>
+            ))}
+          </select>
+        </div>
+        {method === 'modal' ? (
+          <div>
+            <label htmlFor={`${id}-selection`} className="field-label">
+              Modes kept first
+            </label>
+            <select id={`${id}-selection`} className="field-input" value={selection} onChange={(e) => p.onSelection(e.target.value as ModalSelection)} disabled={!p.canRun}>
+              <option value="dominance">Most dominant (largest contribution to ‖G‖∞)</option>
+              <option value="slowest">Slowest (smallest decay rate)</option>
+              <option value="band">Inside a frequency band</option>
+            </select>
+          </div>
+        ) : null}
+      </div>
+      {method === 'modal' && selection === 'band' ? (
+        <div className="grid gap-4 md:grid-cols-2">
+          <div>
+            <label htmlFor={`${id}-band-lo`} className="field-label">
+              Band from ({unit})
+            </label>
+            <input id={`${id}-band-lo`} className="field-input num" value={bandLo} onChange={(e) => setBandLo(e.target.value)} inputMode="decimal" placeholder="e.g. 1" />
+          </div>
+          <div>
+            <label htmlFor={`${id}-band-hi`} className="field-label">
+              Band to ({unit})
+            </label>
+            <input id={`${id}-band-hi`} className="field-input num" value={bandHi} onChange={(e) => setBandHi(e.target.value)} inputMode="decimal" placeholder="e.g. 100" />
+          </div>
+          {err('recipe.band')}
+          {bandQuery.data ? (
+            <p className="text-sm md:col-span-2">
+              {bandQuery.data.statesInBand} states (with those kept exactly) have their natural frequency in the band.
+            </p>
+          ) : null}
+        </div>
+      ) : null}
+
+      <fieldset>
+        <legend className="field-label mb-1">Order</legend>
+        <div role="radiogroup" aria-label="Order rule" className="mb-3 flex flex-wrap gap-4 text-sm">
+          <label className="flex items-center gap-2">
+            <input type="radio" name="orderRule" checked={orderRule === 'order'} onChange={() => setOrderRule('order')} />
+            By number of states
+          </label>
+          <label className="flex items-center gap-2">
+            <input type="radio" name="orderRule" checked={orderRule === 'tolerance'} onChange={() => setOrderRule('tolerance')} />
+            By tolerance: smallest order whose bound is at most tolerance × ‖G‖∞
+          </label>
+        </div>
+        {!table ? (
+          <p className="text-sm text-graphite-soft">{method === 'modal' && selection === 'band' ? 'Give a band to see the orders it allows.' : 'Loading the orders…'}</p>
+        ) : !table.available ? (
+          <p role="alert" className="text-sm">
+            {METHOD_WORDS[method]} is not available for this model: {table.reason}
+          </p>
+        ) : orderRule === 'order' ? (
+          <>
+            <OrderSlider orders={table.orders} value={order} onChange={p.onOrder} figures={table.figures} fullOrder={analysis.states} timeUnit={timeUnit} disabled={!p.canRun} />
+            {table.limitNote ? <p className="mt-1 text-xs text-graphite-soft">{table.limitNote}</p> : null}
+            {err('recipe.order')}
+          </>
+        ) : (
+          <div className="max-w-md">
+            <label htmlFor={`${id}-tolerance`} className="field-label">
+              Tolerance (relative to ‖G‖∞)
+            </label>
+            <input id={`${id}-tolerance`} className="field-input num" value={tolerance} onChange={(e) => setTolerance(e.target.value)} inputMode="decimal" />
+            {err('recipe.tolerance')}
+            <p className="mt-1 text-sm" aria-live="polite">
+              {byTolerance
+                ? `Order ${byTolerance.order}: bound ${formatNumber(byTolerance.bound)} ≤ ${formatNumber(toleranceValue! * (analysis.stablePartHinfNorm ?? 0))}`
+                : 'No order on the slider meets it; the reduction will search the larger orders.'}
+            </p>
+          </div>
+        )}
+      </fieldset>
+
+      <fieldset>
+        <label className="flex items-center gap-2 text-sm">
+          <input type="checkbox" checked={withAcceptance} onChange={(e) => setWithAcceptance(e.target.checked)} />
+          Acceptance band: the controller team&apos;s limit on |G − Gr| over a frequency range
+        </label>
+        {withAcceptance ? (
+          <div className="mt-2 grid gap-4 md:grid-cols-3">
+            <div>
+              <label htmlFor={`${id}-acc-lo`} className="field-label">
+                From ({unit})
+              </label>
+              <input id={`${id}-acc-lo`} className="field-input num" value={accLo} onChange={(e) => setAccLo(e.target.value)} inputMode="decimal" />
+            </div>
+            <div>
+              <label htmlFor={`${id}-acc-hi`} className="field-label">
+                To ({unit})
+              </label>
+              <input id={`${id}-acc-hi`} className="field-input num" value={accHi} onChange={(e) => setAccHi(e.target.value)} inputMode="decimal" />
+              {err('recipe.acceptance.maxFrequency')}
+            </div>
+            <div>
+              <label htmlFor={`${id}-acc-max`} className="field-label">
+                Largest error
+              </label>
+              <input id={`${id}-acc-max`} className="field-input num" value={accMax} onChange={(e) => setAccMax(e.target.value)} inputMode="decimal" />
+              {err('recipe.acceptance.maxError')}
+            </div>
+            <p className="text-xs text-graphite-soft md:col-span-3">
+              The poles&apos; band is {formatFrequency(analysis.frequencyBand[0], timeUnit)} to {formatFrequency(analysis.frequencyBand[1], timeUnit)}; the error is
+              checked on a dense grid inside the band.
+            </p>
+          </div>
+        ) : null}
+      </fieldset>
+
+      <fieldset>
+        <legend className="field-label mb-1">Register the result as</legend>
+        <div className="grid gap-4 md:grid-cols-2">
+          <div>
+            <label htmlFor={`${id}-target`} className="field-label">
+              Reduced model
+            </label>
+            <select id={`${id}-target`} className="field-input" value={target} onChange={(e) => setTarget(e.target.value)}>
+              <option value="new">A new reduced model</option>
+              {p.reducedModels.map((m) => (
+                <option key={m.id} value={m.id}>
+                  {m.name}: next version after v{m.latestVersion}
+                </option>
+              ))}
+            </select>
+          </div>
+          {target === 'new' ? (
+            <div>
+              <label htmlFor={`${id}-name`} className="field-label">
+                Name of the new reduced model
+              </label>
+              <input id={`${id}-name`} className="field-input" value={name} onChange={(e) => setName(e.target.value)} maxLength={120} />
+              {err('target.name')}
+            </div>
+          ) : null}
+        </div>
+        {target === 'new' ? (
+          <div className="mt-3">
+            <label htmlFor={`${id}-description`} className="field-label">
+              What it is for
+            </label>
+            <input id={`${id}-description`} className="field-input" value={description} onChange={(e) => setDescription(e.target.value)} maxLength={4000} />
+          </div>
+        ) : null}
+      </fieldset>
+
+      {errors.form ? (
+        <p role="alert" className="border-l-2 border-okabe-vermillion bg-sheet px-3 py-2 text-sm">
+          {errors.form}
+        </p>
+      ) : null}
+      {Object.entries(errors)
+        .filter(([k]) => !['form', 'recipe.order', 'recipe.tolerance', 'recipe.band', 'recipe.acceptance.maxFrequency', 'recipe.acceptance.maxError', 'target.name'].includes(k))
+        .map(([k, v]) => (
+          <p key={k} role="alert" className="text-sm text-okabe-vermillion">
+            {v}
+          </p>
+        ))}
+
+      {p.canRun ? (
+        <button type="submit" className="button-primary" disabled={run.isPending || (job !== null && job.status !== 'failed') || !available}>
+          {run.isPending ? 'Queuing…' : `Run ${METHOD_WORDS[method].split(' (')[0].toLowerCase()}`}
+        </button>
+      ) : (
+        <p className="text-sm text-graphite-soft">Only engineers run recipes; you can explore the orders here.</p>
+      )}
+      {job ? (
+        <JobProgress
+          key={job.id}
+          initial={job}
+          label="Reduction"
+          canRetry={p.canRun}
+          onSucceeded={(done) => {
+            const url = done.result?.url;
+            if (typeof url === 'string') router.push(url);
+          }}
+        />
+      ) : null}
+    </form>
+  );
+}

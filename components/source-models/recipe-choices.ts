@@ -1,0 +1,86 @@
+/**
+ * The recipe form's arithmetic, on the figures the analysis stored (no decomposition in the browser): which
+ * order table a method and selection rule use, the order the tolerance rule would choose, and which poles a
+ * modal truncation keeps. Pure functions, tested in node.
+ */
+import type { AnalysisRecord, ModeRecord, OrderFigureTable } from '@/lib/engine-tasks/records';
+
+export type Method = 'balanced' | 'residualization' | 'modal';
+export type ModalSelection = 'dominance' | 'slowest' | 'band';
+
+export function storedTable(analysis: AnalysisRecord, method: Method, selection: ModalSelection): OrderFigureTable | null {
+  if (method === 'balanced') return analysis.orderFigures.balanced;
+  if (method === 'residualization') return analysis.orderFigures.residualization;
+  if (selection === 'dominance') return analysis.orderFigures.modalDominance;
+  if (selection === 'slowest') return analysis.orderFigures.modalSlowest;
+  return null; // the band rule's table depends on the band: fetched for it
+}
+
+/**
+ * The order the tolerance rule picks: the smallest offered order whose bound is at most tolerance·‖Gs‖∞
+ * (reduction/order.ts; Antoulas 2005, §7.2). Null when no offered order meets it (the engine then goes on
+ * to larger orders than the slider offers, up to the full stable part).
+ */
+export function orderForTolerance(table: OrderFigureTable, tolerance: number, referenceNorm: number | null): { order: number; bound: number } | null {
+  if (!table.available || !(tolerance > 0) || referenceNorm === null) return null;
+  const target = tolerance * referenceNorm;
+  for (const order of table.orders) {
+    const bound = table.figures[order]?.errorBound;
+    if (bound !== null && bound !== undefined && bound <= target) return { order, bound };
+  }
+  return null;
+}
+
+/** The ranking order-figures.ts uses for the stored modal tables: the modes kept first come first. */
+function rankedStable(modes: readonly ModeRecord[], selection: 'dominance' | 'slowest'): ModeRecord[] {
+  const stable = modes.filter((m) => m.stability === 'stable' && m.dominance !== null);
+  const byDominance = (a: ModeRecord, b: ModeRecord) => (b.dominance ?? 0) - (a.dominance ?? 0);
+  return selection === 'dominance' ? stable.sort(byDominance) : stable.sort((a, b) => Math.abs(a.re) - Math.abs(b.re) || byDominance(a, b));
+}
+
+/**
+ * For the pole map: which poles a modal truncation to `order` states keeps (every marginal and unstable
+ * pole, then the ranked modes until the order is reached). Null for the balanced methods, whose reduced
+ * poles are not a subset of the full model's.
+ */
+export function keptPoles(analysis: AnalysisRecord, method: Method, selection: ModalSelection, order: number): boolean[] | null {
+  if (method !== 'modal' || selection === 'band') return null;
+  const { re, im, stability } = analysis.poles;
+  const kept = re.map((_, i) => stability[i] !== 'stable');
+  let states = analysis.marginalPoles + analysis.unstablePoles;
+  // The mode list and the pole list come from two eigenvalue computations; a mode is matched to the
+  // nearest pole not yet taken (and a pair to its conjugate as well).
+  const take = (r: number, i: number) => {
+    let best = -1;
+    let distance = Infinity;
+    for (let k = 0; k < re.length; k++) {
+      if (kept[k]) continue;
+      const d = Math.hypot(re[k] - r, im[k] - i);
+      if (d < distance) {
+        distance = d;
+        best = k;
+      }
+    }
+    if (best >= 0) kept[best] = true;
+  };
+  for (const mode of rankedStable(analysis.modes, selection)) {
+    if (states >= order) break;
+    take(mode.re, Math.abs(mode.im));
+    if (mode.states === 2) take(mode.re, -Math.abs(mode.im));
+    states += mode.states;
+  }
+  return kept;
+}
+
+export function keptExactly(table: OrderFigureTable): number {
+  if (!table.available || table.orders.length === 0) return 0;
+  const f = table.figures[table.orders[0]];
+  return f ? f.keptMarginal + f.keptUnstable : 0;
+}
+
+/** A sensible first order: the smallest offered order whose bound is below 1 % of ‖Gs‖∞, else a tenth of the list. */
+export function suggestedOrder(table: OrderFigureTable, referenceNorm: number | null): number {
+  if (!table.available || table.orders.length === 0) return 1;
+  const byTolerance = orderForTolerance(table, 0.01, referenceNorm);
+  return byTolerance?.order ?? table.orders[Math.min(table.orders.length - 1, Math.floor(table.orders.length / 10))];
+}
