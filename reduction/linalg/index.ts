@@ -20,7 +20,7 @@ export * from './matrix';
 export { gemm, multiply, multiplyTransposeA, multiplyTransposeB } from './gemm';
 export { luFactor, luSolve, luInverse, luLogDeterminant, type LuFactorization } from './lu';
 export { hessenberg } from './hessenberg';
-export { schur, triangularEigenvectors } from './schur';
+export { schur, triangularEigenvectors, standardise2x2 } from './schur';
 export {
   lyapunovFactor,
   lowRankGramianFactors,
@@ -35,7 +35,6 @@ export { symmetricEigenvalues } from './symmetric-eig';
 export { sylvester, lyapunovBartelsStewart } from './sylvester';
 export { pivotedCholesky } from './cholesky';
 export { balance } from './balance';
-export { standardise2x2 } from './schur';
 
 /** C = A·B (blocked, packed product; see `gemm.ts`). */
 export function matmul(a: Matrix, b: Matrix): Matrix {
@@ -52,7 +51,7 @@ export function inverse(a: Matrix): Matrix {
   return luInverseMatrix(a);
 }
 
-/** Eigenvalues of a general real square matrix (Hessenberg + Francis double-shift QR, `schur.ts`). */
+/** Eigenvalues of a general real square matrix (balancing, Hessenberg, Francis double-shift QR: `schur.ts`). */
 export function eigenvalues(a: Matrix): ComplexVector {
   return schurEigenvalues(a);
 }
