@@ -20,10 +20,10 @@ interface UploadAnswer {
 }
 
 const MATRIX_FIELDS = [
-  { name: 'A', label: 'A (n×n)', required: true },
-  { name: 'B', label: 'B (n×m)', required: true },
-  { name: 'C', label: 'C (p×n)', required: true },
-  { name: 'D', label: 'D (p×m), optional', required: false },
+  { name: 'A', label: 'A', shape: '(n×n)', required: true },
+  { name: 'B', label: 'B', shape: '(n×m)', required: true },
+  { name: 'C', label: 'C', shape: '(p×n)', required: true },
+  { name: 'D', label: 'D', shape: '(p×m), optional', required: false },
 ] as const;
 
 /** Sends the form with XMLHttpRequest, whose upload events give the bytes sent so far (fetch has none). */
@@ -92,10 +92,12 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeUnit }: { sour
       </p>
     ) : null;
 
-  const fileInput = (name: string, label: string, accept: string, required: boolean) => (
+  const fileInput = (name: string, label: string, accept: string, required: boolean, shape?: string) => (
     <div key={name}>
       <label htmlFor={`${id}-${name}`} className="field-label">
         {label}
+        {/* matrix dimensions keep their lower-case letters */}
+        {shape ? <span className="normal-case"> {shape}</span> : null}
       </label>
       <input
         id={`${id}-${name}`}
@@ -177,7 +179,7 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeUnit }: { sour
         {mode === 'json' ? (
           fileInput('model', 'Model file (.json)', '.json,application/json', true)
         ) : (
-          <div className="grid gap-4 sm:grid-cols-2">{MATRIX_FIELDS.map((f) => fileInput(f.name, f.label, '.mtx,.mm,.csv,text/csv', f.required))}</div>
+          <div className="grid gap-4 sm:grid-cols-2">{MATRIX_FIELDS.map((f) => fileInput(f.name, f.label, '.mtx,.mm,.csv,text/csv', f.required, f.shape))}</div>
         )}
       </fieldset>
 

@@ -71,6 +71,8 @@ export function queue(role: Role = 'web'): Promise<PgBoss> {
   const url = databaseUrl();
   const current = globalForBoss.modeshelfBoss;
   if (current && current.url === url && (current.role === role || current.role === 'worker')) return current.started;
+  // A sender that becomes a worker (a script, a test), or a new database: the old connection goes.
+  if (current) void current.started.then((b) => b.stop({ graceful: false, close: true })).catch(() => undefined);
   const boss = new PgBoss({
     connectionString: url,
     max: role === 'worker' ? 4 : 2,

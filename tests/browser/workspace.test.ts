@@ -41,8 +41,15 @@ describe('the reduction workspace', () => {
       await page.getByLabel('Description').fill('40-state wall section for the browser test');
       await page.getByLabel('Matrix files A, B, C, D (Matrix Market .mtx or CSV)').check();
       await page.getByLabel('A (n×n)').setInputFiles(file('A.mtx', model.A));
-      await page.getByLabel('B (n×m)').setInputFiles(file('B.mtx', model.B));
+      // First a B with one row too many: the engine's message appears beside the B field, nothing is stored.
+      await page.getByLabel('B (n×m)').setInputFiles(file('B.mtx', [...model.B, [1, 0]]));
       await page.getByLabel('C (p×n)').setInputFiles(file('C.mtx', model.C));
+      await page.getByRole('button', { name: 'Upload and analyse' }).click();
+      await expect.poll(() => page.getByTestId('error-B').textContent(), { timeout: 20_000 }).toMatch(/B has 41 rows but A is 40×40/);
+      expect(new URL(page.url()).pathname).toBe('/source-models/new');
+      await screenshot(page, 'workspace-1-upload-error');
+
+      await page.getByLabel('B (n×m)').setInputFiles(file('B.mtx', model.B));
       await screenshot(page, 'workspace-1-upload-form');
       await page.getByRole('button', { name: 'Upload and analyse' }).click();
 
