@@ -27,6 +27,7 @@ import {
 import { queueMail, recipientsFor } from '@/lib/notifications';
 import { reviewDecidedMail, reviewRequestedMail } from '@/lib/notification-mail';
 import { kickNotificationSender } from '@/lib/notification-sender';
+import { reducedVersionPath } from '@/lib/reduced-models';
 
 export interface Actor {
   id: string;
@@ -308,6 +309,8 @@ export interface QueueEntry {
   reducedModelName: string;
   reducedModelSlug: string;
   number: number;
+  /** The comparison page of the version (full against reduced), which carries the review panel. */
+  comparisonUrl: string;
   authorName: string;
   authorId: string;
   submittedAt: string;
@@ -340,6 +343,7 @@ export async function reviewQueue(viewer: Actor): Promise<QueueEntry[]> {
       reducedModelName: s.reducedModel.name,
       reducedModelSlug: s.reducedModel.slug,
       number: s.number,
+      comparisonUrl: reducedVersionPath(s.reducedModel.slug, s.number),
       authorName: s.author.name,
       authorId: s.author.id,
       submittedAt: s.submittedAt!,

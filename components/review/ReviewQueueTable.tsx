@@ -39,9 +39,14 @@ export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: Qu
         id: 'version',
         header: 'Version',
         cell: (info) => (
-          <Link href={`/reviews/${info.row.original.versionId}`} className="font-medium">
-            {info.getValue()}
-          </Link>
+          <span className="flex flex-wrap items-baseline gap-x-2">
+            <Link href={info.row.original.comparisonUrl} className="font-medium">
+              {info.getValue()}
+            </Link>
+            <Link href={`/reviews/${info.row.original.versionId}`} className="text-xs">
+              review sheet
+            </Link>
+          </span>
         ),
       }),
       column.accessor('authorName', { header: 'Author' }),

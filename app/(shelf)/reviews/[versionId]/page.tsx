@@ -4,7 +4,6 @@ import { notFound } from 'next/navigation';
 import { requirePageRole } from '@/lib/auth';
 import { reviewSheet, versionIdSchema } from '@/lib/reviews';
 import { accuracySideBySide } from '@/lib/lineage';
-import { RERUN_ROLES } from '@/lib/upstream';
 import { reducedVersionPath } from '@/lib/reduced-models';
 import { versionPath } from '@/lib/source-models';
 import { PageHeader } from '@/components/shell/PageHeader';
@@ -12,7 +11,7 @@ import { Caution } from '@/components/workspace/Caution';
 import { ReviewPanel } from '@/components/review/ReviewPanel';
 import { FigureComparison } from '@/components/review/FigureComparison';
 import { StatusBadge, UpstreamChangedBadge } from '@/components/review/StatusBadge';
-import { RerunButton } from '@/components/lineage/RerunButton';
+import { UpstreamNotice } from '@/components/lineage/UpstreamNotice';
 import { formatWhen } from '@/components/review/when';
 
 export const metadata: Metadata = { title: 'Review sheet' };
@@ -112,21 +111,16 @@ export default async function ReviewSheetPage({ params }: { params: Promise<{ ve
               ) : null}
             </dl>
             {v.upstreamChanged ? (
-              <div className="mt-3 border-t border-rule pt-3" data-testid="upstream-notice">
-                <p>
-                  Upstream changed: {v.source.modelName} now has v{v.newestSourceNumber}; this version was reduced from v{v.source.number}.
-                </p>
-                <div className="mt-2">
-                  {rerun ? (
-                    <p>
-                      Re-run on source v{v.newestSourceNumber}: <Link href={`/reviews/${rerun.id}`}>v{rerun.number}</Link> ({rerun.status.replace('_', ' ')}).
-                    </p>
-                  ) : RERUN_ROLES.includes(user.role) ? (
-                    <RerunButton versionId={v.id} newestSourceNumber={v.newestSourceNumber} />
-                  ) : (
-                    <p className="text-graphite-soft">An engineer can re-run its recipe on the new version.</p>
-                  )}
-                </div>
+              <div className="mt-3">
+                <UpstreamNotice
+                  versionId={v.id}
+                  label="this version"
+                  sourceModelName={v.source.modelName}
+                  sourceNumber={v.source.number}
+                  newestSourceNumber={v.newestSourceNumber}
+                  rerun={rerun ?? null}
+                  viewerRole={user.role}
+                />
               </div>
             ) : null}
           </section>
