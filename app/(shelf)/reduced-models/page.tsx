@@ -5,7 +5,8 @@ import { listReducedModels } from '@/lib/reduced-models';
 import type { VersionStatus } from '@/lib/review/state-machine';
 import { PageHeader } from '@/components/shell/PageHeader';
 import { EmptyState } from '@/components/shell/EmptyState';
-import { StatusBadge } from '@/components/review/StatusBadge';
+import { StatusBadge, UpstreamChangedBadge } from '@/components/review/StatusBadge';
+import { reducedModelsUpstream } from '@/lib/upstream';
 import { formatPercent } from '@/components/charts/format';
 
 export const metadata: Metadata = { title: 'Reduced models' };
@@ -16,6 +17,7 @@ const METHOD_WORDS: Record<string, string> = { balanced: 'balanced truncation', 
 export default async function ReducedModelsPage() {
   await requirePageRole();
   const models = await listReducedModels();
+  const upstream = await reducedModelsUpstream(models.map((m) => m.id));
   return (
     <>
       <PageHeader
@@ -56,6 +58,7 @@ export default async function ReducedModelsPage() {
                   </td>
                   <td className="px-4 py-2">
                     <StatusBadge status={m.status as VersionStatus} />
+                    {upstream.get(m.id)?.upstreamChanged ? <UpstreamChangedBadge sourceNumber={upstream.get(m.id)!.latestSourceNumber} newestSourceNumber={upstream.get(m.id)!.newestSourceNumber} /> : null}
                   </td>
                   <td className="num px-4 py-2">{m.order}</td>
                   <td className="px-4 py-2">{METHOD_WORDS[m.method] ?? m.method}</td>

@@ -7,6 +7,7 @@ import type { VersionStatus } from '@/lib/review/state-machine';
 import { PageHeader } from '@/components/shell/PageHeader';
 import { StatusBadge } from '@/components/review/StatusBadge';
 import { Caution } from '@/components/workspace/Caution';
+import { ReducedModelUpstreamNotice } from '@/components/lineage/ReducedModelUpstreamNotice';
 import { formatNumber, formatPercent } from '@/components/charts/format';
 
 export const metadata: Metadata = { title: 'Reduced model' };
@@ -34,6 +35,7 @@ export default async function ReducedModelPage({ params }: { params: Promise<{ s
         }
       />
       <Caution className="mb-6" />
+      <ReducedModelUpstreamNotice reducedModelId={model.id} />
       <section aria-label="Versions" className="panel overflow-x-auto">
         <table className="w-full text-left text-sm" data-testid="reduced-versions-table">
           <caption className="px-4 pt-3 text-left text-sm font-medium">Versions</caption>

@@ -8,6 +8,7 @@ import { PageHeader } from '@/components/shell/PageHeader';
 import { StatusBadge } from '@/components/review/StatusBadge';
 import { Caution } from '@/components/workspace/Caution';
 import { ComparisonView } from '@/components/reduced-models/ComparisonView';
+import { VersionReviewSection } from '@/components/review/VersionReviewSection';
 import { formatFrequency, formatNumber } from '@/components/charts/format';
 
 export const metadata: Metadata = { title: 'Full and reduced compared' };
@@ -73,6 +74,7 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
         responseJob={data.responseJob}
         canUploadSignal={user.role === 'engineer' || user.role === 'reviewer'}
       />
+      <VersionReviewSection versionId={version.id} />
     </>
   );
 }
