@@ -12,6 +12,7 @@
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { db } from '@/lib/db';
+import { preparedRows } from '@/lib/prepared';
 import { recordAudit } from '@/lib/audit';
 import { ApiError, notFound } from '@/lib/http';
 import { requireProject, requireProjectManager, SLUG_PATTERN } from '@/lib/projects';
@@ -241,7 +242,7 @@ export async function loadVersionFacts(
 ): Promise<Map<string, VersionFacts[]>> {
   const byModel = new Map<string, VersionFacts[]>();
   if (Array.isArray(reducedModels) && reducedModels.length === 0) return byModel;
-  const rows: FactsRow[] = await trx('reduced_versions as rv')
+  const query = trx('reduced_versions as rv')
     .join('source_versions as sv', 'sv.id', 'rv.source_version_id')
     .join('source_models as sm', 'sm.id', 'sv.source_model_id')
     .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id')
@@ -264,6 +265,7 @@ export async function loadVersionFacts(
                     THEN (ar.figures->>'hinfErrorRelative')::float8 END AS hinf_error_relative`),
       'ar.acceptance_passed',
     );
+  const rows = await preparedRows<FactsRow>(query, trx);
   for (const r of rows) {
     const facts: VersionFacts = {
       id: r.id,
@@ -321,8 +323,11 @@ async function resolvedPins(
 ): Promise<ResolvedPin[]> {
   const rowsQuery = filter(pinsQuery(trx));
   const modelIds = filter(trx('pins as p').join('reduced_models as rm', 'rm.id', 'p.reduced_model_id').select('p.reduced_model_id'));
-  const [rows, facts] = await Promise.all([order ? rowsQuery.orderBy(order) : rowsQuery, loadVersionFacts(modelIds, trx)]);
-  return resolveRows(rows as PinJoinRow[], facts);
+  const [rows, facts] = await Promise.all([
+    preparedRows<PinJoinRow>(order ? rowsQuery.orderBy(order) : rowsQuery, trx),
+    loadVersionFacts(modelIds, trx),
+  ]);
+  return resolveRows(rows, facts);
 }
 
 export async function listProjectPins(projectId: string, trx: Knex | Knex.Transaction = db()): Promise<ResolvedPin[]> {

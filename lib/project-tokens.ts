@@ -13,6 +13,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { db } from '@/lib/db';
+import { preparedRows } from '@/lib/prepared';
 import { recordAudit } from '@/lib/audit';
 import { ApiError, notFound } from '@/lib/http';
 import { requireProject, requireProjectManager, requireProjectMember, type ProjectRow } from '@/lib/projects';
@@ -258,8 +259,9 @@ export async function authenticatePull(
   // One round trip: find the token and, if it is live, record this use (the pull API's hot path). A
   // data-modifying WITH runs once whether or not the outer query reads it (PostgreSQL manual,
   // "Data-Modifying Statements in WITH").
-  const result = await trx.raw<{ rows: TokenLookupRow[] }>(
-    `WITH found AS (
+  const [row] = await preparedRows<TokenLookupRow>(
+    trx.raw(
+      `WITH found AS (
        SELECT t.*, p.name AS p_name, p.slug AS p_slug, p.description AS p_description,
               p.sample_time AS p_sample_time, p.created_by AS p_created_by,
               p.created_at AS p_created_at, p.updated_at AS p_updated_at
@@ -271,9 +273,10 @@ export async function authenticatePull(
         WHERE revoked_at IS NULL AND (expires_at IS NULL OR expires_at > ?)
      )
      SELECT * FROM found`,
-    [hashProjectToken(token), now, facts.address, facts.method, facts.path.slice(0, 500), now],
+      [hashProjectToken(token), now, facts.address, facts.method, facts.path.slice(0, 500), now],
+    ),
+    trx,
   );
-  const row = result.rows[0];
   if (!row) throw unauthorised('token_invalid', 'That project token is not known here.');
   const state = tokenState(row, now);
   if (state === 'revoked') throw unauthorised('token_revoked', `The project token "${row.name}" was revoked; ask a project engineer for a new one.`);

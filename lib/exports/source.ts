@@ -5,6 +5,7 @@
 // reviewed.
 import type { Knex } from 'knex';
 import { db } from '@/lib/db';
+import { preparedRows } from '@/lib/prepared';
 import { ApiError } from '@/lib/http';
 import { matricesSha256, type StateSpaceRows } from '@/lib/checksums';
 
@@ -82,7 +83,8 @@ function checkShapes(m: RegisteredMatrices, label: string): void {
 
 /** Loads a version for export; throws a 404 when there is none with that id. */
 export async function loadExportSource(versionId: string, trx: Knex | Knex.Transaction = db()): Promise<ExportSource> {
-  const row = await trx('reduced_versions as rv')
+  const [row] = await preparedRows<Record<string, any>>(
+    trx('reduced_versions as rv')
     .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
     .join('source_versions as sv', 'sv.id', 'rv.source_version_id')
     .join('source_models as sm', 'sm.id', 'sv.source_model_id')
@@ -90,7 +92,8 @@ export async function loadExportSource(versionId: string, trx: Knex | Knex.Trans
     .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id')
     .leftJoin('reduced_versions as pv', 'pv.id', 'rv.predecessor_id')
     .where('rv.id', versionId)
-    .first(
+    .limit(1)
+    .select(
       'rv.*',
       'rm.slug as model_slug',
       'rm.name as model_name',
@@ -112,7 +115,9 @@ export async function loadExportSource(versionId: string, trx: Knex | Knex.Trans
       'ar.acceptance_passed as report_acceptance_passed',
       'ar.id as report_id',
       'pv.number as predecessor_number',
-    );
+    ),
+    trx,
+  );
   if (!row) throw new ApiError(404, 'not_found', 'That reduced model version was not found.');
 
   const m = row.matrices as Record<string, unknown>;
