@@ -20,10 +20,14 @@ node_modules/.bin/tsx scripts/db.ts migrate
 node_modules/.bin/tsx scripts/db.ts seed
 
 stop_pidfile "$RUN_DIR/smtp.pid"
-trap 'trap - EXIT; stop_pidfile "$RUN_DIR/smtp.pid"' EXIT
+stop_pidfile "$RUN_DIR/worker.pid"
+trap 'trap - EXIT; stop_pidfile "$RUN_DIR/worker.pid"; stop_pidfile "$RUN_DIR/smtp.pid"' EXIT
 trap 'exit 130' INT TERM
 setsid node_modules/.bin/tsx scripts/fake-smtp.ts >"$RUN_DIR/smtp.log" 2>&1 &
 echo $! >"$RUN_DIR/smtp.pid"
 wait_for_port "$SMTP_PORT" 30 || die "the fake SMTP did not start"
+# One background worker for the analysis and reduction jobs (log: .run/worker.log).
+setsid bash scripts/worker.sh >"$RUN_DIR/worker.log" 2>&1 &
+echo $! >"$RUN_DIR/worker.pid"
 
 node_modules/.bin/next dev -H 127.0.0.1 -p "$PORT"

@@ -13,7 +13,8 @@ export function repoRoot(): string {
 }
 
 export function uploadsDir(): string {
-  return path.resolve(process.env.MODESHELF_UPLOADS_DIR || path.join(repoRoot(), 'uploads'));
+  // Uploads are data, not code: the build must not trace the folder into the server output.
+  return path.resolve(/*turbopackIgnore: true*/ process.env.MODESHELF_UPLOADS_DIR || path.join(repoRoot(), 'uploads'));
 }
 
 export function maxUploadBytes(): number {
