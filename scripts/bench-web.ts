@@ -116,10 +116,12 @@ const seconds = (ms: number) => `${(ms / 1000).toFixed(1)} s`;
 // The app and the workers
 
 const children: ChildProcess[] = [];
+const outputs = new Map<string, string[]>();
 
 function start(command: string, argv: string[], env: NodeJS.ProcessEnv, log: string): ChildProcess {
   const child = spawn(command, argv, { cwd: ROOT, env, detached: true, stdio: ['ignore', 'pipe', 'pipe'] });
   const lines: string[] = [];
+  outputs.set(log, lines);
   child.stdout?.on('data', (b: Buffer) => lines.push(b.toString()));
   child.stderr?.on('data', (b: Buffer) => lines.push(b.toString()));
   child.on('exit', (code) => {
@@ -249,6 +251,19 @@ const csvOf = (m: number[][]) => m.map((r) => r.map((v) => v.toPrecision(17)).jo
 // ---------------------------------------------------------------------------------------------------
 
 async function main() {
+  // Made first: building it blocks this process for a while, and a kept-alive connection to the app
+  // would go stale meanwhile (the server closes idle sockets after a few seconds).
+  let denseFiles: { field: string; name: string; text: string }[] = [];
+  if (DENSE > 0) {
+    const t = Date.now();
+    const m = denseModel(DENSE);
+    denseFiles = [
+      { field: 'A', name: 'A.csv', text: csvOf(m.A) },
+      { field: 'B', name: 'B.csv', text: csvOf(m.B) },
+      { field: 'C', name: 'C.csv', text: csvOf(m.C) },
+    ];
+    console.log(`[bench:web] dense ${DENSE}-state model made in ${seconds(Date.now() - t)}`);
+  }
   const uploads = mkdtempSync(path.join(os.tmpdir(), 'modeshelf-bench-uploads-'));
   const prefix = `bench${randomBytes(3).toString('hex')}-`;
   const env: NodeJS.ProcessEnv = {
@@ -266,59 +281,70 @@ async function main() {
   const sampler = new MemorySampler(() => app.pid, () => workers.map((w) => w.pid!).filter(Boolean));
   sampler.start();
   const rows: string[][] = [];
+  const header = ['case', 'web path', 'engine alone', 'web ÷ engine'];
+  const print = () => {
+    const widths = header.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k].length)));
+    const line = (r: string[]) => r.map((c, k) => (k === 0 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
+    console.log(`\n${line(header)}\n${widths.map((w) => '-'.repeat(w)).join('  ')}\n${rows.map(line).join('\n')}`);
+    console.log(`\nmachine: ${os.cpus().length} cores (${os.cpus()[0]?.model ?? 'unknown'}), load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')}`);
+  };
+  const ratio = (web: number, engine: number) => (Number.isFinite(engine) ? `${(web / engine).toFixed(2)}×` : '—');
+  const only = new Set(String(args.only ?? (DENSE > 0 ? 'one,many,dense' : 'one,many')).split(','));
   try {
     await waitForHttp(`${BASE}/api/health`, 90);
     const engineer = DEMO_PEOPLE.find((p) => p.role === 'engineer')!;
     const cookie = await signIn(engineer.email, engineer.password);
 
     // 1. One large model through upload → analysed → reduced.
-    const files = wallFiles(STATES);
-    const bytes = files.reduce((s, f) => s + Buffer.byteLength(f.text), 0);
-    sampler.reset();
-    const up = await upload(cookie, `bench wall ${STATES} ${prefix}`, files);
-    const analysed = await waitForJob(cookie, up.job.id);
-    const analysisMs = Date.parse(analysed.finishedAt!) - Date.parse(analysed.createdAt);
-    const recipe = { method: 'balanced', orderRule: 'order', order: 12 };
-    const started = Date.now();
-    const red = await fetch(`${BASE}/api/reductions`, {
-      method: 'POST',
-      headers: { cookie, 'content-type': 'application/json' },
-      body: JSON.stringify({ sourceVersionId: up.version.id, recipe, target: { kind: 'new', name: `bench ROM ${prefix}` } }),
-    });
-    const { job: reductionJob } = (await red.json()) as { job: Job };
-    const reduced = await waitForJob(cookie, reductionJob.id);
-    const reductionMs = Date.now() - started;
-    const peaksOne = { ...sampler.peaks };
-
-    let engineAnalysisMs = NaN;
-    let engineReductionMs = NaN;
-    if (REFERENCE) {
-      const dir = mkdtempSync(path.join(os.tmpdir(), 'modeshelf-bench-files-'));
-      const modelFiles = files.map((f) => {
-        const p = path.join(dir, f.name);
-        writeFileSync(p, f.text);
-        return { role: f.field as 'A' | 'B' | 'C', name: f.name, path: p };
+    if (only.has('one')) {
+      const files = wallFiles(STATES);
+      const bytes = files.reduce((s, f) => s + Buffer.byteLength(f.text), 0);
+      sampler.reset();
+      const up = await upload(cookie, `bench wall ${STATES} ${prefix}`, files);
+      const analysed = await waitForJob(cookie, up.job.id);
+      const analysisMs = Date.parse(analysed.finishedAt!) - Date.parse(analysed.createdAt);
+      const recipe = { method: 'balanced', orderRule: 'order', order: 12 };
+      const started = Date.now();
+      const red = await fetch(`${BASE}/api/reductions`, {
+        method: 'POST',
+        headers: { cookie, 'content-type': 'application/json' },
+        body: JSON.stringify({ sourceVersionId: up.version.id, recipe, target: { kind: 'new', name: `bench ROM ${prefix}` } }),
       });
-      let t = Date.now();
-      const record = await runEngineTask<AnalysisRecord>({ task: 'analysis', files: modelFiles, engineVersion: 'bench' });
-      engineAnalysisMs = Date.now() - t;
-      const summary: AnalysisSummary = record;
-      const input: RecipeInput = { method: 'balanced', order: 12, tolerance: null };
-      t = Date.now();
-      await runEngineTask<ReductionRecord>({ task: 'reduction', files: modelFiles, recipe: input, summary, engineVersion: 'bench' });
-      engineReductionMs = Date.now() - t;
-      rmSync(dir, { recursive: true, force: true });
+      const { job: reductionJob } = (await red.json()) as { job: Job };
+      const reduced = await waitForJob(cookie, reductionJob.id);
+      const reductionMs = Date.now() - started;
+      const peaksOne = { ...sampler.peaks };
+
+      let engineAnalysisMs = NaN;
+      let engineReductionMs = NaN;
+      if (REFERENCE) {
+        const dir = mkdtempSync(path.join(os.tmpdir(), 'modeshelf-bench-files-'));
+        const modelFiles = files.map((f) => {
+          const p = path.join(dir, f.name);
+          writeFileSync(p, f.text);
+          return { role: f.field as 'A' | 'B' | 'C', name: f.name, path: p };
+        });
+        let t = Date.now();
+        const record = await runEngineTask<AnalysisRecord>({ task: 'analysis', files: modelFiles, engineVersion: 'bench' });
+        engineAnalysisMs = Date.now() - t;
+        const summary: AnalysisSummary = record;
+        const input: RecipeInput = { method: 'balanced', order: 12, tolerance: null };
+        t = Date.now();
+        await runEngineTask<ReductionRecord>({ task: 'reduction', files: modelFiles, recipe: input, summary, engineVersion: 'bench' });
+        engineReductionMs = Date.now() - t;
+        rmSync(dir, { recursive: true, force: true });
     }
-    const ratio = (web: number, engine: number) => (Number.isFinite(engine) ? `${(web / engine).toFixed(2)}×` : '—');
     rows.push([`upload ${STATES} states (${(bytes / 1048576).toFixed(1)} MiB, checked)`, seconds(up.ms), '—', '—']);
     rows.push([`analysis job, queued → done`, seconds(analysisMs), seconds(engineAnalysisMs), ratio(analysisMs, engineAnalysisMs)]);
     rows.push([`reduction job to order 12, posted → done`, seconds(reductionMs), seconds(engineReductionMs), ratio(reductionMs, engineReductionMs)]);
     rows.push([`peak RSS: server / upload check / worker`, `${mib(peaksOne.server)} / ${mib(peaksOne.check)} / ${mib(peaksOne.worker)}`, '', '']);
     void reduced;
+    console.log(rows.map((r) => r.join(' | ')).join('\n'));
+    }
 
     // 2. Many analyses queued at once.
     sampler.reset();
-    const many = Math.max(0, CONCURRENT);
+    const many = only.has('many') ? Math.max(0, CONCURRENT) : 0;
     const manyStates = 100;
     let engineSmallMs = NaN;
     if (REFERENCE && many > 0) {
@@ -351,13 +377,7 @@ async function main() {
     }
 
     // 3. Optional: the worker's memory on a dense model.
-    if (DENSE > 0) {
-      const m = denseModel(DENSE);
-      const denseFiles = [
-        { field: 'A', name: 'A.csv', text: csvOf(m.A) },
-        { field: 'B', name: 'B.csv', text: csvOf(m.B) },
-        { field: 'C', name: 'C.csv', text: csvOf(m.C) },
-      ];
+    if (DENSE > 0 && only.has('dense')) {
       const mb = denseFiles.reduce((s, f) => s + Buffer.byteLength(f.text), 0) / 1048576;
       sampler.reset();
       const up2 = await upload(cookie, `bench dense ${DENSE} ${prefix}`, denseFiles);
@@ -368,16 +388,17 @@ async function main() {
       rows.push([`… analysis job`, seconds(Date.parse(done.finishedAt!) - Date.parse(done.createdAt)), '', '']);
       rows.push([`… worker peak RSS (limit 2 GiB)`, mib(sampler.peaks.worker), '', sampler.peaks.worker < 2 * 1024 * 1024 ? 'under' : 'OVER']);
     }
+  } catch (err) {
+    const cause = (err as { cause?: unknown }).cause;
+    console.error(`[bench:web] stopped: ${err instanceof Error ? err.message : String(err)}${cause ? ` (${String(cause)})` : ''}`);
+    for (const [name, lines] of outputs) console.error(`--- ${name} (last lines)\n${lines.join('').slice(-1500)}`);
+    process.exitCode = 1;
   } finally {
     sampler.stop();
     stopAll();
     rmSync(uploads, { recursive: true, force: true });
+    print();
   }
-  const header = ['case', 'web path', 'engine alone', 'web ÷ engine'];
-  const widths = header.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k].length)));
-  const line = (r: string[]) => r.map((c, k) => (k === 0 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
-  console.log(`\n${line(header)}\n${widths.map((w) => '-'.repeat(w)).join('  ')}\n${rows.map(line).join('\n')}`);
-  console.log(`\nmachine: ${os.cpus().length} cores (${os.cpus()[0]?.model ?? 'unknown'}), load average ${os.loadavg().map((x) => x.toFixed(1)).join(' ')}`);
 }
 
 process.on('SIGINT', () => {
