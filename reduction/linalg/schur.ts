@@ -451,6 +451,53 @@ function cdiv(xr: number, xi: number, yr: number, yi: number): [number, number] 
 }
 
 /**
+ * Solves [a11 a12; a21 a22]·[y1; y2] = [b1; b2] where a11 = a11r + i·a11i, a22 = a22r + i·a22i and the
+ * off-diagonal entries are real, by Gaussian elimination with complete pivoting; a pivot smaller than
+ * smin is replaced by smin (the perturbation of LAPACK's dlaln2, Anderson et al., LAPACK Users' Guide,
+ * 1999). Unlike Cramer's rule this stays accurate on a singular but consistent system, which is what a
+ * repeated eigenvalue gives. Returns [y1r, y1i, y2r, y2i].
+ */
+function solve2x2(
+  a11r: number, a11i: number, a12: number,
+  a21: number, a22r: number, a22i: number,
+  b1r: number, b1i: number, b2r: number, b2i: number,
+  smin: number,
+): [number, number, number, number] {
+  // Entries as [re, im], indexed (row, col).
+  const m: [number, number][][] = [
+    [[a11r, a11i], [a12, 0]],
+    [[a21, 0], [a22r, a22i]],
+  ];
+  const b: [number, number][] = [[b1r, b1i], [b2r, b2i]];
+  let pr = 0, pc = 0, best = -1;
+  for (let r = 0; r < 2; r++) {
+    for (let c = 0; c < 2; c++) {
+      const v = Math.abs(m[r][c][0]) + Math.abs(m[r][c][1]);
+      if (v > best) { best = v; pr = r; pc = c; }
+    }
+  }
+  const qr = 1 - pr, qc = 1 - pc;
+  let u11 = m[pr][pc];
+  if (Math.abs(u11[0]) + Math.abs(u11[1]) < smin) u11 = [smin, 0];
+  const l = cdiv(m[qr][pc][0], m[qr][pc][1], u11[0], u11[1]);
+  const u12 = m[pr][qc];
+  let u22: [number, number] = [
+    m[qr][qc][0] - (l[0] * u12[0] - l[1] * u12[1]),
+    m[qr][qc][1] - (l[0] * u12[1] + l[1] * u12[0]),
+  ];
+  if (Math.abs(u22[0]) + Math.abs(u22[1]) < smin) u22 = [smin, 0];
+  const c1 = b[pr];
+  const c2: [number, number] = [b[qr][0] - (l[0] * c1[0] - l[1] * c1[1]), b[qr][1] - (l[0] * c1[1] + l[1] * c1[0])];
+  const z2 = cdiv(c2[0], c2[1], u22[0], u22[1]);
+  const z1 = cdiv(c1[0] - (u12[0] * z2[0] - u12[1] * z2[1]), c1[1] - (u12[0] * z2[1] + u12[1] * z2[0]), u11[0], u11[1]);
+  // z1 belongs to column pc, z2 to column qc.
+  const y: [number, number][] = [[0, 0], [0, 0]];
+  y[pc] = z1;
+  y[qc] = z2;
+  return [y[0][0], y[0][1], y[1][0], y[1][1]];
+}
+
+/**
  * Right eigenvectors of a quasi-upper-triangular T by back substitution (the method of LAPACK's
  * dtrevc), in the real packed form: column k is the vector of a real eigenvalue; for a complex pair at
  * (k, k+1) with wi[k] > 0, columns k and k+1 are the real and imaginary parts of the vector of
@@ -493,10 +540,9 @@ export function triangularEigenvectors(T: Matrix, wr: Float64Array, wi: Float64A
           }
           const a11 = t[(i - 1) * n + i - 1] - lam, a12 = t[(i - 1) * n + i];
           const a21 = t[i * n + i - 1], a22 = t[i * n + i] - lam;
-          let det = a11 * a22 - a12 * a21;
-          if (Math.abs(det) < smin * smin) det = smin * smin;
-          xr[i - 1] = (-r1 * a22 + r2 * a12) / det;
-          xr[i] = (-r2 * a11 + r1 * a21) / det;
+          const y = solve2x2(a11, 0, a12, a21, a22, 0, -r1, 0, -r2, 0, smin);
+          xr[i - 1] = y[0];
+          xr[i] = y[2];
           i -= 2;
         }
         rescale(xr, null, i + 1, k, BIG);
@@ -540,21 +586,19 @@ export function triangularEigenvectors(T: Matrix, wr: Float64Array, wi: Float64A
             s2r += t2 * xr[m];
             s2i += t2 * xi[m];
           }
-          // [a11−λ a12; a21 a22−λ]·[y1; y2] = −[s1; s2] with complex λ, by Cramer's rule.
-          const a11r = t[(i - 1) * n + i - 1] - lr, a12 = t[(i - 1) * n + i];
-          const a21 = t[i * n + i - 1], a22r = t[i * n + i] - lr;
+          // [a11−λ a12; a21 a22−λ]·[y1; y2] = −[s1; s2] with complex λ. When the block holds the same pair
+          // again (a repeated eigenvalue) the system is singular but consistent, so it is solved by
+          // elimination with complete pivoting, which satisfies the well-determined row exactly.
           const ai = -li;
-          // det = (a11r + i·ai)(a22r + i·ai) − a12·a21
-          let detr = a11r * a22r - ai * ai - a12 * a21;
-          const deti = ai * (a11r + a22r);
-          if (Math.abs(detr) + Math.abs(deti) < smin * smin) detr = smin * smin;
-          // y1 = (−s1·(a22−λ) + s2·a12)/det ; y2 = (−s2·(a11−λ) + s1·a21)/det
-          const n1r = -(s1r * a22r - s1i * ai) + s2r * a12;
-          const n1i = -(s1r * ai + s1i * a22r) + s2i * a12;
-          const n2r = -(s2r * a11r - s2i * ai) + s1r * a21;
-          const n2i = -(s2r * ai + s2i * a11r) + s1i * a21;
-          [xr[i - 1], xi[i - 1]] = cdiv(n1r, n1i, detr, deti);
-          [xr[i], xi[i]] = cdiv(n2r, n2i, detr, deti);
+          const y = solve2x2(
+            t[(i - 1) * n + i - 1] - lr, ai, t[(i - 1) * n + i],
+            t[i * n + i - 1], t[i * n + i] - lr, ai,
+            -s1r, -s1i, -s2r, -s2i, smin,
+          );
+          xr[i - 1] = y[0];
+          xi[i - 1] = y[1];
+          xr[i] = y[2];
+          xi[i] = y[3];
           i -= 2;
         }
         rescale(xr, xi, i + 1, k, BIG);
