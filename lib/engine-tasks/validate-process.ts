@@ -16,7 +16,37 @@ export type CheckRequest =
 const CHECK_HEAP_MB = 4096;
 const CHECK_TIMEOUT_MS = 10 * 60 * 1000;
 
+/**
+ * Checks at once per server (MODESHELF_CHECK_CONCURRENCY, default 2): twenty uploads arriving together
+ * would otherwise start twenty parsers, each holding its model's text and matrices (bench:web measured
+ * about 1 GiB for twenty 100-state models); the rest wait their turn.
+ */
+function checkSlots(): number {
+  const n = Number(process.env.MODESHELF_CHECK_CONCURRENCY);
+  return Number.isInteger(n) && n > 0 ? n : 2;
+}
+
+let running = 0;
+const waiting: (() => void)[] = [];
+
+export async function inSlot<T>(work: () => Promise<T>): Promise<T> {
+  // A finished check hands its slot straight to the next in line, so the count never overshoots.
+  if (running >= checkSlots()) await new Promise<void>((resolve) => waiting.push(resolve));
+  else running++;
+  try {
+    return await work();
+  } finally {
+    const next = waiting.shift();
+    if (next) next();
+    else running--;
+  }
+}
+
 function runCheck<T>(request: CheckRequest): Promise<T> {
+  return inSlot(() => spawnCheck<T>(request));
+}
+
+function spawnCheck<T>(request: CheckRequest): Promise<T> {
   const root = repoRoot();
   const require = createRequire(path.join(root, 'package.json'));
   const args = [
