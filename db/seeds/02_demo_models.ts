@@ -14,8 +14,8 @@
 // 500 states rather than a thousand: analysis and reduction of a dense model grow as n³. Measured on the
 // shared two-core machine (load about 2.5): the wall's analysis and reduction take 14 s + 25 s at 500
 // states, 25 s + 49 s at 600, and a thousand-state wall about three minutes; the whole seed then runs in
-// 63 s (65 s with migrations; 2026-12-01, load average about 2). The web benchmark (scripts/bench-web.ts) runs a thousand-state wall through the real
-// upload and queue instead.
+// 63 s (load average about 2). The web benchmark (scripts/bench-web.ts) runs a thousand-state wall through
+// the real upload and queue instead.
 import { createHash } from 'node:crypto';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
