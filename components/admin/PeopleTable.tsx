@@ -15,6 +15,7 @@ import {
 import { apiFetch, ApiClientError } from '@/components/api-client';
 import { ROLES, ROLE_LABELS, type Role } from '@/lib/roles';
 import type { Person } from '@/lib/people';
+import { SortableHead } from '@/components/table/SortableHead';
 
 interface LinkSent {
   person: Person;
@@ -196,36 +197,7 @@ export function PeopleTable({ initialPeople, currentUserId }: { initialPeople: P
           </p>
         </div>
         <table className="w-full text-left text-sm">
-          <thead>
-            {table.getHeaderGroups().map((group) => (
-              <tr key={group.id} className="border-b border-rule">
-                {group.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  return (
-                    <th
-                      key={header.id}
-                      scope="col"
-                      className="px-4 py-2 font-medium"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
-                    >
-                      {header.column.getCanSort() ? (
-                        <button
-                          type="button"
-                          className="field-label inline-flex items-center gap-1 hover:text-teal"
-                          onClick={header.column.getToggleSortingHandler()}
-                        >
-                          {flexRender(header.column.columnDef.header, header.getContext())}
-                          <span aria-hidden="true">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '·'}</span>
-                        </button>
-                      ) : (
-                        flexRender(header.column.columnDef.header, header.getContext())
-                      )}
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
+          <SortableHead table={table} />
           <tbody>
             {table.getRowModel().rows.map((row) => (
               <tr

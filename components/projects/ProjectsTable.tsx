@@ -18,6 +18,7 @@ import { apiFetch, ApiClientError } from '@/components/api-client';
 import { formatTime } from '@/components/charts/format';
 import { numberField } from './form-values';
 import type { Project, ProjectSummary } from '@/lib/projects';
+import { SortableHead } from '@/components/table/SortableHead';
 
 /** A project row: its summary and how many of its pins are retired, upstream changed or unresolved. */
 export type ProjectRowData = ProjectSummary & { pinsNeedingAttention: number };
@@ -94,32 +95,7 @@ export function ProjectsTable({ projects, canCreate }: { projects: ProjectRowDat
           </p>
         </div>
         <table className="w-full text-left text-sm">
-          <thead>
-            {table.getHeaderGroups().map((group) => (
-              <tr key={group.id} className="border-b border-rule">
-                {group.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  return (
-                    <th
-                      key={header.id}
-                      scope="col"
-                      className="px-4 py-2 font-medium"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
-                    >
-                      <button
-                        type="button"
-                        className="field-label inline-flex items-center gap-1 hover:text-teal"
-                        onClick={header.column.getToggleSortingHandler()}
-                      >
-                        {flexRender(header.column.columnDef.header, header.getContext())}
-                        <span aria-hidden="true">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '·'}</span>
-                      </button>
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
+          <SortableHead table={table} />
           <tbody>
             {table.getRowModel().rows.map((row) => (
               <tr key={row.id} className="border-b border-rule last:border-0" data-testid="project-row" data-slug={row.original.slug}>

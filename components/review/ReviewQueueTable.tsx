@@ -18,6 +18,7 @@ import { formatCount, formatNumber, formatOptional, formatPercent } from '@/comp
 import type { DecisionEntry, QueueEntry } from '@/lib/reviews';
 import { UpstreamChangedBadge } from './StatusBadge';
 import { formatWhen } from './when';
+import { SortableHead } from '@/components/table/SortableHead';
 
 const column = createColumnHelper<QueueEntry>();
 
@@ -129,36 +130,7 @@ export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: Qu
       </div>
       <div className="overflow-x-auto">
         <table className="w-full text-left text-sm">
-          <thead>
-            {table.getHeaderGroups().map((group) => (
-              <tr key={group.id} className="border-b border-rule">
-                {group.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  return (
-                    <th
-                      key={header.id}
-                      scope="col"
-                      className="px-4 py-2 font-medium"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
-                    >
-                      {header.column.getCanSort() ? (
-                        <button
-                          type="button"
-                          className="field-label inline-flex items-center gap-1 hover:text-teal"
-                          onClick={header.column.getToggleSortingHandler()}
-                        >
-                          {flexRender(header.column.columnDef.header, header.getContext())}
-                          <span aria-hidden="true">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '·'}</span>
-                        </button>
-                      ) : (
-                        flexRender(header.column.columnDef.header, header.getContext())
-                      )}
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
+          <SortableHead table={table} />
           <tbody>
             {table.getRowModel().rows.map((row) => (
               <tr key={row.id} className="border-b border-rule last:border-0" data-testid="queue-row" data-version={row.original.versionId}>

@@ -10,6 +10,7 @@ import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type So
 import { apiFetch } from '@/components/api-client';
 import { formatNumber } from '@/components/charts/format';
 import type { SourceModelListRow, SourceModelSort } from '@/lib/source-models';
+import { SortableHead } from '@/components/table/SortableHead';
 
 export interface SourceModelPage {
   rows: SourceModelListRow[];
@@ -141,30 +142,7 @@ export function SourceModelsTable({ initial }: { initial: SourceModelPage }) {
       </div>
       <div className="overflow-x-auto">
         <table className="w-full text-left text-sm">
-          <thead>
-            {table.getHeaderGroups().map((group) => (
-              <tr key={group.id} className="border-b border-rule-strong">
-                {group.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  return (
-                    <th
-                      key={header.id}
-                      scope="col"
-                      className="px-4 py-2 font-medium"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'}
-                    >
-                      <button type="button" className="inline-flex items-center gap-1 hover:text-teal" onClick={header.column.getToggleSortingHandler()}>
-                        {flexRender(header.column.columnDef.header, header.getContext())}
-                        <span aria-hidden="true" className="text-xs text-graphite-soft">
-                          {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
-                        </span>
-                      </button>
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
+          <SortableHead table={table} rowClassName="border-b border-rule-strong" />
           <tbody>
             {table.getRowModel().rows.map((row) => (
               <tr key={row.id} className="border-b border-rule last:border-b-0">

@@ -14,6 +14,7 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import { modeColumns, toModeTableRows, type ModeInput } from './modes-columns';
+import { SortableHead } from '@/components/table/SortableHead';
 
 export interface ModesTableProps {
   readonly modes: readonly ModeInput[];
@@ -79,34 +80,7 @@ export function ModesTable({
         <caption className="px-3 py-2 text-left text-sm font-medium">
           {caption} <span className="num text-graphite-soft">({total})</span>
         </caption>
-        <thead>
-          {table.getHeaderGroups().map((group) => (
-            <tr key={group.id} className="border-b border-rule-strong">
-              {group.headers.map((header) => {
-                const sorted = header.column.getIsSorted();
-                return (
-                  <th
-                    key={header.id}
-                    scope="col"
-                    aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'}
-                    className="px-3 py-2 text-left font-medium whitespace-nowrap"
-                  >
-                    <button
-                      type="button"
-                      onClick={header.column.getToggleSortingHandler()}
-                      className="inline-flex items-center gap-1 hover:text-teal"
-                    >
-                      {flexRender(header.column.columnDef.header, header.getContext())}
-                      <span aria-hidden="true" className="num text-xs text-graphite-faint">
-                        {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
-                      </span>
-                    </button>
-                  </th>
-                );
-              })}
-            </tr>
-          ))}
-        </thead>
+        <SortableHead table={table} rowClassName="border-b border-rule-strong" cellClassName="px-3 py-2 whitespace-nowrap" />
         <tbody>
           {table.getRowModel().rows.map((row) => (
             <tr key={row.id} className="border-b border-rule last:border-b-0">
