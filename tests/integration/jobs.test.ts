@@ -17,12 +17,12 @@ import { closeDb, db } from '@/lib/db';
 import { closeQueue } from '@/lib/jobs/queue';
 import { getJob, retryJob, type JobView } from '@/lib/jobs/jobs';
 import { registerUpload } from '@/lib/source-models';
-import { requestReduction } from '@/lib/reduced-models';
+import { requestInputResponse, requestReduction } from '@/lib/reduced-models';
 import { storagePath } from '@/lib/uploads/store';
 import type { SessionUser } from '@/lib/auth';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { makeUser, migrateTestDatabase } from './helpers';
-import { firstOrderJson, kilnWallFiles, tempUploadsDir, uniqueName, uploadRequest } from './fixtures/model-uploads';
+import { firstOrderJson, kilnWallFiles, listFiles, tempUploadsDir, uniqueName, uploadRequest } from './fixtures/model-uploads';
 
 const ROOT = path.resolve(__dirname, '..', '..');
 let uploads = '';
@@ -204,5 +204,47 @@ describe('background jobs', () => {
     expect(v2).toMatchObject({ number: 2, predecessor_id: version.id, reduced_model_id: version.reduced_model_id, order: 2 });
     const notes = (await db()('accuracy_reports').where({ reduced_version_id: v2.id }).first()).figures.notes as string[];
     expect(notes.join(' ')).toMatch(/order 1 would split a complex pair; raised to 2/);
+  });
+
+  it('simulates both models for an uploaded input signal, and refuses a signal with the wrong columns', async () => {
+    startWorker();
+    const upload = await registerUpload(uploadRequest({ name: uniqueName('Signal') }, [{ field: 'model', name: 'm.json', text: firstOrderJson({ D: [[0.2]] }) }]), engineer);
+    await waitFor(upload.job.id, done);
+    const reduction = await requestReduction(
+      { sourceVersionId: upload.version.id, recipe: { method: 'residualization', orderRule: 'order', order: 2, modalSelection: 'dominance' }, target: { kind: 'new', name: uniqueName('Signal ROM') } },
+      engineer,
+    );
+    const reduced = await waitFor(reduction.job.id, done);
+    const reducedVersionId = String(reduced.result!.reducedVersionId);
+    const url = 'http://127.0.0.1/api/uploads/input-signals';
+
+    const before = listFiles(uploads);
+    const wrong = requestInputResponse(uploadRequest({ reducedVersionId }, [{ field: 'signal', name: 'u.csv', text: 'time,u1,u2\n0,1,1\n1,0,0\n' }], url), engineer);
+    await expect(wrong).rejects.toMatchObject({ status: 422, field: 'signal', message: expect.stringMatching(/row 2 has 3 columns; expected 2/) });
+    expect(listFiles(uploads)).toEqual(before);
+
+    // a pulse of height 2 from t = 1 to t = 3, then nothing
+    const { job } = await requestInputResponse(uploadRequest({ reducedVersionId }, [{ field: 'signal', name: 'pulse.csv', text: 'time,u\n0,0\n1,2\n3,0\n' }], url), engineer);
+    const finished = await waitFor(job.id, done);
+    expect(finished.status).toBe('succeeded');
+    const result = finished.result as { t: number[]; full: number[][]; reduced: number[][] };
+    expect(result.full).toHaveLength(1);
+    expect(result.full[0]).toHaveLength(result.t.length);
+    // Before the pulse the model is at rest and D·u = 0, so the output is exactly 0 in both models.
+    const k = result.t.findIndex((t) => t >= 0.5);
+    expect(result.full[0][k]).toBe(0);
+    expect(result.reduced[0][k]).toBe(0);
+    // The H∞ norm is the L2-induced gain (Zhou, Doyle & Glover, "Robust and Optimal Control", 1996, §4.3), so
+    // ‖y − yr‖₂ ≤ ‖G − Gr‖∞·‖u‖₂ with ‖u‖₂ = √(2²·2 s); the output error's L2 norm is taken by the trapezoid
+    // rule over the record (5 % slack for the quadrature).
+    const hinf = (await db()('accuracy_reports').where({ reduced_version_id: reducedVersionId }).first()).figures.hinfError as number;
+    let energy = 0;
+    for (let i = 1; i < result.t.length; i++) {
+      const e0 = result.full[0][i - 1] - result.reduced[0][i - 1];
+      const e1 = result.full[0][i] - result.reduced[0][i];
+      energy += ((e0 * e0 + e1 * e1) / 2) * (result.t[i] - result.t[i - 1]);
+    }
+    expect(Math.sqrt(energy)).toBeLessThanOrEqual(1.05 * hinf * Math.sqrt(2 * 2 * 2) + 1e-12);
+    expect(Math.sqrt(energy)).toBeGreaterThan(0);
   });
 });
