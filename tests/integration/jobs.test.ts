@@ -211,7 +211,7 @@ describe('background jobs', () => {
     const upload = await registerUpload(uploadRequest({ name: uniqueName('Signal') }, [{ field: 'model', name: 'm.json', text: firstOrderJson({ D: [[0.2]] }) }]), engineer);
     await waitFor(upload.job.id, done);
     const reduction = await requestReduction(
-      { sourceVersionId: upload.version.id, recipe: { method: 'residualization', orderRule: 'order', order: 2, modalSelection: 'dominance' }, target: { kind: 'new', name: uniqueName('Signal ROM') } },
+      { sourceVersionId: upload.version.id, recipe: { method: 'residualization', orderRule: 'order', order: 2, modalSelection: 'dominance' }, target: { kind: 'new', name: uniqueName('Signal ROM'), description: '' } },
       engineer,
     );
     const reduced = await waitFor(reduction.job.id, done);
