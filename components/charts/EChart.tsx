@@ -8,37 +8,13 @@
  */
 import { useMemo, type DependencyList } from 'react';
 import * as echarts from 'echarts/core';
-import { LineChart, ScatterChart } from 'echarts/charts';
-import {
-  AriaComponent,
-  DataZoomInsideComponent,
-  GridComponent,
-  LegendComponent,
-  MarkAreaComponent,
-  MarkLineComponent,
-  MarkPointComponent,
-  TitleComponent,
-  TooltipComponent,
-} from 'echarts/components';
 import { CanvasRenderer } from 'echarts/renderers';
+import { CHART_MODULES } from './echarts-modules';
 import ReactEChartsCore from 'echarts-for-react/lib/core';
 import type { ChartOption } from './option-types';
 import { INK } from './theme';
 
-echarts.use([
-  LineChart,
-  ScatterChart,
-  AriaComponent,
-  DataZoomInsideComponent,
-  GridComponent,
-  LegendComponent,
-  MarkAreaComponent,
-  MarkLineComponent,
-  MarkPointComponent,
-  TitleComponent,
-  TooltipComponent,
-  CanvasRenderer,
-]);
+echarts.use([...CHART_MODULES, CanvasRenderer]);
 
 export type BuiltOption = { option: ChartOption; problem: null } | { option: null; problem: string };
 

@@ -5,19 +5,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import * as echarts from 'echarts/core';
-import { LineChart, ScatterChart } from 'echarts/charts';
-import {
-  AriaComponent,
-  DataZoomInsideComponent,
-  GridComponent,
-  LegendComponent,
-  MarkAreaComponent,
-  MarkLineComponent,
-  MarkPointComponent,
-  TitleComponent,
-  TooltipComponent,
-} from 'echarts/components';
 import { SVGRenderer } from 'echarts/renderers';
+import { CHART_MODULES } from '@/components/charts/echarts-modules';
 import { buildBodeOption, buildSigmaOption } from '@/components/charts/bode-option';
 import { buildErrorBoundOption } from '@/components/charts/error-bound-option';
 import { buildHankelOption } from '@/components/charts/hankel-option';
@@ -26,20 +15,7 @@ import { buildPoleMapOption } from '@/components/charts/pole-map-option';
 import { INK } from '@/components/charts/theme';
 import { buildTimeResponseOption } from '@/components/charts/time-response-option';
 
-echarts.use([
-  LineChart,
-  ScatterChart,
-  AriaComponent,
-  DataZoomInsideComponent,
-  GridComponent,
-  LegendComponent,
-  MarkAreaComponent,
-  MarkLineComponent,
-  MarkPointComponent,
-  TitleComponent,
-  TooltipComponent,
-  SVGRenderer,
-]);
+echarts.use([...CHART_MODULES, SVGRenderer]);
 
 function renderSvg(option: ChartOption): string {
   const chart = echarts.init(null, null, { renderer: 'svg', ssr: true, width: 800, height: 480 });
