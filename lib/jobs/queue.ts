@@ -63,6 +63,35 @@ async function ensureQueues(boss: PgBoss): Promise<void> {
   }
 }
 
+// PostgreSQL errors that two processes starting pg-boss at the same moment can meet while it creates or
+// migrates its schema: a deadlock between their DDL, or an object the other one created first. The start
+// is repeated with a fresh instance; any other error is final.
+const TRANSIENT_START_ERRORS = new Set(['40P01', '40001', '23505', '42P07', '42710']);
+const START_ATTEMPTS = 5;
+
+async function startBoss(url: string, role: Role): Promise<PgBoss> {
+  for (let attempt = 1; ; attempt++) {
+    const boss = new PgBoss({
+      connectionString: url,
+      max: role === 'worker' ? 4 : 2,
+      application_name: `modeshelf-${role}`,
+      supervise: role === 'worker',
+      schedule: false,
+    });
+    boss.on('error', (err) => console.error('[modeshelf] job queue error', err));
+    try {
+      await boss.start();
+      await ensureQueues(boss);
+      return boss;
+    } catch (err) {
+      await boss.stop({ graceful: false, close: true }).catch(() => undefined);
+      const code = (err as { code?: unknown }).code;
+      if (attempt >= START_ATTEMPTS || typeof code !== 'string' || !TRANSIENT_START_ERRORS.has(code)) throw err;
+      await new Promise((resolve) => setTimeout(resolve, 150 * attempt + Math.random() * 150));
+    }
+  }
+}
+
 /**
  * The process's pg-boss instance, started once. The web server only sends ("web": no maintenance loop);
  * workers also run pg-boss's maintenance (expiry, archiving), which any number of them may do at once.
@@ -73,18 +102,7 @@ export function queue(role: Role = 'web'): Promise<PgBoss> {
   if (current && current.url === url && (current.role === role || current.role === 'worker')) return current.started;
   // A sender that becomes a worker (a script, a test), or a new database: the old connection goes.
   if (current) void current.started.then((b) => b.stop({ graceful: false, close: true })).catch(() => undefined);
-  const boss = new PgBoss({
-    connectionString: url,
-    max: role === 'worker' ? 4 : 2,
-    application_name: `modeshelf-${role}`,
-    supervise: role === 'worker',
-    schedule: false,
-  });
-  boss.on('error', (err) => console.error('[modeshelf] job queue error', err));
-  const started = boss.start().then(async (b) => {
-    await ensureQueues(b);
-    return b;
-  });
+  const started = startBoss(url, role);
   globalForBoss.modeshelfBoss = { role, url, started };
   started.catch(() => {
     if (globalForBoss.modeshelfBoss?.started === started) globalForBoss.modeshelfBoss = undefined;
