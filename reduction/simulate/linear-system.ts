@@ -11,9 +11,17 @@ import { ParallelMatVec } from './parallel-matvec';
 
 /** out = M·x for a row-major rows×cols matrix (out must not alias x). */
 export function matVec(m: Matrix, x: Float64Array, out: Float64Array): void {
-  const { rows, cols, data } = m;
-  let i = 0;
-  for (; i + 3 < rows; i += 4) {
+  matVecRows(m.data, m.cols, x, out, 0, m.rows);
+}
+
+/**
+ * out[i] = (M·x)[i] for rows r0 ≤ i < r1 of a row-major matrix with `cols` columns, four rows at a time.
+ * The two-thread product (`parallel-matvec.ts`) runs its own share through this same loop, so one and two
+ * threads give identical bits.
+ */
+export function matVecRows(data: Float64Array, cols: number, x: Float64Array, out: Float64Array, r0: number, r1: number): void {
+  let i = r0;
+  for (; i + 3 < r1; i += 4) {
     const o0 = i * cols, o1 = o0 + cols, o2 = o1 + cols, o3 = o2 + cols;
     let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
     for (let j = 0; j < cols; j++) {
@@ -28,7 +36,7 @@ export function matVec(m: Matrix, x: Float64Array, out: Float64Array): void {
     out[i + 2] = s2;
     out[i + 3] = s3;
   }
-  for (; i < rows; i++) {
+  for (; i < r1; i++) {
     const o = i * cols;
     let s = 0;
     for (let j = 0; j < cols; j++) s += data[o + j] * x[j];

@@ -13,7 +13,7 @@
  */
 import { linalgThreads } from '../linalg/index';
 import type { Matrix } from '../linalg/matrix';
-import { matVec } from './linear-system';
+import { matVec, matVecRows } from './linear-system';
 
 /** Below this many entries the hand-off (~10–30 µs) outweighs half a product. */
 const PARALLEL_MIN_ENTRIES = 300 * 300;
@@ -163,29 +163,7 @@ export class ParallelMatVec {
   }
 
   private ownRows(): void {
-    const m = this.matrix, x = this.x, y = this.y, cols = this.cols, r1 = this.split;
-    let i = 0;
-    for (; i + 3 < r1; i += 4) {
-      const o0 = i * cols, o1 = o0 + cols, o2 = o1 + cols, o3 = o2 + cols;
-      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-      for (let j = 0; j < cols; j++) {
-        const xj = x[j];
-        s0 += m[o0 + j] * xj;
-        s1 += m[o1 + j] * xj;
-        s2 += m[o2 + j] * xj;
-        s3 += m[o3 + j] * xj;
-      }
-      y[i] = s0;
-      y[i + 1] = s1;
-      y[i + 2] = s2;
-      y[i + 3] = s3;
-    }
-    for (; i < r1; i++) {
-      const o = i * cols;
-      let s = 0;
-      for (let j = 0; j < cols; j++) s += m[o + j] * x[j];
-      y[i] = s;
-    }
+    matVecRows(this.matrix, this.cols, this.x, this.y, 0, this.split);
   }
 
   /** Stops the worker; later products run on the calling thread. */
