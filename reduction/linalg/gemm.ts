@@ -13,6 +13,8 @@
  */
 import { type Matrix, zeros } from './matrix';
 import { parallelProduct } from './parallel';
+import { createPackedKernel, type PackedKernel } from './wasm/packed-kernel';
+import { GEMM_KERNEL_WASM_HEX } from './wasm/gemm-kernel-binary';
 
 /** Register tile: 4×4 accumulators (16 doubles) — the best of 2×4, 3×4, 4×2, 4×4 measured here. */
 export const MR = 4;
@@ -57,9 +59,9 @@ export function microKernel4x4(
 }
 
 /**
- * C[:, j0:j1] += α·op(A)·op(B)[:, j0:j1], blocked and packed. `packA` needs MC·KC doubles, `packB`
- * KC·(j1−j0 rounded up to NR) doubles, `tile` 16. Self-contained apart from `microKernel4x4`, because
- * the worker thread runs the same source.
+ * C[:, j0:j1] += α·op(A)·op(B)[:, j0:j1], blocked and packed into the panels of `kernel`, whose
+ * micro-kernel runs over them (WebAssembly SIMD or scalar; see wasm/packed-kernel.ts). Self-contained
+ * apart from its arguments, because the worker thread runs the same source.
  */
 export function blockedProduct(
   transA: boolean,
@@ -78,13 +80,15 @@ export function blockedProduct(
   ldc: number,
   j0: number,
   j1: number,
-  packA: Float64Array,
-  packB: Float64Array,
-  tile: Float64Array,
+  kernel: PackedKernel,
 ): void {
   const kcMax = 256;
   const mcMax = 96;
   const width = j1 - j0;
+  kernel.reserve(Math.ceil(width / 4) * 4 * kcMax);
+  const packA = kernel.packA;
+  const packB = kernel.packB;
+  const tile = kernel.tile;
   for (let pc = 0; pc < k; pc += kcMax) {
     const kc = Math.min(kcMax, k - pc);
     // Pack op(B)[pc:pc+kc, j0:j1] into NR-wide panels, zero-padding the last one.
@@ -127,7 +131,7 @@ export function blockedProduct(
         const bBase = (jp >> 2) * kc * 4;
         for (let ip = 0; ip < mc; ip += 4) {
           const mr = Math.min(4, mc - ip);
-          microKernel4x4(kc, packA, ip * kc, packB, bBase, tile);
+          kernel.run(kc, ip * kc, bBase);
           let dst = cOff + (ic + ip) * ldc + j0 + jp;
           for (let r = 0; r < mr; r++) {
             for (let q = 0; q < nr; q++) c[dst + q] += alpha * tile[r * 4 + q];
@@ -139,9 +143,24 @@ export function blockedProduct(
   }
 }
 
-let packAScratch = new Float64Array(MC * KC);
-let packBScratch = new Float64Array(0);
-const tileScratch = new Float64Array(MR * NR);
+let kernelScratch: PackedKernel | undefined;
+
+/** Whether products may use the WebAssembly kernel (`MODESHELF_LINALG_WASM=0` turns it off). */
+export function wasmKernelAllowed(): boolean {
+  const env = typeof process !== 'undefined' ? process.env?.MODESHELF_LINALG_WASM : undefined;
+  return env !== '0';
+}
+
+/** Fresh packed panels and micro-kernel for one thread (WebAssembly unless turned off or refused). */
+export function newPackedKernel(): PackedKernel {
+  return createPackedKernel(wasmKernelAllowed() ? GEMM_KERNEL_WASM_HEX : null, microKernel4x4, MC * KC);
+}
+
+/** The calling thread's kernel, made on first use. */
+export function threadKernel(): PackedKernel {
+  if (!kernelScratch) kernelScratch = newPackedKernel();
+  return kernelScratch;
+}
 
 /**
  * C ← α·op(A)·op(B) + β·C on raw row-major storage with offsets and leading dimensions (BLAS dgemm
@@ -181,10 +200,7 @@ export function gemm(
     return;
   }
   if (parallelProduct(transA, transB, m, n, k, alpha, a, aOff, lda, b, bOff, ldb, c, cOff, ldc)) return;
-  const padded = Math.ceil(n / NR) * NR * KC;
-  if (packBScratch.length < padded) packBScratch = new Float64Array(padded);
-  if (packAScratch.length < MC * KC) packAScratch = new Float64Array(MC * KC);
-  blockedProduct(transA, transB, m, k, alpha, a, aOff, lda, b, bOff, ldb, c, cOff, ldc, 0, n, packAScratch, packBScratch, tileScratch);
+  blockedProduct(transA, transB, m, k, alpha, a, aOff, lda, b, bOff, ldb, c, cOff, ldc, 0, n, threadKernel());
 }
 
 /** Direct loops for tiny products (row-oriented so the inner loop has unit stride when it can). */

@@ -14,7 +14,9 @@
  * start the worker, or an answer that does not match a small check product, turns threading off for the
  * rest of the process and the product is computed on the calling thread.
  */
-import { blockedProduct, microKernel4x4 } from './gemm';
+import { blockedProduct, microKernel4x4, threadKernel, wasmKernelAllowed, MC, KC } from './gemm';
+import { createPackedKernel } from './wasm/packed-kernel';
+import { GEMM_KERNEL_WASM_HEX } from './wasm/gemm-kernel-binary';
 import { pivotedQrOfRows } from './qr';
 
 /** Multiply-adds below which a product stays on one thread (≈ 200³; the hand-off costs ~0.1 ms). */
@@ -88,12 +90,11 @@ function workerSource(): string {
 const { parentPort, workerData } = require('node:worker_threads');
 const __name = (f) => f;
 ${microKernel4x4.toString()}
+${createPackedKernel.toString()}
 ${blockedProduct.toString()}
 ${pivotedQrOfRows.toString()}
 const control = new Int32Array(workerData.control);
-let packA = new Float64Array(96 * 256);
-let packB = new Float64Array(0);
-const tile = new Float64Array(16);
+const kernel = createPackedKernel(workerData.wasmHex, microKernel4x4, workerData.packALength);
 parentPort.on('message', (job) => {
   let status = job.id;
   try {
@@ -104,11 +105,9 @@ parentPort.on('message', (job) => {
       Atomics.notify(control, 0);
       return;
     }
-    const need = Math.ceil(job.width / 4) * 4 * 256;
-    if (packB.length < need) packB = new Float64Array(need);
     blockedProduct(job.transA, job.transB, job.m, job.k, job.alpha,
       new Float64Array(job.a), job.aOff, job.lda, new Float64Array(job.b), job.bOff, job.ldb,
-      new Float64Array(job.c), job.cOff, job.ldc, 0, job.width, packA, packB, tile);
+      new Float64Array(job.c), job.cOff, job.ldc, 0, job.width, kernel);
   } catch (e) {
     status = -job.id;
   }
@@ -123,7 +122,10 @@ function startWorker(): WorkerState | null {
   if (!wt || typeof SharedArrayBuffer === 'undefined' || typeof Atomics?.wait !== 'function') return null;
   try {
     const control = new Int32Array(new SharedArrayBuffer(16));
-    const worker = new wt.Worker(workerSource(), { eval: true, workerData: { control: control.buffer } });
+    const worker = new wt.Worker(workerSource(), {
+      eval: true,
+      workerData: { control: control.buffer, wasmHex: wasmKernelAllowed() ? GEMM_KERNEL_WASM_HEX : null, packALength: MC * KC },
+    });
     worker.on('error', () => {
       state = null;
     });
@@ -302,9 +304,7 @@ export function parallelProduct(
   // The calling thread's half, straight from the original arrays.
   const mm = byColumns ? m : split;
   const nn = byColumns ? split : n;
-  const packA = new Float64Array(96 * 256);
-  const packB = new Float64Array(Math.ceil(nn / 4) * 4 * 256);
-  blockedProduct(transA, transB, mm, k, alpha, a, aOff, lda, b, bOff, ldb, c, cOff, ldc, 0, nn, packA, packB, new Float64Array(16));
+  blockedProduct(transA, transB, mm, k, alpha, a, aOff, lda, b, bOff, ldb, c, cOff, ldc, 0, nn, threadKernel());
 
   // Generous: at a pessimistic 0.05 GFLOP/s, plus a minute for a descheduled thread.
   const timeoutMs = 60_000 + (2 * wm * wn * k) / 5e7;
