@@ -19,6 +19,7 @@ import { pieceAfter } from './inputs';
 import { LinearSystem, matVec } from './linear-system';
 import { ParallelMatVec } from './parallel-matvec';
 import { type CheckedOptions, OutputRecorder } from './output-grid';
+import { blockFactor, blockTerms, PowerOfPhi, type BlockTerms } from './exact-blocks';
 import type { SimulationResult } from './types';
 
 /**
@@ -69,11 +70,21 @@ export class IntervalLengths<T> {
   }
 }
 
+interface ZohEntry {
+  Phi: Matrix;
+  Gamma: Matrix;
+  product: ParallelMatVec | null;
+  /** Φ^m for the block recursion, by m. */
+  powers: Map<number, PowerOfPhi>;
+  /** Block terms by input piece and m. */
+  terms: Map<string, BlockTerms>;
+}
+
 export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: CheckedOptions): SimulationResult {
   const start = performance.now();
   const system = new LinearSystem(model);
   // The first Φ (on a uniform grid the only one) gets a two-thread product for the recursion.
-  const cache = new IntervalLengths<{ Phi: Matrix; Gamma: Matrix; product: ParallelMatVec | null }>();
+  const cache = new IntervalLengths<ZohEntry>();
   let parallelTaken = false;
   try {
     const n = system.n;
@@ -102,18 +113,26 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
       for (let i = 0; i < n; i++) x[i] += jump[i];
     }
 
-    // Events: output times and input jumps inside (0, tEnd], merged in order.
+    // Events: output times and input jumps inside (0, tEnd], merged in order; `isOutput` marks the
+    // events that are output times (a jump at an output time is one event).
     const events: number[] = [];
+    const isOutput: boolean[] = [];
+    const tol = 1e-12 * opts.tEnd;
     {
-      const tol = 1e-12 * opts.tEnd;
       const bp = input.breakpoints.filter((b) => b > 0 && b < opts.tEnd);
       let i = 0;
       let j = 0;
       const out = opts.times;
       while (i < out.length || j < bp.length) {
-        const next = j >= bp.length || (i < out.length && out[i] <= bp[j]) ? out[i++] : bp[j++];
+        const fromOutput = j >= bp.length || (i < out.length && out[i] <= bp[j]);
+        const next = fromOutput ? out[i++] : bp[j++];
         if (next <= 0) continue;
-        if (events.length === 0 || next - events[events.length - 1] > tol) events.push(next);
+        if (events.length === 0 || next - events[events.length - 1] > tol) {
+          events.push(next);
+          isOutput.push(fromOutput);
+        } else if (fromOutput) {
+          isOutput[isOutput.length - 1] = true;
+        }
       }
     }
 
@@ -123,8 +142,8 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
     const gu = new Float64Array(n);
     let t = 0;
     while (!recorder.done && recorder.nextTime <= 0) recorder.record(x);
-    for (const e of events) {
-      const L = e - t;
+
+    const zohFor = (L: number): ZohEntry => {
       let zoh = cache.get(L);
       if (!zoh) {
         const z = zohMatrices(model.A, G, L);
@@ -134,18 +153,85 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
           const pm = new ParallelMatVec(z.Phi);
           if (pm.parallel) product = pm;
         }
-        zoh = { Phi: z.Phi, Gamma: z.Gamma, product };
+        zoh = { Phi: z.Phi, Gamma: z.Gamma, product, powers: new Map(), terms: new Map() };
         cache.set(L, zoh);
         exponentials++;
       }
+      return zoh;
+    };
+    const phiTimes = (zoh: ZohEntry, v: Float64Array, out: Float64Array): void => {
       if (zoh.product) {
-        zoh.product.x.set(x);
+        zoh.product.x.set(v);
         zoh.product.apply();
-        next.set(zoh.product.y);
+        out.set(zoh.product.y);
       } else {
-        matVec(zoh.Phi, x, next);
+        matVec(zoh.Phi, v, out);
       }
-      const u = inputVector(pieceAfter(input, t, 1e-12 * opts.tEnd));
+    };
+    /** Events from `first` on that end intervals of length L with input piece `piece`, all output times. */
+    const runLength = (first: number, L: number, piece: number): number => {
+      let k = first;
+      let start = first === 0 ? 0 : events[first - 1];
+      while (k < events.length && isOutput[k] && Math.abs(events[k] - start - L) <= 1e-11 * L) {
+        if (k > first && pieceAfter(input, start, tol) !== piece) break;
+        start = events[k];
+        k++;
+      }
+      return k - first;
+    };
+
+    let plainUntil = 0; // events before this index go step by step (a run already judged not worth blocks)
+    let cx = new Float64Array(0);
+    for (let ei = 0; ei < events.length; ) {
+      const e = events[ei];
+      const L = e - t;
+      const zoh = zohFor(L);
+      const piece = pieceAfter(input, t, tol);
+      const u = inputVector(piece);
+
+      if (ei >= plainUntil) {
+        const run = runLength(ei, L, piece);
+        const m = blockFactor(n, system.p, run);
+        if (m === 1) {
+          plainUntil = ei + Math.max(run, 1);
+        } else {
+          // m steps at a time (exact-blocks.ts); the last run % m steps go one by one below.
+          let power = zoh.powers.get(m);
+          if (!power) {
+            power = new PowerOfPhi(zoh.Phi, m);
+            zoh.powers.set(m, power);
+          }
+          const key = `${piece}:${m}`;
+          let terms = zoh.terms.get(key);
+          if (!terms) {
+            const g = new Float64Array(n);
+            if (u.length > 0) matVec(zoh.Gamma, u, g);
+            terms = blockTerms(system, zoh.Phi, g, m, (v, out) => phiTimes(zoh, v, out));
+            zoh.terms.set(key, terms);
+          }
+          if (cx.length < terms.W.rows) cx = new Float64Array(terms.W.rows);
+          const blocks = Math.floor(run / m);
+          const p = system.p;
+          for (let b = 0; b < blocks; b++) {
+            matVec(terms.W, x, cx);
+            for (let i = 0; i < cx.length; i++) cx[i] += terms.offsets[i];
+            for (let i = 1; i < m; i++) {
+              const te = events[ei + i - 1];
+              while (!recorder.done && recorder.nextTime <= te + tol) recorder.recordFromCx(cx, (i - 1) * p);
+            }
+            power.apply(x, next);
+            for (let i = 0; i < n; i++) x[i] = next[i] + terms.gm[i];
+            ei += m;
+            steps += m;
+            t = events[ei - 1];
+            while (!recorder.done && recorder.nextTime <= t + tol) recorder.record(x);
+          }
+          plainUntil = ei + (run % m);
+          continue;
+        }
+      }
+
+      phiTimes(zoh, x, next);
       if (u.length > 0) {
         matVec(zoh.Gamma, u, gu);
         for (let i = 0; i < n; i++) x[i] = next[i] + gu[i];
@@ -154,7 +240,8 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
       }
       steps++;
       t = e;
-      while (!recorder.done && recorder.nextTime <= t + 1e-12 * opts.tEnd) recorder.record(x);
+      ei++;
+      while (!recorder.done && recorder.nextTime <= t + tol) recorder.record(x);
     }
     return {
       t: opts.times,
@@ -170,7 +257,10 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
       },
     };
   } finally {
-    cache.forEachValue((z) => z.product?.dispose());
+    cache.forEachValue((z) => {
+      z.product?.dispose();
+      z.powers.forEach((pw) => pw.dispose());
+    });
     system.dispose();
   }
 }

@@ -102,4 +102,16 @@ export class LinearSystem {
       out[offset + i] = s;
     }
   }
+
+  /** y = (C x) + D u written into `out` at `offset`, C x given (p values of `cx` from `cxOffset`). */
+  outputFromCx(cx: Float64Array, cxOffset: number, u: Float64Array, out: Float64Array, offset: number): void {
+    const { D } = this.model;
+    const m = this.m;
+    for (let i = 0; i < this.p; i++) {
+      let s = cx[cxOffset + i];
+      const d = i * m;
+      for (let j = 0; j < m; j++) s += D.data[d + j] * u[j];
+      out[offset + i] = s;
+    }
+  }
 }

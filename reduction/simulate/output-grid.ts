@@ -117,6 +117,14 @@ export class OutputRecorder {
     this.system.output(x, u, this.y.data, this.next * this.system.p);
     this.next++;
   }
+
+  /** Record y at the next output time from C·x there (p values of `cx` from `offset`); adds D·u. */
+  recordFromCx(cx: Float64Array, offset: number): void {
+    const t = this.times[this.next];
+    const u = this.input.values[pieceAfter(this.input, t, this.tol)];
+    this.system.outputFromCx(cx, offset, u, this.y.data, this.next * this.system.p);
+    this.next++;
+  }
 }
 
 /** The intervals on which u is constant inside [0, tEnd]: [start, end) with the piece index in effect. */

@@ -11,6 +11,7 @@ import { ModelError } from '@/reduction/errors';
 import { impulseInput, parseSampledInput, simulate, stepInput } from '@/reduction/simulate';
 import type { Matrix } from '@/reduction/linalg/matrix';
 import { logRates, modelWithRates, rows, scipyReference } from './simulate-reference';
+import { blockFactor } from '@/reduction/simulate/exact-blocks';
 
 const TIME = path.resolve(__dirname, '../../fixtures/engine/time');
 const fixture = (f: string) => readFileSync(path.join(TIME, f), 'utf8');
@@ -90,6 +91,47 @@ describe('exact solver against scipy closed forms', () => {
       // Grid times k·T/(N−1) land a rounding error before the jumps at 0.45 and 0.9; the solver takes them
       // as at the jump (right-continuous input), so the reference gets the decimal times.
       sample_t: [0, 0.2, 0.45, 0.9], sample_u: [[1, 0], [0.5, 1], [0, -1], [2, 0.25]],
+      t: Array.from(r.t, (t) => Number(t.toPrecision(12))), x0,
+    });
+    expect(relativeError(r.y, ref.y)).toBeLessThan(1e-10);
+  });
+});
+
+describe('exact solver: block recursion (m steps per product with Φ^m, exact-blocks.ts)', () => {
+  // 48 states and 2 outputs on 400 intervals: the cost model takes blocks (checked first), so these
+  // responses come from Φ^m, CΦ^i and the summed input terms rather than step by step.
+  const model = modelWithRates(logRates(48, 1, 1e3), 2, 2, 31, 6);
+  it('the cost model blocks long runs of large models and leaves short runs, small or many-output models alone', () => {
+    expect(blockFactor(48, 2, 400)).toBeGreaterThan(1);
+    expect(blockFactor(1000, 1, 1999)).toBeGreaterThanOrEqual(4);
+    expect(blockFactor(1000, 1, 3)).toBe(1);
+    expect(blockFactor(48, 20, 400)).toBe(1);
+  });
+  it('step from rest matches the closed form C A⁻¹(e^{At} − I)B (scipy) to 1e-10', () => {
+    const r = simulate(model, stepInput(model), { tEnd: 4, points: 401, solver: 'exact' });
+    const ref = scipyReference<{ y: number[][] }>({
+      op: 'step_closed_form', A: rows(model.A), B: rows(model.B), C: rows(model.C), t: Array.from(r.t), u: [1, 1],
+    });
+    const withD = ref.y.map((yk) => yk.map((v, i) => v + model.D.data[i * 2] + model.D.data[i * 2 + 1]));
+    expect(relativeError(r.y, withD)).toBeLessThan(1e-10);
+    expect(r.stats.steps).toBe(400);
+    expect(r.stats.pointsStored).toBe(401);
+  });
+  it('impulse matches C e^{At} B e₁ (scipy) to 1e-10', () => {
+    const r = simulate(model, impulseInput(model, 1), { tEnd: 4, points: 401, solver: 'exact' });
+    const ref = scipyReference<{ y: number[][] }>({
+      op: 'impulse', A: rows(model.A), B: rows(model.B), C: rows(model.C), t: Array.from(r.t), w: [1, 0],
+    });
+    expect(relativeError(r.y, ref.y)).toBeLessThan(1e-10);
+  });
+  it('a sampled input held over long stretches, with an initial state, matches the interval-by-interval scipy recursion', () => {
+    const csv = 'time,a,b\n0,1,0\n1,0.5,-1\n2.5,-2,0.25\n';
+    const input = parseSampledInput(csv, 2, 'held.csv');
+    const x0 = Array.from({ length: 48 }, (_, i) => Math.sin(i + 1) / 4);
+    const r = simulate(model, input, { tEnd: 4, points: 401, solver: 'exact', x0 });
+    const ref = scipyReference<{ y: number[][] }>({
+      op: 'sampled_zoh', A: rows(model.A), B: rows(model.B), C: rows(model.C), D: rows(model.D),
+      sample_t: [0, 1, 2.5], sample_u: [[1, 0], [0.5, -1], [-2, 0.25]],
       t: Array.from(r.t, (t) => Number(t.toPrecision(12))), x0,
     });
     expect(relativeError(r.y, ref.y)).toBeLessThan(1e-10);
