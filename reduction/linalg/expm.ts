@@ -27,6 +27,7 @@
  * at the boundary (`reduction/io`).
  */
 import { type Matrix, zeros, identity, norm1, matmul, solve } from './index';
+import { productZeros } from './gemm';
 
 /** θ_m of Higham (2005), Table 2.3 (double precision). */
 const THETA: Record<number, number> = {
@@ -59,13 +60,30 @@ export interface ExpmResult {
   readonly products: number;
 }
 
-/** Σ c_k·M_k + c_I·I, in one pass over the entries. */
+/** Σ c_k·M_k + c_I·I, in one pass over the entries (up to four terms at a time). */
 function combine(n: number, terms: readonly (readonly [number, Matrix])[], identityCoef: number): Matrix {
-  const out = zeros(n, n);
+  const out = productZeros(n, n);
   const o = out.data;
-  for (const [c, m] of terms) {
-    const d = m.data;
-    for (let k = 0; k < o.length; k++) o[k] += c * d[k];
+  const len = o.length;
+  for (let t = 0; t < terms.length; t += 4) {
+    const group = terms.slice(t, t + 4);
+    const [c0, m0] = group[0];
+    const d0 = m0.data;
+    if (group.length === 4) {
+      const c1 = group[1][0], c2 = group[2][0], c3 = group[3][0];
+      const d1 = group[1][1].data, d2 = group[2][1].data, d3 = group[3][1].data;
+      for (let k = 0; k < len; k++) o[k] += c0 * d0[k] + c1 * d1[k] + c2 * d2[k] + c3 * d3[k];
+    } else if (group.length === 3) {
+      const c1 = group[1][0], c2 = group[2][0];
+      const d1 = group[1][1].data, d2 = group[2][1].data;
+      for (let k = 0; k < len; k++) o[k] += c0 * d0[k] + c1 * d1[k] + c2 * d2[k];
+    } else if (group.length === 2) {
+      const c1 = group[1][0];
+      const d1 = group[1][1].data;
+      for (let k = 0; k < len; k++) o[k] += c0 * d0[k] + c1 * d1[k];
+    } else {
+      for (let k = 0; k < len; k++) o[k] += c0 * d0[k];
+    }
   }
   if (identityCoef !== 0) for (let i = 0; i < n; i++) o[i * n + i] += identityCoef;
   return out;
@@ -130,15 +148,36 @@ function applyProduct(factors: readonly Matrix[], x: Float64Array, transpose: bo
     const n = f.rows;
     const out = new Float64Array(n);
     const d = f.data;
+    let i = 0;
     if (transpose) {
-      for (let i = 0; i < n; i++) {
+      // out = Fᵀv, four rows of F at a time.
+      for (; i + 3 < n; i += 4) {
+        const v0 = v[i], v1 = v[i + 1], v2 = v[i + 2], v3 = v[i + 3];
+        const o0 = i * n, o1 = o0 + n, o2 = o1 + n, o3 = o2 + n;
+        for (let j = 0; j < n; j++) out[j] += d[o0 + j] * v0 + d[o1 + j] * v1 + d[o2 + j] * v2 + d[o3 + j] * v3;
+      }
+      for (; i < n; i++) {
         const vi = v[i];
-        if (vi === 0) continue;
         const o = i * n;
         for (let j = 0; j < n; j++) out[j] += d[o + j] * vi;
       }
     } else {
-      for (let i = 0; i < n; i++) {
+      for (; i + 3 < n; i += 4) {
+        const o0 = i * n, o1 = o0 + n, o2 = o1 + n, o3 = o2 + n;
+        let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+        for (let j = 0; j < n; j++) {
+          const vj = v[j];
+          s0 += d[o0 + j] * vj;
+          s1 += d[o1 + j] * vj;
+          s2 += d[o2 + j] * vj;
+          s3 += d[o3 + j] * vj;
+        }
+        out[i] = s0;
+        out[i + 1] = s1;
+        out[i + 2] = s2;
+        out[i + 3] = s3;
+      }
+      for (; i < n; i++) {
         const o = i * n;
         let s = 0;
         for (let j = 0; j < n; j++) s += d[o + j] * v[j];
@@ -234,8 +273,11 @@ export function expmWithInfo(a: Matrix, options: ExpmOptions = {}): ExpmResult {
 }
 
 /** Al-Mohy & Higham (2009), Algorithm 5.1, with the Padé evaluation of Higham (2005). */
-function expmPowers(a: Matrix): ExpmResult {
-  const n = a.rows;
+function expmPowers(given: Matrix): ExpmResult {
+  const n = given.rows;
+  // On shared memory, so the products hand it to the worker thread without copies (parallel.ts).
+  const a = productZeros(n, n);
+  a.data.set(given.data);
   const normA = norm1(a);
   if (normA === 0) return { value: identity(n), padeDegree: 3, squarings: 0, products: 0 };
   // Degrees 3 and 5 from estimates of ‖A⁴‖ and ‖A⁶‖ through A²; A² is needed by every degree.
@@ -265,8 +307,13 @@ function expmPowers(a: Matrix): ExpmResult {
   const eta5 = Math.min(Math.max(d6, d8), Math.max(d8, d10));
   let s = Math.max(0, Math.ceil(Math.log2(eta5 / THETA[13])));
   s += extraSquarings(a, 13, 2 ** -s, normA);
-  const scaledBy = (m: Matrix, k: number): Matrix =>
-    s === 0 ? m : { rows: n, cols: n, data: m.data.map((v) => v * 2 ** (-k * s)) };
+  const scaledBy = (m: Matrix, k: number): Matrix => {
+    if (s === 0) return m;
+    const out = productZeros(n, n);
+    const f = 2 ** (-k * s);
+    for (let i = 0; i < out.data.length; i++) out.data[i] = m.data[i] * f;
+    return out;
+  };
   let { r, products } = padeApproximant(scaledBy(a, 1), 13, { A2: scaledBy(A2, 2), A4: scaledBy(A4, 4), A6: scaledBy(A6, 6) });
   products += 3;
   for (let k = 0; k < s; k++) {

@@ -12,7 +12,7 @@
  * (see `parallel.ts`); the arithmetic per entry of C is identical either way.
  */
 import { type Matrix, zeros } from './matrix';
-import { parallelProduct } from './parallel';
+import { parallelProduct, sharedFloat64 } from './parallel';
 import { createPackedKernel, type PackedKernel } from './wasm/packed-kernel';
 import { GEMM_KERNEL_WASM_HEX } from './wasm/gemm-kernel-binary';
 
@@ -85,16 +85,35 @@ export function blockedProduct(
   const kcMax = 256;
   const mcMax = 96;
   const width = j1 - j0;
-  kernel.reserve(Math.ceil(width / 4) * 4 * kcMax);
+  const nw = Math.ceil(width / 4) * 4;
+  kernel.reserve(nw * kcMax, mcMax * nw);
   const packA = kernel.packA;
   const packB = kernel.packB;
-  const tile = kernel.tile;
+  const panel = kernel.cPanel;
   for (let pc = 0; pc < k; pc += kcMax) {
     const kc = Math.min(kcMax, k - pc);
     // Pack op(B)[pc:pc+kc, j0:j1] into NR-wide panels, zero-padding the last one.
     for (let jp = 0; jp < width; jp += 4) {
       const base = (jp >> 2) * kc * 4;
       const nr = Math.min(4, width - jp);
+      if (nr === 4) {
+        // Full panel: straight copies (row-wise from B, or four column runs from Bᵀ's storage).
+        if (transB) {
+          for (let q = 0; q < 4; q++) {
+            const src = bOff + (j0 + jp + q) * ldb + pc;
+            for (let p = 0; p < kc; p++) packB[base + p * 4 + q] = b[src + p];
+          }
+        } else {
+          let src = bOff + pc * ldb + j0 + jp;
+          for (let p = 0, dst = base; p < kc; p++, dst += 4, src += ldb) {
+            packB[dst] = b[src];
+            packB[dst + 1] = b[src + 1];
+            packB[dst + 2] = b[src + 2];
+            packB[dst + 3] = b[src + 3];
+          }
+        }
+        continue;
+      }
       for (let p = 0; p < kc; p++) {
         const dst = base + p * 4;
         for (let q = 0; q < 4; q++) {
@@ -126,18 +145,14 @@ export function blockedProduct(
           }
         }
       }
-      for (let jp = 0; jp < width; jp += 4) {
-        const nr = Math.min(4, width - jp);
-        const bBase = (jp >> 2) * kc * 4;
-        for (let ip = 0; ip < mc; ip += 4) {
-          const mr = Math.min(4, mc - ip);
-          kernel.run(kc, ip * kc, bBase);
-          let dst = cOff + (ic + ip) * ldc + j0 + jp;
-          for (let r = 0; r < mr; r++) {
-            for (let q = 0; q < nr; q++) c[dst + q] += alpha * tile[r * 4 + q];
-            dst += ldc;
-          }
-        }
+      // All tiles of the block at once, then C += α·block.
+      const mcPad = Math.ceil(mc / 4) * 4;
+      kernel.block(kc, mcPad, nw);
+      for (let r = 0; r < mc; r++) {
+        const dst = cOff + (ic + r) * ldc + j0;
+        const src = r * nw;
+        if (alpha === 1) for (let q = 0; q < width; q++) c[dst + q] += panel[src + q];
+        else for (let q = 0; q < width; q++) c[dst + q] += alpha * panel[src + q];
       }
     }
   }
@@ -239,10 +254,19 @@ function checkInner(what: string, ar: number, ac: number, br: number, bc: number
   if (inner1 !== inner2) throw new Error(`${what}: inner dimensions differ (${ar}×${ac} and ${br}×${bc})`);
 }
 
+/**
+ * A zero result matrix; large ones on shared memory, so that a later product with them hands them to
+ * the worker thread without a copy (parallel.ts).
+ */
+export function productZeros(rows: number, cols: number): Matrix {
+  if (rows * cols < 256 * 256) return zeros(rows, cols);
+  return { rows, cols, data: sharedFloat64(rows * cols) };
+}
+
 /** A·B. */
 export function multiply(a: Matrix, b: Matrix): Matrix {
   checkInner('multiply', a.rows, a.cols, b.rows, b.cols, a.cols, b.rows);
-  const c = zeros(a.rows, b.cols);
+  const c = productZeros(a.rows, b.cols);
   gemm(false, false, a.rows, b.cols, a.cols, 1, a.data, 0, a.cols, b.data, 0, b.cols, 0, c.data, 0, c.cols);
   return c;
 }
@@ -250,7 +274,7 @@ export function multiply(a: Matrix, b: Matrix): Matrix {
 /** Aᵀ·B without forming Aᵀ. */
 export function multiplyTransposeA(a: Matrix, b: Matrix): Matrix {
   checkInner('multiplyTransposeA', a.rows, a.cols, b.rows, b.cols, a.rows, b.rows);
-  const c = zeros(a.cols, b.cols);
+  const c = productZeros(a.cols, b.cols);
   gemm(true, false, a.cols, b.cols, a.rows, 1, a.data, 0, a.cols, b.data, 0, b.cols, 0, c.data, 0, c.cols);
   return c;
 }
@@ -258,7 +282,7 @@ export function multiplyTransposeA(a: Matrix, b: Matrix): Matrix {
 /** A·Bᵀ without forming Bᵀ. */
 export function multiplyTransposeB(a: Matrix, b: Matrix): Matrix {
   checkInner('multiplyTransposeB', a.rows, a.cols, b.rows, b.cols, a.cols, b.cols);
-  const c = zeros(a.rows, b.rows);
+  const c = productZeros(a.rows, b.rows);
   gemm(false, true, a.rows, b.rows, a.cols, 1, a.data, 0, a.cols, b.data, 0, b.cols, 0, c.data, 0, c.cols);
   return c;
 }

@@ -95,6 +95,7 @@ ${blockedProduct.toString()}
 ${pivotedQrOfRows.toString()}
 const control = new Int32Array(workerData.control);
 const kernel = createPackedKernel(workerData.wasmHex, microKernel4x4, workerData.packALength);
+Atomics.store(control, 2, kernel.simd ? 1 : 2);
 parentPort.on('message', (job) => {
   let status = job.id;
   try {
@@ -325,6 +326,13 @@ export function parallelProduct(
 /** Whether the worker thread is running (it starts on the first product large enough to split). */
 export function workerRunning(): boolean {
   return !!state;
+}
+
+/** Whether the running worker's products use the WebAssembly kernel (undefined: no worker running). */
+export function workerUsesSimd(): boolean | undefined {
+  if (!state) return undefined;
+  const v = Atomics.load(state.control, 2);
+  return v === 0 ? undefined : v === 1;
 }
 
 export interface RowQrJob {

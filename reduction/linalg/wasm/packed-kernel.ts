@@ -19,36 +19,53 @@
 export interface PackedKernel {
   /** Whether the WebAssembly kernel is in use (false: scalar fallback). */
   readonly simd: boolean;
-  /** Packed MR-row panels of A (at least MC·KC doubles). */
+  /** Packed MR-row panels of A (MC·KC doubles). */
   packA: Float64Array;
   /** Packed NR-column panels of B (see `reserve`). */
   packB: Float64Array;
-  /** The 4×4 result of the last `run`, row-major. */
-  tile: Float64Array;
-  /** Makes `packB` at least `length` doubles; may replace all three views. */
-  reserve(length: number): void;
-  /** tile ← Σ_p packA[aOff + 4p + r]·packB[bOff + 4p + q] over p < kc. */
-  run(kc: number, aOff: number, bOff: number): void;
+  /** The result of the last `block`, row-major with nw doubles per row (see `reserve`). */
+  cPanel: Float64Array;
+  /** Makes `packB` and `cPanel` at least the given lengths; may replace all views. */
+  reserve(packBLength: number, cPanelLength: number): void;
+  /**
+   * cPanel[i·nw + j] ← Σ_p packA[(i − i mod 4)·kc + 4p + i mod 4] · packB[(j − j mod 4)·kc + 4p + j mod 4]
+   * over p < kc, for i < mc and j < nw (both multiples of 4): every 4×4 tile of the block.
+   */
+  block(kc: number, mc: number, nw: number): void;
 }
 
 type ScalarKernel = (kc: number, ap: Float64Array, aOff: number, bp: Float64Array, bOff: number, tile: Float64Array) => void;
 
 /**
  * A kernel over fresh panels: WebAssembly when `wasmHex` is given and the runtime accepts the module,
- * otherwise `scalar`. `packALength` is MC·KC.
+ * otherwise `scalar` (the 4×4 tile kernel). `packALength` is MC·KC.
  */
 export function createPackedKernel(wasmHex: string | null, scalar: ScalarKernel, packALength: number): PackedKernel {
   const scalarKernel = (): PackedKernel => {
+    const tile = new Float64Array(16);
     const k: PackedKernel = {
       simd: false,
       packA: new Float64Array(packALength),
       packB: new Float64Array(0),
-      tile: new Float64Array(16),
-      reserve(length: number) {
-        if (k.packB.length < length) k.packB = new Float64Array(length);
+      cPanel: new Float64Array(0),
+      reserve(packBLength: number, cPanelLength: number) {
+        if (k.packB.length < packBLength) k.packB = new Float64Array(packBLength);
+        if (k.cPanel.length < cPanelLength) k.cPanel = new Float64Array(cPanelLength);
       },
-      run(kc: number, aOff: number, bOff: number) {
-        scalar(kc, k.packA, aOff, k.packB, bOff, k.tile);
+      block(kc: number, mc: number, nw: number) {
+        const out = k.cPanel;
+        for (let jp = 0; jp < nw; jp += 4) {
+          for (let ip = 0; ip < mc; ip += 4) {
+            scalar(kc, k.packA, ip * kc, k.packB, jp * kc, tile);
+            for (let r = 0; r < 4; r++) {
+              const o = (ip + r) * nw + jp;
+              out[o] = tile[4 * r];
+              out[o + 1] = tile[4 * r + 1];
+              out[o + 2] = tile[4 * r + 2];
+              out[o + 3] = tile[4 * r + 3];
+            }
+          }
+        }
       },
     };
     return k;
@@ -59,44 +76,47 @@ export function createPackedKernel(wasmHex: string | null, scalar: ScalarKernel,
     for (let i = 0; i < bytes.length; i++) bytes[i] = parseInt(wasmHex.substr(2 * i, 2), 16);
     const instance = new WebAssembly.Instance(new WebAssembly.Module(bytes), {});
     const memory = instance.exports.memory as WebAssembly.Memory;
-    const kernel4x4 = instance.exports.kernel4x4 as (kc: number, ap: number, bp: number, tile: number) => void;
-    const TILE = 0;
-    const PACK_A = 128;
-    const PACK_B = PACK_A + packALength * 8;
-    let packBLength = 0;
+    const blockFn = instance.exports.block as (kc: number, mc: number, nw: number, ap: number, bp: number, cp: number) => void;
+    const PACK_A = 0;
+    let cPanelAt = 0;
+    let packBAt = 0;
+    let packBLen = -1;
+    let cPanelLen = -1;
     const k: PackedKernel = {
       simd: true,
       packA: new Float64Array(0),
       packB: new Float64Array(0),
-      tile: new Float64Array(0),
-      reserve(length: number) {
-        if (length <= packBLength && k.tile.buffer === memory.buffer) return;
-        packBLength = Math.max(length, packBLength);
-        const bytesNeeded = PACK_B + packBLength * 8;
+      cPanel: new Float64Array(0),
+      reserve(packBLength: number, cPanelLength: number) {
+        if (packBLength <= packBLen && cPanelLength <= cPanelLen && k.packA.buffer === memory.buffer) return;
+        packBLen = Math.max(packBLength, packBLen, 0);
+        cPanelLen = Math.max(cPanelLength, cPanelLen, 0);
+        cPanelAt = PACK_A + packALength * 8;
+        packBAt = cPanelAt + Math.ceil(cPanelLen / 2) * 16;
+        const bytesNeeded = packBAt + packBLen * 8;
         const have = memory.buffer.byteLength;
         if (bytesNeeded > have) memory.grow(Math.ceil((bytesNeeded - have) / 65536));
-        k.tile = new Float64Array(memory.buffer, TILE, 16);
         k.packA = new Float64Array(memory.buffer, PACK_A, packALength);
-        k.packB = new Float64Array(memory.buffer, PACK_B, packBLength);
+        k.cPanel = new Float64Array(memory.buffer, cPanelAt, cPanelLen);
+        k.packB = new Float64Array(memory.buffer, packBAt, packBLen);
       },
-      run(kc: number, aOff: number, bOff: number) {
-        kernel4x4(kc, PACK_A + aOff * 8, PACK_B + bOff * 8, TILE);
+      block(kc: number, mc: number, nw: number) {
+        blockFn(kc, mc, nw, PACK_A, packBAt, cPanelAt);
       },
     };
-    k.reserve(0);
-    // Self-check on a small product against the scalar kernel; any difference means the fallback.
+    k.reserve(0, 0);
+    // Self-check on one 8×8 block of depth 5 against the scalar kernel; any difference means the fallback.
     const kc = 5;
-    const ap = new Float64Array(4 * kc), bp = new Float64Array(4 * kc), tile = new Float64Array(16);
-    for (let i = 0; i < 4 * kc; i++) {
-      ap[i] = ((i * 7) % 11) - 5.5;
-      bp[i] = ((i * 5) % 13) / 3 - 2;
+    const ref = scalarKernel();
+    k.reserve(8 * kc, 64);
+    ref.reserve(8 * kc, 64);
+    for (let i = 0; i < 8 * kc; i++) {
+      k.packA[i] = ref.packA[i] = ((i * 7) % 11) - 5.5;
+      k.packB[i] = ref.packB[i] = ((i * 5) % 13) / 3 - 2;
     }
-    k.reserve(4 * kc);
-    k.packA.set(ap);
-    k.packB.set(bp);
-    k.run(kc, 0, 0);
-    scalar(kc, ap, 0, bp, 0, tile);
-    for (let i = 0; i < 16; i++) if (k.tile[i] !== tile[i]) return scalarKernel();
+    k.block(kc, 8, 8);
+    ref.block(kc, 8, 8);
+    for (let i = 0; i < 64; i++) if (k.cPanel[i] !== ref.cPanel[i]) return scalarKernel();
     return k;
   } catch {
     return scalarKernel();

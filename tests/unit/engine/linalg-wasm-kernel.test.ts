@@ -12,6 +12,8 @@ import { blockedProduct, KC, MC, microKernel4x4, newPackedKernel } from '@/reduc
 import { createPackedKernel } from '@/reduction/linalg/wasm/packed-kernel';
 import { GEMM_KERNEL_WASM_HEX } from '@/reduction/linalg/wasm/gemm-kernel-binary';
 import { seeded } from './simulate-reference';
+import { multiply, productZeros } from '@/reduction/linalg/gemm';
+import { linalgThreads, workerUsesSimd } from '@/reduction/linalg/parallel';
 
 describe('WebAssembly gemm kernel', () => {
   it('the committed binary is the assembly of gemm-kernel.wat (npm run build:wasm)', async () => {
@@ -22,6 +24,15 @@ describe('WebAssembly gemm kernel', () => {
   it('Node accepts the module, so products use it', () => {
     expect(newPackedKernel().simd).toBe(true);
     expect(createPackedKernel(GEMM_KERNEL_WASM_HEX, microKernel4x4, MC * KC).simd).toBe(true);
+  });
+
+  it('the second thread of large products runs the same kernel', () => {
+    const a = productZeros(400, 400);
+    a.data.fill(0.5);
+    const c = multiply(a, a);
+    expect(c.data[0]).toBe(100);
+    // One core: no worker thread, so nothing to ask; two: the worker reports its kernel.
+    expect(workerUsesSimd()).toBe(linalgThreads() >= 2 ? true : undefined);
   });
 
   it('a module that fails to compile falls back to the scalar kernel', () => {
