@@ -54,6 +54,7 @@ export { controllabilityGramian, observabilityGramian } from './gramians';
 export {
   reduceModel,
   prepareReduction,
+  PreparationCache,
   assessReduction,
   REDUCTION_METHODS,
   type ReductionMethod,

@@ -128,7 +128,36 @@ function modalSelectionOf(options: ReductionOptions): ModalSelection {
 }
 
 /** Split, then bring the stable part once into the method's ordered realization. */
-export function prepareReduction(model: StateSpaceModel, options: ReductionOptions): ReductionBasis {
+/**
+ * The decompositions that do not depend on the method, kept for further `prepareReduction` calls on the
+ * same model (the analysis prepares both balanced methods: one split and one balanced realization serve
+ * both). Keyed by the tolerances; use one cache per model.
+ */
+export class PreparationCache {
+  private readonly splits = new Map<number, SpectralSplit>();
+  private readonly realizations = new Map<string, BalancedRealization>();
+
+  split(model: StateSpaceModel, tolerance: number): SpectralSplit {
+    let s = this.splits.get(tolerance);
+    if (!s) {
+      s = splitStableUnstable(model, { tolerance });
+      this.splits.set(tolerance, s);
+    }
+    return s;
+  }
+
+  balanced(stable: StateSpaceModel, stabilityTolerance: number, rankTolerance: number): BalancedRealization {
+    const key = `${stabilityTolerance}:${rankTolerance}`;
+    let r = this.realizations.get(key);
+    if (!r) {
+      r = balancedRealization(stable, { rankTolerance });
+      this.realizations.set(key, r);
+    }
+    return r;
+  }
+}
+
+export function prepareReduction(model: StateSpaceModel, options: ReductionOptions, cache: PreparationCache = new PreparationCache()): ReductionBasis {
   if (!REDUCTION_METHODS.includes(options.method)) {
     throw new ModelError(
       'invalid_option',
@@ -142,7 +171,7 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
     'stabilityTolerance',
   );
   const rankTolerance = relativeToleranceOption(options.rankTolerance, DEFAULT_RANK_TOLERANCE, 'rankTolerance');
-  const split = splitStableUnstable(model, { tolerance: stabilityTolerance });
+  const split = cache.split(model, stabilityTolerance);
   const method = options.method;
   const nu = split.unstableStates;
   const ns = split.stableStates;
@@ -162,7 +191,7 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
     boundAt = (r) => modalErrorBound(form, r);
     stableReduced = (r) => ({ model: leadingStates(form.realization, r), notes: [] });
   } else {
-    const real: BalancedRealization = balancedRealization(split.stable, { rankTolerance });
+    const real: BalancedRealization = cache.balanced(split.stable, stabilityTolerance, rankTolerance);
     hankel = real.hankelSingularValues;
     minimalOrder = real.minimalOrder;
     cutPoints = balancedCutPoints(real);

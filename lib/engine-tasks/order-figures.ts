@@ -17,6 +17,7 @@ import {
   modelPoles,
   prepareReduction,
   stepLimitsFromPoles,
+  type PreparationCache,
   type ComplexVector,
   type ReductionMethod,
   type StateSpaceModel,
@@ -121,8 +122,9 @@ export function balancedOrderFigures(
   method: Extract<ReductionMethod, 'balanced' | 'residualization'>,
   kept: KeptPoles,
   onOrder?: (done: number, total: number) => void,
+  cache?: PreparationCache,
 ): OrderFigureTable {
-  const basis = prepareReduction(model, { method, stabilityTolerance: kept.tolerance });
+  const basis = prepareReduction(model, { method, stabilityTolerance: kept.tolerance }, cache);
   if (basis.stableStates === 0) {
     return { available: false, reason: 'the model has no stable part to reduce: every pole is marginal or unstable' };
   }

@@ -6,7 +6,7 @@ import {
   hankelSingularValues,
 } from '../../../reduction/balanced';
 import { controllabilityGramian, observabilityGramian } from '../../../reduction/gramians';
-import { prepareReduction, reduceModel } from '../../../reduction/reduce';
+import { PreparationCache, prepareReduction, reduceModel } from '../../../reduction/reduce';
 import { dcGain } from '../../../reduction/analysis';
 import { hinfNorm } from '../../../reduction/norms';
 import { ModelError } from '../../../reduction/errors';
@@ -169,6 +169,27 @@ describe('balanced truncation and residualization error bounds', () => {
       // The sweep is a lower estimate refined to ~1e-10; the Hamiltonian bracket is 2e-9 wide.
       expect(Math.abs(r.hinfError.value / ref[i].error!.value - 1)).toBeLessThan(1e-6);
     });
+  });
+});
+
+describe('one preparation shared by both balanced methods (PreparationCache)', () => {
+  it('gives the same reduced models as separate preparations, from one split and one balanced realization', () => {
+    const model = randomStableModel(41, 24, 2, 3, { decades: 3, withD: true });
+    const cache = new PreparationCache();
+    const shared = (['balanced', 'residualization'] as const).map((method) => prepareReduction(model, { method }, cache));
+    const separate = (['balanced', 'residualization'] as const).map((method) => prepareReduction(model, { method }));
+    expect(shared[1].split).toBe(shared[0].split);
+    expect(shared[1].hankelSingularValues).toBe(shared[0].hankelSingularValues);
+    expect(separate[1].split).not.toBe(separate[0].split);
+    for (let k = 0; k < 2; k++) {
+      for (const r of [3, 8]) {
+        const a = shared[k].truncateAt(r);
+        const b = separate[k].truncateAt(r);
+        expect(Array.from(a.model.A.data)).toEqual(Array.from(b.model.A.data));
+        expect(Array.from(a.model.D.data)).toEqual(Array.from(b.model.D.data));
+        expect(a.errorBound).toBe(b.errorBound);
+      }
+    }
   });
 });
 
