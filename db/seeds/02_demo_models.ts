@@ -1,21 +1,24 @@
 // Demo source models of Quillmere Kilnworks (db/seeds/demo/models.ts), each uploaded by the demo engineer,
 // analysed, and reduced once, so a newcomer sees real screens at once:
 //
-//   K-7 kiln wall thermal network   500 states, 2 inputs, 3 outputs, Matrix Market files; stiff (time
-//                                   constants from about 0.1 s to about 7 h); balanced truncation with an
-//                                   acceptance band.
+//   K-7 kiln wall thermal network   1000 states (50 nodes through the wall × 20 zones), 2 inputs, 3 outputs,
+//                                   Matrix Market files; stiff (time constants from a fraction of a second
+//                                   to hours); balanced truncation with an acceptance band.
 //   Rig frame, axial                300 states (150 masses), second-order JSON, one rigid-body mode;
 //                                   modal truncation by dominance.
 //   Burner air/fuel train           12 states, 2 inputs, 3 outputs, CSV files; balanced residualization.
 //
 // The seed runs the engine here, synchronously, rather than through the job queue (no worker may be running
 // while the database is seeded); it writes the same rows the jobs would, including succeeded job records.
-// Skipped for a model that already exists, so re-running `npm start` keeps what is there. The wall is
-// 500 states rather than a thousand: analysis and reduction of a dense model grow as n³. Measured on the
-// shared two-core machine (load about 2.5): the wall's analysis and reduction take 14 s + 25 s at 500
-// states, 25 s + 49 s at 600, and a thousand-state wall about three minutes; the whole seed then runs in
-// 63 s (load average about 2). The web benchmark (scripts/bench-web.ts) runs a thousand-state wall through
-// the real upload and queue instead.
+// Skipped for a model that already exists, so re-running `npm start` keeps what is there.
+//
+// Time: analysis and reduction of a dense model grow as n³. Measured on the two-core development machine,
+// otherwise quiet: the thousand-state wall's analysis takes about 63 s and its reduction (with the
+// comparison's responses and the simulation-cost report) about 81 s, so the first `npm start` spends
+// about two and a half minutes here (later starts skip it). The test command seeds the same models with
+// a 200-state wall (MODESHELF_DEMO_WALL=small, 10 nodes × 20 zones), because the tests upload and reduce
+// their own models and only need the demo rows to exist; `npm run bench:web` runs a thousand-state wall
+// through the real upload and queue.
 import { createHash } from 'node:crypto';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
@@ -55,16 +58,21 @@ interface DemoModel {
   reduction: DemoReduction;
 }
 
+/** Nodes through the wall: 50 (1000 states), or 10 (200 states) when MODESHELF_DEMO_WALL=small (tests). */
+function wallLayers(): number {
+  return process.env.MODESHELF_DEMO_WALL === 'small' ? 10 : 50;
+}
+
 const DEMO_MODELS: DemoModel[] = [
   {
     slug: 'k7-kiln-wall',
     name: 'K-7 kiln wall thermal network',
     description:
-      'Lumped thermal network of one wall of the K-7 electric kiln: heating-element sheath, hot-face brick, insulating firebrick, ceramic fibre and steel casing, 25 nodes through the thickness in 20 zones up the wall. Inputs: upper and lower heater zone power (W). Outputs: upper and lower control thermocouples and the casing temperature (K above ambient).',
+      `Lumped thermal network of one wall of the K-7 electric kiln: heating-element sheath, hot-face brick, insulating firebrick, ceramic fibre and steel casing, ${wallLayers()} nodes through the thickness in 20 zones up the wall. Inputs: upper and lower heater zone power (W). Outputs: upper and lower control thermocouples and the casing temperature (K above ambient).`,
     tags: ['thermal', 'kiln', 'stiff'],
     notes: 'Exported from the wall design sheet, revision C.',
     files: () => {
-      const m = kilnWallNetwork(25, 20);
+      const m = kilnWallNetwork(wallLayers(), 20);
       return [
         { role: 'A', name: 'k7-wall-A.mtx', text: matrixMarketCoordinate(m.A, 'K-7 kiln wall: A = -C^-1 G, 1/s') },
         { role: 'B', name: 'k7-wall-B.mtx', text: matrixMarketCoordinate(m.B, 'heater zones: upper, lower (K/J)') },
