@@ -8,7 +8,14 @@ const globalForDb = globalThis as unknown as { modeshelfDb?: Knex };
 
 export function db(): Knex {
   if (!globalForDb.modeshelfDb) {
-    globalForDb.modeshelfDb = knex({ client: 'pg', connection: databaseUrl(), pool: { min: 0, max: 10 } });
+    // Idle connections are kept five minutes (tarn's default is 30 s): opening one costs a backend start
+    // and a SCRAM exchange, and a pool emptied between sporadic controller pulls made the first half
+    // second of the next burst wait for ten of them (measured with scripts/load-pull.ts).
+    globalForDb.modeshelfDb = knex({
+      client: 'pg',
+      connection: databaseUrl(),
+      pool: { min: 0, max: 10, idleTimeoutMillis: 300_000 },
+    });
   }
   return globalForDb.modeshelfDb;
 }
