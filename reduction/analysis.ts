@@ -137,20 +137,31 @@ export function dcGain(model: StateSpaceModel, classification?: PoleClassificati
 }
 
 /**
- * The poles as the fixed-step limits should see them: a marginal pole's real part is set to 0 (it is
- * within the tolerance of the axis, and a computed double pole at 0 comes out as ±√ε-sized values of
- * either sign, which would otherwise read as "unstable for every step").
+ * Poles as the fixed-step limits should see them: a marginal pole's real part is set to 0 (it is within
+ * the tolerance of the axis, and a computed double pole at 0 comes out as ±√ε-sized values of either
+ * sign, which would otherwise read as "unstable for every step"), and its imaginary part too when that is
+ * within tolerance·scale of 0. Also used for the poles kept exactly by a reduction (the order slider).
  */
+export function snapMarginalPoles(
+  re: ArrayLike<number>,
+  im: ArrayLike<number>,
+  stability: ArrayLike<string>,
+  tolerance: number,
+  scale: number,
+): ComplexVector {
+  const outRe = Float64Array.from(re);
+  const outIm = Float64Array.from(im);
+  const t = tolerance * scale;
+  for (let i = 0; i < outRe.length; i++) {
+    if (stability[i] !== 'marginal') continue;
+    outRe[i] = 0;
+    if (Math.abs(outIm[i]) <= t) outIm[i] = 0;
+  }
+  return { re: outRe, im: outIm };
+}
+
 function polesForStepLimits(c: PoleClassification): ComplexVector {
-  const re = Float64Array.from(c.poles.re);
-  const im = Float64Array.from(c.poles.im);
-  const t = c.tolerance * c.scale;
-  c.stability.forEach((s, i) => {
-    if (s !== 'marginal') return;
-    re[i] = 0;
-    if (Math.abs(im[i]) <= t) im[i] = 0;
-  });
-  return { re, im };
+  return snapMarginalPoles(c.poles.re, c.poles.im, c.stability, c.tolerance, c.scale);
 }
 
 /** The full analysis of a model (see the file header). */

@@ -17,6 +17,7 @@ export * from './io/index';
 
 export {
   analyzeModel,
+  snapMarginalPoles,
   poleData,
   dcGain,
   stiffnessRatio,
@@ -73,7 +74,7 @@ export {
   DEFAULT_RANK_TOLERANCE,
   type BalancedRealization,
 } from './balanced';
-export { modalForm, rankedModalForm, type Mode, type ModalForm, type ModalSelection } from './modal';
+export { modalForm, rankedModalForm, modeComparator, type Mode, type ModalForm, type ModalSelection, type RankedModeFacts } from './modal';
 export { chooseOrder, type OrderRule, type OrderChoice } from './order';
 export { errorSystem } from './realization';
 

@@ -200,8 +200,29 @@ function assemble(
   };
 }
 
-function byDominance(a: Mode, b: Mode): number {
-  return b.dominance - a.dominance;
+/** What a selection rule looks at in a mode. */
+export interface RankedModeFacts {
+  readonly re: number;
+  readonly naturalFrequency: number;
+  readonly dominance: number;
+}
+
+/**
+ * The order in which modal truncation keeps modes under a selection rule, as a comparator: by dominance
+ * (largest first); slowest first (smallest |Re λ|, then dominance); or the modes whose natural frequency
+ * lies in the band first, then by dominance. `facts` reads a mode of any record type (the order slider
+ * ranks stored mode records by the same rule).
+ */
+export function modeComparator<M>(selection: ModalSelection, facts: (m: M) => RankedModeFacts): (a: M, b: M) => number {
+  const byDominance = (a: M, b: M) => facts(b).dominance - facts(a).dominance;
+  if (selection.rule === 'dominance') return byDominance;
+  if (selection.rule === 'slowest') return (a, b) => Math.abs(facts(a).re) - Math.abs(facts(b).re) || byDominance(a, b);
+  const [lo, hi] = selection.band;
+  const inBand = (m: M) => {
+    const wn = facts(m).naturalFrequency;
+    return wn >= lo && wn <= hi;
+  };
+  return (a, b) => Number(inBand(b)) - Number(inBand(a)) || byDominance(a, b);
 }
 
 /** The modal form with modes sorted by a selection rule: the modes to keep first. */
@@ -214,15 +235,8 @@ export function rankedModalForm(stable: StateSpaceModel, selection: ModalSelecti
     offset += m.states;
     return s;
   });
-  if (selection.rule === 'dominance') {
-    entries.sort((a, b) => byDominance(a.mode, b.mode));
-  } else if (selection.rule === 'slowest') {
-    entries.sort((a, b) => Math.abs(a.mode.re) - Math.abs(b.mode.re) || byDominance(a.mode, b.mode));
-  } else {
-    const [lo, hi] = selection.band;
-    const inBand = (m: Mode) => m.naturalFrequency >= lo && m.naturalFrequency <= hi;
-    entries.sort((a, b) => Number(inBand(b.mode)) - Number(inBand(a.mode)) || byDominance(a.mode, b.mode));
-  }
+  const order = modeComparator<Mode>(selection, (m) => m);
+  entries.sort((a, b) => order(a.mode, b.mode));
   const A = form.realization.A;
   const raw: RawMode[] = entries.map(({ mode, i }) => ({
     ...mode,

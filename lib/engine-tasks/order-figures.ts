@@ -15,7 +15,9 @@
 //     analysis' mode list by running sums and minima, without any matrix work.
 import {
   modelPoles,
+  modeComparator,
   prepareReduction,
+  snapMarginalPoles,
   stepLimitsFromPoles,
   type PreparationCache,
   type ComplexVector,
@@ -66,18 +68,6 @@ export function keptPolesOf(
   };
 }
 
-/**
- * The kept poles as the step limits should see them: a marginal pole's real part is put on the axis, as
- * reduction/analysis.ts does (a computed double pole at 0 comes out as ±√ε-sized values of either sign,
- * which would otherwise read as "unstable for every step").
- */
-function keptForStepLimits(kept: KeptPoles): { re: number[]; im: number[] } {
-  const t = kept.tolerance * kept.scale;
-  return {
-    re: kept.re.map((r, i) => (kept.stability[i] === 'marginal' ? 0 : r)),
-    im: kept.im.map((v, i) => (kept.stability[i] === 'marginal' && Math.abs(v) <= t ? 0 : v)),
-  };
-}
 
 const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
@@ -88,9 +78,10 @@ export function figuresFromPoles(
   kept: KeptPoles,
   errorBound: number | null,
 ): OrderFiguresRecord {
-  const keptStep = keptForStepLimits(kept);
-  const re = Float64Array.from([...Array.from(stableRe), ...keptStep.re]);
-  const im = Float64Array.from([...Array.from(stableIm), ...keptStep.im]);
+  // The kept poles as the step limits see them, marginal ones on the axis (the analysis' own rule).
+  const keptStep = snapMarginalPoles(kept.re, kept.im, kept.stability, kept.tolerance, kept.scale);
+  const re = Float64Array.from([...Array.from(stableRe), ...Array.from(keptStep.re)]);
+  const im = Float64Array.from([...Array.from(stableIm), ...Array.from(keptStep.im)]);
   const limits = stepLimitsFromPoles({ re, im });
   // Stiffness over the stable poles only; the reduced stable part's poles are stable by construction
   // (Pernebo & Silverman 1982), and classifying them again would count a rounding-level one as marginal.
@@ -155,21 +146,13 @@ export function balancedOrderFigures(
 export type ModalRanking = { rule: 'dominance' } | { rule: 'slowest' } | { rule: 'band'; band: readonly [number, number] };
 
 /**
- * The stable modes in the order modal truncation keeps them, by the same rules as reduction/modal.ts
- * (rankedModalForm): by dominance; slowest first (smallest |Re λ|, then dominance); or the modes whose
- * natural frequency lies in the band first, then by dominance.
+ * The stable modes in the order modal truncation keeps them: the engine's own rule (reduction/modal.ts,
+ * modeComparator) applied to the stored mode records.
  */
 export function rankModes(modes: readonly ModeRecord[], ranking: ModalRanking): ModeRecord[] {
   const stable = modes.filter((m) => m.stability === 'stable' && m.dominance !== null);
-  const dominance = (a: ModeRecord, b: ModeRecord) => (b.dominance ?? 0) - (a.dominance ?? 0);
-  if (ranking.rule === 'dominance') return [...stable].sort(dominance);
-  if (ranking.rule === 'slowest') return [...stable].sort((a, b) => Math.abs(a.re) - Math.abs(b.re) || dominance(a, b));
-  const [lo, hi] = ranking.band;
-  const inBand = (m: ModeRecord) => {
-    const wn = Math.hypot(m.re, m.im);
-    return wn >= lo && wn <= hi;
-  };
-  return [...stable].sort((a, b) => Number(inBand(b)) - Number(inBand(a)) || dominance(a, b));
+  const order = modeComparator<ModeRecord>(ranking, (m) => ({ re: m.re, naturalFrequency: Math.hypot(m.re, m.im), dominance: m.dominance ?? 0 }));
+  return [...stable].sort(order);
 }
 
 /** Number of states of the modes inside the band: the band rule's own order (reduction/modal.ts, statesInBand). */
@@ -194,8 +177,7 @@ export function modalOrderFigures(modes: readonly ModeRecord[], kept: KeptPoles,
   const ranked = rankModes(modes, ranking);
   if (ranked.length === 0) return { available: false, reason: 'the model has no stable modes to choose from' };
   const nu = kept.unstable + kept.marginal;
-  const keptStep = keptForStepLimits(kept);
-  const keptLimits = stepLimitsFromPoles({ re: Float64Array.from(keptStep.re), im: Float64Array.from(keptStep.im) });
+  const keptLimits = stepLimitsFromPoles(snapMarginalPoles(kept.re, kept.im, kept.stability, kept.tolerance, kept.scale));
   let euler = keptLimits.forwardEuler.maxStep;
   let rk4 = keptLimits.rk4.maxStep;
   let fast = 0;

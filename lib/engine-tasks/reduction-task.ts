@@ -17,6 +17,7 @@ import {
   modelPoles,
   reduceModel,
   simulate,
+  simulationCostReport,
   stepInput,
   impulseInput,
   toRows,
@@ -27,8 +28,6 @@ import {
   type SolverStats,
   type StateSpaceModel,
 } from '../../reduction/index';
-// The cost report is not re-exported by reduction/index.ts (yet); it is a public function of its module.
-import { simulationCostReport } from '../../reduction/simulate/cost-report';
 import { loadModel, type ModelFile } from './model-files';
 import { figuresFromPoles, keptPolesOf } from './order-figures';
 import type { ProgressReporter } from './progress';
