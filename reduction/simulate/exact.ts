@@ -214,7 +214,7 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
           const p = system.p;
           for (let b = 0; b < blocks; b++) {
             matVec(terms.W, x, cx);
-            for (let i = 0; i < cx.length; i++) cx[i] += terms.offsets[i];
+            for (let i = 0; i < terms.offsets.length; i++) cx[i] += terms.offsets[i];
             for (let i = 1; i < m; i++) {
               const te = events[ei + i - 1];
               while (!recorder.done && recorder.nextTime <= te + tol) recorder.recordFromCx(cx, (i - 1) * p);
