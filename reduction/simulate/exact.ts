@@ -151,7 +151,7 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
         if (!parallelTaken) {
           parallelTaken = true;
           const pm = new ParallelMatVec(z.Phi);
-          if (pm.parallel) product = pm;
+          if (pm.fast) product = pm;
         }
         zoh = { Phi: z.Phi, Gamma: z.Gamma, product, powers: new Map(), terms: new Map() };
         cache.set(L, zoh);
@@ -191,7 +191,7 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
 
       if (ei >= plainUntil) {
         const run = runLength(ei, L, piece);
-        const m = blockFactor(n, system.p, run);
+        const m = blockFactor(n, system.p, run, zoh.product?.simd ?? false);
         if (m === 1) {
           plainUntil = ei + Math.max(run, 1);
         } else {

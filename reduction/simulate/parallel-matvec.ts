@@ -9,46 +9,53 @@
  *
  * The second core is used only when the engine's dense kernels may use two threads (`linalgThreads()`,
  * MODESHELF_LINALG_THREADS) and the worker starts and passes a check product; otherwise every product
- * runs on the calling thread. The arithmetic per row is the same either way (same summation order).
+ * runs on the calling thread. Each share of rows runs through the WebAssembly SIMD kernel
+ * (reduction/linalg/wasm/matvec-kernel.wat) on shared kernel memory where the runtime accepts it
+ * (MODESHELF_LINALG_WASM=0 turns it off), otherwise through the scalar loop `matVecRows`. The arithmetic
+ * per row is the same in every case (same summation order), so results do not depend on either choice.
  */
 import { linalgThreads } from '../linalg/index';
+import { wasmKernelAllowed } from '../linalg/gemm';
 import type { Matrix } from '../linalg/matrix';
-import { matVec, matVecRows } from './linear-system';
+import { MATVEC_KERNEL_WASM_HEX } from '../linalg/wasm/matvec-kernel-binary';
+import { matVecRows } from './linear-system';
 
 /** Below this many entries the hand-off (~10–30 µs) outweighs half a product. */
 const PARALLEL_MIN_ENTRIES = 300 * 300;
+/** Below this many entries the copy into the kernel's memory is not worth it. */
+const SIMD_MIN_ENTRIES = 32 * 32;
+
+type MatVecKernel = (r0: number, r1: number, cols: number, m: number, x: number, y: number) => void;
 
 // Runs in the worker: rows [r0, r1) of M·x into y, on each bump of control[0]; control[0] = −1 stops.
-const WORKER_SOURCE = `
+// With a module it runs the SIMD kernel on the shared kernel memory, otherwise the scalar loop.
+function workerSource(): string {
+  return `
 const { workerData } = require('node:worker_threads');
-const { control, matrix, x, y, rows, cols, r0, r1 } = workerData;
-const m = new Float64Array(matrix), xv = new Float64Array(x), yv = new Float64Array(y), c = new Int32Array(control);
+const __name = (f) => f;
+${matVecRows.toString()}
+const { control, rows, cols, r0, r1, module, memory, offsets, buffers } = workerData;
+const c = new Int32Array(control);
+let product;
+if (module) {
+  const kernel = new WebAssembly.Instance(module, { env: { memory } }).exports.matvec;
+  product = () => kernel(r0, r1, cols, offsets.m, offsets.x, offsets.y);
+} else {
+  const m = new Float64Array(buffers.matrix), xv = new Float64Array(buffers.x), yv = new Float64Array(buffers.y);
+  product = () => matVecRows(m, cols, xv, yv, r0, r1);
+}
 let seen = 0;
 for (;;) {
   Atomics.wait(c, 0, seen);
   const seq = Atomics.load(c, 0);
   if (seq < 0) break;
   seen = seq;
-  let i = r0;
-  for (; i + 3 < r1; i += 4) {
-    const o0 = i * cols, o1 = o0 + cols, o2 = o1 + cols, o3 = o2 + cols;
-    let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-    for (let j = 0; j < cols; j++) {
-      const xj = xv[j];
-      s0 += m[o0 + j] * xj; s1 += m[o1 + j] * xj; s2 += m[o2 + j] * xj; s3 += m[o3 + j] * xj;
-    }
-    yv[i] = s0; yv[i + 1] = s1; yv[i + 2] = s2; yv[i + 3] = s3;
-  }
-  for (; i < r1; i++) {
-    const o = i * cols;
-    let s = 0;
-    for (let j = 0; j < cols; j++) s += m[o + j] * xv[j];
-    yv[i] = s;
-  }
+  product();
   Atomics.store(c, 1, seq);
   Atomics.notify(c, 1);
 }
 `;
+}
 
 interface WorkerHandle {
   terminate(): unknown;
@@ -64,6 +71,24 @@ function loadWorkerThreads(): { Worker: new (src: string, opts: object) => Worke
   } catch {
     return null;
   }
+}
+
+let compiled: WebAssembly.Module | null | undefined;
+
+/** The SIMD kernel's module, compiled once per thread; null where WebAssembly, SIMD or shared memory is missing. */
+function matVecModule(): WebAssembly.Module | null {
+  if (compiled !== undefined) return compiled;
+  compiled = null;
+  if (!wasmKernelAllowed() || typeof WebAssembly === 'undefined' || typeof SharedArrayBuffer === 'undefined') return null;
+  try {
+    const hex = MATVEC_KERNEL_WASM_HEX;
+    const bytes = new Uint8Array(hex.length / 2);
+    for (let i = 0; i < bytes.length; i++) bytes[i] = parseInt(hex.substr(2 * i, 2), 16);
+    compiled = new WebAssembly.Module(bytes);
+  } catch {
+    compiled = null;
+  }
+  return compiled;
 }
 
 /** Rows of the split: the worker takes [split, rows), the caller [0, split). */
@@ -83,51 +108,89 @@ export class ParallelMatVec {
   private worker: WorkerHandle | null = null;
   private seq = 0;
   private split: number;
+  /** The SIMD kernel on this thread, with the byte offsets of M, x and y in its memory. */
+  private kernel: { run: MatVecKernel; m: number; x: number; y: number } | null = null;
 
   constructor(m: Matrix) {
     this.rows = m.rows;
     this.cols = m.cols;
-    const useWorker =
-      typeof SharedArrayBuffer !== 'undefined' && m.rows * m.cols >= PARALLEL_MIN_ENTRIES && linalgThreads() >= 2;
-    const buffer = (length: number) => (useWorker ? new SharedArrayBuffer(length * 8) : new ArrayBuffer(length * 8));
-    this.matrix = new Float64Array(buffer(m.rows * m.cols));
+    const entries = m.rows * m.cols;
+    const useWorker = typeof SharedArrayBuffer !== 'undefined' && entries >= PARALLEL_MIN_ENTRIES && linalgThreads() >= 2;
+    const module = entries >= SIMD_MIN_ENTRIES ? matVecModule() : null;
+    let memory: WebAssembly.Memory | null = null;
+    const offsets = { m: 0, x: 0, y: 0 };
+    if (module) {
+      // M, x and y in the kernel's (shared) memory, each 16-byte aligned.
+      offsets.x = Math.ceil((entries * 8) / 16) * 16;
+      offsets.y = offsets.x + Math.ceil((m.cols * 8) / 16) * 16;
+      const bytes = offsets.y + m.rows * 8;
+      const pages = Math.max(1, Math.ceil(bytes / 65536));
+      try {
+        memory = new WebAssembly.Memory({ initial: pages, maximum: pages, shared: true });
+        const exports = new WebAssembly.Instance(module, { env: { memory } }).exports;
+        this.kernel = { run: exports.matvec as MatVecKernel, ...offsets };
+      } catch {
+        memory = null;
+        this.kernel = null;
+      }
+    }
+    if (memory) {
+      const buf = memory.buffer as ArrayBufferLike;
+      this.matrix = new Float64Array(buf, offsets.m, entries);
+      this.x = new Float64Array(buf, offsets.x, m.cols);
+      this.y = new Float64Array(buf, offsets.y, m.rows);
+    } else {
+      const buffer = (length: number) => (useWorker ? new SharedArrayBuffer(length * 8) : new ArrayBuffer(length * 8));
+      this.matrix = new Float64Array(buffer(entries));
+      this.x = new Float64Array(buffer(m.cols));
+      this.y = new Float64Array(buffer(m.rows));
+    }
     this.matrix.set(m.data);
-    this.x = new Float64Array(buffer(m.cols));
-    this.y = new Float64Array(buffer(m.rows));
-    this.split = useWorker ? splitRow(m.rows) : m.rows;
+    this.split = m.rows;
     this.control = null;
+
+    // Check the SIMD kernel against the scalar loop (the same order, so the same bits) before trusting it.
+    const probe = new Float64Array(m.cols);
+    for (let j = 0; j < m.cols; j++) probe[j] = 1 + ((j * 37) % 11) / 11;
+    const expected = new Float64Array(m.rows);
+    matVecRows(this.matrix, m.cols, probe, expected, 0, m.rows);
+    if (this.kernel) {
+      this.x.set(probe);
+      this.ownRows(0, m.rows);
+      if (this.y.some((v, i) => v !== expected[i])) {
+        this.kernel = null;
+        memory = null;
+      }
+    }
+
     if (!useWorker) return;
     const threads = loadWorkerThreads();
-    if (!threads) {
-      this.split = m.rows;
-      return;
-    }
+    if (!threads) return;
     const control = new Int32Array(new SharedArrayBuffer(8));
     try {
-      this.worker = new threads.Worker(WORKER_SOURCE, {
+      this.worker = new threads.Worker(workerSource(), {
         eval: true,
         workerData: {
           control: control.buffer,
-          matrix: this.matrix.buffer,
-          x: this.x.buffer,
-          y: this.y.buffer,
           rows: m.rows,
           cols: m.cols,
-          r0: this.split,
+          r0: splitRow(m.rows),
           r1: m.rows,
+          module: this.kernel ? module : null,
+          memory: this.kernel ? memory : null,
+          offsets,
+          buffers: this.kernel ? null : { matrix: this.matrix.buffer, x: this.x.buffer, y: this.y.buffer },
         },
       });
       this.worker.unref();
       this.control = control;
+      this.split = splitRow(m.rows);
     } catch {
       this.worker = null;
-      this.split = m.rows;
       return;
     }
-    // Check product against the single-thread kernel before trusting the worker.
-    for (let j = 0; j < m.cols; j++) this.x[j] = 1 + ((j * 37) % 11) / 11;
-    const expected = new Float64Array(m.rows);
-    matVec({ rows: m.rows, cols: m.cols, data: this.matrix }, this.x, expected);
+    // Check product against the single-thread loop before trusting the worker.
+    this.x.set(probe);
     if (!this.applyParallel(2000) || this.y.some((v, i) => v !== expected[i])) this.dispose();
   }
 
@@ -136,10 +199,20 @@ export class ParallelMatVec {
     return this.worker !== null;
   }
 
+  /** True when the products run through the WebAssembly SIMD kernel. */
+  get simd(): boolean {
+    return this.kernel !== null;
+  }
+
+  /** True when this product is faster than the plain scalar loop (two threads, or the SIMD kernel). */
+  get fast(): boolean {
+    return this.parallel || this.simd;
+  }
+
   /** y ← M·x. */
   apply(): void {
     if (this.worker && this.applyParallel(60_000)) return;
-    matVec({ rows: this.rows, cols: this.cols, data: this.matrix }, this.x, this.y);
+    this.ownRows(0, this.rows);
   }
 
   /** Hands rows [split, rows) to the worker; false (and single-threaded from now on) if it does not answer. */
@@ -148,7 +221,7 @@ export class ParallelMatVec {
     const seq = ++this.seq;
     Atomics.store(c, 0, seq);
     Atomics.notify(c, 0);
-    this.ownRows();
+    this.ownRows(0, this.split);
     // Spin first (the worker's half takes about as long as ours), then block.
     for (let spin = 0; spin < 20000; spin++) if (Atomics.load(c, 1) === seq) return true;
     const deadline = Date.now() + timeoutMs;
@@ -162,8 +235,10 @@ export class ParallelMatVec {
     return true;
   }
 
-  private ownRows(): void {
-    matVecRows(this.matrix, this.cols, this.x, this.y, 0, this.split);
+  private ownRows(r0: number, r1: number): void {
+    const k = this.kernel;
+    if (k) k.run(r0, r1, this.cols, k.m, k.x, k.y);
+    else matVecRows(this.matrix, this.cols, this.x, this.y, r0, r1);
   }
 
   /** Stops the worker; later products run on the calling thread. */

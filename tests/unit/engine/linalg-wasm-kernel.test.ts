@@ -1,13 +1,15 @@
 /**
- * The WebAssembly SIMD micro-kernel of the matrix product (reduction/linalg/wasm): the committed bytes
- * are the assembly of the committed source, Node accepts the module, and products through it are
- * bit-identical to the scalar kernel's (same multiply-then-add order per accumulator), for all four
- * transpose combinations and ragged edges. The product itself is checked against numpy in
- * linalg-gemm.test.ts.
+ * The WebAssembly SIMD kernels (reduction/linalg/wasm): for both the matrix product and the matrix–vector
+ * product, the committed bytes are the assembly of the committed source. The matrix product: Node accepts
+ * the module, and products through it are bit-identical to the scalar kernel's (same multiply-then-add
+ * order per accumulator), for all four transpose combinations and ragged edges; the product itself is
+ * checked against numpy in linalg-gemm.test.ts. The matrix–vector kernel is checked in
+ * simulate-parallel.test.ts.
  */
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
-import { assembleWat, binaryModuleSource, BINARY_PATH, WAT_PATH } from '../../../scripts/build-wasm';
+import path from 'node:path';
+import { assembleWat, binaryModuleSource, KERNELS } from '../../../scripts/build-wasm';
 import { blockedProduct, KC, MC, microKernel4x4, newPackedKernel } from '@/reduction/linalg/gemm';
 import { createPackedKernel } from '@/reduction/linalg/wasm/packed-kernel';
 import { GEMM_KERNEL_WASM_HEX } from '@/reduction/linalg/wasm/gemm-kernel-binary';
@@ -15,11 +17,13 @@ import { seeded } from './simulate-reference';
 import { multiply, productZeros } from '@/reduction/linalg/gemm';
 import { linalgThreads, workerUsesSimd } from '@/reduction/linalg/parallel';
 
-describe('WebAssembly gemm kernel', () => {
-  it('the committed binary is the assembly of gemm-kernel.wat (npm run build:wasm)', async () => {
-    const bytes = await assembleWat(readFileSync(WAT_PATH, 'utf8'));
-    expect(readFileSync(BINARY_PATH, 'utf8')).toBe(binaryModuleSource(bytes));
-  });
+describe('WebAssembly kernels', () => {
+  for (const k of KERNELS) {
+    it(`the committed binary is the assembly of ${path.basename(k.wat)} (npm run build:wasm)`, async () => {
+      const bytes = await assembleWat(readFileSync(k.wat, 'utf8'), path.basename(k.wat));
+      expect(readFileSync(k.binary, 'utf8')).toBe(binaryModuleSource(bytes, k.constant, path.basename(k.wat)));
+    });
+  }
 
   it('Node accepts the module, so products use it', () => {
     expect(newPackedKernel().simd).toBe(true);

@@ -1,10 +1,11 @@
 /**
- * The two-thread matrix–vector product behind the solvers' long product chains gives bit-for-bit the
- * single-thread result (same per-row summation order), so a response does not depend on the thread count.
+ * The matrix–vector product behind the solvers' long product chains (two threads, the WebAssembly SIMD
+ * kernel, or the scalar loop) gives bit-for-bit the single-thread scalar result (same per-row summation
+ * order), so a response depends neither on the thread count nor on the kernel.
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { ParallelMatVec } from '@/reduction/simulate/parallel-matvec';
-import { matVec } from '@/reduction/simulate/linear-system';
+import { matVec, matVecRows } from '@/reduction/simulate/linear-system';
 import { linalgThreads, setLinalgThreads } from '@/reduction/linalg';
 import { simulate, stepInput } from '@/reduction/simulate';
 import { logRates, modelWithRates, randomMatrix, seeded } from './simulate-reference';
@@ -29,6 +30,37 @@ describe('ParallelMatVec', () => {
       }
     } finally {
       p.dispose();
+    }
+  });
+
+  it('runs through the SIMD kernel on one thread too, with the scalar loop\'s bits (odd sizes)', () => {
+    setLinalgThreads(1);
+    const rand = seeded(78);
+    for (const [r, c] of [[37, 41], [401, 399], [64, 64]]) {
+      const M = randomMatrix(r, c, rand);
+      const p = new ParallelMatVec(M);
+      expect(p.simd).toBe(true);
+      expect(p.parallel).toBe(false);
+      const y = new Float64Array(r);
+      for (let rep = 0; rep < 5; rep++) {
+        for (let j = 0; j < c; j++) p.x[j] = rand() - 0.5;
+        p.apply();
+        matVec(M, p.x, y);
+        expect(Array.from(p.y)).toEqual(Array.from(y));
+      }
+    }
+  });
+
+  it('the scalar loop (even and odd columns summed apart) agrees with a plain dot product to rounding', () => {
+    const rand = seeded(79);
+    const M = randomMatrix(9, 13, rand);
+    const x = Float64Array.from({ length: 13 }, () => rand() - 0.5);
+    const y = new Float64Array(9);
+    matVecRows(M.data, 13, x, y, 0, 9);
+    for (let i = 0; i < 9; i++) {
+      let s = 0;
+      for (let j = 0; j < 13; j++) s += M.data[i * 13 + j] * x[j];
+      expect(Math.abs(y[i] - s)).toBeLessThan(1e-14 * 13);
     }
   });
 

@@ -102,10 +102,14 @@ describe('exact solver: block recursion (m steps per product with Φ^m, exact-bl
   // responses come from Φ^m, CΦ^i and the summed input terms rather than step by step.
   const model = modelWithRates(logRates(48, 1, 1e3), 2, 2, 31, 6);
   it('the cost model blocks long runs of large models and leaves short runs, small or many-output models alone', () => {
-    expect(blockFactor(48, 2, 400)).toBeGreaterThan(1);
-    expect(blockFactor(1000, 1, 1999)).toBeGreaterThanOrEqual(4);
-    expect(blockFactor(1000, 1, 3)).toBe(1);
-    expect(blockFactor(48, 20, 400)).toBe(1);
+    for (const simd of [false, true]) {
+      expect(blockFactor(48, 2, 400, simd)).toBeGreaterThan(1);
+      expect(blockFactor(1000, 1, 3, simd)).toBe(1);
+      expect(blockFactor(48, 20, 400, simd)).toBe(1);
+    }
+    // Cheaper matrix–vector products make the up-front squarings worth less: a shorter block.
+    expect(blockFactor(1000, 1, 1999, false)).toBeGreaterThanOrEqual(4);
+    expect(blockFactor(1000, 1, 1999, true)).toBeLessThan(blockFactor(1000, 1, 1999, false));
   });
   it('step from rest matches the closed form C A⁻¹(e^{At} − I)B (scipy) to 1e-10', () => {
     const r = simulate(model, stepInput(model), { tEnd: 4, points: 401, solver: 'exact' });
