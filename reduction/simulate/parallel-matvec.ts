@@ -75,8 +75,11 @@ function loadWorkerThreads(): { Worker: new (src: string, opts: object) => Worke
 
 let compiled: WebAssembly.Module | null | undefined;
 
-/** The SIMD kernel's module, compiled once per thread; null where WebAssembly, SIMD or shared memory is missing. */
-function matVecModule(): WebAssembly.Module | null {
+/**
+ * The SIMD kernels' module (matvec, dot), compiled once per thread; null where WebAssembly, SIMD or shared
+ * memory is missing, or under MODESHELF_LINALG_WASM=0. It imports its memory as env.memory (shared).
+ */
+export function matVecModule(): WebAssembly.Module | null {
   if (compiled !== undefined) return compiled;
   compiled = null;
   if (!wasmKernelAllowed() || typeof WebAssembly === 'undefined' || typeof SharedArrayBuffer === 'undefined') return null;

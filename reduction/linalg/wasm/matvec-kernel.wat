@@ -1,10 +1,11 @@
 ;; Matrix–vector product y = M·x (row-major M) in WebAssembly 128-bit SIMD, for the solvers' chains of
-;; products (reduction/simulate/parallel-matvec.ts).
+;; products (reduction/simulate/parallel-matvec.ts), and the dot product of the stiff solver's triangular
+;; solves (reduction/simulate/iteration-matrix.ts).
 ;;
 ;; Rows go four at a time; each row's sum is kept in one f64x2 accumulator whose two lanes add up the
 ;; even and the odd columns, and is finished as (even + odd) + the last term when the column count is odd.
-;; The scalar loop `matVecRows` (reduction/simulate/linear-system.ts) forms the same sums in the same
-;; order (a separate multiply, then an add), so both give bit-identical results.
+;; The scalar loops `matVecRows` (reduction/simulate/linear-system.ts) and `dotEvenOdd` form the same sums
+;; in the same order (a separate multiply, then an add), so both give bit-identical results.
 ;;
 ;; The memory is imported, shared, so that two threads can split the rows of one product. Pointers are
 ;; byte offsets. Assembled by `npm run build:wasm` (scripts/build-wasm.ts) into matvec-kernel-binary.ts;
@@ -85,4 +86,20 @@
         (if (local.get $odd) (then (local.set $s (f64.add (local.get $s) (f64.mul (f64.load (local.get $p0)) (f64.load (local.get $px)))))))
         (f64.store (i32.add (local.get $y) (i32.shl (local.get $r) (i32.const 3))) (local.get $s))
         (local.set $r (i32.add (local.get $r) (i32.const 1)))
-        (br $one)))))
+        (br $one))))
+  ;; Σ_j a[j]·b[j], j < len: (Σ even j + Σ odd j) + the last term when len is odd
+  (func (export "dot") (param $len i32) (param $a i32) (param $b i32) (result f64)
+    (local $j i32) (local $acc v128) (local $s f64)
+    (local.set $j (i32.shr_u (local.get $len) (i32.const 1)))
+    (block $done
+      (loop $pair
+        (br_if $done (i32.eqz (local.get $j)))
+        (local.set $acc (f64x2.add (local.get $acc) (f64x2.mul (v128.load (local.get $a)) (v128.load (local.get $b)))))
+        (local.set $a (i32.add (local.get $a) (i32.const 16)))
+        (local.set $b (i32.add (local.get $b) (i32.const 16)))
+        (local.set $j (i32.sub (local.get $j) (i32.const 1)))
+        (br $pair)))
+    (local.set $s (f64.add (f64x2.extract_lane 0 (local.get $acc)) (f64x2.extract_lane 1 (local.get $acc))))
+    (if (i32.and (local.get $len) (i32.const 1))
+      (then (local.set $s (f64.add (local.get $s) (f64.mul (f64.load (local.get $a)) (f64.load (local.get $b)))))))
+    (local.get $s)))

@@ -6,6 +6,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { ParallelMatVec } from '@/reduction/simulate/parallel-matvec';
 import { matVec, matVecRows } from '@/reduction/simulate/linear-system';
+import { IterationMatrix, luSolveVector } from '@/reduction/simulate/iteration-matrix';
 import { linalgThreads, setLinalgThreads } from '@/reduction/linalg';
 import { simulate, stepInput } from '@/reduction/simulate';
 import { logRates, modelWithRates, randomMatrix, seeded } from './simulate-reference';
@@ -62,6 +63,29 @@ describe('ParallelMatVec', () => {
       for (let j = 0; j < 13; j++) s += M.data[i * 13 + j] * x[j];
       expect(Math.abs(y[i] - s)).toBeLessThan(1e-14 * 13);
     }
+  });
+
+  it('the stiff solver\'s triangular solves: SIMD dot products give the scalar solve\'s bits, and solve W·x = b', () => {
+    const rand = seeded(80);
+    const n = 201;
+    const A = randomMatrix(n, n, rand);
+    const W = new IterationMatrix(A, 0.3);
+    const lu = W.factorFor(0.01);
+    expect(W.usesSimd(lu)).toBe(true);
+    const b = Float64Array.from({ length: n }, () => rand() - 0.5);
+    const simd = Float64Array.from(b);
+    W.solve(lu, simd);
+    const scalar = Float64Array.from(b);
+    luSolveVector(lu, scalar, new Float64Array(n));
+    expect(Array.from(simd)).toEqual(Array.from(scalar));
+    // Residual of (I − 0.3·0.01·A)·x = b.
+    let worst = 0;
+    for (let i = 0; i < n; i++) {
+      let s = simd[i];
+      for (let j = 0; j < n; j++) s -= 0.003 * A.data[i * n + j] * simd[j];
+      worst = Math.max(worst, Math.abs(s - b[i]));
+    }
+    expect(worst).toBeLessThan(1e-12);
   });
 
   it('stays on one thread for small matrices and when limited to one thread', () => {
