@@ -273,11 +273,8 @@ export function expmWithInfo(a: Matrix, options: ExpmOptions = {}): ExpmResult {
 }
 
 /** Al-Mohy & Higham (2009), Algorithm 5.1, with the Padé evaluation of Higham (2005). */
-function expmPowers(given: Matrix): ExpmResult {
-  const n = given.rows;
-  // On shared memory, so the products hand it to the worker thread without copies (parallel.ts).
-  const a = productZeros(n, n);
-  a.data.set(given.data);
+function expmPowers(a: Matrix): ExpmResult {
+  const n = a.rows;
   const normA = norm1(a);
   if (normA === 0) return { value: identity(n), padeDegree: 3, squarings: 0, products: 0 };
   // Degrees 3 and 5 from estimates of ‖A⁴‖ and ‖A⁶‖ through A²; A² is needed by every degree.

@@ -12,6 +12,7 @@ import { ModelError } from '../errors';
 import { type LuFactorization, luFactor } from '../linalg/index';
 import type { Matrix } from '../linalg/matrix';
 import { matVecModule } from './parallel-matvec';
+import { acquireKernelMemory, releaseKernelMemory } from './kernel-memory';
 
 /**
  * Σ a[aOff + j]·b[bOff + j] for j < len, formed as (Σ even j + Σ odd j) + the last term when len is odd:
@@ -51,6 +52,8 @@ class SimdLuSolver {
   private readonly lu: Float64Array;
   private readonly dot: (len: number, a: number, b: number) => number;
   private readonly workAt: number;
+  /** The kernel memory (pooled, see kernel-memory.ts); handed back by `release`. */
+  readonly memory: WebAssembly.Memory;
 
   constructor(
     private readonly f: LuFactorization,
@@ -58,9 +61,14 @@ class SimdLuSolver {
   ) {
     const n = f.n;
     this.workAt = Math.ceil((n * n * 8) / 16) * 16;
-    const pages = Math.max(1, Math.ceil((this.workAt + n * 8) / 65536));
-    const memory = new WebAssembly.Memory({ initial: pages, maximum: pages, shared: true });
-    this.dot = new WebAssembly.Instance(module, { env: { memory } }).exports.dot as (len: number, a: number, b: number) => number;
+    const memory = acquireKernelMemory(this.workAt + n * 8);
+    this.memory = memory;
+    try {
+      this.dot = new WebAssembly.Instance(module, { env: { memory } }).exports.dot as (len: number, a: number, b: number) => number;
+    } catch (e) {
+      releaseKernelMemory(memory);
+      throw e;
+    }
     const buf = memory.buffer as ArrayBufferLike;
     this.lu = new Float64Array(buf, 0, n * n);
     this.lu.set(f.lu);
@@ -117,7 +125,14 @@ export class IterationMatrix {
       );
     }
     this.cache.unshift({ h, lu });
-    if (this.cache.length > this.keep) this.cache.pop();
+    if (this.cache.length > this.keep) {
+      const dropped = this.cache.pop()!;
+      const solver = this.simd.get(dropped.lu);
+      if (solver) {
+        this.simd.delete(dropped.lu);
+        releaseKernelMemory(solver.memory);
+      }
+    }
     const module = n >= SIMD_MIN_ORDER ? matVecModule() : null;
     if (module) {
       try {
@@ -127,6 +142,18 @@ export class IterationMatrix {
       }
     }
     return lu;
+  }
+
+  /** Done with it: the kernel memories go back to the pool (no solves afterwards). */
+  dispose(): void {
+    for (const { lu } of this.cache) {
+      const solver = this.simd.get(lu);
+      if (solver) {
+        this.simd.delete(lu);
+        releaseKernelMemory(solver.memory);
+      }
+    }
+    this.cache.length = 0;
   }
 
   /** Whether solves with this factorisation run through the SIMD kernel. */

@@ -19,6 +19,7 @@ import { wasmKernelAllowed } from '../linalg/gemm';
 import type { Matrix } from '../linalg/matrix';
 import { MATVEC_KERNEL_WASM_HEX } from '../linalg/wasm/matvec-kernel-binary';
 import { matVecRows } from './linear-system';
+import { acquireKernelMemory, releaseKernelMemory } from './kernel-memory';
 
 /** Below this many entries the hand-off (~10–30 µs) outweighs half a product. */
 const PARALLEL_MIN_ENTRIES = 300 * 300;
@@ -103,16 +104,18 @@ export class ParallelMatVec {
   readonly rows: number;
   readonly cols: number;
   /** The vector to multiply: write x here before `apply()`. */
-  readonly x: Float64Array;
+  x: Float64Array;
   /** The product after `apply()`. */
-  readonly y: Float64Array;
-  private readonly matrix: Float64Array;
+  y: Float64Array;
+  private matrix: Float64Array;
   private readonly control: Int32Array | null;
   private worker: WorkerHandle | null = null;
   private seq = 0;
   private split: number;
   /** The SIMD kernel on this thread, with the byte offsets of M, x and y in its memory. */
   private kernel: { run: MatVecKernel; m: number; x: number; y: number } | null = null;
+  /** The kernel memory, handed back to the pool by `dispose`. */
+  private memory: WebAssembly.Memory | null = null;
 
   constructor(m: Matrix) {
     this.rows = m.rows;
@@ -127,12 +130,12 @@ export class ParallelMatVec {
       offsets.x = Math.ceil((entries * 8) / 16) * 16;
       offsets.y = offsets.x + Math.ceil((m.cols * 8) / 16) * 16;
       const bytes = offsets.y + m.rows * 8;
-      const pages = Math.max(1, Math.ceil(bytes / 65536));
       try {
-        memory = new WebAssembly.Memory({ initial: pages, maximum: pages, shared: true });
+        memory = acquireKernelMemory(bytes);
         const exports = new WebAssembly.Instance(module, { env: { memory } }).exports;
         this.kernel = { run: exports.matvec as MatVecKernel, ...offsets };
       } catch {
+        if (memory) releaseKernelMemory(memory);
         memory = null;
         this.kernel = null;
       }
@@ -161,10 +164,16 @@ export class ParallelMatVec {
       this.x.set(probe);
       this.ownRows(0, m.rows);
       if (this.y.some((v, i) => v !== expected[i])) {
+        // Not trusted: the scalar loop from now on, on plain copies.
         this.kernel = null;
+        this.matrix = Float64Array.from(this.matrix);
+        this.x = Float64Array.from(this.x);
+        this.y = Float64Array.from(this.y);
+        releaseKernelMemory(memory!);
         memory = null;
       }
     }
+    this.memory = memory;
 
     if (!useWorker) return;
     const threads = loadWorkerThreads();
@@ -194,7 +203,7 @@ export class ParallelMatVec {
     }
     // Check product against the single-thread loop before trusting the worker.
     this.x.set(probe);
-    if (!this.applyParallel(2000) || this.y.some((v, i) => v !== expected[i])) this.dispose();
+    if (!this.applyParallel(2000) || this.y.some((v, i) => v !== expected[i])) this.stopWorker();
   }
 
   /** True when a worker thread shares the products. */
@@ -230,7 +239,7 @@ export class ParallelMatVec {
     const deadline = Date.now() + timeoutMs;
     while (Atomics.load(c, 1) !== seq) {
       if (Date.now() > deadline) {
-        this.dispose();
+        this.stopWorker();
         return false;
       }
       Atomics.wait(c, 1, Atomics.load(c, 1), 5);
@@ -244,8 +253,19 @@ export class ParallelMatVec {
     else matVecRows(this.matrix, this.cols, this.x, this.y, r0, r1);
   }
 
-  /** Stops the worker; later products run on the calling thread. */
+  /** Done with this product: stops the worker and hands the kernel memory back (no use afterwards). */
   dispose(): void {
+    this.stopWorker();
+    if (this.memory) {
+      const m = this.memory;
+      this.memory = null;
+      this.kernel = null;
+      releaseKernelMemory(m);
+    }
+  }
+
+  /** Stops the worker; later products run on the calling thread. */
+  private stopWorker(): void {
     if (this.worker && this.control) {
       Atomics.store(this.control, 0, -1);
       Atomics.notify(this.control, 0);

@@ -64,10 +64,10 @@ const GROWTH_WORTH_REFACTORING = 2;
 export function simulateStiff(model: StateSpaceModel, input: InputSignal, opts: CheckedOptions): SimulationResult {
   const wallStart = performance.now();
   const system = new LinearSystem(model);
+  const W = new IterationMatrix(model.A, TRBDF2_D);
   try {
     const n = system.n;
     const recorder = new OutputRecorder(opts.times, system, input);
-    const W = new IterationMatrix(model.A, TRBDF2_D);
     const { rtol, atol } = opts;
     const d = TRBDF2_D, w = TRBDF2_W;
 
@@ -187,6 +187,7 @@ export function simulateStiff(model: StateSpaceModel, input: InputSignal, opts: 
       },
     };
   } finally {
+    W.dispose();
     system.dispose();
   }
 }

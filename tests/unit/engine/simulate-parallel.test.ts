@@ -7,6 +7,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { ParallelMatVec } from '@/reduction/simulate/parallel-matvec';
 import { matVec, matVecRows } from '@/reduction/simulate/linear-system';
 import { IterationMatrix, luSolveVector } from '@/reduction/simulate/iteration-matrix';
+import { pooledKernelBytes } from '@/reduction/simulate/kernel-memory';
 import { linalgThreads, setLinalgThreads } from '@/reduction/linalg';
 import { simulate, stepInput } from '@/reduction/simulate';
 import { logRates, modelWithRates, randomMatrix, seeded } from './simulate-reference';
@@ -86,6 +87,25 @@ describe('ParallelMatVec', () => {
       worst = Math.max(worst, Math.abs(s - b[i]));
     }
     expect(worst).toBeLessThan(1e-12);
+  });
+
+  it('hands its kernel memory back on dispose, and the next product of that size reuses it', () => {
+    setLinalgThreads(1);
+    const M = randomMatrix(300, 300, seeded(81));
+    const first = new ParallelMatVec(M);
+    expect(first.simd).toBe(true);
+    const before = pooledKernelBytes();
+    first.dispose();
+    const released = pooledKernelBytes();
+    expect(released).toBeGreaterThanOrEqual(before + 300 * 300 * 8);
+    const second = new ParallelMatVec(M);
+    expect(pooledKernelBytes()).toBeLessThan(released);
+    second.dispose();
+    const W = new IterationMatrix(M, 0.5);
+    W.factorFor(0.001);
+    const held = pooledKernelBytes();
+    W.dispose();
+    expect(pooledKernelBytes()).toBeGreaterThan(held);
   });
 
   it('stays on one thread for small matrices and when limited to one thread', () => {
