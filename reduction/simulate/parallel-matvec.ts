@@ -140,13 +140,18 @@ export class ParallelMatVec {
         this.kernel = null;
       }
     }
+    const buffer = (length: number) => (useWorker ? new SharedArrayBuffer(length * 8) : new ArrayBuffer(length * 8));
+    const copyOf = (src: Float64Array) => {
+      const out = new Float64Array(buffer(src.length));
+      out.set(src);
+      return out;
+    };
     if (memory) {
       const buf = memory.buffer as ArrayBufferLike;
       this.matrix = new Float64Array(buf, offsets.m, entries);
       this.x = new Float64Array(buf, offsets.x, m.cols);
       this.y = new Float64Array(buf, offsets.y, m.rows);
     } else {
-      const buffer = (length: number) => (useWorker ? new SharedArrayBuffer(length * 8) : new ArrayBuffer(length * 8));
       this.matrix = new Float64Array(buffer(entries));
       this.x = new Float64Array(buffer(m.cols));
       this.y = new Float64Array(buffer(m.rows));
@@ -164,11 +169,11 @@ export class ParallelMatVec {
       this.x.set(probe);
       this.ownRows(0, m.rows);
       if (this.y.some((v, i) => v !== expected[i])) {
-        // Not trusted: the scalar loop from now on, on plain copies.
+        // Not trusted: the scalar loop from now on, on copies outside the kernel memory.
         this.kernel = null;
-        this.matrix = Float64Array.from(this.matrix);
-        this.x = Float64Array.from(this.x);
-        this.y = Float64Array.from(this.y);
+        this.matrix = copyOf(this.matrix);
+        this.x = copyOf(this.x);
+        this.y = copyOf(this.y);
         releaseKernelMemory(memory!);
         memory = null;
       }
