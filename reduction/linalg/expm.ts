@@ -28,6 +28,7 @@
  */
 import { type Matrix, zeros, identity, norm1, matmul, solve } from './index';
 import { productZeros } from './gemm';
+import { matVecRows } from './matvec';
 
 /** θ_m of Higham (2005), Table 2.3 (double precision). */
 const THETA: Record<number, number> = {
@@ -148,9 +149,9 @@ function applyProduct(factors: readonly Matrix[], x: Float64Array, transpose: bo
     const n = f.rows;
     const out = new Float64Array(n);
     const d = f.data;
-    let i = 0;
     if (transpose) {
       // out = Fᵀv, four rows of F at a time.
+      let i = 0;
       for (; i + 3 < n; i += 4) {
         const v0 = v[i], v1 = v[i + 1], v2 = v[i + 2], v3 = v[i + 3];
         const o0 = i * n, o1 = o0 + n, o2 = o1 + n, o3 = o2 + n;
@@ -162,27 +163,7 @@ function applyProduct(factors: readonly Matrix[], x: Float64Array, transpose: bo
         for (let j = 0; j < n; j++) out[j] += d[o + j] * vi;
       }
     } else {
-      for (; i + 3 < n; i += 4) {
-        const o0 = i * n, o1 = o0 + n, o2 = o1 + n, o3 = o2 + n;
-        let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-        for (let j = 0; j < n; j++) {
-          const vj = v[j];
-          s0 += d[o0 + j] * vj;
-          s1 += d[o1 + j] * vj;
-          s2 += d[o2 + j] * vj;
-          s3 += d[o3 + j] * vj;
-        }
-        out[i] = s0;
-        out[i + 1] = s1;
-        out[i + 2] = s2;
-        out[i + 3] = s3;
-      }
-      for (; i < n; i++) {
-        const o = i * n;
-        let s = 0;
-        for (let j = 0; j < n; j++) s += d[o + j] * v[j];
-        out[i] = s;
-      }
+      matVecRows(d, n, v, out, 0, n);
     }
     v = out;
   }

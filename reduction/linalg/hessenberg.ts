@@ -12,6 +12,7 @@
  */
 import { type Matrix, zeros, identity } from './matrix';
 import { gemm } from './gemm';
+import { matVecRows } from './matvec';
 
 /** Householder vectors v (v[0] = 1 implied) and scalars τ of each step, as `reduceToHessenberg` leaves them. */
 interface Reflectors {
@@ -171,30 +172,9 @@ function reduceBlocked(h: Float64Array, n: number, tauAll: Float64Array, vAll: F
         const vr = i * nb;
         for (let q = 0; q < p; q++) z[q] += V[vr + q] * vi;
       }
-      // A·v, the level-2 part: v contiguous, four rows of A per pass over it.
+      // A·v, the level-2 part: v contiguous, four rows of A per pass over it (columns j1… only).
       for (let c = j1; c < n; c++) vcol[c] = V[c * nb + p];
-      let r = 0;
-      for (; r + 3 < n; r += 4) {
-        const r0 = r * n, r1 = r0 + n, r2 = r1 + n, r3 = r2 + n;
-        let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-        for (let c = j1; c < n; c++) {
-          const vc = vcol[c];
-          s0 += h[r0 + c] * vc;
-          s1 += h[r1 + c] * vc;
-          s2 += h[r2 + c] * vc;
-          s3 += h[r3 + c] * vc;
-        }
-        av[r] = s0;
-        av[r + 1] = s1;
-        av[r + 2] = s2;
-        av[r + 3] = s3;
-      }
-      for (; r < n; r++) {
-        const rr = r * n;
-        let s = 0;
-        for (let c = j1; c < n; c++) s += h[rr + c] * vcol[c];
-        av[r] = s;
-      }
+      matVecRows(h, n - j1, vcol, av, 0, n, n, j1);
       for (let r = 0; r < n; r++) {
         let s = av[r];
         const yr = r * nb;

@@ -67,13 +67,8 @@ export class PowerOfPhi {
 
   /** out = Φ^m x. */
   apply(x: Float64Array, out: Float64Array): void {
-    if (this.product) {
-      this.product.x.set(x);
-      this.product.apply();
-      out.set(this.product.y);
-    } else {
-      matVec(this.power, x, out);
-    }
+    if (this.product) this.product.applyTo(x, out);
+    else matVec(this.power, x, out);
   }
 
   dispose(): void {

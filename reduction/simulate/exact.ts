@@ -160,13 +160,8 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
       return zoh;
     };
     const phiTimes = (zoh: ZohEntry, v: Float64Array, out: Float64Array): void => {
-      if (zoh.product) {
-        zoh.product.x.set(v);
-        zoh.product.apply();
-        out.set(zoh.product.y);
-      } else {
-        matVec(zoh.Phi, v, out);
-      }
+      if (zoh.product) zoh.product.applyTo(v, out);
+      else matVec(zoh.Phi, v, out);
     };
     /** Events from `first` on that end intervals of length L with input piece `piece`, all output times. */
     const runLength = (first: number, L: number, piece: number): number => {

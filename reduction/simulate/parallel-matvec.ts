@@ -226,6 +226,13 @@ export class ParallelMatVec {
     return this.parallel || this.simd;
   }
 
+  /** out ← M·v (through `x` and `y`). */
+  applyTo(v: Float64Array, out: Float64Array): void {
+    this.x.set(v);
+    this.apply();
+    out.set(this.y);
+  }
+
   /** y ← M·x. */
   apply(): void {
     if (this.worker && this.applyParallel(60_000)) return;
