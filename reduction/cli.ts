@@ -6,6 +6,7 @@
  * exits 1. Verbs live in `reduction/cli/`, one module each; importing a module registers its verb.
  */
 import { ModelError } from './errors';
+import { MAX_DENSE_ENTRIES_ENV } from './io/limits';
 import { parseArgs } from './cli/args';
 import { findVerb, listVerbs } from './cli/registry';
 import './cli/analyze';
@@ -20,6 +21,11 @@ function usage(): string {
     for (const [name, spec] of Object.entries(v.options)) lines.push(`      --${name}${spec.value ? ' …' : ''}  ${spec.description}`);
   }
   return lines.join('\n');
+}
+
+/** V8's messages when a typed array or buffer cannot be made that large. */
+function isAllocationFailure(e: unknown): boolean {
+  return e instanceof RangeError && /typed array length|array buffer allocation|array length/i.test(e.message);
 }
 
 function main(argv: readonly string[]): number {
@@ -40,6 +46,12 @@ function main(argv: readonly string[]): number {
   } catch (e) {
     if (e instanceof ModelError) {
       process.stderr.write(`error: ${e.message} (field: ${e.field}, code: ${e.code})\n`);
+      return 2;
+    }
+    if (isAllocationFailure(e)) {
+      // The readers refuse declared sizes past the dense limit before allocating (io/limits.ts); an
+      // allocation can still fail when that limit is raised beyond the machine's memory. Say so, no stack.
+      process.stderr.write(`error: the model does not fit in memory (${(e as Error).message}); lower ${MAX_DENSE_ENTRIES_ENV} or use a smaller model\n`);
       return 2;
     }
     process.stderr.write(`error: ${(e as Error).stack ?? String(e)}\n`);

@@ -19,7 +19,8 @@ export type ModelErrorCode =
   | 'jagged_rows'
   | 'unsorted_times'
   | 'unreadable_file'
-  | 'missing_field';
+  | 'missing_field'
+  | 'too_large';
 
 export class ModelError extends Error {
   readonly code: ModelErrorCode;

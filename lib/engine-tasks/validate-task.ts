@@ -33,6 +33,14 @@ export function validateModelFiles(files: readonly ModelFile[]): ValidationOutco
     };
   } catch (e) {
     if (e instanceof ModelError) return { ok: false, error: { code: e.code, field: e.field, message: e.message } };
+    // The readers refuse declared sizes past MODESHELF_MAX_DENSE_ENTRIES before allocating; if that limit is
+    // set beyond this process's memory, the allocation itself fails. Answer that as a size refusal too.
+    if (e instanceof RangeError && /typed array length|array buffer allocation|array length/i.test(e.message)) {
+      return {
+        ok: false,
+        error: { code: 'too_large', field: files[0]?.role ?? 'model', message: `the model does not fit in the checker's memory (${e.message}); ask an admin to lower MODESHELF_MAX_DENSE_ENTRIES` },
+      };
+    }
     // A file that is not text the parsers can read at all (binary, wrong encoding) ends up here.
     const message = e instanceof Error ? e.message : String(e);
     return { ok: false, error: { code: 'parse_error', field: files[0]?.role ?? 'model', message: `the model files cannot be read: ${message}` } };

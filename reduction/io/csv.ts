@@ -5,6 +5,7 @@
  */
 import { ModelError } from '../errors';
 import { type Matrix, zeros } from '../linalg/matrix';
+import { checkDenseSize, type ReadLimits } from './limits';
 import { inFile, readNumericCell } from './numbers';
 
 /** Split into lines, dropping a BOM and trailing blank lines (not interior ones: those are errors). */
@@ -17,17 +18,18 @@ export function csvLines(text: string): string[] {
 /**
  * Parse a CSV matrix. `field` names the matrix (`A`, `B`, …) for the error's field; `fileName`, when
  * given, starts every message so the user knows which upload is wrong.
- * Throws ModelError: empty_matrix, jagged_rows, non_numeric, non_finite (row and column 1-based).
+ * Throws ModelError: empty_matrix, jagged_rows, non_numeric, non_finite (row and column 1-based), too_large
+ * (line count × the first line's column count past the dense limit, checked before allocating).
  */
-export function parseCsvMatrix(text: string, field: string, fileName?: string): Matrix {
+export function parseCsvMatrix(text: string, field: string, fileName?: string, limits: ReadLimits = {}): Matrix {
   const where = inFile(fileName);
   const lines = csvLines(text);
   if (lines.length === 0) throw new ModelError('empty_matrix', field, `${where}${field} is empty (no rows)`);
-  const cells = lines.map((line) => line.split(','));
-  const cols = cells[0].length;
+  const cols = lines[0].split(',').length;
+  checkDenseSize(lines.length, cols, field, where, limits);
   const out = zeros(lines.length, cols);
-  for (let i = 0; i < cells.length; i++) {
-    const row = cells[i];
+  for (let i = 0; i < lines.length; i++) {
+    const row = lines[i].split(',');
     if (row.length === 1 && row[0].trim() === '') {
       throw new ModelError('jagged_rows', field, `${where}${field} row ${i + 1} is blank`);
     }

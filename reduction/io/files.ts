@@ -6,6 +6,7 @@
 import { readFileSync } from 'node:fs';
 import { ModelError } from '../errors';
 import type { StateSpaceModel } from '../model';
+import type { ReadLimits } from './limits';
 import { checkModelFileCount, matrixFieldAt, parseModelFiles } from './model-files';
 
 function readText(path: string, field: string): string {
@@ -18,13 +19,13 @@ function readText(path: string, field: string): string {
 
 /**
  * One `.json` model file, or the files of A, B, C and optionally D in that order (`.mtx` or `.csv`,
- * mixed freely). Throws ModelError.
+ * mixed freely). `limits` caps declared sizes (limits.ts). Throws ModelError.
  */
-export function loadModelFiles(paths: readonly string[]): StateSpaceModel {
+export function loadModelFiles(paths: readonly string[], limits: ReadLimits = {}): StateSpaceModel {
   checkModelFileCount(paths);
   const files = paths.map((path, k) => ({
     name: path,
     text: readText(path, paths.length === 1 ? 'model' : matrixFieldAt(k)),
   }));
-  return parseModelFiles(files);
+  return parseModelFiles(files, limits);
 }

@@ -12,6 +12,7 @@ import { type Matrix, zeros, toRows } from '../linalg/matrix';
 import type { StateSpaceModel } from '../model';
 import { secondOrderToFirstOrder } from '../second-order';
 import { assembleModel, type ModelNames } from './assemble';
+import { checkDenseSize, type ReadLimits } from './limits';
 import { inFile } from './numbers';
 
 const BARE_NON_FINITE = /(?<=[[,:]\s*)(-?Infinity|NaN)(?=\s*[,\]}])/g;
@@ -30,9 +31,10 @@ function parseJsonText(text: string, where: string, field: string): unknown {
 
 /**
  * A matrix from a JSON list of rows. Throws ModelError naming `field`: parse_error (not a list of lists),
- * empty_matrix, jagged_rows, non_numeric and non_finite (row and column, 1-based).
+ * empty_matrix, jagged_rows, non_numeric and non_finite (row and column, 1-based), too_large (row count ×
+ * row 1's length past the dense limit, checked before allocating).
  */
-export function matrixFromJsonRows(value: unknown, field: string, fileName?: string): Matrix {
+export function matrixFromJsonRows(value: unknown, field: string, fileName?: string, limits: ReadLimits = {}): Matrix {
   const where = inFile(fileName);
   if (!Array.isArray(value)) {
     throw new ModelError('parse_error', field, `${where}${field} must be a list of rows, e.g. [[1, 0], [0, 1]]`);
@@ -44,6 +46,7 @@ export function matrixFromJsonRows(value: unknown, field: string, fileName?: str
   }
   const cols = first.length;
   if (cols === 0) throw new ModelError('empty_matrix', field, `${where}${field} is empty (row 1 has no entries)`);
+  checkDenseSize(value.length, cols, field, where, limits);
   const out = zeros(value.length, cols);
   for (let i = 0; i < value.length; i++) {
     const row = value[i];
@@ -111,9 +114,10 @@ function required(doc: Record<string, unknown>, key: string, where: string, form
 
 /**
  * Parse a model JSON document (first- or second-order) into a validated model. `fileName` starts every
- * message. Throws ModelError (see `assembleModel`, `secondOrderToFirstOrder`, `matrixFromJsonRows`).
+ * message. Throws ModelError (see `assembleModel`, `secondOrderToFirstOrder`, `matrixFromJsonRows`); a
+ * second-order model whose first-order form (2n × 2n) passes the dense limit is refused as too_large.
  */
-export function parseModelJson(text: string, fileName?: string): StateSpaceModel {
+export function parseModelJson(text: string, fileName?: string, limits: ReadLimits = {}): StateSpaceModel {
   const where = inFile(fileName);
   const doc = parseJsonText(text, where, fileName ?? 'model');
   if (typeof doc !== 'object' || doc === null || Array.isArray(doc)) {
@@ -123,10 +127,12 @@ export function parseModelJson(text: string, fileName?: string): StateSpaceModel
   const names = readNames(d, where);
   const form = d.form ?? 'first-order';
   if (form === 'second-order') {
-    const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a second-order'), key, fileName);
+    const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a second-order'), key, fileName, limits);
     const optional = (key: string) =>
-      d[key] === undefined || d[key] === null ? undefined : matrixFromJsonRows(d[key], key, fileName);
+      d[key] === undefined || d[key] === null ? undefined : matrixFromJsonRows(d[key], key, fileName, limits);
     const mass = read('mass');
+    const dof = mass.rows;
+    checkDenseSize(2 * dof, 2 * dof, 'mass', where, limits, `the first-order form of this ${dof}-degree-of-freedom model`);
     // Degree-of-freedom names (one per q) are expanded to the first-order state [q; q̇].
     if (names.stateNames && names.stateNames.length === mass.rows) {
       names.stateNames = [...names.stateNames, ...names.stateNames.map((s) => `d(${s})/dt`)];
@@ -146,13 +152,13 @@ export function parseModelJson(text: string, fileName?: string): StateSpaceModel
   if (form !== 'first-order') {
     throw new ModelError('unsupported_format', 'form', `${where}form "${String(form)}" is not "first-order" or "second-order"`);
   }
-  const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a'), key, fileName);
+  const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a'), key, fileName, limits);
   return assembleModel(
     {
       A: read('A'),
       B: read('B'),
       C: read('C'),
-      D: d.D === undefined || d.D === null ? undefined : matrixFromJsonRows(d.D, 'D', fileName),
+      D: d.D === undefined || d.D === null ? undefined : matrixFromJsonRows(d.D, 'D', fileName, limits),
     },
     names,
   );

@@ -13,6 +13,7 @@
  */
 import { ModelError } from '../errors';
 import { type Matrix, zeros } from '../linalg/matrix';
+import { checkDeclaredCount, checkDenseSize, type ReadLimits } from './limits';
 import { inFile, readNumericCell } from './numbers';
 
 type Symmetry = 'general' | 'symmetric' | 'skew-symmetric';
@@ -42,9 +43,11 @@ function readCount(token: string, what: string, field: string, where: string, li
 /**
  * Parse a Matrix Market file into a dense matrix. `field` names the matrix for the error; `fileName`
  * starts every message. Throws ModelError: parse_error (header, size line, index out of range),
- * unsupported_format, empty_matrix, truncated_file (fewer entries than declared), non_numeric, non_finite.
+ * unsupported_format, empty_matrix, truncated_file (fewer entries than declared, or more than the file's
+ * length can hold), too_large (rows × cols past the dense limit, see limits.ts), non_numeric, non_finite.
+ * Sizes are checked before the matrix is allocated.
  */
-export function parseMatrixMarket(text: string, field: string, fileName?: string): Matrix {
+export function parseMatrixMarket(text: string, field: string, fileName?: string, limits: ReadLimits = {}): Matrix {
   const where = inFile(fileName);
   const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/);
   const header = (lines[0] ?? '').trim().split(/\s+/);
@@ -91,6 +94,17 @@ export function parseMatrixMarket(text: string, field: string, fileName?: string
   if (symmetry !== 'general' && rows !== cols) {
     throw new ModelError('not_square', field, `${where}${field} is declared ${symmetry} but is ${rows}×${cols}`);
   }
+  // Before any allocation: the dense limit, then whether the file can hold what it declares
+  // ("1 1 0\n" is the shortest coordinate entry, "0\n" the shortest array value).
+  checkDenseSize(rows, cols, field, where, limits);
+  let nnz = 0;
+  const declaredValues = symmetry === 'general' ? rows * cols : symmetry === 'symmetric' ? (rows * (rows + 1)) / 2 : (rows * (rows - 1)) / 2;
+  if (format === 'coordinate') {
+    nnz = readCount(size.tokens[2], 'entry count', field, where, size.line);
+    checkDeclaredCount(nnz, text.length, 6, field, where, 'entries');
+  } else {
+    checkDeclaredCount(declaredValues, text.length, 2, field, where, 'values');
+  }
   const out = zeros(rows, cols);
   const sign = symmetry === 'skew-symmetric' ? -1 : 1;
 
@@ -106,7 +120,6 @@ export function parseMatrixMarket(text: string, field: string, fileName?: string
   };
 
   if (format === 'coordinate') {
-    const nnz = readCount(size.tokens[2], 'entry count', field, where, size.line);
     for (let k = 0; k < nnz; k++) {
       const entry = nextTokens(cursor);
       if (!entry) {
@@ -139,29 +152,31 @@ export function parseMatrixMarket(text: string, field: string, fileName?: string
   } else {
     // Array format: values column by column; a symmetric file lists only the lower triangle (i ≥ j),
     // a skew-symmetric one only the strict lower triangle (i > j).
-    const positions: [number, number][] = [];
-    for (let j = 0; j < cols; j++) {
-      const first = symmetry === 'general' ? 0 : symmetry === 'symmetric' ? j : j + 1;
-      for (let i = first; i < rows; i++) positions.push([i, j]);
-    }
+    // The position (i, j) advances as values are read, so no list of positions is ever built.
+    const firstRow = (j: number) => (symmetry === 'general' ? 0 : symmetry === 'symmetric' ? j : j + 1);
     let k = 0;
-    while (k < positions.length) {
+    let i = firstRow(0);
+    let j = 0;
+    while (i >= rows && j < cols) i = firstRow(++j); // a 1×1 skew-symmetric file declares no values
+    while (k < declaredValues) {
       const entry = nextTokens(cursor);
       if (!entry) {
         throw new ModelError(
           'truncated_file',
           field,
-          `${where}${field} is truncated: ${positions.length} values declared, ${k} found`,
+          `${where}${field} is truncated: ${declaredValues} values declared, ${k} found`,
         );
       }
       for (const token of entry.tokens) {
-        if (k >= positions.length) {
+        if (k >= declaredValues) {
           throw new ModelError('parse_error', field, `${where}${field} line ${entry.line}: more values than the declared ${rows}×${cols}`);
         }
-        const [i, j] = positions[k++];
         const v = readValue(token, entry.line);
         out.data[i * cols + j] = v;
         if (symmetry !== 'general' && i !== j) out.data[j * cols + i] = sign * v;
+        k++;
+        i++;
+        while (i >= rows && j < cols) i = firstRow(++j);
       }
     }
   }

@@ -9,6 +9,7 @@ import type { StateSpaceModel } from '../model';
 import { assembleModel } from './assemble';
 import { parseCsvMatrix } from './csv';
 import { parseModelJson } from './json';
+import type { ReadLimits } from './limits';
 import { parseMatrixMarket } from './matrix-market';
 
 const MATRIX_ORDER = ['A', 'B', 'C', 'D'] as const;
@@ -30,10 +31,10 @@ function baseName(name: string): string {
 }
 
 /** Parse one matrix file by extension: `.mtx`/`.mm` Matrix Market, `.csv` CSV. */
-export function parseMatrixFile(text: string, field: string, fileName: string): Matrix {
+export function parseMatrixFile(text: string, field: string, fileName: string, limits: ReadLimits = {}): Matrix {
   const ext = extensionOf(fileName);
-  if (ext === '.mtx' || ext === '.mm') return parseMatrixMarket(text, field, fileName);
-  if (ext === '.csv') return parseCsvMatrix(text, field, fileName);
+  if (ext === '.mtx' || ext === '.mm') return parseMatrixMarket(text, field, fileName, limits);
+  if (ext === '.csv') return parseCsvMatrix(text, field, fileName, limits);
   throw new ModelError(
     'unsupported_format',
     field,
@@ -68,13 +69,13 @@ export function matrixFieldAt(k: number): (typeof MATRIX_ORDER)[number] {
 }
 
 /** Parse a model from file contents (see the module comment). Throws ModelError. */
-export function parseModelFiles(files: readonly ModelFileText[]): StateSpaceModel {
+export function parseModelFiles(files: readonly ModelFileText[], limits: ReadLimits = {}): StateSpaceModel {
   checkModelFileCount(files.map((f) => f.name));
-  if (files.length === 1) return parseModelJson(files[0].text, baseName(files[0].name));
+  if (files.length === 1) return parseModelJson(files[0].text, baseName(files[0].name), limits);
   const m: Partial<Record<(typeof MATRIX_ORDER)[number], Matrix>> = {};
   files.forEach((f, k) => {
     const field = MATRIX_ORDER[k];
-    m[field] = parseMatrixFile(f.text, field, baseName(f.name));
+    m[field] = parseMatrixFile(f.text, field, baseName(f.name), limits);
   });
   return assembleModel({ A: m.A!, B: m.B!, C: m.C!, D: m.D });
 }
