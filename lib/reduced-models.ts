@@ -7,7 +7,6 @@
 // their SHA-256 (lib/checksums.ts), the source version's checksum and the engine version, and the
 // accuracy report. A reduction that fails registers nothing.
 import type { Knex } from 'knex';
-import { rmSync } from 'node:fs';
 import { z } from 'zod';
 import { db } from '@/lib/db';
 import { recordAudit } from '@/lib/audit';
@@ -15,7 +14,7 @@ import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
 import { matricesSha256 } from '@/lib/checksums';
 import { receiveUpload } from '@/lib/uploads/receive';
-import { storeFile, storagePath, type StoredFile } from '@/lib/uploads/store';
+import { releaseFiles, storeFile, type StoredFile } from '@/lib/uploads/store';
 import { validateSignalInChildProcess } from '@/lib/engine-tasks/validate-process';
 import type { AccuracyFiguresRecord, InputResponseRecord, ReductionCurves, ReductionRecord, ReducedMatricesRecord } from '@/lib/engine-tasks/records';
 import type { RecipeInput } from '@/lib/engine-tasks/reduction-task';
@@ -464,7 +463,7 @@ export async function requestInputResponse(request: Request, user: SessionUser):
       throw new ApiError(422, 'check_failed', `The input signal could not be checked: ${e.message}`, 'signal');
     });
     if (!check.ok) throw new ApiError(422, `invalid_signal_${check.error.code}`, check.error.message, 'signal');
-    stored = storeFile(file.tempPath, file.sha256);
+    stored = await storeFile(file.tempPath, file.sha256, 'signal');
     const storageKey = stored.storageKey;
     const job = await db().transaction(async (trx) => {
       const row = await createJob(trx, {
@@ -486,15 +485,16 @@ export async function requestInputResponse(request: Request, user: SessionUser):
     await dispatchJob(job.id);
     return { job: toJobView(job) };
   } catch (err) {
-    if (stored?.placed && !(await signalKeyInUse(stored.storageKey))) rmSync(storagePath(stored.storageKey), { force: true });
+    if (stored) await releaseFiles([stored], signalKeyInUse);
     throw err;
   } finally {
     await upload.discard();
   }
 }
 
-export function signalPathOf(payload: Record<string, unknown>): { path: string; name: string } {
-  return { path: storagePath(String(payload.signalStorageKey)), name: String(payload.signalName ?? 'signal.csv') };
+/** The response job's input signal by its key in the store (the worker fetches it: lib/storage/scratch.ts). */
+export function signalPathOf(payload: Record<string, unknown>): { storageKey: string; name: string } {
+  return { storageKey: String(payload.signalStorageKey), name: String(payload.signalName ?? 'signal.csv') };
 }
 
 export type { InputResponseRecord };

@@ -3,10 +3,10 @@
 //
 // Registering a version is one transaction (the model row for a first upload, the version row, its
 // analysis job, the audit record), after the files have been streamed to disk, checked by the engine in a
-// separate process, and moved to their content address. Anything that fails before the commit removes
-// the files this upload placed, so a refused upload leaves no row and no file behind.
+// separate process, and streamed into the store at their content address (lib/storage). Anything that fails
+// before the commit removes the objects this upload placed, so a refused upload leaves no row and no file
+// behind.
 import { createHash } from 'node:crypto';
-import { rmSync } from 'node:fs';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { db } from '@/lib/db';
@@ -14,9 +14,9 @@ import { recordAudit } from '@/lib/audit';
 import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
 import { receiveUpload, type ReceivedFile } from '@/lib/uploads/receive';
-import { storeFile, storagePath, type StoredFile } from '@/lib/uploads/store';
+import { releaseFiles, storeFile, type StoredFile } from '@/lib/uploads/store';
 import { validateInChildProcess } from '@/lib/engine-tasks/validate-process';
-import { FILE_ROLES, type FileRole, type ModelFile, type SourceFormat } from '@/lib/engine-tasks/model-files';
+import { FILE_ROLES, type FileRole, type ModelFile, type SourceFormat, type StoredModelFile } from '@/lib/engine-tasks/model-files';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { keptPolesOf, modalOrderFigures, statesInBand } from '@/lib/engine-tasks/order-figures';
 import { createJob, dispatchJob, latestJobFor, toJobView, type JobRow, type JobView } from '@/lib/jobs/jobs';
@@ -241,7 +241,7 @@ export async function registerUpload(request: Request, user: SessionUser): Promi
       throw new ApiError(422, `invalid_model_${check.error.code}`, check.error.message, field);
     }
 
-    for (const f of received) placed.push(storeFile(f.tempPath, f.sha256));
+    for (const f of received) placed.push(await storeFile(f.tempPath, f.sha256, f.field));
     const files: StoredFileEntry[] = received.map((f, k) => ({
       role: f.field as FileRole,
       name: f.originalName,
@@ -317,9 +317,7 @@ export async function registerUpload(request: Request, user: SessionUser): Promi
       url: versionPath(registered.model.slug, registered.version.number),
     };
   } catch (err) {
-    for (const f of placed) {
-      if (f.placed && !(await storageKeyInUse(f.storageKey))) rmSync(storagePath(f.storageKey), { force: true });
-    }
+    await releaseFiles(placed, storageKeyInUse);
     throw translateConstraint(err, upload.files);
   } finally {
     await upload.discard();
@@ -510,9 +508,9 @@ export async function requireSourceVersion(id: string): Promise<SourceVersionRow
   return found;
 }
 
-/** The engine's view of a version's files: absolute paths in the uploads folder. */
-export function modelFilesOfVersion(version: Pick<SourceVersionRow, 'files'>): ModelFile[] {
-  return version.files.map((f) => ({ role: f.role, name: f.name, path: storagePath(f.storageKey) }));
+/** The engine's view of a version's files: their keys in the store, which the worker fetches (lib/storage/scratch.ts). */
+export function modelFilesOfVersion(version: Pick<SourceVersionRow, 'files'>): StoredModelFile[] {
+  return version.files.map((f) => ({ role: f.role, name: f.name, storageKey: f.storageKey }));
 }
 
 export async function analysisOf(sourceVersionId: string, trx: Knex | Knex.Transaction = db()): Promise<AnalysisRecord | null> {

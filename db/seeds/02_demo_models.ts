@@ -25,7 +25,8 @@ import path from 'node:path';
 import type { Knex } from 'knex';
 import { DEMO_PEOPLE } from './01_demo_people';
 import { burnerPlant, csvOf, kilnWallNetwork, matrixMarketCoordinate, rigFrameStructure } from './demo/models';
-import { storeFile, storagePath } from '../../lib/uploads/store';
+import { storeFile } from '../../lib/uploads/store';
+import { fetchToScratch } from '../../lib/storage/scratch';
 import { tempDir } from '../../lib/uploads/receive';
 import { loadModel, type FileRole, type ModelFile } from '../../lib/engine-tasks/model-files';
 import { runAnalysis } from '../../lib/engine-tasks/analysis-task';
@@ -133,15 +134,17 @@ const DEMO_MODELS: DemoModel[] = [
   },
 ];
 
-function storeDemoFile(file: DemoFile): ModelFile & { size: number; sha256: string; storageKey: string } {
+// Stored like an upload (lib/storage: the local folder, or the object store with MODESHELF_STORAGE=s3) and
+// read back the way a worker reads it.
+async function storeDemoFile(file: DemoFile): Promise<ModelFile & { size: number; sha256: string; storageKey: string }> {
   const bytes = Buffer.from(file.text, 'utf8');
   const sha256 = createHash('sha256').update(bytes).digest('hex');
   const dir = tempDir();
   mkdirSync(dir, { recursive: true });
   const temp = path.join(dir, `seed-${sha256.slice(0, 16)}.part`);
   writeFileSync(temp, bytes);
-  const stored = storeFile(temp, sha256);
-  return { role: file.role, name: file.name, path: storagePath(stored.storageKey), size: bytes.length, sha256, storageKey: stored.storageKey };
+  const stored = await storeFile(temp, sha256);
+  return { role: file.role, name: file.name, path: await fetchToScratch(stored.storageKey), size: bytes.length, sha256, storageKey: stored.storageKey };
 }
 
 const log = (line: string) => console.log(`[seed demo models] ${line}`);
@@ -152,7 +155,8 @@ async function seedModel(knex: Knex, demo: DemoModel, engineerId: string): Promi
     return;
   }
   const started = Date.now();
-  const files = demo.files().map(storeDemoFile);
+  const files: Awaited<ReturnType<typeof storeDemoFile>>[] = [];
+  for (const file of demo.files()) files.push(await storeDemoFile(file));
   const { model, format } = loadModel(files);
   const checksum = versionChecksum(files);
   const analysis = runAnalysis(files, ENGINE_VERSION, () => {});

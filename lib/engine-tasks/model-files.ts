@@ -4,8 +4,14 @@
 // validation boundary, so a model that loads here is a valid model.
 //
 // Runs in worker threads and in the upload checker's child process: no database, no Next.js.
+//
+// The engine reads files from this machine's disk. A job names its files by storage key (StoredModelFile);
+// the worker thread first fetches them from the store into its scratch folder (fetchModelFiles,
+// lib/storage/scratch.ts), so a worker never needs the web server's disk.
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
+import { fetchToScratch } from '../storage/scratch';
+import { StorageKeyNotFound } from '../storage/types';
 import {
   ModelError,
   assembleModel,
@@ -27,6 +33,48 @@ export interface ModelFile {
   readonly role: FileRole;
   readonly name: string;
   readonly path: string;
+}
+
+/** One file of a model as a job names it: by its key in the store (lib/storage). */
+export interface StoredModelFile {
+  readonly role: FileRole;
+  readonly name: string;
+  readonly storageKey: string;
+}
+
+/** A file on this machine already (an upload being checked) or one to fetch from the store. */
+export type ModelFileRef = ModelFile | StoredModelFile;
+
+/** Any named file: on this machine (`path`) or in the store (`storageKey`). */
+export type FileRef = { readonly name: string } & ({ readonly path: string } | { readonly storageKey: string });
+
+/**
+ * A path on this machine for a file: the file's own path, or its copy fetched from the store into the
+ * scratch folder (MODESHELF_SCRATCH_DIR). A file the store does not hold is a ModelError naming `field`, as
+ * an unreadable file always was: retrying would not bring it back. A store that cannot be reached is a
+ * plain Error, which the job runner may retry.
+ */
+export async function fetchFile(file: FileRef, field: string, options: { scratchDir?: string } = {}): Promise<string> {
+  if ('path' in file) return file.path;
+  try {
+    return await fetchToScratch(file.storageKey, { dir: options.scratchDir });
+  } catch (e) {
+    if (e instanceof StorageKeyNotFound) {
+      throw new ModelError(
+        'unreadable_file',
+        field,
+        `${file.name}: the stored file cannot be read (${e.message}; the web server and every worker must use the same store)`,
+      );
+    }
+    throw e;
+  }
+}
+
+/** The files of a model as paths on this machine, fetching the stored ones first (see fetchFile). */
+export async function fetchModelFiles(files: readonly ModelFileRef[], options: { scratchDir?: string } = {}): Promise<ModelFile[]> {
+  const out: ModelFile[] = [];
+  for (const f of files) out.push({ role: f.role, name: f.name, path: await fetchFile(f, f.role, options) });
+  return out;
 }
 
 export interface LoadedModel {

@@ -4,6 +4,7 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { runAnalysis } from './analysis-task';
 import { runReduction } from './reduction-task';
 import { runInputResponse } from './response-task';
+import { fetchFile, fetchModelFiles } from './model-files';
 import type { TaskRequest } from './tasks';
 
 const port = parentPort;
@@ -12,26 +13,31 @@ if (!port) throw new Error('lib/engine-tasks/thread.ts must run in a worker thre
 const request = workerData as TaskRequest;
 const report = (stage: string, fraction: number) => port.postMessage({ type: 'progress', stage, fraction });
 
-try {
-  let value: unknown;
+async function run(): Promise<unknown> {
+  // Stored files are fetched into this worker's scratch folder first (lib/storage/scratch.ts): the engine
+  // reads from this machine's disk, never from the web server's.
+  const files = await fetchModelFiles(request.files);
   switch (request.task) {
     case 'analysis':
-      value = runAnalysis(request.files, request.engineVersion, report);
-      break;
+      return runAnalysis(files, request.engineVersion, report);
     case 'reduction':
-      value = runReduction(request.files, request.recipe, request.summary, request.engineVersion, report);
-      break;
+      return runReduction(files, request.recipe, request.summary, request.engineVersion, report);
     case 'response':
-      value = runInputResponse(request.files, request.matrices, request.signal, report);
-      break;
+      return runInputResponse(files, request.matrices, { name: request.signal.name, path: await fetchFile(request.signal, 'signal') }, report);
     default:
       throw new Error(`unknown engine task ${(request as { task: string }).task}`);
   }
-  port.postMessage({ type: 'result', value });
-} catch (e) {
-  const err = e as Error & { code?: string; field?: string };
-  port.postMessage({
-    type: 'error',
-    error: { name: err?.name ?? 'Error', code: err?.code, field: err?.field, message: err?.message ?? String(e), stack: err?.stack },
-  });
 }
+
+void (async () => {
+  try {
+    const value = await run();
+    port.postMessage({ type: 'result', value });
+  } catch (e) {
+    const err = e as Error & { code?: string; field?: string };
+    port.postMessage({
+      type: 'error',
+      error: { name: err?.name ?? 'Error', code: err?.code, field: err?.field, message: err?.message ?? String(e), stack: err?.stack },
+    });
+  }
+})();

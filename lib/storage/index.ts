@@ -26,7 +26,10 @@ let cached: { signature: string; store: ObjectStore } | null = null;
 export function objectStore(): ObjectStore {
   const config = storeConfig();
   const signature = JSON.stringify(config);
-  if (!cached || cached.signature !== signature) cached = { signature, store: createStore(config) };
+  if (!cached || cached.signature !== signature) {
+    if (cached?.store instanceof S3Store) void cached.store.close();
+    cached = { signature, store: createStore(config) };
+  }
   return cached.store;
 }
 

@@ -5,16 +5,18 @@
 import { createReadStream } from 'node:fs';
 import { rm } from 'node:fs/promises';
 import { Readable } from 'node:stream';
-import {
-  DeleteObjectCommand,
-  GetObjectCommand,
-  HeadObjectCommand,
-  S3Client,
-  type S3ClientConfig,
-} from '@aws-sdk/client-s3';
-import { Upload } from '@aws-sdk/lib-storage';
+import type { S3Client, S3ClientConfig } from '@aws-sdk/client-s3';
 import type { S3StoreConfig } from './config';
 import { checkKey, StorageError, StorageKeyNotFound, type ObjectStore } from './types';
+
+// The SDK is loaded on first use: a worker thread or checker process that never touches S3 (the local
+// store, the default) does not pay for loading it.
+type Sdk = { s3: typeof import('@aws-sdk/client-s3'); storage: typeof import('@aws-sdk/lib-storage') };
+let sdk: Promise<Sdk> | null = null;
+function loadSdk(): Promise<Sdk> {
+  sdk ??= Promise.all([import('@aws-sdk/client-s3'), import('@aws-sdk/lib-storage')]).then(([s3, storage]) => ({ s3, storage }));
+  return sdk;
+}
 
 /** Size of one multipart part (S3's smallest is 5 MiB); at most QUEUE parts are in memory at once. */
 export const PART_BYTES = 8 * 1024 * 1024;
@@ -39,21 +41,34 @@ function isNotFound(e: unknown): boolean {
 export class S3Store implements ObjectStore {
   readonly kind = 's3' as const;
   readonly location: string;
-  readonly client: S3Client;
+  private clientPromise: Promise<S3Client> | null = null;
 
   constructor(readonly config: S3StoreConfig) {
     this.location = `s3://${config.bucket}/${config.prefix}${config.endpoint ? ` at ${config.endpoint}` : ` (${config.region})`}`;
-    const options: S3ClientConfig = {
-      region: config.region,
-      endpoint: config.endpoint,
-      forcePathStyle: config.forcePathStyle,
-      credentials: config.credentials,
-      // Checksums only where S3 requires them: many S3-compatible stores do not accept the SDK's default
-      // trailing-checksum uploads. Our own integrity check is the SHA-256 of the content key (scratch.ts).
-      requestChecksumCalculation: 'WHEN_REQUIRED',
-      responseChecksumValidation: 'WHEN_REQUIRED',
-    };
-    this.client = new S3Client(options);
+  }
+
+  /** The SDK client (made on first use). */
+  client(): Promise<S3Client> {
+    this.clientPromise ??= loadSdk().then(({ s3 }) => {
+      const options: S3ClientConfig = {
+        region: this.config.region,
+        endpoint: this.config.endpoint,
+        forcePathStyle: this.config.forcePathStyle,
+        credentials: this.config.credentials,
+        // Checksums only where S3 requires them: many S3-compatible stores do not accept the SDK's default
+        // trailing-checksum uploads. Our own integrity check is the SHA-256 of the content key (scratch.ts).
+        requestChecksumCalculation: 'WHEN_REQUIRED',
+        responseChecksumValidation: 'WHEN_REQUIRED',
+      };
+      return new s3.S3Client(options);
+    });
+    return this.clientPromise;
+  }
+
+  /** Closes the client's connections (tests; a server keeps its store for its lifetime). */
+  async close(): Promise<void> {
+    if (this.clientPromise) (await this.clientPromise).destroy();
+    this.clientPromise = null;
   }
 
   private objectKey(key: string): string {
@@ -75,8 +90,9 @@ export class S3Store implements ObjectStore {
 
   async put(key: string, body: Buffer | string | Readable): Promise<void> {
     const Key = this.objectKey(key);
-    const upload = new Upload({
-      client: this.client,
+    const { storage } = await loadSdk();
+    const upload = new storage.Upload({
+      client: await this.client(),
       params: { Bucket: this.config.bucket, Key, Body: body, ContentType: 'application/octet-stream' },
       partSize: PART_BYTES,
       queueSize: QUEUE,
@@ -103,7 +119,8 @@ export class S3Store implements ObjectStore {
 
   async getStream(key: string): Promise<Readable> {
     try {
-      const out = await this.client.send(new GetObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
+      const { s3 } = await loadSdk();
+      const out = await (await this.client()).send(new s3.GetObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
       const body = out.Body;
       if (body instanceof Readable) return body;
       if (!body) throw new StorageError(`the store answered "${key}" without a body`);
@@ -117,7 +134,8 @@ export class S3Store implements ObjectStore {
 
   async exists(key: string): Promise<boolean> {
     try {
-      await this.client.send(new HeadObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
+      const { s3 } = await loadSdk();
+      await (await this.client()).send(new s3.HeadObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
       return true;
     } catch (e) {
       const err = this.failure('look up', key, e);
@@ -128,7 +146,8 @@ export class S3Store implements ObjectStore {
 
   async size(key: string): Promise<number> {
     try {
-      const out = await this.client.send(new HeadObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
+      const { s3 } = await loadSdk();
+      const out = await (await this.client()).send(new s3.HeadObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
       return Number(out.ContentLength ?? 0);
     } catch (e) {
       throw this.failure('look up', key, e);
@@ -137,7 +156,8 @@ export class S3Store implements ObjectStore {
 
   async delete(key: string): Promise<void> {
     try {
-      await this.client.send(new DeleteObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
+      const { s3 } = await loadSdk();
+      await (await this.client()).send(new s3.DeleteObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
     } catch (e) {
       const err = this.failure('remove', key, e);
       if (!(err instanceof StorageKeyNotFound)) throw err;

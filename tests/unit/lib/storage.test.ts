@@ -74,6 +74,7 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
+  await (stores.s3 as S3Store | undefined)?.close();
   await fake?.close();
   rmSync(work, { recursive: true, force: true });
 });
@@ -226,7 +227,7 @@ describe('the S3 store', () => {
   it('says which bucket is missing', async () => {
     const store = new S3Store({ ...(stores.s3 as S3Store).config, bucket: 'no-such-quillmere-bucket' });
     await expect(store.get('sha256/ab/x')).rejects.toThrow(/no-such-quillmere-bucket/);
-    store.client.destroy();
+    await store.close();
   });
 });
 
