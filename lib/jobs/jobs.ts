@@ -2,10 +2,11 @@
 // handler enqueues a job and returns its id; a worker ... writes progress and results").
 //
 // Life of a row: queued → running → succeeded | failed; a failed attempt that will be retried goes back to
-// queued; a person may send a failed job round again (retryJob). The row is created inside the
-// transaction that registers what the job works on, and handed to the queue once that has committed
-// (dispatchJob), so a job never refers to something that was rolled back; a job whose hand-over was lost
-// (the server stopped in between) is handed over by the workers' sweeper (reaper.ts).
+// queued; a person may send a failed job round again (retryJob). The row and its queue delivery (pg-boss,
+// in the same PostgreSQL) are written in one transaction each time either changes: the row is created,
+// with its delivery, inside the transaction that registers what the job works on, so a job never refers
+// to something that was rolled back and never exists without a delivery. The reaper (reaper.ts) repairs
+// any pair that is still found out of step (a row written before this rule, a dead worker's attempt).
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import { z } from 'zod';
@@ -13,7 +14,7 @@ import { db } from '@/lib/db';
 import { recordAudit } from '@/lib/audit';
 import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
-import { queue, QUEUE_NAMES, RETRY_LIMIT, type JobKind, type QueueMessage } from './queue';
+import { queue, sendDelivery, type JobKind } from './queue';
 
 export type JobStatus = 'queued' | 'running' | 'succeeded' | 'failed';
 
@@ -88,39 +89,57 @@ export interface NewJob {
   createdBy: string | null;
 }
 
-/** Inserts a queued job inside the caller's transaction. Hand it to the queue after commit (dispatchJob). */
+/**
+ * Inserts a queued job and its queue delivery inside the caller's transaction (one is made when the caller
+ * passes no transaction): both commit with what the job works on, or neither does. The first delivery uses
+ * the job's own id as its queue id.
+ */
 export async function createJob(trx: Knex.Transaction | Knex, job: NewJob): Promise<JobRow> {
-  const [row] = await trx<JobRow>('jobs')
-    .insert({
-      kind: job.kind,
-      subject_type: job.subjectType,
-      subject_id: job.subjectId,
-      payload: JSON.stringify(job.payload) as unknown as Record<string, unknown>,
-      created_by: job.createdBy,
-      status: 'queued',
-      stage: 'Waiting for a worker',
-    })
-    .returning('*');
-  return row;
+  const boss = await queue('web');
+  const insert = async (t: Knex.Transaction): Promise<JobRow> => {
+    const id = randomUUID();
+    const [row] = await t<JobRow>('jobs')
+      .insert({
+        id,
+        kind: job.kind,
+        subject_type: job.subjectType,
+        subject_id: job.subjectId,
+        payload: JSON.stringify(job.payload) as unknown as Record<string, unknown>,
+        created_by: job.createdBy,
+        status: 'queued',
+        stage: 'Waiting for a worker',
+        queue_job_id: id,
+      })
+      .returning('*');
+    await sendDelivery(boss, t, job.kind, id, id);
+    return row;
+  };
+  return isTransaction(trx) ? insert(trx) : db().transaction(insert);
+}
+
+function isTransaction(k: Knex.Transaction | Knex): k is Knex.Transaction {
+  return (k as Knex.Transaction).isTransaction === true;
 }
 
 /**
- * Hands a queued job to the queue. The first delivery uses the job's own id as the queue id, so sending
- * it twice (the sweeper and the server racing) delivers it once; a person's retry gets a fresh queue id.
- * Never throws for a queue outage: the sweeper hands the job over once the queue is back.
+ * Makes sure a queued job has its delivery: sends the one the row names (or a first one, for a row written
+ * before rows named theirs), in one transaction with the row. Sending an existing delivery again does
+ * nothing, so callers may call it after createJob's commit as they always did. Never throws for a queue
+ * outage: the reaper repairs the job once the queue is back.
  */
-export async function dispatchJob(jobId: string, options: { fresh?: boolean } = {}): Promise<boolean> {
-  const row = await db()<JobRow>('jobs').where({ id: jobId }).first();
-  if (!row || row.status !== 'queued') return false;
-  const queueId = options.fresh ? randomUUID() : row.id;
+export async function dispatchJob(jobId: string): Promise<boolean> {
   try {
     const boss = await queue('web');
-    const message: QueueMessage = { jobId };
-    await boss.send(QUEUE_NAMES[row.kind], message, { id: queueId, retryLimit: RETRY_LIMIT });
-    await db()('jobs').where({ id: jobId, status: 'queued' }).update({ queue_job_id: queueId, updated_at: db().fn.now() });
-    return true;
+    return await db().transaction(async (trx) => {
+      const row = await trx<JobRow>('jobs').where({ id: jobId, status: 'queued' }).forUpdate().first();
+      if (!row) return false;
+      const queueId = row.queue_job_id ?? row.id;
+      await sendDelivery(boss, trx, row.kind, row.id, queueId);
+      if (!row.queue_job_id) await trx('jobs').where({ id: jobId }).update({ queue_job_id: queueId, updated_at: trx.fn.now() });
+      return true;
+    });
   } catch (err) {
-    console.error(`[modeshelf] could not hand job ${jobId} to the queue yet; a worker's sweeper will`, err);
+    console.error(`[modeshelf] could not hand job ${jobId} to the queue yet; a worker's reaper will`, err);
     return false;
   }
 }
@@ -140,14 +159,16 @@ export async function latestJobFor(kind: JobKind, subjectType: string, subjectId
   return row ? toJobView(row) : null;
 }
 
-/** Sends a failed job round again, as its own next attempt. */
+/** Sends a failed job round again, as its own next attempt, with a fresh delivery in the same transaction. */
 export async function retryJob(id: string, user: SessionUser): Promise<JobView> {
+  const boss = await queue('web');
   const row = await db().transaction(async (trx) => {
     const current = await trx<JobRow>('jobs').where({ id }).forUpdate().first();
     if (!current) throw notFound('The job');
     if (current.status !== 'failed') {
       throw new ApiError(409, 'not_failed', `Only a failed job can be retried; this one is ${current.status}.`);
     }
+    const queueId = randomUUID();
     const [updated] = await trx<JobRow>('jobs')
       .where({ id })
       .update({
@@ -156,10 +177,11 @@ export async function retryJob(id: string, user: SessionUser): Promise<JobView> 
         fraction: 0,
         error: null,
         finished_at: null,
-        queue_job_id: null,
+        queue_job_id: queueId,
         updated_at: trx.fn.now(),
       })
       .returning('*');
+    await sendDelivery(boss, trx, current.kind, id, queueId);
     await recordAudit(trx, {
       actorId: user.id,
       action: 'job.retried',
@@ -169,6 +191,5 @@ export async function retryJob(id: string, user: SessionUser): Promise<JobView> 
     });
     return updated;
   });
-  await dispatchJob(row.id, { fresh: true });
-  return getJob(row.id);
+  return toJobView(row);
 }

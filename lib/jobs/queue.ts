@@ -7,6 +7,7 @@
 // times; an attempt whose worker vanished is handed back by the heartbeat reaper (reaper.ts) long before
 // pg-boss's own expiry (EXPIRE_SECONDS, the backstop for a reaper that is not running).
 import PgBoss from 'pg-boss';
+import type { Knex } from 'knex';
 import { databaseUrl } from '@/lib/config';
 
 export type JobKind = 'analysis' | 'reduction' | 'response';
@@ -37,6 +38,40 @@ export const RETRY_LIMIT = 2;
 export const RETRY_DELAY_SECONDS = 2;
 export const EXPIRE_SECONDS = 4 * 3600;
 
+/** MODESHELF_JOB_RETRY_DELAY_SECONDS overrides the delay before a retry (a test sets 0 for its own queues). */
+export function retryDelaySeconds(): number {
+  const raw = process.env.MODESHELF_JOB_RETRY_DELAY_SECONDS;
+  const value = raw === undefined || raw === '' ? NaN : Number(raw);
+  return Number.isInteger(value) && value >= 0 && value <= 3600 ? value : RETRY_DELAY_SECONDS;
+}
+
+/**
+ * pg-boss's statements run on a Knex transaction's own connection (pg-boss's `db` option), so a change to
+ * our `jobs` row and the change to its queue delivery commit together or not at all: the queue lives in
+ * the same PostgreSQL.
+ */
+export function queueDb(trx: Knex.Transaction): PgBoss.Db {
+  return {
+    async executeSql(text: string, values: unknown[]) {
+      // Inside a transaction Knex hands out the transaction's connection and never releases it early.
+      const connection = (await trx.client.acquireConnection()) as { query(text: string, values: unknown[]): Promise<{ rows: unknown[] }> };
+      return connection.query(text, values);
+    },
+  };
+}
+
+/** Sends the delivery `queueId` of job `jobId` inside `trx`; sending an id that already exists does nothing. */
+export async function sendDelivery(boss: PgBoss, trx: Knex.Transaction, kind: JobKind, jobId: string, queueId: string): Promise<void> {
+  const message: QueueMessage = { jobId };
+  await boss.send(QUEUE_NAMES[kind], message, {
+    id: queueId,
+    retryLimit: RETRY_LIMIT,
+    retryDelay: retryDelaySeconds(),
+    expireInSeconds: EXPIRE_SECONDS,
+    db: queueDb(trx),
+  });
+}
+
 export interface QueueMessage {
   jobId: string;
 }
@@ -53,7 +88,7 @@ async function ensureQueues(boss: PgBoss): Promise<void> {
       await boss.createQueue(name, {
         name,
         retryLimit: RETRY_LIMIT,
-        retryDelay: RETRY_DELAY_SECONDS,
+        retryDelay: retryDelaySeconds(),
         expireInSeconds: EXPIRE_SECONDS,
       });
     } catch (err) {

@@ -1,17 +1,29 @@
-// Keeping jobs moving when a process dies, run by every worker every few seconds:
+// Keeping jobs moving when a process dies, run by every worker every few seconds (repairJobs). Our `jobs`
+// row and its pg-boss delivery are changed together in one transaction everywhere (runner.ts, jobs.ts), so
+// a crash leaves only states this sweep recognises and mends, each in one transaction of its own:
 //
-//   reapStaleJobs: a running job whose heartbeat is older than the stale limit lost its worker (killed,
-//     out of memory, machine gone). Its row goes back to queued and its queue delivery is failed, which
-//     makes pg-boss deliver it again after the retry delay, to whichever worker asks first; when the
-//     delivery has no retries left, the job fails with a message saying why.
-//   sweepUndispatched: a queued job the web server created but never handed to the queue (it stopped
-//     between its commit and the hand-over) is handed over here.
+//   row running, heartbeat silent for the stale limit      the worker is gone (killed, out of memory, machine
+//                                                          gone): its active delivery is failed, and the row
+//                                                          follows the delivery: queued for the retry, or
+//                                                          failed when no retry is left
+//   row queued, delivery active for the stale limit        taken and never claimed (a worker of an earlier
+//                                                          release that died between the two): as above
+//   row queued, delivery completed, failed, cancelled or   no delivery will come: failed → the row fails;
+//   missing (for the grace period)                         otherwise a fresh delivery, unless the job already
+//                                                          had all its attempts
+//   row succeeded or failed, delivery still active         the worker died between the two writes (an earlier
+//   (for the grace period)                                 release): the delivery is completed
 //
-// Several workers may reap at once: the conditional UPDATE lets exactly one of them take each job.
-import { db } from '@/lib/db';
+// So a worker that dies at any instant costs its job at most one stale limit plus one reaper period. The
+// reaper's clock can be driven (`now`), so a test checks all this without waiting. Several workers may
+// repair at once: each takes the row with FOR UPDATE SKIP LOCKED and re-checks it before writing.
 import type PgBoss from 'pg-boss';
-import { dispatchJob, type JobRow } from './jobs';
-import { QUEUE_NAMES, queuePrefix } from './queue';
+import type { Knex } from 'knex';
+import { randomUUID } from 'node:crypto';
+import { db } from '@/lib/db';
+import type { JobRow } from './jobs';
+import { JOB_KINDS, QUEUE_NAMES, queueDb, queuePrefix, RETRY_LIMIT, sendDelivery, type JobKind } from './queue';
+import { crashPoint, type CrashHook } from './crash';
 
 /** Heartbeats come every few seconds (runner.ts); a minute of silence means the worker is gone. */
 export function staleSeconds(): number {
@@ -19,59 +31,190 @@ export function staleSeconds(): number {
   return Number.isFinite(raw) && raw > 0 ? raw : 60;
 }
 
-export async function reapStaleJobs(boss: PgBoss, limitSeconds = staleSeconds()): Promise<string[]> {
-  const candidates: Pick<JobRow, 'id' | 'kind' | 'queue_job_id'>[] = await db()('jobs')
-    .where({ status: 'running' })
-    .whereRaw('heartbeat_at < now() - make_interval(secs => ?)', [limitSeconds])
-    .select('id', 'kind', 'queue_job_id');
-  const reaped: string[] = [];
-  for (const candidate of candidates) {
-    const name = QUEUE_NAMES[candidate.kind];
-    const delivery = candidate.queue_job_id ? await boss.getJobById(name, candidate.queue_job_id) : null;
-    // A namespaced worker (a test's) leaves jobs delivered through other namespaces to their own workers.
-    if (queuePrefix() && !delivery) continue;
-    const [row]: JobRow[] = await db()<JobRow>('jobs')
-      .where({ id: candidate.id, status: 'running' })
-      .whereRaw('heartbeat_at < now() - make_interval(secs => ?)', [limitSeconds])
-      .update({
-        status: 'queued',
-        stage: 'Waiting for a worker (the previous worker stopped responding)',
-        heartbeat_at: null,
-        worker: null,
-        updated_at: db().fn.now(),
-      })
-      .returning('*');
-    if (!row) continue; // another worker took it, or its worker spoke up again
-    reaped.push(row.id);
-    if (delivery?.state === 'active') await boss.fail(name, row.queue_job_id!, { reason: 'worker stopped responding' });
-    const after = row.queue_job_id ? await boss.getJobById(name, row.queue_job_id) : null;
-    if (after && (after.state === 'retry' || after.state === 'created')) continue;
-    if (after?.state === 'failed') {
-      await db()('jobs')
-        .where({ id: row.id, status: 'queued' })
-        .update({
-          status: 'failed',
-          error: `the worker running this job stopped responding, and it has been tried ${row.attempts} times`,
-          finished_at: db().fn.now(),
-          updated_at: db().fn.now(),
-        });
-      continue;
-    }
-    // The delivery is gone or was closed by an attempt that did not own the row: deliver afresh.
-    await db()('jobs').where({ id: row.id, status: 'queued' }).update({ queue_job_id: null });
-    await dispatchJob(row.id, { fresh: true });
-  }
-  return reaped;
+/** How long a queued row may be without an open delivery before it is mended (the web server sends in the row's transaction). */
+export const GRACE_SECONDS = 10;
+
+export interface RepairOptions {
+  /** the reaper's clock; default the database's now() */
+  now?: Date;
+  staleSeconds?: number;
+  graceSeconds?: number;
+  /** only these jobs (a test's); a namespaced worker (MODESHELF_QUEUE_PREFIX) also mends jobs without a delivery only when listed */
+  jobIds?: string[];
+  crash?: CrashHook;
+  /** at most this many jobs per pass */
+  limit?: number;
 }
 
-export async function sweepUndispatched(olderThanSeconds = 10): Promise<number> {
-  // A namespaced worker (a test's) would hand other namespaces' jobs to its own queues; it leaves them.
-  if (queuePrefix()) return 0;
-  const ids: string[] = await db()('jobs')
-    .where({ status: 'queued' })
-    .whereNull('queue_job_id')
-    .whereRaw('created_at < now() - make_interval(secs => ?)', [olderThanSeconds])
-    .pluck('id');
-  for (const id of ids) await dispatchJob(id);
-  return ids.length;
+export type Repair =
+  | 'handed back' // queued again for the next retry of its delivery
+  | 'failed' // no retries left
+  | 'redelivered' // a fresh delivery
+  | 'delivery completed'; // a final row's open delivery closed
+
+export interface RepairResult {
+  jobId: string;
+  problem: Problem;
+  repair: Repair;
+}
+
+type Problem = 'no heartbeat' | 'taken, never claimed' | 'no open delivery' | 'final row, open delivery';
+
+type DeliveryState = 'created' | 'retry' | 'active' | 'completed' | 'cancelled' | 'failed';
+
+interface Candidate {
+  id: string;
+  kind: JobKind;
+}
+
+function queueNameSql(): { sql: string; bindings: string[] } {
+  return {
+    sql: `CASE j.kind ${JOB_KINDS.map(() => 'WHEN ? THEN ?').join(' ')} END`,
+    bindings: JOB_KINDS.flatMap((k) => [k, QUEUE_NAMES[k]]),
+  };
+}
+
+/** Jobs whose row and delivery are out of step, by one query over `jobs` and pg-boss's job table. */
+async function findCandidates(options: Required<Pick<RepairOptions, 'staleSeconds' | 'graceSeconds' | 'limit'>> & RepairOptions): Promise<Candidate[]> {
+  const queueName = queueNameSql();
+  const now = options.now ?? null;
+  // A delivery found in our queues, or none anywhere (never sent, or a row from before rows named theirs);
+  // never one of another namespace's queues. A namespaced worker takes jobs without any only when named them.
+  const ours = `(q.id IS NOT NULL OR (${queuePrefix() && !options.jobIds ? 'FALSE' : 'NOT EXISTS (SELECT 1 FROM pgboss.job x WHERE x.id::text = j.queue_job_id)'}))`;
+  const rows = await db().raw(
+    `SELECT j.id, j.kind
+       FROM jobs j
+       LEFT JOIN pgboss.job q ON q.name = (${queueName.sql}) AND q.id::text = j.queue_job_id
+      WHERE (${options.jobIds ? 'j.id = ANY(?::uuid[])' : 'TRUE'})
+        AND ${ours}
+        AND (
+             (j.status = 'running' AND COALESCE(j.heartbeat_at, j.updated_at) < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
+          OR (j.status = 'queued' AND q.state = 'active' AND q.started_on < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
+          OR (j.status = 'queued' AND (q.id IS NULL OR q.state IN ('completed', 'failed', 'cancelled'))
+              AND j.updated_at < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
+          OR (j.status IN ('succeeded', 'failed') AND q.state = 'active'
+              AND j.updated_at < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
+        )
+      ORDER BY j.updated_at
+      LIMIT ?`,
+    [
+      ...queueName.bindings,
+      ...(options.jobIds ? [options.jobIds] : []),
+      now, options.staleSeconds,
+      now, options.staleSeconds,
+      now, options.graceSeconds,
+      now, options.graceSeconds,
+      options.limit,
+    ],
+  );
+  return rows.rows as Candidate[];
+}
+
+interface DeliveryFacts {
+  state: DeliveryState;
+  startedOn: Date | null;
+}
+
+/** The delivery a row names, in our queue (or its archive); 'elsewhere' when that id is another namespace's. */
+async function deliveryOf(boss: PgBoss, trx: Knex.Transaction, row: JobRow): Promise<DeliveryFacts | null | 'elsewhere'> {
+  if (!row.queue_job_id) return null;
+  const found = await boss.getJobById(QUEUE_NAMES[row.kind], row.queue_job_id, { db: queueDb(trx), includeArchive: true });
+  if (found) return { state: found.state as DeliveryState, startedOn: found.startedOn ?? null };
+  const other = await trx.raw(
+    `SELECT 1 FROM pgboss.job WHERE id::text = ? UNION ALL SELECT 1 FROM pgboss.archive WHERE id::text = ? LIMIT 1`,
+    [row.queue_job_id, row.queue_job_id],
+  );
+  return other.rows.length ? 'elsewhere' : null;
+}
+
+const olderThan = (at: Date | null, now: Date, seconds: number) => at !== null && new Date(at).getTime() < now.getTime() - seconds * 1000;
+
+/** What is wrong with this pair now (re-checked under the row's lock), or null when nothing is. */
+function diagnose(row: JobRow, delivery: DeliveryFacts | null, now: Date, stale: number, grace: number): Problem | null {
+  const open = delivery !== null && (delivery.state === 'created' || delivery.state === 'retry' || delivery.state === 'active');
+  if (row.status === 'running') return olderThan(row.heartbeat_at ?? row.updated_at, now, stale) ? 'no heartbeat' : null;
+  if (row.status === 'queued') {
+    if (delivery?.state === 'active') return olderThan(delivery.startedOn, now, stale) ? 'taken, never claimed' : null;
+    return !open && olderThan(row.updated_at, now, grace) ? 'no open delivery' : null;
+  }
+  return delivery?.state === 'active' && olderThan(row.updated_at, now, grace) ? 'final row, open delivery' : null;
+}
+
+async function repairOne(boss: PgBoss, candidate: Candidate, options: Required<Pick<RepairOptions, 'staleSeconds' | 'graceSeconds'>> & RepairOptions): Promise<RepairResult | null> {
+  const name = QUEUE_NAMES[candidate.kind];
+  return db().transaction(async (trx) => {
+    const row = await trx<JobRow>('jobs').where({ id: candidate.id }).forUpdate().skipLocked().first();
+    if (!row) return null; // a worker or another reaper holds it now
+    const now: Date = options.now ?? (await trx.raw('SELECT now() AS t')).rows[0].t;
+    const found = await deliveryOf(boss, trx, row);
+    // A namespaced worker (a test's) leaves jobs delivered through other namespaces to their own workers,
+    // and jobs with no delivery at all unless they were named to it.
+    if (found === 'elsewhere') return null;
+    if (found === null && queuePrefix() && !options.jobIds?.includes(row.id)) return null;
+    let delivery = found;
+    const problem = diagnose(row, delivery, now, options.staleSeconds, options.graceSeconds);
+    if (!problem) return null;
+    const q = queueDb(trx);
+
+    if (problem === 'final row, open delivery') {
+      await boss.complete(name, row.queue_job_id!, { repaired: `the job was already ${row.status}` }, { db: q });
+      return { jobId: row.id, problem, repair: 'delivery completed' as Repair };
+    }
+
+    if (delivery?.state === 'active') {
+      // The attempt that held it is gone: the queue counts it as a failed try and schedules the retry.
+      await boss.fail(name, row.queue_job_id!, { reason: 'the worker running this job stopped responding' }, { db: q });
+      await crashPoint(options.crash, 'repair:delivery-failed-in-transaction', row.id);
+      const after = await boss.getJobById(name, row.queue_job_id!, { db: q, includeArchive: false });
+      delivery = after ? { state: after.state as DeliveryState, startedOn: after.startedOn ?? null } : null;
+    }
+
+    const why = problem === 'no open delivery' ? 'its queue delivery was closed' : 'the worker running this job stopped responding';
+    let repair: Repair;
+    if (delivery && (delivery.state === 'created' || delivery.state === 'retry')) {
+      await trx('jobs')
+        .where({ id: row.id })
+        .update({ status: 'queued', stage: `Waiting for a worker (${why})`, heartbeat_at: null, worker: null, updated_at: trx.fn.now() });
+      repair = 'handed back';
+    } else if (delivery?.state === 'failed' || row.attempts > RETRY_LIMIT) {
+      await trx('jobs').where({ id: row.id }).update({
+        status: 'failed',
+        error: `${why}, and it has been tried ${row.attempts} times`,
+        heartbeat_at: null,
+        worker: null,
+        finished_at: trx.fn.now(),
+        updated_at: trx.fn.now(),
+      });
+      repair = 'failed';
+    } else {
+      // Completed by an attempt that no longer owned the row, cancelled, or never sent: deliver afresh.
+      const queueId = randomUUID();
+      await sendDelivery(boss, trx, row.kind, row.id, queueId);
+      await crashPoint(options.crash, 'repair:redispatched-in-transaction', row.id);
+      await trx('jobs').where({ id: row.id }).update({
+        status: 'queued',
+        stage: `Waiting for a worker (${why})`,
+        queue_job_id: queueId,
+        heartbeat_at: null,
+        worker: null,
+        updated_at: trx.fn.now(),
+      });
+      repair = 'redelivered';
+    }
+    return { jobId: row.id, problem, repair };
+  });
+}
+
+/** One pass of the repair sweep: finds every job whose row and delivery are out of step and mends each. */
+export async function repairJobs(boss: PgBoss, options: RepairOptions = {}): Promise<RepairResult[]> {
+  const settings = { staleSeconds: staleSeconds(), graceSeconds: GRACE_SECONDS, limit: 200, ...options };
+  const candidates = await findCandidates(settings);
+  const repaired: RepairResult[] = [];
+  for (const candidate of candidates) {
+    const result = await repairOne(boss, candidate, settings);
+    if (!result) continue;
+    repaired.push(result);
+    await crashPoint(options.crash, 'repair:committed', result.jobId);
+  }
+  return repaired;
 }

@@ -1,11 +1,12 @@
-// The worker's loop: take one delivery at a time from the queues (analysis, reduction, input response),
-// run it (runner.ts), and tell the queue how it ended; between deliveries, reap stale jobs (reaper.ts).
+// The worker's loop: take one delivery at a time from the queues (analysis, reduction, input response) and
+// run it (runner.ts, which settles the delivery together with the job's row); every few seconds, repair
+// jobs whose worker died (reaper.ts).
 // Taking a delivery only when a slot is free, rather than subscribing, keeps a busy worker from holding
 // jobs another worker could start now.
 import type PgBoss from 'pg-boss';
-import { runDelivery, releaseRunning, workerName } from './runner';
-import { reapStaleJobs, staleSeconds, sweepUndispatched } from './reaper';
-import { JOB_KINDS, QUEUE_NAMES, queue, type QueueMessage } from './queue';
+import { claimNext, releaseRunning, runClaimed, workerName, type Claimed } from './runner';
+import { repairJobs, staleSeconds } from './reaper';
+import { JOB_KINDS, queue } from './queue';
 
 export interface WorkerOptions {
   /** engine tasks run at once by this process (each in its own thread); default 1 */
@@ -21,29 +22,28 @@ export interface RunningWorker {
   stop(reason?: string): Promise<void>;
 }
 
+/** How often a worker runs the reaper (reaper.ts): the "one reaper period" a dead worker's job may wait beyond the stale limit. */
+export const REAP_EVERY_MS = 5000;
+
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 export async function startWorker(options: WorkerOptions = {}): Promise<RunningWorker> {
   const concurrency = options.concurrency ?? 1;
   const pollMs = options.pollMs ?? 1000;
-  const reapEveryMs = options.reapEveryMs ?? 5000;
+  const reapEveryMs = options.reapEveryMs ?? REAP_EVERY_MS;
   const log = options.log ?? ((line: string) => console.log(`[modeshelf worker ${workerName}] ${line}`));
   const boss: PgBoss = await queue('worker');
   let stopping = false;
   const inFlight = new Set<Promise<void>>();
-  const releasing = new Set<string>();
 
-  const handle = async (kind: (typeof JOB_KINDS)[number], job: PgBoss.JobWithMetadata<QueueMessage>) => {
-    const name = QUEUE_NAMES[kind];
+  const handle = async (claimed: Claimed) => {
     const started = Date.now();
     try {
-      const outcome = await runDelivery({ jobId: job.data.jobId, queueJobId: job.id, retryCount: job.retryCount, retryLimit: job.retryLimit });
-      log(`${kind} job ${job.data.jobId}: ${outcome} after ${((Date.now() - started) / 1000).toFixed(1)} s`);
-      // A superseded attempt's delivery belongs to whoever took the row over (the reaper or a shutdown).
-      if (outcome !== 'superseded' && !releasing.has(job.data.jobId)) await boss.complete(name, job.id);
+      const outcome = await runClaimed(boss, claimed);
+      log(`${claimed.kind} job ${claimed.delivery.jobId}: ${outcome} after ${((Date.now() - started) / 1000).toFixed(1)} s`);
     } catch (err) {
-      log(`${kind} job ${job.data.jobId}: attempt failed (${err instanceof Error ? err.message : String(err)})`);
-      if (!releasing.has(job.data.jobId)) await boss.fail(name, job.id, { message: err instanceof Error ? err.message : String(err) });
+      // Only a lost database connection gets here; the reaper mends the job once the heartbeat stops.
+      log(`${claimed.kind} job ${claimed.delivery.jobId}: ${err instanceof Error ? err.message : String(err)}`);
     }
   };
 
@@ -58,15 +58,19 @@ export async function startWorker(options: WorkerOptions = {}): Promise<RunningW
       for (let k = 0; k < JOB_KINDS.length && !stopping; k++) {
         // Start each round at the next queue, so a long line of one kind does not starve the others.
         const kind = JOB_KINDS[(next + k) % JOB_KINDS.length];
-        const [job] = await boss.fetch<QueueMessage>(QUEUE_NAMES[kind], { batchSize: 1, includeMetadata: true }).catch((err: unknown) => {
+        const claimed = await claimNext(boss, kind).catch((err: unknown) => {
           log(`fetch from ${kind} failed: ${err instanceof Error ? err.message : String(err)}`);
-          return [] as PgBoss.JobWithMetadata<QueueMessage>[];
+          return null;
         });
-        if (!job) continue;
+        if (!claimed) continue;
         next = (next + k + 1) % JOB_KINDS.length;
-        const p: Promise<void> = handle(kind, job).finally(() => inFlight.delete(p));
-        inFlight.add(p);
         took = true;
+        if (!claimed.row) {
+          log(`${kind} job ${claimed.delivery.jobId}: skipped (already finished)`);
+          break;
+        }
+        const p: Promise<void> = handle(claimed).finally(() => inFlight.delete(p));
+        inFlight.add(p);
         break;
       }
       if (!took) await sleep(pollMs);
@@ -75,9 +79,11 @@ export async function startWorker(options: WorkerOptions = {}): Promise<RunningW
 
   const reap = async () => {
     try {
-      const reaped = await reapStaleJobs(boss, staleSeconds());
-      if (reaped.length) log(`handed back ${reaped.length} job(s) whose worker stopped responding: ${reaped.join(', ')}`);
-      await sweepUndispatched();
+      const repaired = await repairJobs(boss);
+      const handedBack = repaired.filter((r) => r.problem === 'no heartbeat' || r.problem === 'taken, never claimed');
+      if (handedBack.length) log(`handed back ${handedBack.length} job(s) whose worker stopped responding: ${handedBack.map((r) => `${r.jobId} (${r.repair})`).join(', ')}`);
+      const other = repaired.filter((r) => !handedBack.includes(r));
+      if (other.length) log(`repaired ${other.length} job(s): ${other.map((r) => `${r.jobId} (${r.problem}: ${r.repair})`).join(', ')}`);
     } catch (err) {
       log(`reaper: ${err instanceof Error ? err.message : String(err)}`);
     }
@@ -92,11 +98,7 @@ export async function startWorker(options: WorkerOptions = {}): Promise<RunningW
     async stop(reason = 'the worker was stopped') {
       stopping = true;
       clearInterval(reaper);
-      const released = await releaseRunning(reason);
-      for (const r of released) {
-        releasing.add(r.jobId);
-        if (r.queueJobId) await boss.fail(QUEUE_NAMES[r.kind as keyof typeof QUEUE_NAMES], r.queueJobId, { reason });
-      }
+      const released = await releaseRunning(boss, reason);
       await Promise.allSettled([...inFlight]);
       await looping;
       log(`stopped${released.length ? `; handed back ${released.length} running job(s)` : ''}`);
