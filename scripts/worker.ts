@@ -2,30 +2,115 @@
 // and input-response jobs from the queue in PostgreSQL and runs each in a worker thread (lib/jobs). Start
 // as many as the machine's cores allow; they share the queue. Uses DATABASE_URL like the app.
 //
+// One process per worker: scripts/worker.sh execs `node --import tsx scripts/worker.ts`, so this process is
+// the one a supervisor starts and signals. SIGTERM / SIGINT: stop taking jobs, hand the running ones back
+// to the queue (row and delivery together, lib/jobs/runner.ts releaseRunning), exit 0. A second signal
+// during that exits at once (the reaper then mends what was in flight). Started by an npm script
+// (`npm run worker`, `npm start`), the worker also stops when the npm process above it goes away, however
+// it went, so killing what `npm run worker` started never leaves a worker running on its own.
+//
 //   MODESHELF_WORKER_CONCURRENCY   engine tasks at once in this process (default 1)
 //   MODESHELF_JOB_STALE_SECONDS    heartbeat silence after which a running job is handed back (default 60)
+//   MODESHELF_WORKER_WATCH_PARENT  1: stop when the parent process goes; 0: never; unset: when started by npm
+import { readFileSync } from 'node:fs';
 import { closeDb } from '../lib/db';
 import { closeQueue } from '../lib/jobs/queue';
-import { startWorker } from '../lib/jobs/worker-loop';
+import { startWorker, type RunningWorker } from '../lib/jobs/worker-loop';
 import { startNotificationSender } from '../lib/notification-sender';
 
+/** A process's start time (field 22 of /proc/<pid>/stat), so a reused pid is not taken for the same process. */
+function startTimeOf(pid: number): string | null {
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    // The command name (field 2) is in parentheses and may hold spaces: count fields after its ")".
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    return fields[19] ?? null;
+  } catch {
+    return null;
+  }
+}
+
+function parentOf(pid: number): number | null {
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    return Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]) || null;
+  } catch {
+    return null;
+  }
+}
+
+function isNpm(pid: number): boolean {
+  try {
+    // npm sets its process title ("npm run worker"), which replaces its argv: take words, not NUL-separated fields.
+    const words = readFileSync(`/proc/${pid}/cmdline`, 'utf8').split(/[\0 ]/).slice(0, 2);
+    return words.some((w) => /(^|\/)npm(-cli\.js)?$/.test(w));
+  } catch {
+    return false;
+  }
+}
+
+/**
+ * The processes whose end should end this worker: its parent, and when an npm script started it, every
+ * process up to and including that npm (npm runs scripts through `sh -c`, which would otherwise survive
+ * npm and keep the worker alive under no one). Empty when not watching, or where /proc is missing.
+ */
+function watchedAncestors(): { pid: number; started: string }[] {
+  const setting = process.env.MODESHELF_WORKER_WATCH_PARENT;
+  if (setting === '0') return [];
+  const byNpm = Boolean(process.env.npm_lifecycle_event);
+  if (setting !== '1' && !byNpm) return [];
+  const chain: { pid: number; started: string }[] = [];
+  let pid: number | null = process.ppid;
+  for (let depth = 0; pid !== null && pid > 1 && depth < 6; depth++) {
+    const started = startTimeOf(pid);
+    if (started === null) break;
+    chain.push({ pid, started });
+    if (!byNpm || isNpm(pid)) break;
+    pid = parentOf(pid);
+  }
+  // Started by npm but no npm found above (e.g. npx, or npm exec'd away): the parent alone.
+  return byNpm && !chain.some((a) => isNpm(a.pid)) ? chain.slice(0, 1) : chain;
+}
+
 async function main(): Promise<void> {
-  const concurrency = Math.max(1, Number(process.env.MODESHELF_WORKER_CONCURRENCY) || 1);
-  const worker = await startWorker({ concurrency });
-  // Review and project mail: retries, and notices for source versions registered by any process.
-  const stopNotifications = startNotificationSender();
+  let worker: RunningWorker | null = null;
+  let stopNotifications: (() => Promise<void>) | null = null;
   let stopping = false;
-  const stop = async (signal: string) => {
-    if (stopping) return;
+  const stop = async (why: string, repeated: 'exit' | 'ignore' = 'exit') => {
+    if (stopping) {
+      if (repeated === 'ignore') return;
+      console.log(`[modeshelf worker] ${why} again: exiting now`);
+      process.exit(1);
+    }
     stopping = true;
-    await worker.stop(`the worker got ${signal}`);
-    await stopNotifications();
+    // Before the worker is ready nothing is claimed yet; whatever transaction is open rolls back as we go.
+    if (!worker) process.exit(0);
+    await worker.stop(`the worker got ${why}`);
+    await stopNotifications?.();
     await closeQueue();
     await closeDb();
     process.exit(0);
   };
   process.on('SIGTERM', () => void stop('SIGTERM'));
   process.on('SIGINT', () => void stop('SIGINT'));
+  process.on('SIGHUP', () => void stop('SIGHUP'));
+
+  const ancestors = watchedAncestors();
+  if (ancestors.length) {
+    const watch = setInterval(() => {
+      const gone = ancestors.find((a) => startTimeOf(a.pid) !== a.started);
+      if (gone) {
+        clearInterval(watch);
+        void stop(`no parent (process ${gone.pid} ended)`, 'ignore');
+      }
+    }, 500);
+    watch.unref();
+  }
+
+  const concurrency = Math.max(1, Number(process.env.MODESHELF_WORKER_CONCURRENCY) || 1);
+  worker = await startWorker({ concurrency });
+  // Review and project mail: retries, and notices for source versions registered by any process.
+  stopNotifications = startNotificationSender();
 }
 
 main().catch((err) => {
