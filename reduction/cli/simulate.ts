@@ -32,7 +32,7 @@ registerVerb({
   options: {
     input: { value: true, description: 'step, impulse, or a CSV file: time, then one column per input (held between samples)' },
     't-end': { value: true, description: 'end time (the simulation starts at 0)' },
-    solver: { value: true, description: 'exact (zero-order hold), explicit (Dormand–Prince 5(4)), stiff (TR-BDF2) or auto (default)' },
+    solver: { value: true, description: 'exact (zero-order hold), explicit (Dormand–Prince 5(4)), stiff (variable-order NDF/BDF 1–5; TR-BDF2 at a fixed step) or auto (default)' },
     rtol: { value: true, description: 'relative tolerance of the adaptive solvers (default 1e-6)' },
     atol: { value: true, description: 'absolute tolerance of the adaptive solvers (default 1e-9)' },
     points: { value: true, description: 'number of output points on a uniform grid over [0, T] (default 201)' },

@@ -25,6 +25,13 @@ Requests:
   {"op": "solve_ivp", "A","B","C", "u": [..], "t_end", "t_eval": [..], "method": "RK45"|"BDF",
    "rtol", "atol"}
       -> {"y", "nfev", "njev", "nlu", "seconds"} scipy.integrate.solve_ivp with the constant Jacobian A
+  {"op": "step_counts", "A","B","u": [..], "t_end", "methods": ["RK45","BDF","Radau"], "rtols": [..],
+   "atol" or "atol_factor", "x0" (optional, zeros by default)}
+      -> {"counts": {method: [{"rtol", "atol", "steps", "nfev", "nlu", "status"} per rtol]}}
+                                             accepted steps of scipy.integrate.solve_ivp from x0 (no
+                                             t_eval, so sol.t holds every step: steps = len(sol.t) - 1),
+                                             with the constant Jacobian A for BDF and Radau; atol is
+                                             fixed, or rtol * atol_factor
 """
 import json
 import os
@@ -75,7 +82,40 @@ BENCH = {
     "exact-step": (10.0, 2000, None),
     "explicit-stiff": (4.0, 201, "RK45"),
     "stiff-stiff": (4.0, 201, "BDF"),
+    "stiff-steps": (4.0, 201, "BDF"),
 }
+
+# The tolerances of the step-count case (atol = rtol * 1e-3), issue 15.
+STEP_RTOLS = [1e-3, 1e-4, 1e-5, 1e-6, 1e-7, 1e-8]
+
+
+def stiff_steps(a, b, t_end, out, timed):
+    """The "stiff-steps" case: accepted steps of solve_ivp BDF and Radau (jac=A; no t_eval, so sol.t holds
+    every step) at each tolerance of STEP_RTOLS, written to ref_stats.json; the time is the BDF runs over
+    all tolerances (best of three, fewer when they pass 10 s in all)."""
+    n = a.shape[0]
+    bu = b[:, 0]
+
+    def run(method, rtol):
+        return scipy.integrate.solve_ivp(lambda _t, x: a @ x + bu, (0.0, t_end), np.zeros(n), method=method,
+                                         rtol=rtol, atol=rtol * 1e-3, jac=a)
+
+    if not timed:
+        return None
+    runs = []
+    while True:
+        t0 = time.perf_counter()
+        bdf = [run("BDF", rtol) for rtol in STEP_RTOLS]
+        runs.append(time.perf_counter() - t0)
+        if len(runs) >= 3 or sum(runs) > 10.0:
+            break
+    radau = [run("Radau", rtol) for rtol in STEP_RTOLS]
+    stats = {"rtols": STEP_RTOLS,
+             "BDF": [int(len(s.t) - 1) for s in bdf], "Radau": [int(len(s.t) - 1) for s in radau],
+             "BDFnlu": [int(s.nlu) for s in bdf], "Radaunlu": [int(s.nlu) for s in radau]}
+    with open(os.path.join(out, "ref_stats.json"), "w") as f:
+        json.dump(stats, f)
+    return min(runs)
 
 
 def bench(case, n, out, timed):
@@ -89,6 +129,9 @@ def bench(case, n, out, timed):
         np.save(os.path.join(out, name + ".npy"), m)
     seconds = None
     stats = {}
+    if case == "stiff-steps":
+        seconds = stiff_steps(a, b, t_end, out, timed)
+        timed = False
     if timed:
         runs = []
         while True:
@@ -124,6 +167,7 @@ def bench(case, n, out, timed):
     print(json.dumps({"case": case, "n": n, "seconds": seconds,
                       "peakRssKb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
                       "method": "scipy.linalg.expm + numpy recursion" if method is None
+                      else "scipy.integrate.solve_ivp BDF and Radau, step counts" if case == "stiff-steps"
                       else "scipy.integrate.solve_ivp " + method}))
 
 
@@ -217,6 +261,23 @@ def main():
         out = {"y": y.tolist() if req.get("return_y", True) else None, "nfev": int(sol.nfev),
                "njev": int(sol.njev), "nlu": int(sol.nlu), "seconds": seconds,
                "status": int(sol.status)}
+    elif op == "step_counts":
+        A, B, u = arr(req["A"]), arr(req["B"]), arr(req["u"])
+        b = B @ u
+        n = A.shape[0]
+        counts = {}
+        for method in req["methods"]:
+            rows = []
+            for rtol in req["rtols"]:
+                atol = req["atol"] if "atol" in req else rtol * req["atol_factor"]
+                x0 = np.asarray(req.get("x0", np.zeros(n)), dtype=float)
+                sol = scipy.integrate.solve_ivp(lambda t, x: A @ x + b, (0.0, req["t_end"]), x0,
+                                                method=method, rtol=rtol, atol=atol,
+                                                jac=(A if method in ("BDF", "Radau") else None))
+                rows.append({"rtol": rtol, "atol": atol, "steps": int(len(sol.t) - 1), "nfev": int(sol.nfev),
+                             "nlu": int(sol.nlu), "status": int(sol.status)})
+            counts[method] = rows
+        out = {"counts": counts}
     else:
         raise SystemExit("unknown op " + op)
     json.dump(out, sys.stdout)

@@ -1,5 +1,6 @@
 /**
- * The adaptive solvers — Dormand–Prince 5(4) (Dormand & Prince 1980) and TR-BDF2 (Hosea & Shampine
+ * The adaptive solvers — Dormand–Prince 5(4) (Dormand & Prince 1980), the variable-order NDFs
+ * (Shampine & Reichelt 1997; more in bdf.test.ts) and, for fixed steps, TR-BDF2 (Hosea & Shampine
  * 1996) — against the exact zero-order-hold response (itself checked against scipy in simulate.test.ts),
  * their orders, their tolerance behaviour and their cost on stiff and non-stiff models.
  */
@@ -149,8 +150,10 @@ describe('adaptive solvers agree with the exact response within their tolerances
     const input = stepInput(model);
     const exact = simulate(model, input, { tEnd: 5, points: 101, solver: 'exact' });
     // Error-per-step control of a method of order p gives global error ∝ tol^(p/(p+1)) without local
-    // extrapolation (TR-BDF2: 2/3) and ∝ tol with it (Dormand–Prince propagates the higher order).
-    const expected = { explicit: [0.8, 1.2], stiff: [0.55, 0.85] } as const;
+    // extrapolation and ∝ tol with it (Dormand–Prince propagates the higher order). The stiff solver is
+    // the variable-order NDF (bdf.ts): its order rises as the tolerance tightens, so the slope runs from
+    // p/(p+1) of its low orders (2/3 at order 2) towards 1 (measured 0.92 here).
+    const expected = { explicit: [0.8, 1.2], stiff: [0.6, 1.1] } as const;
     for (const solver of ['explicit', 'stiff'] as const) {
       const tols = [1e-3, 1e-5, 1e-7];
       const errs = tols.map((rtol) => maxError(simulate(model, input, { tEnd: 5, points: 101, solver, rtol, atol: rtol * 1e-3 }), exact));
