@@ -2,16 +2,30 @@
  * Frequency response G(jω) = C (jωI − A)⁻¹ B + D on a grid of frequencies, with magnitude, phase and the
  * largest singular value per frequency.
  *
- * Method: the Hessenberg approach of Laub ("Efficient multivariable frequency response computations",
- * IEEE Trans. Automatic Control 26(2), 1981): transform once, A = Q H Qᵀ with H upper Hessenberg and Q
- * orthogonal, so that G(jω) = (CQ)(jωI − H)⁻¹(QᵀB) + D; each frequency then costs one O(n²) complex
- * elimination of the Hessenberg matrix jωI − H (Gaussian elimination with partial pivoting between
- * adjacent rows, which is all the pivoting a Hessenberg matrix needs: Golub & Van Loan, "Matrix
- * Computations", 4th ed. 2013, ch. 4, Hessenberg LU) instead of an O(n³) dense solve.
- *
- * The Hessenberg form itself (Householder reduction) comes from the linear-algebra surface.
+ * Two forms, chosen per model:
+ *   modal       A = V Λ V⁻¹ with Λ real block diagonal (1×1 blocks for real poles, 2×2 for complex
+ *               pairs), so G(jω) = (CV)(jωI − Λ)⁻¹(V⁻¹B) + D costs O(n·m·p) per frequency after one
+ *               eigendecomposition. Its rounding error grows with the condition number κ(V) of the
+ *               eigenvector matrix (Golub & Van Loan, "Matrix Computations", 4th ed. 2013, §7.2.2, the
+ *               Bauer–Fike bound), so it is used only when κ₁(V) ≤ MODAL_CONDITION_LIMIT.
+ *   hessenberg  Laub ("Efficient multivariable frequency response computations", IEEE Trans. Automatic
+ *               Control 26(2), 1981): A = Q H Qᵀ once, then one O(n²) complex elimination of jωI − H per
+ *               frequency (`linalg/hessenberg-solve.ts`), backward stable for any A.
  */
-import { type Matrix, zeros, matmul, svd, transpose, hessenberg } from './linalg/index';
+import {
+  type Matrix,
+  zeros,
+  matmul,
+  svd,
+  transpose,
+  hessenberg,
+  eig,
+  luFactor,
+  luSolve,
+  luReciprocalCondition,
+  norm1,
+  kernels,
+} from './linalg/index';
 import type { StateSpaceModel } from './model';
 
 /** A complex p×m matrix as two real matrices. */
@@ -23,134 +37,16 @@ export interface ComplexMatrix {
 export interface FrequencyEvaluator {
   /** G(jω) for one frequency ω in rad per time unit. */
   at(w: number): ComplexMatrix;
-  /** How each frequency is computed: on a Hessenberg form, or a model without states (G = D). */
-  readonly form: 'hessenberg' | 'static';
+  /** G(jω) at many frequencies at once (the Hessenberg form batches them in one native call). */
+  many(w: ArrayLike<number>): ComplexMatrix[];
+  /** How each frequency is computed: modal form, Hessenberg form, or a model without states (G = D). */
+  readonly form: 'modal' | 'hessenberg' | 'static';
 }
 
 export interface HessenbergForm {
   /** Upper Hessenberg H with A = Q H Qᵀ. */
   readonly H: Matrix;
   readonly Q: Matrix;
-}
-
-/** Work arrays for `solveShiftedHessenberg`, reusable across frequencies of one evaluator. */
-export interface HessenbergWorkspace {
-  readonly mr: Float64Array;
-  readonly mi: Float64Array;
-  readonly xr: Float64Array;
-  readonly xi: Float64Array;
-}
-
-export function hessenbergWorkspace(n: number, m: number): HessenbergWorkspace {
-  return {
-    mr: new Float64Array(n * n),
-    mi: new Float64Array(n * n),
-    xr: new Float64Array(n * m),
-    xi: new Float64Array(n * m),
-  };
-}
-
-/**
- * Solve (jωI − H) X = F for upper Hessenberg H and real right-hand sides F (n×m), by Gaussian elimination
- * with adjacent-row partial pivoting (Golub & Van Loan 2013, ch. 4); O(n²) for the elimination and
- * O(n²·m) for back substitution. Returns X as (re, im), each n×m row-major, in the workspace's arrays
- * (overwritten by the next call with the same workspace).
- */
-export function solveShiftedHessenberg(
-  H: Matrix,
-  w: number,
-  F: Matrix,
-  work: HessenbergWorkspace = hessenbergWorkspace(H.rows, F.cols),
-): { re: Float64Array; im: Float64Array } {
-  const n = H.rows;
-  const m = F.cols;
-  const { mr, mi, xr, xi } = work;
-  const h = H.data;
-  // M = jωI − H on and above the subdiagonal; entries below it are never read.
-  for (let i = 0; i < n; i++) {
-    const row = i * n;
-    for (let j = i === 0 ? 0 : i - 1; j < n; j++) {
-      mr[row + j] = -h[row + j];
-      mi[row + j] = 0;
-    }
-    mi[row + i] = w;
-  }
-  xr.set(F.data);
-  xi.fill(0);
-  for (let k = 0; k < n - 1; k++) {
-    const rk = k * n;
-    const rs = rk + n;
-    if (Math.abs(mr[rs + k]) + Math.abs(mi[rs + k]) > Math.abs(mr[rk + k]) + Math.abs(mi[rk + k])) {
-      for (let j = k; j < n; j++) {
-        let t = mr[rk + j];
-        mr[rk + j] = mr[rs + j];
-        mr[rs + j] = t;
-        t = mi[rk + j];
-        mi[rk + j] = mi[rs + j];
-        mi[rs + j] = t;
-      }
-      for (let j = 0; j < m; j++) {
-        const a = k * m + j;
-        const b = a + m;
-        let t = xr[a];
-        xr[a] = xr[b];
-        xr[b] = t;
-        t = xi[a];
-        xi[a] = xi[b];
-        xi[b] = t;
-      }
-    }
-    const sr = mr[rs + k];
-    const si = mi[rs + k];
-    if (sr === 0 && si === 0) continue;
-    // l = M[k+1][k] / M[k][k]
-    const pr = mr[rk + k];
-    const pi = mi[rk + k];
-    const den = pr * pr + pi * pi;
-    const lr = (sr * pr + si * pi) / den;
-    const li = (si * pr - sr * pi) / den;
-    mr[rs + k] = 0;
-    mi[rs + k] = 0;
-    for (let j = k + 1; j < n; j++) {
-      const ar = mr[rk + j];
-      const ai = mi[rk + j];
-      mr[rs + j] -= lr * ar - li * ai;
-      mi[rs + j] -= lr * ai + li * ar;
-    }
-    for (let j = 0; j < m; j++) {
-      const a = k * m + j;
-      const ar = xr[a];
-      const ai = xi[a];
-      xr[a + m] -= lr * ar - li * ai;
-      xi[a + m] -= lr * ai + li * ar;
-    }
-  }
-  // Back substitution row by row: x_i = (f_i − Σ_{k>i} M_ik x_k) / M_ii, all m columns at once.
-  for (let i = n - 1; i >= 0; i--) {
-    const row = i * n;
-    const xo = i * m;
-    for (let k = i + 1; k < n; k++) {
-      const ar = mr[row + k];
-      const ai = mi[row + k];
-      const ko = k * m;
-      for (let j = 0; j < m; j++) {
-        const yr = xr[ko + j];
-        const yi = xi[ko + j];
-        xr[xo + j] -= ar * yr - ai * yi;
-        xi[xo + j] -= ar * yi + ai * yr;
-      }
-    }
-    const dr = mr[row + i];
-    const di = mi[row + i];
-    const den = dr * dr + di * di;
-    for (let j = 0; j < m; j++) {
-      const sr = xr[xo + j];
-      const si = xi[xo + j];
-      xr[xo + j] = (sr * dr + si * di) / den;
-      xi[xo + j] = (si * dr - sr * di) / den;
-    }
-  }
-  return { re: xr, im: xi };
 }
 
 /** Y = C·X + D for complex X given as (re, im) n×m arrays. */
@@ -174,26 +70,121 @@ function outputMap(C: Matrix, D: Matrix, xr: Float64Array, xi: Float64Array): Co
   return { re, im };
 }
 
+function unpack(re: Float64Array, im: Float64Array, count: number, p: number, m: number): ComplexMatrix[] {
+  const out: ComplexMatrix[] = [];
+  for (let f = 0; f < count; f++) {
+    const o = f * p * m;
+    out.push({
+      re: { rows: p, cols: m, data: re.slice(o, o + p * m) },
+      im: { rows: p, cols: m, data: im.slice(o, o + p * m) },
+    });
+  }
+  return out;
+}
+
 /** An evaluator on a given Hessenberg form A = Q H Qᵀ: the per-frequency work is O(n²·m). */
 export function hessenbergEvaluator(model: StateSpaceModel, form: HessenbergForm): FrequencyEvaluator {
   const Qt = transpose(form.Q);
   const F = matmul(Qt, model.B);
   const CQ = matmul(model.C, form.Q);
-  const work = hessenbergWorkspace(form.H.rows, F.cols);
-  return {
-    form: 'hessenberg',
-    at(w: number): ComplexMatrix {
-      const x = solveShiftedHessenberg(form.H, w, F, work);
-      return outputMap(CQ, model.D, x.re, x.im);
-    },
+  const p = model.C.rows, m = model.B.cols;
+  const many = (w: ArrayLike<number>): ComplexMatrix[] => {
+    const ws = Float64Array.from(w);
+    const r = kernels().hessenbergResponse(form.H, F, CQ, model.D, ws);
+    return unpack(r.re, r.im, ws.length, p, m);
   };
+  return { form: 'hessenberg', many, at: (w: number) => many([w])[0] };
 }
 
-/** The evaluator for a model: a one-time transform, then cheap evaluations at any frequency. */
-export function frequencyEvaluator(model: StateSpaceModel): FrequencyEvaluator {
+/**
+ * κ₁(V) above which the modal form is not used where small differences of responses matter (norms,
+ * error systems): with κ ≤ 10⁴ the modal response keeps about twelve significant digits of ‖G‖
+ * (common practice, from the Bauer–Fike bound κ·ε).
+ */
+export const MODAL_CONDITION_LIMIT = 1e4;
+
+/**
+ * The looser limit for response curves (`frequencyResponse`): κ ≤ 10¹⁰ still leaves about six
+ * significant digits of ‖G‖ (a thousandth of a decibel), beyond what a Bode or singular-value plot or a
+ * tabulated response needs (common practice); past it the Hessenberg form is used.
+ */
+export const RESPONSE_CONDITION_LIMIT = 1e10;
+
+/**
+ * The modal evaluator, or null when A's eigenvector matrix is too ill-conditioned (κ₁(V) above `limit`,
+ * e.g. a defective or nearly defective A) for the modal form to be accurate.
+ */
+export function modalEvaluator(model: StateSpaceModel, limit = MODAL_CONDITION_LIMIT): FrequencyEvaluator | null {
+  const n = model.A.rows;
+  const p = model.C.rows, m = model.B.cols;
+  const { values, vectors } = eig(model.A);
+  const f = luFactor(vectors);
+  if (f.zeroPivot >= 0) return null;
+  const rcond = luReciprocalCondition(f, norm1(vectors));
+  if (!(rcond * limit >= 1)) return null;
+  // Real block-diagonal modal form: for a pair λ = a ± ib with vector x ± iy, A·[x y] = [x y]·[[a, b], [−b, a]].
+  const VB = luSolve(f, model.B);
+  const CV = matmul(model.C, vectors);
+  const re = values.re, im = values.im;
+  const many = (w: ArrayLike<number>): ComplexMatrix[] => {
+    const out: ComplexMatrix[] = [];
+    // Per mode k: the m-vector coefficients z_k (complex) that multiply column k of CV.
+    const zr = new Float64Array(n * m), zi = new Float64Array(n * m);
+    for (let f2 = 0; f2 < w.length; f2++) {
+      const wk = w[f2];
+      for (let k = 0; k < n; k++) {
+        if (im[k] > 0 && k + 1 < n) {
+          // (jωI − M)⁻¹ for M = [[a, b], [−b, a]]: with s = jω − a, (s² + b²)⁻¹·[[s, b], [−b, s]].
+          const a = re[k], b = im[k];
+          const sr = -a, si = wk;
+          const dr = sr * sr - si * si + b * b, di = 2 * sr * si;
+          const den = dr * dr + di * di;
+          const ir = dr / den, ii = -di / den; // 1/(s² + b²)
+          const pr = sr * ir - si * ii, pi = sr * ii + si * ir; // s/(s² + b²)
+          const qr = b * ir, qi = b * ii; // b/(s² + b²)
+          for (let j = 0; j < m; j++) {
+            const u = VB.data[k * m + j], v = VB.data[(k + 1) * m + j];
+            zr[k * m + j] = pr * u + qr * v;
+            zi[k * m + j] = pi * u + qi * v;
+            zr[(k + 1) * m + j] = -qr * u + pr * v;
+            zi[(k + 1) * m + j] = -qi * u + pi * v;
+          }
+          k++;
+        } else {
+          // 1/(jω − λ) for a real λ.
+          const sr = -re[k], si = wk;
+          const den = sr * sr + si * si;
+          const ir = sr / den, ii = -si / den;
+          for (let j = 0; j < m; j++) {
+            const u = VB.data[k * m + j];
+            zr[k * m + j] = ir * u;
+            zi[k * m + j] = ii * u;
+          }
+        }
+      }
+      out.push(outputMap(CV, model.D, zr, zi));
+    }
+    return out;
+  };
+  return { form: 'modal', many, at: (w: number) => many([w])[0] };
+}
+
+/**
+ * The evaluator for a model: a one-time transform, then cheap evaluations at any frequency. The modal
+ * form where it is accurate (see MODAL_CONDITION_LIMIT), the Hessenberg form otherwise or on request.
+ */
+export function frequencyEvaluator(
+  model: StateSpaceModel,
+  options: { form?: 'modal' | 'hessenberg'; conditionLimit?: number } = {},
+): FrequencyEvaluator {
   if (model.A.rows === 0) {
     const im = zeros(model.D.rows, model.D.cols);
-    return { form: 'static', at: () => ({ re: model.D, im }) };
+    const at = () => ({ re: model.D, im });
+    return { form: 'static', at, many: (w) => Array.from({ length: w.length }, at) };
+  }
+  if (options.form !== 'hessenberg') {
+    const modal = modalEvaluator(model, options.form === 'modal' ? Infinity : (options.conditionLimit ?? MODAL_CONDITION_LIMIT));
+    if (modal) return modal;
   }
   return hessenbergEvaluator(model, hessenberg(model.A));
 }
@@ -206,9 +197,8 @@ export interface FrequencyResponse {
 }
 
 export function frequencyResponse(model: StateSpaceModel, w: ArrayLike<number>): FrequencyResponse {
-  const evaluator = frequencyEvaluator(model);
   const freqs = Float64Array.from(w);
-  return { w: freqs, H: Array.from(freqs, (wk) => evaluator.at(wk)) };
+  return { w: freqs, H: frequencyEvaluator(model, { conditionLimit: RESPONSE_CONDITION_LIMIT }).many(freqs) };
 }
 
 /** `points` frequencies spaced evenly in log10 from wMin to wMax inclusive. */

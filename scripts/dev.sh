@@ -11,6 +11,7 @@ export APP_URL="${APP_URL:-$NEXTAUTH_URL}"
 export NEXT_TELEMETRY_DISABLED=1
 
 ensure_node_modules
+ensure_native_addon
 ensure_auth_secret
 if [ -z "${DATABASE_URL:-}" ]; then
   bash scripts/pg.sh start

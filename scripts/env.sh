@@ -73,6 +73,32 @@ ensure_node_modules() {
   fi
 }
 
+# The native backend's build needs a C++ compiler and the development files of OpenBLAS, LAPACKE and
+# SuiteSparse (UMFPACK, CHOLMOD, AMD, COLAMD): Debian's packages, installed when a header is missing.
+ensure_native_build_packages() {
+  local missing=()
+  command -v g++ >/dev/null && command -v make >/dev/null || missing+=(build-essential)
+  [ -f /usr/include/suitesparse/umfpack.h ] && [ -f /usr/include/suitesparse/cholmod.h ] || missing+=(libsuitesparse-dev)
+  [ -f /usr/include/lapacke.h ] || missing+=(liblapacke-dev)
+  if ! compgen -G '/usr/lib/*/libopenblas.so' >/dev/null || ! compgen -G '/usr/include/*/cblas.h' >/dev/null; then missing+=(libopenblas-dev); fi
+  if [ "${#missing[@]}" -gt 0 ]; then apt_install "${missing[@]}"; fi
+}
+
+# The folder whose include/node holds Node's C headers, for node-gyp's --nodedir (no header download).
+node_header_dir() {
+  local prefix
+  prefix="$(dirname "$(dirname "$(readlink -f "$(command -v node)")")")"
+  for d in "$prefix" /usr /usr/local; do
+    if [ -f "$d/include/node/node_api.h" ] && [ -f "$d/include/node/common.gypi" ]; then echo "$d"; return 0; fi
+  done
+  return 1
+}
+
+# Builds the native addon when it is missing or older than its sources (scripts/build-native.sh).
+ensure_native_addon() {
+  bash "$REPO_ROOT/scripts/build-native.sh" || die "the native backend could not be built"
+}
+
 # The session secret signs next-auth's JWTs. Generated once per checkout, kept in .run/ (git-ignored).
 ensure_auth_secret() {
   if [ -z "${NEXTAUTH_SECRET:-}" ]; then

@@ -18,6 +18,7 @@ export APP_URL="${APP_URL:-$NEXTAUTH_URL}"
 export NEXT_TELEMETRY_DISABLED=1
 
 ensure_node_modules
+ensure_native_addon
 ensure_auth_secret
 
 if [ -n "${DATABASE_URL:-}" ]; then

@@ -29,6 +29,7 @@ mkdir -p "$TEST_LOG_DIR" "$REPO_ROOT/test-output"
 
 set -e
 ensure_node_modules
+ensure_native_addon
 ensure_python_reference_installed
 ensure_chromium_installed
 set +e

@@ -1,26 +1,20 @@
 /**
  * The engine's dense linear-algebra surface. Everything in `reduction/` outside `linalg/` calls these
- * functions and nothing else for dense kernels, so a kernel can be replaced by a faster one without
- * touching the methods that use it.
- *
- * The kernels are typed-array implementations, one algorithm per file (`gemm.ts`, `lu.ts`,
- * `hessenberg.ts`, `schur.ts`, `lyapunov.ts`, `svd.ts`, …), each citing its paper. Contracts (argument
- * order, shapes, what is returned) do not change when a kernel is replaced.
+ * functions and nothing else for dense kernels. Each one asks the active backend (`kernels.ts`: the
+ * native LAPACK/BLAS addon by default, the portable TypeScript/WebAssembly kernels otherwise) and does
+ * not care who serves it; the algorithms built on the kernels (the sign-function Lyapunov solvers,
+ * Bartels–Stewart, the matrix exponential) are written once, above the interface.
+ * Contracts (argument order, shapes, what is returned) are the same for both backends.
  */
-import type { Matrix, ComplexVector } from './matrix';
-import { multiply } from './gemm';
-import { solve as luSolveMatrix, inverse as luInverseMatrix } from './lu';
-import { eigenvalues as schurEigenvalues, eig as schurEig } from './schur';
+import { type Matrix, type ComplexVector, zeros } from './matrix';
+import type { LuFactorization } from './lu';
+import { kernels } from './kernels';
 import { lyapunov as signLyapunov } from './lyapunov';
-import { svd as gkSvd } from './svd';
-import { symmetricEig as qlSymmetricEig } from './symmetric-eig';
-import { cholesky as rowCholesky } from './cholesky';
+import { linalgThreads } from './parallel';
 
 export * from './matrix';
-export { gemm, multiply, multiplyTransposeA, multiplyTransposeB } from './gemm';
-export { luFactor, luSolve, luInverse, luLogDeterminant, type LuFactorization } from './lu';
-export { hessenberg } from './hessenberg';
-export { schur, triangularEigenvectors, standardise2x2 } from './schur';
+export { luLogDeterminant, type LuFactorization } from './lu';
+export { standardise2x2 } from './schur';
 export {
   lyapunovFactor,
   lowRankGramianFactors,
@@ -28,32 +22,92 @@ export {
   type SignIterationOptions,
   type SignIterationReport,
 } from './lyapunov';
-export { setLinalgThreads, linalgThreads } from './parallel';
-export { qr, pivotedQr, orthonormalBasis } from './qr';
-export { singularValues } from './svd';
-export { symmetricEigenvalues } from './symmetric-eig';
+export { linalgThreads } from './parallel';
 export { sylvester, lyapunovBartelsStewart } from './sylvester';
-export { pivotedCholesky } from './cholesky';
 export { balance } from './balance';
+export { kernels, linalgBackendReport, useLinalgBackend, type DenseKernels } from './kernels';
 
-/** C = A·B (blocked, packed product; see `gemm.ts`). */
+/** Sets the dense kernels' thread count (BLAS threads for the native backend, 1 or 2 for the portable one). */
+export function setLinalgThreads(threads: number): void {
+  kernels().setThreads(threads);
+}
+
+/** C ← α·op(A)·op(B) + β·C on row-major arrays with offsets and leading dimensions (BLAS dgemm). */
+export function gemm(
+  transposeA: boolean, transposeB: boolean, m: number, n: number, k: number, alpha: number,
+  a: Float64Array, offsetA: number, lda: number, b: Float64Array, offsetB: number, ldb: number,
+  beta: number, c: Float64Array, offsetC: number, ldc: number,
+): void {
+  kernels().gemm(transposeA, transposeB, m, n, k, alpha, a, offsetA, lda, b, offsetB, ldb, beta, c, offsetC, ldc);
+}
+
+function product(a: Matrix, b: Matrix, ta: boolean, tb: boolean): Matrix {
+  const m = ta ? a.cols : a.rows, k = ta ? a.rows : a.cols;
+  const kb = tb ? b.cols : b.rows, n = tb ? b.rows : b.cols;
+  if (k !== kb) throw new Error(`matmul: ${ta ? 'Aᵀ' : 'A'} is ${m}×${k}, ${tb ? 'Bᵀ' : 'B'} is ${kb}×${n}`);
+  const c = zeros(m, n);
+  if (m > 0 && n > 0) kernels().gemm(ta, tb, m, n, k, 1, a.data, 0, a.cols, b.data, 0, b.cols, 0, c.data, 0, n);
+  return c;
+}
+
+/** C = A·B. */
+export function multiply(a: Matrix, b: Matrix): Matrix {
+  return product(a, b, false, false);
+}
+/** C = Aᵀ·B. */
+export function multiplyTransposeA(a: Matrix, b: Matrix): Matrix {
+  return product(a, b, true, false);
+}
+/** C = A·Bᵀ. */
+export function multiplyTransposeB(a: Matrix, b: Matrix): Matrix {
+  return product(a, b, false, true);
+}
+/** C = A·B (the engine's usual name). */
 export function matmul(a: Matrix, b: Matrix): Matrix {
-  if (a.cols !== b.rows) throw new Error(`matmul: ${a.rows}×${a.cols} times ${b.rows}×${b.cols}`);
-  return multiply(a, b);
+  return product(a, b, false, false);
+}
+
+/** P·A = L·U with partial pivoting; never throws for a singular A (see `LuFactorization.zeroPivot`). */
+export function luFactor(a: Matrix): LuFactorization {
+  return kernels().luFactor(a);
+}
+/** X with A·X = B from a factorisation of A; throws when A is singular. */
+export function luSolve(f: LuFactorization, b: Matrix): Matrix {
+  return kernels().luSolve(f, b);
+}
+/** A⁻¹ from a factorisation of A; throws when A is singular. */
+export function luInverse(f: LuFactorization): Matrix {
+  return kernels().luInverse(f);
+}
+/** An estimate of 1/κ₁(A) from A's factorisation and ‖A‖₁ (0 for a singular A). */
+export function luReciprocalCondition(f: LuFactorization, norm1: number): number {
+  return kernels().luReciprocalCondition(f, norm1);
 }
 
 /** Solution X of A·X = B for square nonsingular A. Throws when A is numerically singular. */
 export function solve(a: Matrix, b: Matrix): Matrix {
-  return luSolveMatrix(a, b);
+  if (a.rows !== a.cols) throw new Error(`solve: matrix must be square, got ${a.rows}×${a.cols}`);
+  return luSolve(luFactor(a), b);
 }
 
 export function inverse(a: Matrix): Matrix {
-  return luInverseMatrix(a);
+  if (a.rows !== a.cols) throw new Error(`inverse: matrix must be square, got ${a.rows}×${a.cols}`);
+  return luInverse(luFactor(a));
 }
 
-/** Eigenvalues of a general real square matrix (balancing, Hessenberg, Francis double-shift QR: `schur.ts`). */
+/** Upper Hessenberg H and orthogonal Q with A = Q·H·Qᵀ. */
+export function hessenberg(a: Matrix): { H: Matrix; Q: Matrix } {
+  return kernels().hessenberg(a);
+}
+
+/** Real Schur form A = Z·T·Zᵀ, T quasi-upper-triangular with standardised 2×2 blocks. */
+export function schur(a: Matrix): { T: Matrix; Z: Matrix; values: ComplexVector } {
+  return kernels().schur(a);
+}
+
+/** Eigenvalues of a general real square matrix (complex pairs consecutive, positive imaginary part first). */
 export function eigenvalues(a: Matrix): ComplexVector {
-  return schurEigenvalues(a);
+  return kernels().eigenvalues(a);
 }
 
 /**
@@ -62,22 +116,52 @@ export function eigenvalues(a: Matrix): ComplexVector {
  * eigenvector of values[j]; the conjugate vector belongs to values[j+1]. Each vector has unit 2-norm.
  */
 export function eig(a: Matrix): { values: ComplexVector; vectors: Matrix } {
-  return schurEig(a);
+  return kernels().eig(a);
 }
 
-/** Thin SVD A = U·diag(s)·Vᵀ with s descending (Golub–Kahan–Reinsch, `svd.ts`). */
+/** Thin SVD A = U·diag(s)·Vᵀ with s descending. */
 export function svd(a: Matrix): { U: Matrix; s: Float64Array; V: Matrix } {
-  return gkSvd(a);
+  return kernels().svd(a);
 }
 
-/** Eigen-decomposition of a symmetric matrix, eigenvalues ascending, orthonormal vectors in columns. */
+/** Singular values only, descending. */
+export function singularValues(a: Matrix): Float64Array {
+  return kernels().singularValues(a);
+}
+
+/** Eigen-decomposition of a symmetric matrix (lower triangle read), eigenvalues ascending, orthonormal vectors in columns. */
 export function symmetricEig(a: Matrix): { values: Float64Array; vectors: Matrix } {
-  return qlSymmetricEig(a);
+  return kernels().symmetricEig(a);
+}
+
+/** Eigenvalues of a symmetric matrix, ascending. */
+export function symmetricEigenvalues(a: Matrix): Float64Array {
+  return kernels().symmetricEigenvalues(a);
 }
 
 /** Lower-triangular L with A = L·Lᵀ; throws when A is not numerically positive definite. */
 export function cholesky(a: Matrix): Matrix {
-  return rowCholesky(a);
+  return kernels().cholesky(a);
+}
+
+/** F (n×r) with X ≈ F·Fᵀ for a positive semidefinite X, by Cholesky with diagonal pivoting (stops at tol²·max diag X). */
+export function pivotedCholesky(x: Matrix, tol: number): Matrix {
+  return kernels().pivotedCholesky(x, tol);
+}
+
+/** Thin QR: A (m×n) = Q·R, Q m×k with orthonormal columns, R k×n upper triangular, k = min(m, n). */
+export function qr(a: Matrix): { Q: Matrix; R: Matrix } {
+  return kernels().qr(a);
+}
+
+/** QR with column pivoting truncated at the numerical rank (see qr.ts for the contract). */
+export function pivotedQr(a: Matrix, tolerance?: number): { Q: Matrix; R: Matrix; perm: Int32Array; rank: number } {
+  return kernels().pivotedQr(a, tolerance);
+}
+
+/** Orthonormal basis (m×r, r the numerical rank) of the range of A. */
+export function orthonormalBasis(a: Matrix, tolerance?: number): Matrix {
+  return pivotedQr(a, tolerance).Q;
 }
 
 /**
@@ -86,4 +170,9 @@ export function cholesky(a: Matrix): Matrix {
  */
 export function lyapunov(a: Matrix, q: Matrix): Matrix {
   return signLyapunov(a, q);
+}
+
+/** How many threads the kernels use now. */
+export function kernelThreads(): number {
+  return linalgThreads();
 }

@@ -22,11 +22,11 @@
  * pivoted Cholesky (`cholesky.ts`), which handles semidefinite gramians just as safely.
  */
 import { type Matrix, zeros } from './matrix';
-import { gemm } from './gemm';
-import { luFactor, luInverse, luLogDeterminant } from './lu';
-import { sharedFloat64, sharedInt32, pairOnWorker } from './parallel';
-import { pivotedQrOfRows } from './qr';
-import { pivotedCholesky } from './cholesky';
+import { luLogDeterminant } from './lu';
+import { sharedFloat64, sharedInt32 } from './parallel';
+import { kernels } from './kernels';
+
+const gemm: (...args: Parameters<ReturnType<typeof kernels>['gemm']>) => void = (...args) => kernels().gemm(...args);
 
 export interface SignIterationOptions {
   /** Stop when ‖A_k + I‖_F ≤ tolerance·√n (A_k → −I); default 1e-12. */
@@ -77,7 +77,7 @@ function signIteration(
   let distance = Infinity;
   for (let it = 1; it <= maxIt; it++) {
     const previous = distance;
-    const f = luFactor(ak);
+    const f = kernels().luFactor(ak);
     if (f.zeroPivot >= 0) {
       throw new Error(`${what}: A has an eigenvalue at zero (or the iteration met a singular iterate); the equation needs A stable`);
     }
@@ -87,7 +87,7 @@ function signIteration(
       c = Math.exp(-logAbs / n);
       if (!Number.isFinite(c) || c <= 0) c = 1;
     }
-    const inv = luInverse(f).data;
+    const inv = kernels().luInverse(f).data;
     step(inv, c);
     const next = sharedFloat64(n * n);
     const half = 0.5 * c, halfInv = 0.5 / c;
@@ -175,7 +175,7 @@ export function compressFactor(g: Float64Array, n: number, w: number, tol: numbe
   const work = sharedFloat64(n * w);
   work.set(g.subarray(0, n * w));
   const perm = new Int32Array(n);
-  const rank = pivotedQrOfRows(work, n, w, tol, perm);
+  const rank = kernels().pivotedQrOfRows(work, n, w, tol, perm);
   return unpermute(work, n, w, rank, perm);
 }
 
@@ -186,10 +186,7 @@ export function compressFactor(g: Float64Array, n: number, w: number, tol: numbe
 function compressPair(a: { g: Float64Array; w: number }, b: { g: Float64Array; w: number }, n: number, tol: number): [Factor, Factor] {
   const pa = new Int32Array(n);
   const pb = sharedInt32(n);
-  const ranks = pairOnWorker(
-    () => pivotedQrOfRows(a.g, n, a.w, tol, pa),
-    { kind: 'pivotedQrOfRows', work: b.g, n, w: b.w, tol, perm: pb },
-  );
+  const ranks = kernels().pivotedQrOfRowsPair({ work: a.g, n, w: a.w, perm: pa }, { work: b.g, n, w: b.w, perm: pb }, tol);
   return [unpermute(a.g, n, a.w, ranks[0], pa), unpermute(b.g, n, b.w, ranks[1], pb)];
 }
 
@@ -297,7 +294,7 @@ export function lowRankGramianFactors(
         for (let j = 0; j < n; j++) m.data[i * n + j] = 0.25 * (x[i * n + j] + x[j * n + i]);
       return m;
     };
-    return { controllability: pivotedCholesky(half(d.p), tol), observability: pivotedCholesky(half(d.q), tol), report, denseFrom };
+    return { controllability: kernels().pivotedCholesky(half(d.p), tol), observability: kernels().pivotedCholesky(half(d.q), tol), report, denseFrom };
   }
   return { controllability: finishFactor(n, fb), observability: finishFactor(n, fc), report, denseFrom };
 }

@@ -12,7 +12,7 @@
  * approximated: the only difference from the step-by-step recursion is the rounding of the regrouped
  * sums.
  */
-import { multiply } from '../linalg/gemm';
+import { multiply } from '../linalg/index';
 import { type Matrix, zeros } from '../linalg/matrix';
 import type { LinearSystem } from './linear-system';
 import { matVec } from './linear-system';

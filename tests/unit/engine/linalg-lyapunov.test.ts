@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { lyapunov, lyapunovFactor, lowRankGramianFactors, lyapunovResidual } from '../../../reduction/linalg/lyapunov';
 import { multiply, multiplyTransposeA, multiplyTransposeB } from '../../../reduction/linalg/gemm';
-import { svd } from '../../../reduction/linalg/index';
+import { svd, useLinalgBackend, linalgBackendReport } from '../../../reduction/linalg/index';
 import { setLinalgThreads, workerRunning } from '../../../reduction/linalg/parallel';
 import { type Matrix, fromRows, zeros, transpose, sub, frobeniusNorm } from '../../../reduction/linalg/matrix';
 import { randomMatrix, stableMatrix, reference, maxAbsDiff, maxAbs } from './linalg-support';
@@ -129,7 +129,10 @@ describe('Lyapunov equations by the scaled sign function (Roberts 1971; Byers 19
     expect(lyapunovResidual(A, gram(lyapunovFactor(A, B)), bb)).toBeLessThan(1e-12);
   });
 
-  it('gives the same factors whether the two compressions share a core or run on two', () => {
+  it('gives the same factors whether the two compressions share a core or run on two (portable backend)', () => {
+    // The portable kernels' second core (parallel.ts); the native backend threads inside OpenBLAS instead.
+    const before = linalgBackendReport().backend;
+    useLinalgBackend('portable');
     const n = 200;
     const A = stableMatrix(n, 21, 1.1);
     const B = randomMatrix(n, 8, 22);
@@ -142,6 +145,7 @@ describe('Lyapunov equations by the scaled sign function (Roberts 1971; Byers 19
     expect(two.controllability.cols).toBe(one.controllability.cols);
     expect(Array.from(two.controllability.data)).toEqual(Array.from(one.controllability.data));
     expect(Array.from(two.observability.data)).toEqual(Array.from(one.observability.data));
+    useLinalgBackend(before);
   });
 
   it('refuses an unstable A, naming the condition', () => {

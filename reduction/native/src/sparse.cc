@@ -1,0 +1,394 @@
+// Sparse factorizations from SuiteSparse: UMFPACK (Davis 2004, "Algorithm 832: UMFPACK V4.3, an
+// unsymmetric-pattern multifrontal method", ACM TOMS 30(2)) real and complex LU with the symbolic analysis
+// kept for new values or shifts on the same pattern; CHOLMOD (Chen, Davis, Hager & Rajamanickam 2008,
+// ACM TOMS 35(3)) for symmetric positive definite matrices; AMD and COLAMD orderings.
+// Matrices arrive in compressed sparse column form (colPtr, rowIndex, values[, imaginary values]).
+#include <amd.h>
+#include <cholmod.h>
+#include <colamd.h>
+#include <umfpack.h>
+
+#include "common.h"
+
+namespace {
+
+using ms::Args;
+using ms::fail;
+
+struct Csc {
+  int n = 0;
+  int32_t* p = nullptr;
+  int32_t* i = nullptr;
+  double* x = nullptr;
+  double* z = nullptr;
+  size_t nnz = 0;
+};
+
+Csc readCsc(const Args& a, size_t at, const char* name, bool valuesRequired = true) {
+  Csc c;
+  int64_t n = a.integer(at, "n");
+  if (n < 0 || n > 2147483647LL) fail("invalid_option", std::string(name) + ": n out of range");
+  c.n = (int)n;
+  c.p = a.i32(at + 1, "colPtr", (size_t)n + 1);
+  int64_t nnz = c.p[n];
+  if (nnz < 0 || c.p[0] != 0) fail("parse_error", std::string(name) + ": column pointers must start at 0 and not decrease");
+  for (int64_t j = 0; j < n; j++)
+    if (c.p[j + 1] < c.p[j]) fail("parse_error", std::string(name) + ": column pointers must not decrease");
+  c.nnz = (size_t)nnz;
+  c.i = a.i32(at + 2, "rowIndex", c.nnz);
+  for (size_t k = 0; k < c.nnz; k++)
+    if (c.i[k] < 0 || c.i[k] >= n) fail("parse_error", std::string(name) + ": row index " + std::to_string(c.i[k]) + " out of range");
+  if (valuesRequired || !a.isNullish(at + 3)) {
+    c.x = a.f64(at + 3, "values", c.nnz);
+    ms::requireFinite(c.x, c.nnz, 0, name);
+  }
+  if (!a.isNullish(at + 4)) {
+    c.z = a.f64(at + 4, "imaginary values", c.nnz);
+    ms::requireFinite(c.z, c.nnz, 0, name);
+  }
+  return c;
+}
+
+// ---- UMFPACK ----------------------------------------------------------------------------------
+
+struct UmfHandle {
+  void* object = nullptr;
+  bool complex = false;
+  bool numeric = false;
+  ~UmfHandle() { release(); }
+  void release() {
+    if (!object) return;
+    if (numeric) {
+      if (complex) umfpack_zi_free_numeric(&object);
+      else umfpack_di_free_numeric(&object);
+    } else {
+      if (complex) umfpack_zi_free_symbolic(&object);
+      else umfpack_di_free_symbolic(&object);
+    }
+    object = nullptr;
+  }
+};
+
+void finalizeUmf(napi_env, void* data, void*) { delete static_cast<UmfHandle*>(data); }
+
+napi_value external(napi_env env, UmfHandle* h) {
+  napi_value out;
+  napi_create_external(env, h, finalizeUmf, nullptr, &out);
+  return out;
+}
+
+UmfHandle* handleOf(const Args& a, size_t at, bool wantNumeric) {
+  void* data = nullptr;
+  if (napi_get_value_external(a.env, a.at(at, "factor"), &data) != napi_ok || !data) fail("invalid_option", "not a sparse factor handle");
+  UmfHandle* h = static_cast<UmfHandle*>(data);
+  if (!h->object) fail("invalid_option", "the sparse factor was freed");
+  if (h->numeric != wantNumeric) fail("invalid_option", wantNumeric ? "expected a numeric factorization" : "expected a symbolic analysis");
+  return h;
+}
+
+void umfStatus(int status, const char* what, const char* name) {
+  if (status == UMFPACK_OK) return;
+  if (status == UMFPACK_WARNING_singular_matrix) fail("singular", std::string(name) + " is singular (" + what + ")");
+  if (status == UMFPACK_ERROR_out_of_memory) fail("out_of_memory", std::string(what) + ": out of memory for " + name);
+  if (status == UMFPACK_ERROR_invalid_matrix) fail("parse_error", std::string(what) + ": " + name + " is not a valid compressed-column matrix");
+  fail("native_error", std::string(what) + " failed for " + name + " (UMFPACK status " + std::to_string(status) + ")");
+}
+
+// umfpackSymbolic(n, colPtr, rowIndex, values, imag|null, name) → [handle, info]
+napi_value UmfSymbolic(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    Csc c = readCsc(a, 0, "matrix");
+    std::string name = a.isNullish(5) ? "matrix" : a.string(5, "name");
+    double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
+    auto* h = new UmfHandle();
+    h->complex = c.z != nullptr;
+    int status;
+    if (h->complex) {
+      umfpack_zi_defaults(control);
+      status = umfpack_zi_symbolic(c.n, c.n, c.p, c.i, c.x, c.z, &h->object, control, inf);
+    } else {
+      umfpack_di_defaults(control);
+      status = umfpack_di_symbolic(c.n, c.n, c.p, c.i, c.x, &h->object, control, inf);
+    }
+    if (status != UMFPACK_OK) {
+      delete h;
+      umfStatus(status, "symbolic analysis", name.c_str());
+    }
+    napi_value out, infoObj;
+    napi_create_array_with_length(env, 2, &out);
+    napi_create_object(env, &infoObj);
+    double unit = inf[UMFPACK_SIZE_OF_UNIT];
+    ms::setNumber(env, infoObj, "peakMemoryBytes", inf[UMFPACK_PEAK_MEMORY_ESTIMATE] * unit);
+    ms::setNumber(env, infoObj, "numericSizeBytes", inf[UMFPACK_NUMERIC_SIZE_ESTIMATE] * unit);
+    ms::setNumber(env, infoObj, "flopsEstimate", inf[UMFPACK_FLOPS_ESTIMATE]);
+    ms::setNumber(env, infoObj, "lnzEstimate", inf[UMFPACK_LNZ_ESTIMATE]);
+    ms::setNumber(env, infoObj, "unzEstimate", inf[UMFPACK_UNZ_ESTIMATE]);
+    napi_set_element(env, out, 0, external(env, h));
+    napi_set_element(env, out, 1, infoObj);
+    return out;
+  });
+}
+
+// umfpackNumeric(symbolic, n, colPtr, rowIndex, values, imag|null, name) → [handle, info]
+napi_value UmfNumeric(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    UmfHandle* s = handleOf(a, 0, false);
+    Csc c = readCsc(a, 1, "matrix");
+    std::string name = a.isNullish(6) ? "matrix" : a.string(6, "name");
+    if ((c.z != nullptr) != s->complex) fail("invalid_option", "numeric factorization: real/complex does not match the analysis");
+    double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
+    auto* h = new UmfHandle();
+    h->complex = s->complex;
+    h->numeric = true;
+    int status;
+    if (h->complex) {
+      umfpack_zi_defaults(control);
+      status = umfpack_zi_numeric(c.p, c.i, c.x, c.z, s->object, &h->object, control, inf);
+    } else {
+      umfpack_di_defaults(control);
+      status = umfpack_di_numeric(c.p, c.i, c.x, s->object, &h->object, control, inf);
+    }
+    if (status != UMFPACK_OK) {
+      delete h;
+      umfStatus(status, "numeric factorization", name.c_str());
+    }
+    napi_value out, infoObj;
+    napi_create_array_with_length(env, 2, &out);
+    napi_create_object(env, &infoObj);
+    ms::setNumber(env, infoObj, "lnz", inf[UMFPACK_LNZ]);
+    ms::setNumber(env, infoObj, "unz", inf[UMFPACK_UNZ]);
+    ms::setNumber(env, infoObj, "flops", inf[UMFPACK_FLOPS]);
+    ms::setNumber(env, infoObj, "reciprocalCondition", inf[UMFPACK_RCOND]);
+    ms::setNumber(env, infoObj, "memoryBytes", inf[UMFPACK_NUMERIC_SIZE] * inf[UMFPACK_SIZE_OF_UNIT]);
+    napi_set_element(env, out, 0, external(env, h));
+    napi_set_element(env, out, 1, infoObj);
+    return out;
+  });
+}
+
+// umfpackSolve(numeric, n, colPtr, rowIndex, values, imag|null, bRe, bIm|null, xRe, xIm|null, transpose)
+// Solves A·x = b (or Aᵀ·x = b; for complex A the plain transpose, not the conjugate) with iterative refinement.
+napi_value UmfSolve(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    UmfHandle* h = handleOf(a, 0, true);
+    Csc c = readCsc(a, 1, "matrix");
+    size_t n = (size_t)c.n;
+    double* bx = a.f64(6, "b", n);
+    double* bz = a.isNullish(7) ? nullptr : a.f64(7, "b (imaginary)", n);
+    double* xx = a.f64(8, "x", n);
+    double* xz = a.isNullish(9) ? nullptr : a.f64(9, "x (imaginary)", n);
+    bool transpose = a.boolean(10, "transpose");
+    double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
+    int status;
+    if (h->complex) {
+      if (!xz) fail("invalid_option", "complex solve needs an imaginary output");
+      std::vector<double> zeroIm;
+      if (!bz) {
+        zeroIm.assign(n, 0);
+        bz = zeroIm.data();
+      }
+      umfpack_zi_defaults(control);
+      status = umfpack_zi_solve(transpose ? UMFPACK_Aat : UMFPACK_A, c.p, c.i, c.x, c.z, xx, xz, bx, bz, h->object, control, inf);
+    } else {
+      if (bz || xz) fail("invalid_option", "real factorization: solve real and imaginary parts separately");
+      umfpack_di_defaults(control);
+      status = umfpack_di_solve(transpose ? UMFPACK_At : UMFPACK_A, c.p, c.i, c.x, xx, bx, h->object, control, inf);
+    }
+    umfStatus(status, "solve", "matrix");
+    return ms::undefinedValue(env);
+  });
+}
+
+napi_value UmfFree(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    void* data = nullptr;
+    if (napi_get_value_external(env, a.at(0, "factor"), &data) == napi_ok && data) static_cast<UmfHandle*>(data)->release();
+    return ms::undefinedValue(env);
+  });
+}
+
+// ---- CHOLMOD ----------------------------------------------------------------------------------
+
+struct CholHandle {
+  cholmod_common common;
+  cholmod_factor* factor = nullptr;
+  bool started = false;
+  ~CholHandle() { release(); }
+  void release() {
+    if (factor) cholmod_free_factor(&factor, &common);
+    factor = nullptr;
+    if (started) cholmod_finish(&common);
+    started = false;
+  }
+};
+
+void finalizeChol(napi_env, void* data, void*) { delete static_cast<CholHandle*>(data); }
+
+CholHandle* cholOf(const Args& a, size_t at) {
+  void* data = nullptr;
+  if (napi_get_value_external(a.env, a.at(at, "factor"), &data) != napi_ok || !data) fail("invalid_option", "not a Cholesky handle");
+  auto* h = static_cast<CholHandle*>(data);
+  if (!h->factor) fail("invalid_option", "the Cholesky factor was freed");
+  return h;
+}
+
+// A sparse view of our arrays (CHOLMOD reads the lower triangle: stype −1; nothing is copied).
+cholmod_sparse view(const Csc& c) {
+  cholmod_sparse s;
+  std::memset(&s, 0, sizeof s);
+  s.nrow = s.ncol = (size_t)c.n;
+  s.nzmax = c.nnz;
+  s.p = c.p;
+  s.i = c.i;
+  s.x = c.x;
+  s.stype = -1;
+  s.itype = CHOLMOD_INT;
+  s.xtype = CHOLMOD_REAL;
+  s.dtype = CHOLMOD_DOUBLE;
+  s.sorted = 0;
+  s.packed = 1;
+  return s;
+}
+
+// cholmodFactor(n, colPtr, rowIndex, values, null, name) → [handle, info]: A = L·Lᵀ (lower triangle read).
+napi_value CholFactor(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    Csc c = readCsc(a, 0, "matrix");
+    std::string name = a.isNullish(5) ? "matrix" : a.string(5, "name");
+    auto* h = new CholHandle();
+    cholmod_start(&h->common);
+    h->started = true;
+    h->common.print = 0;
+    h->common.error_handler = nullptr;
+    cholmod_sparse s = view(c);
+    h->factor = cholmod_analyze(&s, &h->common);
+    if (!h->factor) {
+      int st = h->common.status;
+      delete h;
+      fail(st == CHOLMOD_OUT_OF_MEMORY ? "out_of_memory" : "native_error", "Cholesky analysis failed for " + name);
+    }
+    cholmod_factorize(&s, h->factor, &h->common);
+    if (h->common.status == CHOLMOD_NOT_POSDEF || h->factor->minor < h->factor->n) {
+      size_t minor = h->factor->minor;
+      delete h;
+      fail("not_positive_definite", name + " is not positive definite (leading minor " + std::to_string(minor + 1) + ")");
+    }
+    if (h->common.status < 0) {
+      int st = h->common.status;
+      delete h;
+      fail(st == CHOLMOD_OUT_OF_MEMORY ? "out_of_memory" : "native_error", "Cholesky factorization failed for " + name);
+    }
+    napi_value out, infoObj, ext;
+    napi_create_array_with_length(env, 2, &out);
+    napi_create_object(env, &infoObj);
+    ms::setNumber(env, infoObj, "lnz", h->common.lnz);
+    ms::setNumber(env, infoObj, "flops", h->common.fl);
+    ms::setNumber(env, infoObj, "memoryBytes", (double)h->common.memory_inuse);
+    napi_create_external(env, h, finalizeChol, nullptr, &ext);
+    napi_set_element(env, out, 0, ext);
+    napi_set_element(env, out, 1, infoObj);
+    return out;
+  });
+}
+
+// cholmodSolve(handle, b (n×k column-major), x (n×k column-major), k)
+napi_value CholSolve(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    CholHandle* h = cholOf(a, 0);
+    size_t n = h->factor->n;
+    int64_t k = a.integer(3, "columns");
+    double* b = a.f64(1, "b", n * (size_t)k);
+    double* x = a.f64(2, "x", n * (size_t)k);
+    cholmod_dense bd;
+    std::memset(&bd, 0, sizeof bd);
+    bd.nrow = n;
+    bd.ncol = (size_t)k;
+    bd.nzmax = n * (size_t)k;
+    bd.d = n;
+    bd.x = b;
+    bd.xtype = CHOLMOD_REAL;
+    bd.dtype = CHOLMOD_DOUBLE;
+    cholmod_dense* xd = cholmod_solve(CHOLMOD_A, h->factor, &bd, &h->common);
+    if (!xd) fail("native_error", "Cholesky solve failed");
+    std::memcpy(x, xd->x, sizeof(double) * n * (size_t)k);
+    cholmod_free_dense(&xd, &h->common);
+    return ms::undefinedValue(env);
+  });
+}
+
+napi_value CholFree(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    void* data = nullptr;
+    if (napi_get_value_external(env, a.at(0, "factor"), &data) == napi_ok && data) static_cast<CholHandle*>(data)->release();
+    return ms::undefinedValue(env);
+  });
+}
+
+// ---- Orderings --------------------------------------------------------------------------------
+
+// amdOrder(n, colPtr, rowIndex, perm) → {lnz, flops}: fill-reducing ordering of A + Aᵀ (Amestoy, Davis &
+// Duff 1996, SIAM J. Matrix Anal. Appl. 17(4)).
+napi_value AmdOrder(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    Csc c = readCsc(a, 0, "matrix", false);
+    int32_t* perm = a.i32(3, "perm", (size_t)c.n);
+    double control[AMD_CONTROL], inf[AMD_INFO];
+    amd_defaults(control);
+    int status = amd_order(c.n, c.p, c.i, perm, control, inf);
+    if (status == AMD_OUT_OF_MEMORY) fail("out_of_memory", "AMD ordering: out of memory");
+    if (status == AMD_INVALID) fail("parse_error", "AMD ordering: invalid matrix");
+    napi_value o;
+    napi_create_object(env, &o);
+    ms::setNumber(env, o, "lnz", inf[AMD_LNZ]);
+    ms::setNumber(env, o, "flops", inf[AMD_NDIV] + 2 * inf[AMD_NMULTSUBS_LU]);
+    return o;
+  });
+}
+
+// colamdOrder(nRows, nCols, colPtr, rowIndex, perm): column ordering for sparse LU (Davis, Gilbert,
+// Larimore & Ng 2004, ACM TOMS 30(3)).
+napi_value ColamdOrder(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    int64_t nr = a.integer(0, "rows"), nc = a.integer(1, "columns");
+    int32_t* p = a.i32(2, "colPtr", (size_t)nc + 1);
+    size_t nnz = (size_t)p[nc];
+    int32_t* ri = a.i32(3, "rowIndex", nnz);
+    int32_t* perm = a.i32(4, "perm", (size_t)nc);
+    size_t alen = colamd_recommended((int)nnz, (int)nr, (int)nc);
+    if (alen == 0) fail("invalid_option", "COLAMD: matrix too large");
+    std::vector<int> A(alen), P((size_t)nc + 1);
+    std::memcpy(A.data(), ri, sizeof(int) * nnz);
+    std::memcpy(P.data(), p, sizeof(int) * ((size_t)nc + 1));
+    double knobs[COLAMD_KNOBS];
+    int stats[COLAMD_STATS];
+    colamd_set_defaults(knobs);
+    if (!colamd((int)nr, (int)nc, (int)alen, A.data(), P.data(), knobs, stats)) fail("parse_error", "COLAMD: invalid matrix");
+    std::memcpy(perm, P.data(), sizeof(int) * nc);
+    return ms::undefinedValue(env);
+  });
+}
+
+}  // namespace
+
+namespace ms {
+void registerSparse(napi_env env, napi_value exports) {
+  define(env, exports, "umfpackSymbolic", UmfSymbolic);
+  define(env, exports, "umfpackNumeric", UmfNumeric);
+  define(env, exports, "umfpackSolve", UmfSolve);
+  define(env, exports, "umfpackFree", UmfFree);
+  define(env, exports, "cholmodFactor", CholFactor);
+  define(env, exports, "cholmodSolve", CholSolve);
+  define(env, exports, "cholmodFree", CholFree);
+  define(env, exports, "amdOrder", AmdOrder);
+  define(env, exports, "colamdOrder", ColamdOrder);
+}
+}  // namespace ms
