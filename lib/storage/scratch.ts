@@ -40,8 +40,8 @@ export async function fetchToScratch(key: string, options: FetchOptions = {}): P
     await store.size(key);
     return local;
   }
-  const root = path.resolve(options.dir ?? scratchDir());
-  const target = path.resolve(root, key);
+  const root = path.resolve(/*turbopackIgnore: true*/ options.dir ?? scratchDir());
+  const target = path.resolve(/*turbopackIgnore: true*/ root, key);
   if (!target.startsWith(root + path.sep)) throw new StorageError(`storage key outside the scratch folder: ${key}`);
   if (await isFile(target)) return target;
 
