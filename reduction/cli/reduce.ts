@@ -1,23 +1,67 @@
 /**
  * `reduce MODEL --method balanced|residualization|modal (--order R | --tolerance T)`: a reduced model
  * with its a-priori bound and measured errors (methods and papers: `reduction/reduce.ts`).
+ * `reduce MODEL --method frequency-limited --band W1,W2 --order R`: frequency-limited balanced truncation
+ * (`reduction/frequency-limited.ts`), with its measured errors inside and outside the band (no bound).
  */
 import { ModelError } from '../errors';
 import type { ModalSelection } from '../modal';
 import { reduceModel, REDUCTION_METHODS, type ReductionMethod } from '../reduce';
+import { frequencyLimitedReduction } from '../frequency-limited';
 import { integerOption, loadModelArgument, numberListOption, numberOption, stringOption, type ParsedArgs } from './args';
 import { complexPairs, finiteOrNull, matrixRows, numberList } from './output';
 import { registerVerb } from './registry';
+import { modelPoles as modelPolesOf } from '../spectral-split';
 
-function methodOf(args: ParsedArgs): ReductionMethod {
+const CLI_METHODS = [...REDUCTION_METHODS, 'frequency-limited'] as const;
+
+function methodOf(args: ParsedArgs): ReductionMethod | 'frequency-limited' {
   const method = stringOption(args, 'method');
   if (method === undefined) {
-    throw new ModelError('invalid_option', 'method', `--method is required: one of ${REDUCTION_METHODS.join(', ')}`);
+    throw new ModelError('invalid_option', 'method', `--method is required: one of ${CLI_METHODS.join(', ')}`);
   }
-  if (!(REDUCTION_METHODS as readonly string[]).includes(method)) {
-    throw new ModelError('invalid_option', 'method', `--method must be one of ${REDUCTION_METHODS.join(', ')}, got "${method}"`);
+  if (!(CLI_METHODS as readonly string[]).includes(method)) {
+    throw new ModelError('invalid_option', 'method', `--method must be one of ${CLI_METHODS.join(', ')}, got "${method}"`);
   }
-  return method as ReductionMethod;
+  return method as ReductionMethod | 'frequency-limited';
+}
+
+/** `--method frequency-limited --band W1,W2 --order R`. */
+function runFrequencyLimited(args: ParsedArgs): Record<string, unknown> {
+  const model = loadModelArgument(args.positionals);
+  const band = numberListOption(args, 'band');
+  if (band === undefined || band.length !== 2) {
+    throw new ModelError('invalid_option', 'band', '--method frequency-limited needs --band W1,W2 (rad per time unit, 0 ≤ W1 < W2)');
+  }
+  if (numberOption(args, 'tolerance') !== undefined) {
+    throw new ModelError('invalid_option', 'tolerance', '--method frequency-limited has no error bound to meet a tolerance; give --order');
+  }
+  if (stringOption(args, 'keep') !== undefined) throw new ModelError('invalid_option', 'keep', '--keep applies to --method modal only');
+  const order = integerOption(args, 'order');
+  if (order === undefined) throw new ModelError('invalid_option', 'order', '--method frequency-limited needs --order R');
+  const r = frequencyLimitedReduction(model, { band: [band[0], band[1]], order, stabilityTolerance: numberOption(args, 'stability-tolerance') });
+  return {
+    method: r.method,
+    band: [...r.band],
+    order: r.order,
+    A: matrixRows(r.model.A),
+    B: matrixRows(r.model.B),
+    C: matrixRows(r.model.C),
+    D: matrixRows(r.model.D),
+    errorBound: null,
+    errorBoundNote: 'no a-priori bound applies to frequency-limited balanced truncation',
+    inBandError: r.errors.inBand,
+    inBandErrorFrequency: finiteOrNull(r.errors.inBandPeakFrequency),
+    outOfBandError: r.errors.outOfBand,
+    outOfBandErrorFrequency: finiteOrNull(r.errors.outOfBandPeakFrequency),
+    hinfError: r.hinfError,
+    frequencyLimitedSingularValues: numberList(r.singularValues),
+    reducedStable: r.reducedStable,
+    stableOrder: r.stableOrder,
+    unstableStatesKept: r.unstableStatesKept,
+    poles: complexPairs(modelPolesOf(r.model.A)),
+    notes: r.notes,
+  };
 }
 
 function selectionOf(args: ParsedArgs, method: ReductionMethod): ModalSelection | undefined {
@@ -41,19 +85,22 @@ function selectionOf(args: ParsedArgs, method: ReductionMethod): ModalSelection 
 
 registerVerb({
   name: 'reduce',
-  summary: 'reduce a model by balanced truncation, balanced residualization or modal truncation',
-  usage: 'MODEL --method balanced|residualization|modal (--order R | --tolerance T) [--keep dominance|slowest|band --band LOW,HIGH]',
+  summary: 'reduce a model by balanced truncation, balanced residualization, modal truncation or frequency-limited balanced truncation',
+  usage:
+    'MODEL --method balanced|residualization|modal (--order R | --tolerance T) [--keep dominance|slowest|band --band LOW,HIGH]\n' +
+    '      MODEL --method frequency-limited --band W1,W2 --order R',
   options: {
-    method: { value: true, description: 'balanced | residualization | modal' },
+    method: { value: true, description: 'balanced | residualization | modal | frequency-limited' },
     order: { value: true, description: 'states of the reduced model (including those kept for marginal/unstable poles)' },
     tolerance: { value: true, description: 'smallest order whose error bound is at most T·‖G‖∞' },
     keep: { value: true, description: 'modal: which modes come first — dominance (default), slowest, band' },
-    band: { value: true, description: 'modal: keep the modes with natural frequency in LOW,HIGH (rad per time unit)' },
+    band: { value: true, description: 'modal: keep the modes with natural frequency in LOW,HIGH; frequency-limited: the band W1,W2 to balance on (rad per time unit)' },
     'stability-tolerance': { value: true, description: 'relative tolerance for marginal poles (default 1e-7)' },
   },
   run(args) {
-    const model = loadModelArgument(args.positionals);
     const method = methodOf(args);
+    if (method === 'frequency-limited') return runFrequencyLimited(args);
+    const model = loadModelArgument(args.positionals);
     const r = reduceModel(model, {
       method,
       order: integerOption(args, 'order'),
