@@ -9,6 +9,12 @@
 //               current without ever receiving matrices
 // A token may expire; it can be revoked at once. Every request that presents a valid token is recorded
 // (time, client address, method, path).
+//
+// The pull API's hot path (issue 17): the token check is one read-only statement (token and project by
+// the token's hash, a named prepared statement), and the uses are written in batches, one INSERT at most
+// every USE_FLUSH_MS (100 ms) rather than one per request. Revocation, expiry and project settings still
+// apply to the very next request. Readers of the use record in this process (listProjectTokens,
+// listTokenUses) flush the batch first; a process that dies loses at most the last 100 ms of records.
 import { createHash, randomBytes } from 'node:crypto';
 import type { Knex } from 'knex';
 import { z } from 'zod';
@@ -161,6 +167,7 @@ function toProjectToken(
 /** The project's tokens, newest first, with their use counts; members only. */
 export async function listProjectTokens(project: ProjectRow, viewer: SessionUser, now = new Date()): Promise<ProjectToken[]> {
   await requireProjectMember(project, viewer);
+  await flushTokenUses();
   const rows = await db()('project_tokens as t')
     .join('users as u', 'u.id', 't.created_by')
     .where('t.project_id', project.id)
@@ -177,6 +184,7 @@ export async function listProjectTokens(project: ProjectRow, viewer: SessionUser
 
 export async function listTokenUses(project: ProjectRow, tokenId: string, viewer: SessionUser, limit = 50): Promise<TokenUse[]> {
   await requireProjectMember(project, viewer);
+  await flushTokenUses();
   const token = await db()('project_tokens').where({ id: tokenId, project_id: project.id }).first('id');
   if (!token) throw notFound('That token');
   const rows = await db()('token_uses').where({ token_id: tokenId }).orderBy([{ column: 'at', order: 'desc' }, { column: 'id', order: 'desc' }]).limit(limit);
@@ -210,6 +218,46 @@ export async function revokeProjectToken(
     const creator = await trx('users').where({ id: row.created_by }).first('name');
     return toProjectToken(row, creator?.name ?? '', { count: 0, lastAt: null, lastAddress: null }, now);
   });
+}
+
+const USE_FLUSH_MS = 100;
+const USE_FLUSH_BATCH = 500;
+
+interface PendingUse {
+  token_id: string;
+  at: Date;
+  address: string;
+  method: string;
+  path: string;
+}
+let pendingUses: PendingUse[] = [];
+let flushTimer: NodeJS.Timeout | null = null;
+let flushing: Promise<void> = Promise.resolve();
+
+/** Writes the uses recorded so far in this process (one INSERT). */
+export function flushTokenUses(): Promise<void> {
+  if (flushTimer) clearTimeout(flushTimer);
+  flushTimer = null;
+  const batch = pendingUses;
+  pendingUses = [];
+  flushing = flushing.then(async () => {
+    if (batch.length === 0) return;
+    try {
+      await db()('token_uses').insert(batch);
+    } catch (err) {
+      console.error(`[modeshelf] ${batch.length} pull API token use(s) not recorded`, err);
+    }
+  });
+  return flushing;
+}
+
+function recordUse(use: PendingUse): void {
+  pendingUses.push(use);
+  if (pendingUses.length >= USE_FLUSH_BATCH) void flushTokenUses();
+  else if (!flushTimer) {
+    flushTimer = setTimeout(() => void flushTokenUses(), USE_FLUSH_MS);
+    flushTimer.unref?.();
+  }
 }
 
 export interface PullCaller {
@@ -256,27 +304,23 @@ export async function authenticatePull(
   if (!match) throw unauthorised('token_missing', 'The Authorization header must read "Bearer msp_…".');
   const token = match[1];
   if (!TOKEN_PATTERN.test(token)) throw unauthorised('token_invalid', 'That is not a Modeshelf project token.');
-  // One round trip: find the token and, if it is live, record this use (the pull API's hot path). A
-  // data-modifying WITH runs once whether or not the outer query reads it (PostgreSQL manual,
-  // "Data-Modifying Statements in WITH").
   const [row] = await preparedRows<TokenLookupRow>(
     trx.raw(
-      `WITH found AS (
-       SELECT t.*, p.name AS p_name, p.slug AS p_slug, p.description AS p_description,
+      `SELECT t.*, p.name AS p_name, p.slug AS p_slug, p.description AS p_description,
               p.sample_time AS p_sample_time, p.created_by AS p_created_by,
               p.created_at AS p_created_at, p.updated_at AS p_updated_at
          FROM project_tokens t JOIN controller_projects p ON p.id = t.project_id
-        WHERE t.token_hash = ?
-     ), recorded AS (
-       INSERT INTO token_uses (token_id, at, address, method, path)
-       SELECT id, ?, ?, ?, ? FROM found
-        WHERE revoked_at IS NULL AND (expires_at IS NULL OR expires_at > ?)
-     )
-     SELECT * FROM found`,
-      [hashProjectToken(token), now, facts.address, facts.method, facts.path.slice(0, 500), now],
+        WHERE t.token_hash = ?`,
+      [hashProjectToken(token)],
     ),
     trx,
   );
+  if (row && tokenState(row, now) === 'active') {
+    const use = { token_id: row.id, at: now, address: facts.address, method: facts.method, path: facts.path.slice(0, 500) };
+    // Inside a caller's transaction the use commits (or not) with it; otherwise it joins the next batch.
+    if (trx === db()) recordUse(use);
+    else await trx('token_uses').insert(use);
+  }
   if (!row) throw unauthorised('token_invalid', 'That project token is not known here.');
   const state = tokenState(row, now);
   if (state === 'revoked') throw unauthorised('token_revoked', `The project token "${row.name}" was revoked; ask a project engineer for a new one.`);

@@ -2,12 +2,21 @@
 // against the project in the path (lib/project-tokens.ts), RFC 6750's WWW-Authenticate on a 401, and the
 // project's pins in the shape the API answers with. Handlers stay a few lines: pullRoute(), authorise,
 // call lib/, answer.
+//
+// Exports (pullExport) are kept once made: an approved or retired version's matrices and report are frozen
+// (migration 20261202000200_reviews.ts), so the document for one version, format, sample time and pin
+// context is the same bytes every time (with the time it was first generated). It is served from memory
+// with a strong ETag (SHA-256 of the bytes) and `Cache-Control: private, no-cache`: a client may keep it and
+// revalidate with If-None-Match (304, no body), since the pin may resolve to another version tomorrow. The
+// key holds everything that can change the document (the version's status and its source model's newest
+// version number, from the same query that resolves the pin), and an entry lives at most EXPORT_CACHE_MS.
+import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { ApiError, route } from '@/lib/http';
 import { authenticatePull, type PullCaller, type TokenScope } from '@/lib/project-tokens';
-import { findPinByModelSlug, pinnedModelVersion, type ResolvedPin } from '@/lib/pins';
+import { findPinByModelSlug, pinnedModelVersion, type ResolvedPin, type VersionFacts } from '@/lib/pins';
 import { SLUG_PATTERN } from '@/lib/projects';
-import type { PinContext } from '@/lib/exports';
+import { exportResponse, exportVersion, type ExportFormat, type PinContext } from '@/lib/exports';
 import { CAUTION_TEXT } from '@/components/workspace/caution-text';
 
 type Context<P> = { params: Promise<P> };
@@ -76,18 +85,93 @@ export function pinContext(caller: PullCaller, pin: ResolvedPin): PinContext {
   };
 }
 
-/** The version a pin resolves to now, or 409 when none does. */
-export function resolvedVersionId(pin: ResolvedPin): string {
-  const v = pin.resolution.version;
-  if (!v) throw new ApiError(409, 'unresolved_pin', `The pin of "${pin.reducedModel.slug}" resolves to no version: ${pin.resolution.explanation}`);
-  return v.id;
-}
-
 /** A numbered approved or retired version of the pinned model, or 404 (drafts are never served). */
-export async function pinnedVersionId(pin: ResolvedPin, number: number): Promise<string> {
+export async function pinnedVersion(pin: ResolvedPin, number: number): Promise<VersionFacts> {
   const v = await pinnedModelVersion(pin, number);
   if (!v) throw new ApiError(404, 'not_found', `"${pin.reducedModel.slug}" has no approved or retired version v${number}.`);
-  return v.id;
+  return v;
+}
+
+/** The version a pin resolves to now, or 409 when none does. */
+export function resolvedVersion(pin: ResolvedPin): VersionFacts {
+  const v = pin.resolution.version;
+  if (!v) throw new ApiError(409, 'unresolved_pin', `The pin of "${pin.reducedModel.slug}" resolves to no version: ${pin.resolution.explanation}`);
+  return v;
+}
+
+/** How long a made export is kept (MODESHELF_EXPORT_CACHE_MS; 0 turns the cache off). */
+export function exportCacheMs(): number {
+  const raw = process.env.MODESHELF_EXPORT_CACHE_MS;
+  const value = raw === undefined || raw === '' ? NaN : Number(raw);
+  return Number.isFinite(value) && value >= 0 ? value : 10 * 60_000;
+}
+const EXPORT_CACHE_MAX_ENTRIES = 256;
+const EXPORT_CACHE_MAX_BYTES = 64 * 1024 * 1024;
+
+interface MadeExport {
+  body: Uint8Array<ArrayBuffer>;
+  headers: [string, string][];
+  etag: string;
+  at: number;
+}
+const made = new Map<string, MadeExport>();
+let madeBytes = 0;
+
+function keep(key: string, entry: MadeExport): void {
+  const old = made.get(key);
+  if (old) madeBytes -= old.body.byteLength;
+  made.delete(key);
+  made.set(key, entry);
+  madeBytes += entry.body.byteLength;
+  // Oldest first out (a Map iterates in insertion order; a hit re-inserts its entry).
+  while (made.size > EXPORT_CACHE_MAX_ENTRIES || madeBytes > EXPORT_CACHE_MAX_BYTES) {
+    const [k, v] = made.entries().next().value!;
+    made.delete(k);
+    madeBytes -= v.body.byteLength;
+  }
+}
+
+/** Does an If-None-Match header name this ETag (RFC 9110 §13.1.2: weak comparison; "*" matches any)? */
+function matches(ifNoneMatch: string | null, etag: string): boolean {
+  if (!ifNoneMatch) return false;
+  if (ifNoneMatch.trim() === '*') return true;
+  return ifNoneMatch.split(',').some((t) => t.trim().replace(/^W\//, '') === etag);
+}
+
+export interface PullExportRequest {
+  version: VersionFacts;
+  format: ExportFormat;
+  ts?: string;
+  projectSampleTime: number | null;
+  pin: PinContext;
+}
+
+/** An export of an approved or retired version as the pull API answers it (see the header comment). */
+export async function pullExport(request: Request, input: PullExportRequest): Promise<Response> {
+  const { version } = input;
+  const key = JSON.stringify([version.id, version.status, version.newestSourceVersionNumber, input.format, input.ts ?? null, input.projectSampleTime, input.pin]);
+  const ttl = exportCacheMs();
+  let entry = ttl > 0 ? made.get(key) : undefined;
+  if (entry && Date.now() - entry.at >= ttl) entry = undefined;
+  if (entry) keep(key, entry);
+  else {
+    const response = exportResponse(
+      await exportVersion({ versionId: version.id, format: input.format, ts: input.ts, projectSampleTime: input.projectSampleTime, pin: input.pin }),
+    );
+    const body = new Uint8Array(await response.arrayBuffer());
+    const etag = `"${createHash('sha256').update(body).digest('base64url')}"`;
+    entry = { body, headers: [...response.headers.entries()], etag, at: Date.now() };
+    if (ttl > 0) keep(key, entry);
+  }
+  const headers = new Headers(entry.headers);
+  headers.set('etag', entry.etag);
+  headers.set('cache-control', 'private, no-cache');
+  if (matches(request.headers.get('if-none-match'), entry.etag)) {
+    headers.delete('content-type');
+    headers.delete('content-disposition');
+    return new Response(null, { status: 304, headers });
+  }
+  return new Response(entry.body, { status: 200, headers });
 }
 
 export function pinsBody(caller: PullCaller, pins: ResolvedPin[]) {

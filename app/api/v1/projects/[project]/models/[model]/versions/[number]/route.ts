@@ -1,11 +1,13 @@
 // GET /api/v1/projects/{project}/models/{model}/versions/{number}?format=json|csv|c&ts=… — one numbered
 // approved or retired version of a model the project pins, e.g. to rebuild from a lock file (scope "pull").
+// Answers with a strong ETag; If-None-Match with it gets 304 (lib/pull-api.ts, pullExport).
 import { parseParams, parseQuery } from '@/lib/http';
-import { exportQuerySchema, exportResponse, exportVersion } from '@/lib/exports';
+import { exportQuerySchema } from '@/lib/exports';
 import {
   authenticatePullRequest,
   pinContext,
-  pinnedVersionId,
+  pinnedVersion,
+  pullExport,
   pullRoute,
   requirePinnedModel,
   versionNumber,
@@ -20,13 +22,11 @@ export const GET = pullRoute<{ project: string; model: string; number: string }>
   const version = versionNumber(number);
   const query = parseQuery(request, exportQuerySchema);
   const pin = await requirePinnedModel(caller, model);
-  return exportResponse(
-    await exportVersion({
-      versionId: await pinnedVersionId(pin, version),
-      format: query.format,
-      ts: query.ts,
-      projectSampleTime: caller.project.sample_time,
-      pin: pinContext(caller, pin),
-    }),
-  );
+  return pullExport(request, {
+    version: await pinnedVersion(pin, version),
+    format: query.format,
+    ts: query.ts,
+    projectSampleTime: caller.project.sample_time,
+    pin: pinContext(caller, pin),
+  });
 });
