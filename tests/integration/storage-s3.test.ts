@@ -1,10 +1,13 @@
 // Uploads with the S3 store (issue 14, "Storage"): against the real PostgreSQL and s3rver started here on a
 // loopback port. An accepted upload's files go to the bucket under their SHA-256 and nowhere on the web
-// server's disk; a worker's engine task reads them back from the bucket into its own scratch folder; a
+// server's disk; a worker's engine task reads them back from the bucket into its own scratch folder, in a
+// thread and in a real worker process (scripts/worker.ts) that has its own scratch and uploads folders; a
 // refused upload, or one the store will not take, leaves no row and no object.
 //
 // Expected values come from the inputs: digests by node:crypto over the same bytes, the poles of the
-// block-diagonal test model by hand (−0.2 ± 5j from its 2×2 block, −1 from its last entry).
+// block-diagonal test model by hand (−0.2 ± 5j from its 2×2 block, −1 from its last entry), its DC gain
+// D − C A⁻¹ B by hand.
+import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -12,6 +15,7 @@ import { ListObjectsV2Command, S3Client } from '@aws-sdk/client-s3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
 import { closeQueue } from '@/lib/jobs/queue';
+import { getJob, type JobView } from '@/lib/jobs/jobs';
 import { modelFilesOfVersion, registerUpload } from '@/lib/source-models';
 import { ApiError } from '@/lib/http';
 import { ModelError } from '@/reduction/index';
@@ -73,7 +77,47 @@ beforeAll(async () => {
   engineer = { id: row.id, email: row.email, name: row.name, role: 'engineer' };
 });
 
+const workers: ChildProcess[] = [];
+
+/** A worker process as on another machine: its own scratch folder and an uploads folder of its own (empty). */
+function startWorker(scratchDir: string, lines: string[]): ChildProcess {
+  const root = path.resolve(__dirname, '..', '..');
+  const child = spawn(path.join(root, 'node_modules', '.bin', 'tsx'), [path.join(root, 'scripts', 'worker.ts')], {
+    cwd: root,
+    detached: true, // its own process group, so stopping it takes tsx's node child too
+    env: { ...process.env, MODESHELF_SCRATCH_DIR: scratchDir, MODESHELF_UPLOADS_DIR: scratch('worker-own-uploads'), MODESHELF_LINALG_THREADS: '1' },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  child.stdout?.on('data', (b: Buffer) => lines.push(b.toString()));
+  child.stderr?.on('data', (b: Buffer) => lines.push(b.toString()));
+  workers.push(child);
+  return child;
+}
+
+function stop(child: ChildProcess): Promise<void> {
+  return new Promise((resolve) => {
+    if (child.exitCode !== null || child.signalCode !== null) return resolve();
+    child.once('exit', () => resolve());
+    try {
+      process.kill(-child.pid!, 'SIGTERM');
+    } catch {
+      resolve();
+    }
+  });
+}
+
+async function waitForJob(id: string, lines: string[], timeoutMs = 120_000): Promise<JobView> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const job = await getJob(id);
+    if (job.status === 'succeeded' || job.status === 'failed') return job;
+    if (Date.now() > deadline) throw new Error(`job ${id} is still ${job.status} after ${timeoutMs} ms; worker log:\n${lines.join('').slice(-2000)}`);
+    await new Promise((r) => setTimeout(r, 200));
+  }
+}
+
 afterAll(async () => {
+  await Promise.all(workers.splice(0).map(stop));
   await closeQueue();
   await closeDb();
   await fake?.close();
@@ -129,6 +173,31 @@ describe('uploads with the S3 store', () => {
       expect(p[1]).toBeCloseTo(5, 10);
     }
     expect(listFiles(workerB).sort()).toEqual([...expectedKeys].sort());
+  });
+
+  it('a worker process with its own scratch folder runs the analysis from the bucket alone', async () => {
+    const files = matrixFiles({ ...SMALL, D: [[0.25]] });
+    const result = await registerUpload(uploadRequest({ name: uniqueName('Kiln burner, remote worker') }, files), engineer);
+    // The web server's folder is gone before the worker starts: the bucket is the only place the files are.
+    rmSync(uploads, { recursive: true, force: true });
+    const workerScratch = scratch('worker-process');
+    const lines: string[] = [];
+    startWorker(workerScratch, lines);
+    const job = await waitForJob(result.job.id, lines);
+    expect(job.error).toBeNull();
+    expect(job.status).toBe('succeeded');
+    const analysis = await db()('analyses').where({ source_version_id: result.version.id }).first('result');
+    expect((analysis.result as AnalysisRecord).states).toBe(3);
+    // D − C A⁻¹ B by hand: the 2×2 block's inverse is [[−0.2, −5], [5, −0.2]] / 25.04, the last entry −1,
+    // so C A⁻¹ B = −0.2/25.04 − 1 and the DC gain is 0.25 + 0.2/25.04 + 1.
+    const dc = (analysis.result as AnalysisRecord).dcGain;
+    expect(dc.defined).toBe(true);
+    expect(dc.defined && dc.value[0][0]).toBeCloseTo(0.25 + 0.2 / 25.04 + 1, 10);
+    const keys = files.map((f) => `sha256/${sha256(f.text).slice(0, 2)}/${sha256(f.text)}`);
+    // (The worker also runs the analysis queued by the first upload above, so its scratch may hold more.)
+    const fetched = listFiles(workerScratch);
+    for (const key of keys) expect(fetched).toContain(key);
+    expect(fetched.filter((f) => !f.startsWith('sha256/'))).toEqual([]);
   });
 
   it('a refused model leaves no row and no object in the bucket', async () => {
