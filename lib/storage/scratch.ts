@@ -9,7 +9,7 @@
 // always whole and always the bytes that were uploaded.
 import { createHash, randomBytes } from 'node:crypto';
 import { createWriteStream } from 'node:fs';
-import { mkdir, rename, rm, stat } from 'node:fs/promises';
+import { mkdir, readdir, rename, rm, stat } from 'node:fs/promises';
 import path from 'node:path';
 import { Transform } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
@@ -31,6 +31,23 @@ async function isFile(file: string): Promise<boolean> {
   }
 }
 
+/** A fetch's temporary file older than this was left by a thread that was stopped mid-download. */
+const STALE_FETCH_MS = 6 * 60 * 60 * 1000;
+const swept = new Set<string>();
+
+/** Removes temporary files that stopped fetches left behind (once per folder per thread). */
+async function sweepStaleFetches(tempDir: string): Promise<void> {
+  if (swept.has(tempDir)) return;
+  swept.add(tempDir);
+  const now = Date.now();
+  for (const name of await readdir(tempDir).catch(() => [] as string[])) {
+    if (!name.endsWith('.fetch')) continue;
+    const file = path.join(tempDir, name);
+    const info = await stat(file).catch(() => null);
+    if (info && now - info.mtimeMs > STALE_FETCH_MS) await rm(file, { force: true });
+  }
+}
+
 /** A path on this machine holding the stored object's bytes. Throws StorageKeyNotFound, StorageError. */
 export async function fetchToScratch(key: string, options: FetchOptions = {}): Promise<string> {
   const store = options.store ?? objectStore();
@@ -47,6 +64,7 @@ export async function fetchToScratch(key: string, options: FetchOptions = {}): P
 
   const tempDir = path.join(root, 'tmp');
   await mkdir(tempDir, { recursive: true });
+  await sweepStaleFetches(tempDir);
   const temp = path.join(tempDir, `${Date.now()}-${randomBytes(8).toString('hex')}.fetch`);
   const expected = sha256OfKey(key);
   const hash = createHash('sha256');

@@ -1,7 +1,8 @@
 // Where uploads live and how large one may be. Read from the environment on every call, so a test can
 // point a process at a temporary folder before its first upload.
 //
-//   MODESHELF_UPLOADS_DIR       folder of stored uploads (default <repo>/uploads, git-ignored)
+//   MODESHELF_UPLOADS_DIR       the local store's folder (default <repo>/uploads, git-ignored) and, with any
+//                               store, the folder of uploads being received (<uploads>/tmp); lib/storage
 //   MODESHELF_MAX_UPLOAD_BYTES  largest upload, all its files together (default 512 MiB)
 import path from 'node:path';
 

@@ -2,7 +2,7 @@
 // the latter against s3rver started here on a loopback port. Digests are checked against the published
 // SHA-256 test vector and against node:crypto; what the S3 store wrote is read back with a plain S3 client.
 import { createHash, randomBytes } from 'node:crypto';
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, utimesSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { Readable } from 'node:stream';
@@ -222,6 +222,21 @@ describe('the S3 store', () => {
     expect(existsSync(path.join(scratch, key))).toBe(false);
     expect(readdirSync(path.join(scratch, 'tmp'))).toEqual([]);
     await stores.s3.delete(key);
+  });
+
+  it('clears temporary files that a stopped fetch left in the scratch folder, and only old ones', async () => {
+    const scratch = path.join(work, 'scratch-stale');
+    mkdirSync(path.join(scratch, 'tmp'), { recursive: true });
+    const stale = path.join(scratch, 'tmp', '1-stopped.fetch');
+    const recent = path.join(scratch, 'tmp', '2-running.fetch');
+    writeFileSync(stale, 'half a matrix');
+    writeFileSync(recent, 'another half');
+    const day = new Date(Date.now() - 24 * 3600 * 1000);
+    utimesSync(stale, day, day);
+    const { storageKey } = await putContent(tempFile('abc'), ABC_SHA256, stores.s3);
+    expect(readFileSync(await fetchToScratch(storageKey, { store: stores.s3, dir: scratch }), 'utf8')).toBe('abc');
+    expect(readdirSync(path.join(scratch, 'tmp'))).toEqual(['2-running.fetch']);
+    await stores.s3.delete(storageKey);
   });
 
   it('says which bucket is missing', async () => {
