@@ -5,11 +5,13 @@
 //
 // The web server writes (putContent, after an upload's check); workers read (scratch.ts). No database and
 // no Next.js here: this runs in worker threads too.
+import { randomBytes } from 'node:crypto';
 import { rm } from 'node:fs/promises';
+import os from 'node:os';
 import { storeConfig, type StoreConfig } from './config';
 import { LocalStore } from './local';
 import { S3Store } from './s3';
-import { contentKey, type ObjectStore } from './types';
+import { contentKey, StorageError, type ObjectStore } from './types';
 
 export * from './types';
 export { storeConfig, scratchDir, StorageConfigError, type StoreConfig } from './config';
@@ -51,4 +53,25 @@ export async function putContent(filePath: string, sha256: string, store: Object
   }
   await store.putFile(storageKey, filePath, { move: true });
   return { storageKey, placed: true };
+}
+
+/**
+ * Writes, reads back and removes a small object, so a process can refuse to start against a store it
+ * cannot use (a missing bucket, wrong credentials, missing permissions) instead of failing its first job.
+ * Throws StorageError saying which step failed and where.
+ */
+export async function verifyStore(store: ObjectStore = objectStore()): Promise<void> {
+  const key = `health/${os.hostname().replace(/[^A-Za-z0-9._-]/g, '-')}-${process.pid}-${randomBytes(4).toString('hex')}`;
+  const body = `modeshelf store check ${new Date().toISOString()}`;
+  const step = async <T>(what: string, fn: () => Promise<T>): Promise<T> => {
+    try {
+      return await fn();
+    } catch (e) {
+      throw new StorageError(`the store check could not ${what} ${store.location}: ${(e as Error).message}`, e);
+    }
+  };
+  await step('write to', () => store.put(key, body));
+  const back = await step('read from', () => store.get(key));
+  await step('remove from', () => store.delete(key));
+  if (back.toString('utf8') !== body) throw new StorageError(`the store check read back other bytes than it wrote in ${store.location}`);
 }

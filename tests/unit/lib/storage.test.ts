@@ -19,6 +19,7 @@ import {
   StorageConfigError,
   StorageError,
   StorageKeyNotFound,
+  verifyStore,
   type ObjectStore,
 } from '@/lib/storage';
 import { PART_BYTES } from '@/lib/storage/s3';
@@ -143,6 +144,12 @@ describe.each(['local', 's3'] as const)('the %s store', (kind) => {
     }
   });
 
+  it('passes the start-up check, leaving nothing behind', async () => {
+    await verifyStore(store());
+    expect(await store().exists('health')).toBe(false);
+    if (kind === 'local') expect(existsSync(path.join(work, 'uploads', 'health')) ? readdirSync(path.join(work, 'uploads', 'health')) : []).toEqual([]);
+  });
+
   it('refuses keys that are not relative names', async () => {
     for (const key of ['../outside', '/etc/passwd', 'sha256/../../x', 'a//b', '', 'a b']) {
       await expect(store().put(key, 'x')).rejects.toThrow(StorageError);
@@ -242,6 +249,7 @@ describe('the S3 store', () => {
   it('says which bucket is missing', async () => {
     const store = new S3Store({ ...(stores.s3 as S3Store).config, bucket: 'no-such-quillmere-bucket' });
     await expect(store.get('sha256/ab/x')).rejects.toThrow(/no-such-quillmere-bucket/);
+    await expect(verifyStore(store)).rejects.toThrow(/store check could not write to s3:\/\/no-such-quillmere-bucket\/.*does not exist/);
     await store.close();
   });
 });
