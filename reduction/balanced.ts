@@ -46,6 +46,8 @@ export interface BalancedRealization {
   readonly minimalOrder: number;
   /** The balanced realization (minimalOrder states); D of the model. */
   readonly balanced: StateSpaceModel;
+  /** The gramian factors it was made from (P = Lc Lcᵀ, Q = Lo Loᵀ of the stable model); ‖C Lc‖_F is its H2 norm. */
+  readonly factors?: { readonly controllability: Matrix; readonly observability: Matrix };
 }
 
 function scaleColumns(m: Matrix, factors: Float64Array): Matrix {
@@ -87,6 +89,7 @@ export function balancedRealization(
     hankelSingularValues: hsv,
     minimalOrder: k,
     balanced: { A: matmul(matmul(Wt, stable.A), T), B: matmul(Wt, stable.B), C: matmul(stable.C, T), D: stable.D },
+    factors: { controllability: Lc, observability: Lo },
   };
 }
 
@@ -129,6 +132,28 @@ export function balancedCutPoints(real: BalancedRealization): number[] {
     if (r >= real.minimalOrder || r === n || s[r - 1] - s[r] > EQUAL_HANKEL_TOLERANCE * s[r - 1]) cuts.push(r);
   }
   return cuts;
+}
+
+/**
+ * The smallest balanced truncation G_q (q ≥ minOrder) whose a-priori error 2Σ_{i>q} σ_i (Enns 1984;
+ * Glover 1984) is at most `slack`: a stand-in for G in the O(q³) certification steps of the H∞ norm
+ * (`hinfNorm`'s `certifyOn`). Null when no order below the numerical minimal order meets the slack.
+ */
+export function balancedCertificate(
+  real: BalancedRealization,
+  slack: number,
+  minOrder = 0,
+): { model: StateSpaceModel; slack: number } | null {
+  const s = real.hankelSingularValues;
+  let tail = 0;
+  let q = s.length;
+  // Walk down from the end while the tail stays within the slack.
+  while (q > minOrder && tail + 2 * s[q - 1] <= slack) {
+    tail += 2 * s[q - 1];
+    q--;
+  }
+  if (q >= real.minimalOrder) return null;
+  return { model: leadingStates(real.balanced, q), slack: tail };
 }
 
 /** Balanced truncation to r states (r ≤ minimalOrder). */

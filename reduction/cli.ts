@@ -6,6 +6,7 @@
  * exits 1. Verbs live in `reduction/cli/`, one module each; importing a module registers its verb.
  */
 import { ModelError } from './errors';
+import { linalgBackendReport } from './linalg/index';
 import { MAX_DENSE_ENTRIES_ENV } from './io/limits';
 import { parseArgs } from './cli/args';
 import { findVerb, listVerbs } from './cli/registry';
@@ -40,8 +41,17 @@ function main(argv: readonly string[]): number {
     return 2;
   }
   try {
+    const started = performance.now();
     const document = verb.run(parseArgs(rest, verb.options));
-    process.stdout.write(JSON.stringify(document) + '\n');
+    // Which backend and path served the verb, its wall time and the process's peak resident memory.
+    const engine = {
+      backend: linalgBackendReport().backend,
+      path: 'dense' as const,
+      seconds: (performance.now() - started) / 1000,
+      peakMemoryMiB: process.resourceUsage().maxRSS / 1024,
+    };
+    const out = document !== null && typeof document === 'object' && !Array.isArray(document) ? { ...document, engine } : document;
+    process.stdout.write(JSON.stringify(out) + '\n');
     return 0;
   } catch (e) {
     if (e instanceof ModelError) {

@@ -50,7 +50,9 @@ export function runAnalysis(files: readonly ModelFile[], engineVersion: string, 
   report('Reading the model files', 0);
   const { model, format } = loadModel(files);
   report(`Computing poles, norms and Hankel singular values of ${model.A.rows} states`, STAGES.read);
-  const a = analyzeModel(model);
+  // One split and balanced realization for the analysis and both balanced methods' figures.
+  const preparation = new PreparationCache();
+  const a = analyzeModel(model, { cache: preparation });
   const kept = keptPolesOf(
     { re: a.poles.map((p) => p.re), im: a.poles.map((p) => p.im), stability: a.poles.map((p) => p.stability) },
     a.stabilityTolerance,
@@ -64,8 +66,6 @@ export function runAnalysis(files: readonly ModelFile[], engineVersion: string, 
   }
 
   let at = STAGES.read + STAGES.analysis;
-  // One split and balanced realization for both balanced methods' figures.
-  const preparation = new PreparationCache();
   const figuresFor = (method: 'balanced' | 'residualization', weight: number, words: string): OrderFigureTable => {
     report(words, at);
     const start = at;

@@ -4,7 +4,7 @@
  */
 import { analyzeModel } from '../analysis';
 import { loadModelArgument, numberOption } from './args';
-import { finiteOrNull, matrixRows, numberList } from './output';
+import { finiteOrNull, matrixRows, numberList, hinfCertificate } from './output';
 import { registerVerb } from './registry';
 
 registerVerb({
@@ -31,7 +31,9 @@ registerVerb({
       hinfNorm: a.hinfNorm.finite ? a.hinfNorm.value : null,
       h2Norm: a.h2Norm.finite ? a.h2Norm.value : null,
       dcGain: a.dcGain.defined ? matrixRows(a.dcGain.value) : null,
-      ...(a.hinfNorm.finite ? { peakFrequency: finiteOrNull(a.hinfNorm.peakFrequency) } : { hinfNormNote: a.hinfNorm.reason }),
+      ...(a.hinfNorm.finite
+        ? { peakFrequency: finiteOrNull(a.hinfNorm.peakFrequency), hinfNormCertificate: hinfCertificate(a.hinfNorm) }
+        : { hinfNormNote: a.hinfNorm.reason }),
       ...(a.h2Norm.finite ? {} : { h2NormNote: a.h2Norm.reason }),
       ...(a.dcGain.defined ? {} : { dcGainNote: a.dcGain.reason }),
       stablePoles: a.stablePoles,

@@ -26,3 +26,22 @@ export function numberList(values: ArrayLike<number>): (number | null)[] {
 export function complexPairs(v: ComplexVector): [number | null, number | null][] {
   return Array.from(v.re, (re, i) => [finiteOrNull(re), finiteOrNull(v.im[i])]);
 }
+
+/** How an H∞ figure was certified: its bracket, the method and the Hamiltonian eigenvalue computations it took. */
+export function hinfCertificate(h: {
+  lowerBound: number;
+  upperBound: number;
+  method: string;
+  hamiltonianSolves: number;
+  hamiltonianOrder: number;
+  certificationSlack: number;
+}): Record<string, number | string | null> {
+  return {
+    lowerBound: finiteOrNull(h.lowerBound),
+    upperBound: finiteOrNull(h.upperBound),
+    method: h.method,
+    hamiltonianSolves: h.hamiltonianSolves,
+    hamiltonianOrder: h.hamiltonianOrder,
+    slack: h.certificationSlack,
+  };
+}

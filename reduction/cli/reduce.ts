@@ -9,7 +9,7 @@ import type { ModalSelection } from '../modal';
 import { reduceModel, REDUCTION_METHODS, type ReductionMethod } from '../reduce';
 import { frequencyLimitedReduction } from '../frequency-limited';
 import { integerOption, loadModelArgument, numberListOption, numberOption, stringOption, type ParsedArgs } from './args';
-import { complexPairs, finiteOrNull, matrixRows, numberList } from './output';
+import { complexPairs, finiteOrNull, matrixRows, numberList, hinfCertificate } from './output';
 import { registerVerb } from './registry';
 import { modelPoles as modelPolesOf } from '../spectral-split';
 
@@ -119,7 +119,7 @@ registerVerb({
       hinfError: r.hinfError.finite ? r.hinfError.value : null,
       hankelSingularValues: r.hankelSingularValues ? numberList(r.hankelSingularValues) : null,
       ...(r.hinfError.finite
-        ? { hinfErrorFrequency: finiteOrNull(r.hinfError.peakFrequency) }
+        ? { hinfErrorFrequency: finiteOrNull(r.hinfError.peakFrequency), hinfErrorCertificate: hinfCertificate(r.hinfError) }
         : { hinfErrorNote: r.hinfError.reason }),
       h2Error: r.h2Error.finite ? r.h2Error.value : null,
       ...(r.h2Error.finite ? {} : { h2ErrorNote: r.h2Error.reason }),

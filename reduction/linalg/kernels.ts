@@ -51,8 +51,11 @@ export interface DenseKernels {
     tol: number,
   ): [number, number];
   pivotedQrOfRows(work: Float64Array, n: number, w: number, tol: number, perm: Int32Array): number;
-  /** T·Y + Y·S = F for upper quasi-triangular T, S (F overwritten by Y); true when a pivot was perturbed. */
-  quasiTriangularSylvester(t: Matrix, s: Matrix, f: Matrix): boolean;
+  /**
+   * op(T)·Y + Y·op(S) = F for upper quasi-triangular T, S (op = transpose when asked; F overwritten by
+   * Y); true when a pivot was perturbed (T and −S share an eigenvalue to working precision).
+   */
+  quasiTriangularSylvester(t: Matrix, s: Matrix, f: Matrix, transposeT?: boolean, transposeS?: boolean): boolean;
   /**
    * G(jω) = CQ·(jωI − H)⁻¹·QtB + D for every ω (Laub 1981), H upper Hessenberg; results as
    * [frequency][p][m] in `re`/`im` (length w.length·p·m).

@@ -268,8 +268,8 @@ function makeKernels(native: NativeAddon): DenseKernels {
         pivotedQrOfRows(second.work, second.n, second.w, tol, second.perm),
       ];
     },
-    quasiTriangularSylvester(t, s, f) {
-      const scale = call('sylvester', () => native.trsyl(false, false, 1, t.rows, s.rows, t.data, s.data, f.data));
+    quasiTriangularSylvester(t, s, f, transposeT = false, transposeS = false) {
+      const scale = call('sylvester', () => native.trsyl(transposeT, transposeS, 1, t.rows, s.rows, t.data, s.data, f.data));
       if (scale !== 1) {
         // dtrsyl3 scaled the solution to avoid overflow, or perturbed a near-common eigenvalue.
         const c = Math.abs(scale);

@@ -24,6 +24,32 @@ function reciprocalCondition(f: LuFactorization, anorm: number): number {
   return denominator > 0 ? 1 / denominator : 0;
 }
 
+/** J·Mᵀ·J (J the reversal): upper quasi-triangular again when M is, with the same diagonal blocks. */
+function reversedTranspose(m: Matrix): Matrix {
+  const n = m.rows;
+  const out = { rows: n, cols: n, data: new Float64Array(n * n) };
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out.data[i * n + j] = m.data[(n - 1 - j) * n + (n - 1 - i)];
+  return out;
+}
+
+/**
+ * op(T)·Y + Y·op(S) = F through the upper-triangular kernel: with J the reversal, Tᵀ·Y = J·(J·Tᵀ·J)·J·Y,
+ * so (J·Tᵀ·J)·(J·Y) + (J·Y)·S = J·F, and likewise on the right for Sᵀ.
+ */
+function transposedSylvester(t: Matrix, s: Matrix, f: Matrix, transposeT = false, transposeS = false): boolean {
+  if (!transposeT && !transposeS) return quasiTriangularSylvester(t, s, f);
+  const n = f.rows, m = f.cols;
+  const src = f.data.slice();
+  const at = (i: number, j: number) => src[(transposeT ? n - 1 - i : i) * m + (transposeS ? m - 1 - j : j)];
+  for (let i = 0; i < n; i++) for (let j = 0; j < m; j++) f.data[i * m + j] = at(i, j);
+  const perturbed = quasiTriangularSylvester(transposeT ? reversedTranspose(t) : t, transposeS ? reversedTranspose(s) : s, f);
+  const y = f.data.slice();
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < m; j++) f.data[(transposeT ? n - 1 - i : i) * m + (transposeS ? m - 1 - j : j)] = y[i * m + j];
+  }
+  return perturbed;
+}
+
 export const portableKernels: DenseKernels = {
   name: 'portable',
   gemm,
@@ -50,7 +76,7 @@ export const portableKernels: DenseKernels = {
       { kind: 'pivotedQrOfRows', work: second.work, n: second.n, w: second.w, tol, perm: second.perm },
     );
   },
-  quasiTriangularSylvester,
+  quasiTriangularSylvester: transposedSylvester,
   hessenbergResponse,
   setThreads: setLinalgThreads,
 };

@@ -9,6 +9,7 @@ import { type Matrix, type ComplexVector, zeros, eigenvalues, multiply } from '.
 import type { StateSpaceModel } from '../../reduction/model';
 import { balancedRealization, type BalancedRealization } from '../../reduction/balanced';
 import { frequencyResponse, type FrequencyResponse } from '../../reduction/frequency';
+import { analyzeModel, type ModelAnalysis } from '../../reduction/analysis';
 
 function readModel(dir: string): StateSpaceModel {
   const A = readNpyMatrix(path.join(dir, 'A.npy'));
@@ -41,7 +42,7 @@ function eigenvalueDistance(ours: ComplexVector, ref: { re: Float64Array; im: Fl
 
 const productCase: BenchCase<Matrix, Matrix> = {
   id: 'product',
-  title: 'matrix product A·A (packed gemm, two threads)',
+  title: 'matrix product A·A (dgemm; portable: packed WebAssembly kernel)',
   sizes: [1000],
   quickSizes: [400],
   prepare: (dir) => readModel(dir).A,
@@ -59,9 +60,10 @@ const productCase: BenchCase<Matrix, Matrix> = {
 
 const eigenvalueCase: BenchCase<Matrix, ComplexVector> = {
   id: 'eigenvalues',
-  title: 'eigenvalues (Hessenberg + Francis QR)',
-  sizes: [500],
+  title: 'eigenvalues (dgeev; portable: Hessenberg + Francis QR)',
+  sizes: [500, 2000],
   quickSizes: [200],
+  maxPortableSize: 500,
   prepare: (dir) => readModel(dir).A,
   run: (a) => eigenvalues(a),
   check(dir, _a, lam) {
@@ -82,7 +84,9 @@ const balancedCase: BenchCase<StateSpaceModel, BalancedRealization> = {
   id: 'balanced',
   title: 'balanced truncation: both gramians, factors, SVD, realization',
   sizes: [500, 1000, 2000],
+  largeSizes: [4000],
   quickSizes: [200, 400],
+  maxPortableSize: 1000,
   prepare: (dir) => readModel(dir),
   run: (model) => balancedRealization(model),
   check(dir, _m, real) {
@@ -98,7 +102,7 @@ const balancedCase: BenchCase<StateSpaceModel, BalancedRealization> = {
 
 const frequencyCase: BenchCase<{ model: StateSpaceModel; w: Float64Array }, FrequencyResponse> = {
   id: 'frequency',
-  title: 'frequency response, 1000 frequencies',
+  title: 'frequency response, 1000 frequencies (modal form where κ(V) allows, else Hessenberg)',
   sizes: [1000],
   quickSizes: [200],
   prepare: (dir) => ({ model: readModel(dir), w: readNpy(path.join(dir, 'w.npy')).data }),
@@ -123,4 +127,22 @@ const frequencyCase: BenchCase<{ model: StateSpaceModel; w: Float64Array }, Freq
   },
 };
 
-export const cases: BenchCase[] = [productCase, eigenvalueCase, balancedCase, frequencyCase] as BenchCase[];
+const analysisCase: BenchCase<StateSpaceModel, ModelAnalysis> = {
+  id: 'analysis',
+  title: 'model analysis end to end (poles, modes, DC gain, H2, H∞, Hankel singular values); reference: the parts scipy has',
+  sizes: [1000, 2000],
+  quickSizes: [200],
+  maxPortableSize: 1000,
+  prepare: (dir) => readModel(dir),
+  run: (model) => analyzeModel(model),
+  check(dir, _m, a) {
+    const ref = readNpy(path.join(dir, 'ref_hsv.npy')).data;
+    let worst = 0;
+    for (let i = 0; i < ref.length && ref[i] > 1e-6 * ref[0]; i++) worst = Math.max(worst, Math.abs(a.hankelSingularValues[i] - ref[i]) / ref[i]);
+    const h = a.hinfNorm;
+    const how = h.finite ? `H∞ by ${h.hamiltonianSolves} Hamiltonian solve(s) of order ${h.hamiltonianOrder}` : 'H∞ not finite';
+    return `HSV max rel diff ${worst.toExponential(1)}; ${how}`;
+  },
+};
+
+export const cases: BenchCase[] = [productCase, eigenvalueCase, balancedCase, frequencyCase, analysisCase] as BenchCase[];

@@ -77,6 +77,8 @@ function timeCase(
     sizes: [1000],
     quickSizes: [300],
     warmupSize: 60,
+    // The solvers' own kernels (matrix–vector products, triangular solves) are shared by both backends.
+    maxPortableSize: 0,
     reference: (n, dir) => ({ command: PYTHON, args: [REFERENCE, 'bench', id, String(n), dir] }),
     prepare: (dir) => readInput(dir),
     run: ({ model, times }) =>
@@ -95,6 +97,7 @@ export const cases: BenchCase[] = [
     sizes: [1000],
     quickSizes: [100],
     warmupSize: 30,
+    maxPortableSize: 0,
     reference: (n, dir) => ({ command: PYTHON, args: [REFERENCE, 'bench', 'stiff-steps', String(n), dir] }),
     prepare: (dir) => readInput(dir),
     run: ({ model, times }) =>

@@ -20,6 +20,10 @@ export interface BenchCase<Input = unknown, Output = unknown> {
   readonly sizes: readonly number[];
   /** Sizes for `npm run bench -- --quick`. */
   readonly quickSizes: readonly number[];
+  /** Extra sizes for `npm run bench -- --large` (slow on both sides). */
+  readonly largeSizes?: readonly number[];
+  /** Largest n at which the portable backend is also timed (default: every size). */
+  readonly maxPortableSize?: number;
   /** Size for the untimed JIT warm-up run (default 60). */
   readonly warmupSize?: number;
   /** Command and arguments for the reference (default: bench_reference.py ID N DIR). */

@@ -16,6 +16,8 @@ Cases
                 balanced realization W^T A T, W^T B, C T for the numerical minimal order
   frequency     G(jw) = C (jwI - A)^-1 B at 1000 frequencies by the modal form (eigendecomposition once,
                 then a diagonal solve per frequency): the quickest numpy route for a diagonalizable A
+  analysis      the parts of a model analysis numpy/scipy have: poles (eigvals), modal form (eig), DC gain
+                (solve), Hankel singular values as in `balanced`, H2 norm from the controllability factor
 
 The model: A = Q (D + N) Q^T with Q a random orthogonal matrix, D block diagonal with decay rates
 spread log-uniformly over three decades (one pole in five a lightly damped complex pair) and N a small
@@ -113,7 +115,7 @@ def main():
     if len(args) != 3:
         sys.exit("usage: bench_reference.py CASE N DIR [--no-time]")
     case, n, out = args[0], int(args[1]), args[2]
-    seed = {"eigenvalues": 1, "balanced": 2, "frequency": 3, "product": 4}.get(case)
+    seed = {"eigenvalues": 1, "balanced": 2, "frequency": 3, "product": 4, "analysis": 5}.get(case)
     if seed is None:
         sys.exit(f"bench_reference.py: unknown case {case!r}")
     a, b, c = stable_model(n, 1000 * seed + n)
@@ -135,6 +137,13 @@ def main():
                 lam = np.linalg.eigvals(a)
             elif case == "balanced":
                 hsv, _ = balanced(a, b, c)
+            elif case == "analysis":
+                poles = np.linalg.eigvals(a)
+                lam, v = np.linalg.eig(a)
+                dc = -c @ np.linalg.solve(a, b)
+                hsv, _ = balanced(a, b, c)
+                p = sl.solve_continuous_lyapunov(a, -b @ b.T)
+                h2 = np.sqrt(np.trace(c @ p @ c.T))
             else:
                 g = frequency(a, b, c, w)
             runs.append(time.perf_counter() - t0)
@@ -145,7 +154,7 @@ def main():
             np.save(os.path.join(out, "ref_prod.npy"), prod)
         elif case == "eigenvalues":
             np.save(os.path.join(out, "ref_eig.npy"), np.stack([lam.real, lam.imag], axis=1))
-        elif case == "balanced":
+        elif case in ("balanced", "analysis"):
             np.save(os.path.join(out, "ref_hsv.npy"), hsv)
         else:
             # Every 50th frequency, as (re, im) of the p x m matrices.
@@ -164,6 +173,7 @@ def main():
                     "eigenvalues": "numpy.linalg.eigvals (dgeev)",
                     "balanced": "2x solve_continuous_lyapunov + cholesky + svd + projection",
                     "frequency": "eigendecomposition, diagonal solve per frequency",
+                    "analysis": "eigvals + eig + solve + balanced + solve_continuous_lyapunov",
                 }[case],
             }
         )
