@@ -6,8 +6,8 @@
 //      time spent waiting for a free connection counts too (no coordinated omission);
 //   2. unpaced (autocannon, closed loop: each connection sends its next request when the last returns), to
 //      see how far the app goes on this machine;
-//   3. unpaced against /api/health (one trivial query), the reference for the same app on the same machine
-//      at the same moment: on a shared machine the ratio says more than the absolute figure.
+//   3. paced and unpaced against /api/health (one trivial query), the reference for the same app on the
+//      same machine at the same moment: on a shared machine the ratio says more than the absolute figure.
 // autocannon's own pacing (`overallRate`) is not used for phase 1: it gives each connection a budget per
 // second that it spends as fast as it can at the start of each second, so "200 requests/s" arrives as a
 // burst at full speed followed by silence, and it back-fills latencies with a 1 ms expected interval.
@@ -194,6 +194,12 @@ async function main(): Promise<void> {
     `paced at ${TARGET_RATE} req/s (open loop, one request every ${(1000 / TARGET_RATE).toFixed(0)} ms, at most ${connections} in flight)`,
     await paced(url, options.requests.map((r) => r.path), options.headers, TARGET_RATE, seconds, connections),
   );
+  // The same pacing against the health check (one trivial query): on a shared machine, what the server
+  // framework and the machine allow at this rate at this moment, to read the pull figure against.
+  const pacedHealth = reportPaced(
+    `reference: GET /api/health paced at ${TARGET_RATE} req/s (same generator)`,
+    await paced(url, ['/api/health'], {}, TARGET_RATE, seconds, connections),
+  );
   const open = report('unpaced (as fast as it answers)', await autocannon(options));
   const health = report('reference: GET /api/health unpaced', await autocannon({ url: `${url}/api/health`, connections, duration: seconds, timeout: 10 }));
 
@@ -203,7 +209,8 @@ async function main(): Promise<void> {
       `(sustained ${pacedRun.rate.toFixed(1)} req/s, p99 ${pacedRun.p99.toFixed(1)} ms); unpaced ${open.rate.toFixed(1)} req/s, p99 ${open.p99} ms`,
   );
   console.log(`pull API throughput / health-check throughput: ${(open.rate / health.rate).toFixed(2)}`);
-  if (!pacedRun.ok || !open.ok || !health.ok) {
+  console.log(`paced p99, pull API / health check: ${pacedRun.p99.toFixed(1)} ms / ${pacedHealth.p99.toFixed(1)} ms`);
+  if (!pacedRun.ok || !pacedHealth.ok || !open.ok || !health.ok) {
     console.error('some requests failed (see the error counts above)');
     process.exitCode = 1;
   }
