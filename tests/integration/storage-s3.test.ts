@@ -1,8 +1,8 @@
 // Uploads with the S3 store (issue 14, "Storage"): against the real PostgreSQL and s3rver started here on a
 // loopback port. An accepted upload's files go to the bucket under their SHA-256 and nowhere on the web
 // server's disk; a worker's engine task reads them back from the bucket into its own scratch folder, in a
-// thread and in a real worker process (scripts/worker.ts) that has its own scratch and uploads folders; a
-// refused upload, or one the store will not take, leaves no row and no object.
+// thread and in real worker processes (scripts/worker.ts) that have their own scratch and uploads folders,
+// one of them killed mid-job while the other finishes with nothing lost or half-written; a refused upload, or one the store will not take, leaves no row and no object.
 //
 // Expected values come from the inputs: digests by node:crypto over the same bytes, the poles of the
 // block-diagonal test model by hand (−0.2 ± 5j from its 2×2 block, −1 from its last entry), its DC gain
@@ -12,7 +12,7 @@ import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { ListObjectsV2Command, S3Client } from '@aws-sdk/client-s3';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
 import { closeQueue } from '@/lib/jobs/queue';
 import { getJob, type JobView } from '@/lib/jobs/jobs';
@@ -25,7 +25,7 @@ import { runEngineTask } from '@/lib/engine-tasks/run-task';
 import { ENGINE_VERSION } from '@/lib/engine-tasks/engine-version';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { makeUser, migrateTestDatabase } from './helpers';
-import { SMALL, listFiles, matrixMarketArray, rowsBy, sha256, tempUploadsDir, uniqueName, uploadRequest, type UploadFile } from './fixtures/model-uploads';
+import { SMALL, kilnWallFiles, listFiles, matrixMarketArray, rowsBy, sha256, tempUploadsDir, uniqueName, uploadRequest, type UploadFile } from './fixtures/model-uploads';
 import { startS3Fake, type S3Fake } from '../fixtures/storage/s3-fake';
 
 let fake: S3Fake;
@@ -85,7 +85,13 @@ function startWorker(scratchDir: string, lines: string[]): ChildProcess {
   const child = spawn(path.join(root, 'node_modules', '.bin', 'tsx'), [path.join(root, 'scripts', 'worker.ts')], {
     cwd: root,
     detached: true, // its own process group, so stopping it takes tsx's node child too
-    env: { ...process.env, MODESHELF_SCRATCH_DIR: scratchDir, MODESHELF_UPLOADS_DIR: scratch('worker-own-uploads'), MODESHELF_LINALG_THREADS: '1' },
+    env: {
+      ...process.env,
+      MODESHELF_SCRATCH_DIR: scratchDir,
+      MODESHELF_UPLOADS_DIR: scratch('worker-own-uploads'),
+      MODESHELF_LINALG_THREADS: '1',
+      MODESHELF_JOB_STALE_SECONDS: '3',
+    },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   child.stdout?.on('data', (b: Buffer) => lines.push(b.toString()));
@@ -94,30 +100,36 @@ function startWorker(scratchDir: string, lines: string[]): ChildProcess {
   return child;
 }
 
-function stop(child: ChildProcess): Promise<void> {
+function stop(child: ChildProcess, signal: NodeJS.Signals = 'SIGTERM'): Promise<void> {
   return new Promise((resolve) => {
     if (child.exitCode !== null || child.signalCode !== null) return resolve();
     child.once('exit', () => resolve());
     try {
-      process.kill(-child.pid!, 'SIGTERM');
+      process.kill(-child.pid!, signal);
     } catch {
       resolve();
     }
   });
 }
 
-async function waitForJob(id: string, lines: string[], timeoutMs = 120_000): Promise<JobView> {
+const finished = (j: JobView) => j.status === 'succeeded' || j.status === 'failed';
+
+async function waitForJob(id: string, lines: string[], timeoutMs = 120_000, until: (j: JobView) => boolean = finished): Promise<JobView> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const job = await getJob(id);
-    if (job.status === 'succeeded' || job.status === 'failed') return job;
+    if (until(job)) return job;
     if (Date.now() > deadline) throw new Error(`job ${id} is still ${job.status} after ${timeoutMs} ms; worker log:\n${lines.join('').slice(-2000)}`);
     await new Promise((r) => setTimeout(r, 200));
   }
 }
 
+afterEach(async () => {
+  await Promise.all(workers.splice(0).map((w) => stop(w)));
+});
+
 afterAll(async () => {
-  await Promise.all(workers.splice(0).map(stop));
+  await Promise.all(workers.splice(0).map((w) => stop(w)));
   await closeQueue();
   await closeDb();
   await fake?.close();
@@ -198,6 +210,36 @@ describe('uploads with the S3 store', () => {
     const fetched = listFiles(workerScratch);
     for (const key of keys) expect(fetched).toContain(key);
     expect(fetched.filter((f) => !f.startsWith('sha256/'))).toEqual([]);
+  });
+
+  it('two workers share only the bucket: one killed mid-job, the other fetches into its own scratch and finishes', async () => {
+    const files = kilnWallFiles(20, 12); // 240 states: an analysis long enough to be caught in the middle
+    const result = await registerUpload(uploadRequest({ name: uniqueName('Kiln wall, two workers') }, files), engineer);
+    rmSync(uploads, { recursive: true, force: true });
+    const [scratchA, scratchB] = [scratch('killed'), scratch('survivor')];
+    const linesA: string[] = [];
+    const linesB: string[] = [];
+    const first = startWorker(scratchA, linesA);
+    const running = await waitForJob(result.job.id, linesA, 120_000, (j) => j.status === 'running' && j.fraction > 0);
+    expect(running.attempts).toBe(1);
+    await stop(first, 'SIGKILL');
+    expect(await db()('analyses').where({ source_version_id: result.version.id })).toHaveLength(0);
+
+    startWorker(scratchB, linesB);
+    const job = await waitForJob(result.job.id, linesB, 180_000);
+    expect(job, linesB.join('').slice(-3000)).toMatchObject({ status: 'succeeded', attempts: 2, error: null });
+    const analyses = await db()('analyses').where({ source_version_id: result.version.id });
+    expect(analyses).toHaveLength(1);
+    expect((analyses[0].result as AnalysisRecord).states).toBe(240);
+
+    const keys = files.map((f) => `sha256/${sha256(f.text).slice(0, 2)}/${sha256(f.text)}`);
+    const fetchedB = listFiles(scratchB);
+    for (const key of keys) expect(fetchedB).toContain(key);
+    // Whatever either worker kept is whole: every copy hashes to its key, and no temporary file is left.
+    for (const [dir, list] of [[scratchA, listFiles(scratchA)], [scratchB, fetchedB]] as const) {
+      expect(list.filter((f) => !f.startsWith('sha256/'))).toEqual([]);
+      for (const f of list) expect(`sha256/${sha256(readFileSync(path.join(dir, f))).slice(0, 2)}/${sha256(readFileSync(path.join(dir, f)))}`).toBe(f);
+    }
   });
 
   it('a refused model leaves no row and no object in the bucket', async () => {
