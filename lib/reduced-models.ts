@@ -13,6 +13,7 @@ import { recordAudit } from '@/lib/audit';
 import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
 import { matricesSha256 } from '@/lib/checksums';
+import { TIME_UNIT_SECONDS } from '@/lib/exports/discrete';
 import { receiveUpload } from '@/lib/uploads/receive';
 import { releaseFiles, storeFile, type StoredFile } from '@/lib/uploads/store';
 import { validateSignalInChildProcess } from '@/lib/engine-tasks/validate-process';
@@ -31,9 +32,32 @@ const bandSchema = z
   .object({ minFrequency: positiveFrequency('The lowest frequency'), maxFrequency: positiveFrequency('The highest frequency') })
   .refine((b) => b.maxFrequency > b.minFrequency, { message: 'The highest frequency must be above the lowest.', path: ['maxFrequency'] });
 
+/**
+ * The band of frequency-limited balanced truncation as the person entered it: 0 ≤ from < to, finite, in rad
+ * per model time unit ('rad') or in Hz ('hz', cycles per second). Converted to rad per time unit by
+ * limitedBandInRadians once the model's time unit is known.
+ */
+export const limitedBandSchema = z
+  .object({
+    minFrequency: z
+      .number({ error: 'The band’s lower edge must be a finite number.' })
+      .finite('The band’s lower edge must be finite.')
+      .min(0, 'The band’s lower edge must be 0 or above.'),
+    maxFrequency: z
+      .number({ error: 'The band’s upper edge must be a finite number.' })
+      .finite('The band’s upper edge must be finite.')
+      .positive('The band’s upper edge must be above 0.'),
+    unit: z.enum(['rad', 'hz'], { error: 'The band’s unit must be rad (per model time unit) or hz.' }).default('rad'),
+  })
+  .refine((b) => b.maxFrequency > b.minFrequency, { message: 'The band’s upper edge must be above its lower edge.', path: ['maxFrequency'] });
+export type LimitedBandInput = z.infer<typeof limitedBandSchema>;
+
+export const RECIPE_METHODS = ['balanced', 'residualization', 'modal', 'frequency-limited'] as const;
+export type RecipeMethod = (typeof RECIPE_METHODS)[number];
+
 export const recipeSchema = z
   .object({
-    method: z.enum(['balanced', 'residualization', 'modal'], { error: 'Method must be balanced, residualization or modal.' }),
+    method: z.enum(RECIPE_METHODS, { error: 'Method must be balanced, residualization, modal or frequency-limited.' }),
     orderRule: z.enum(['order', 'tolerance'], { error: 'Choose the order by number or by tolerance.' }),
     order: z.number({ error: 'The order must be a number.' }).int('The order must be a whole number.').min(1, 'Keep at least 1 state.').optional(),
     tolerance: z
@@ -43,6 +67,8 @@ export const recipeSchema = z
       .optional(),
     modalSelection: z.enum(['dominance', 'slowest', 'band'], { error: 'The selection rule must be dominance, slowest or band.' }).default('dominance'),
     band: bandSchema.optional(),
+    /** frequency-limited balanced truncation: the band to balance on */
+    limitedBand: limitedBandSchema.optional(),
     acceptance: z
       .object({
         minFrequency: positiveFrequency('The acceptance band’s lowest frequency'),
@@ -53,10 +79,46 @@ export const recipeSchema = z
       .optional(),
   })
   .superRefine((r, ctx) => {
+    if (r.method === 'frequency-limited') {
+      if (r.orderRule === 'tolerance') {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['orderRule'],
+          message: 'Frequency-limited balanced truncation has no a-priori error bound to meet a tolerance; choose the order by number of states.',
+        });
+      }
+      if (!r.limitedBand) ctx.addIssue({ code: 'custom', path: ['limitedBand'], message: 'Frequency-limited balanced truncation needs the band to balance on.' });
+    } else if (r.limitedBand) {
+      ctx.addIssue({ code: 'custom', path: ['limitedBand'], message: 'A band to balance on applies to frequency-limited balanced truncation only.' });
+    }
     if (r.orderRule === 'order' && r.order === undefined) ctx.addIssue({ code: 'custom', path: ['order'], message: 'Give the number of states to keep.' });
     if (r.orderRule === 'tolerance' && r.tolerance === undefined) ctx.addIssue({ code: 'custom', path: ['tolerance'], message: 'Give the tolerance the bound must meet.' });
     if (r.method === 'modal' && r.modalSelection === 'band' && !r.band) ctx.addIssue({ code: 'custom', path: ['band'], message: 'The band rule needs a frequency band.' });
   });
+
+/**
+ * The entered band in rad per model time unit (what the engine works in): rad as given; Hz times 2π and the
+ * seconds in one time unit. Throws a 400 ApiError naming the field when Hz cannot be converted (a time unit
+ * of unknown length) or the converted band is not finite.
+ */
+export function limitedBandInRadians(band: LimitedBandInput, timeUnit: string): { minFrequency: number; maxFrequency: number } {
+  if (band.unit === 'rad') return { minFrequency: band.minFrequency, maxFrequency: band.maxFrequency };
+  const seconds = TIME_UNIT_SECONDS[timeUnit.trim()];
+  if (seconds === undefined) {
+    throw new ApiError(
+      400,
+      'invalid_request',
+      `Hz cannot be converted for a model whose time unit is “${timeUnit}” (not one of ${Object.keys(TIME_UNIT_SECONDS).join(', ')}); give the band in rad/${timeUnit}.`,
+      'recipe.limitedBand.unit',
+    );
+  }
+  const factor = 2 * Math.PI * seconds;
+  const out = { minFrequency: band.minFrequency * factor, maxFrequency: band.maxFrequency * factor };
+  if (!Number.isFinite(out.maxFrequency)) {
+    throw new ApiError(400, 'invalid_request', 'The band’s upper edge is too large.', 'recipe.limitedBand.maxFrequency');
+  }
+  return out;
+}
 
 const targetSchema = z.discriminatedUnion('kind', [
   z.object({
@@ -76,10 +138,18 @@ export type ReductionRequest = z.infer<typeof reductionRequestSchema>;
 
 export interface RecipeRow {
   id: string;
-  method: 'balanced' | 'residualization' | 'modal';
+  method: RecipeMethod;
   order: number | null;
   tolerance: number | null;
-  options: { selection?: 'dominance' | 'slowest' | 'band'; band?: { minFrequency: number; maxFrequency: number } };
+  /**
+   * modal: { selection, band? }. frequency-limited: { band } in rad per model time unit (what the engine
+   * used) and { enteredBand } as the person gave it (its unit, 'rad' or 'hz'), for display.
+   */
+  options: {
+    selection?: 'dominance' | 'slowest' | 'band';
+    band?: { minFrequency: number; maxFrequency: number };
+    enteredBand?: { minFrequency: number; maxFrequency: number; unit: 'rad' | 'hz' };
+  };
   acceptance: { minFrequency: number; maxFrequency: number; maxError: number } | null;
   created_by: string;
   created_at: Date;
@@ -91,6 +161,7 @@ export function recipeInputOf(row: RecipeRow): RecipeInput {
     order: row.order,
     tolerance: row.tolerance,
     modal: row.method === 'modal' ? { selection: row.options.selection ?? 'dominance', band: row.options.band } : null,
+    limitedBand: row.method === 'frequency-limited' ? (row.options.band ?? null) : null,
     acceptance: row.acceptance,
   };
 }
@@ -99,12 +170,28 @@ export function recipeInputOf(row: RecipeRow): RecipeInput {
 export async function requestReduction(input: ReductionRequest, user: SessionUser): Promise<{ job: JobView; recipeId: string }> {
   const version = await findSourceVersion(input.sourceVersionId);
   if (!version) throw new ApiError(404, 'not_found', 'The source version was not found.', 'sourceVersionId');
-  if (!(await analysisOf(version.id))) {
+  const analysis = await analysisOf(version.id);
+  if (!analysis) {
     throw new ApiError(409, 'not_analysed', 'The source version has not been analysed yet; run the recipe once its analysis has finished.', 'sourceVersionId');
   }
   const { recipe } = input;
   if (recipe.orderRule === 'order' && recipe.order! > version.states) {
     throw new ApiError(400, 'invalid_request', `The order ${recipe.order} is larger than the model (${version.states} states).`, 'recipe.order');
+  }
+  const keptExactly = analysis.marginalPoles + analysis.unstablePoles;
+  if (recipe.method === 'frequency-limited' && recipe.order! < keptExactly) {
+    throw new ApiError(
+      400,
+      'invalid_request',
+      `The order ${recipe.order} is below the ${keptExactly} states kept exactly for marginal and unstable poles.`,
+      'recipe.order',
+    );
+  }
+  let options: RecipeRow['options'] = {};
+  if (recipe.method === 'modal') options = { selection: recipe.modalSelection, ...(recipe.band ? { band: recipe.band } : {}) };
+  if (recipe.method === 'frequency-limited') {
+    const timeUnit = (await db()('source_models').where({ id: version.source_model_id }).first('time_unit'))?.time_unit ?? 's';
+    options = { band: limitedBandInRadians(recipe.limitedBand!, timeUnit), enteredBand: recipe.limitedBand! };
   }
   if (input.target.kind === 'existing') {
     const target = await db()('reduced_models').where({ id: input.target.reducedModelId }).first();
@@ -119,7 +206,7 @@ export async function requestReduction(input: ReductionRequest, user: SessionUse
         method: recipe.method,
         order: recipe.orderRule === 'order' ? recipe.order! : null,
         tolerance: recipe.orderRule === 'tolerance' ? recipe.tolerance! : null,
-        options: JSON.stringify(recipe.method === 'modal' ? { selection: recipe.modalSelection, ...(recipe.band ? { band: recipe.band } : {}) } : {}) as never,
+        options: JSON.stringify(options) as never,
         acceptance: (recipe.acceptance ? JSON.stringify(recipe.acceptance) : null) as never,
         created_by: user.id,
       })
@@ -136,7 +223,14 @@ export async function requestReduction(input: ReductionRequest, user: SessionUse
       action: 'reduction.requested',
       subjectType: 'source_version',
       subjectId: version.id,
-      details: { recipeId: row.id, method: recipe.method, order: row.order, tolerance: row.tolerance, jobId: job.id },
+      details: {
+        recipeId: row.id,
+        method: recipe.method,
+        order: row.order,
+        tolerance: row.tolerance,
+        ...(options.enteredBand ? { band: options.band, enteredBand: options.enteredBand } : {}),
+        jobId: job.id,
+      },
     });
     return { recipeId: row.id, job };
   });

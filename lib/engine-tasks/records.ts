@@ -149,6 +149,25 @@ export interface AcceptanceRecord {
   samplesChecked: number;
 }
 
+/**
+ * Frequency-limited balanced truncation's own figures (reduction/frequency-limited.ts): the band it balanced
+ * on and σmax(G − Gr) measured inside and outside it. The method has no a-priori bound.
+ */
+export interface FrequencyLimitedRecord {
+  /** rad per model time unit */
+  band: { minFrequency: number; maxFrequency: number };
+  /** max σmax(G(jω) − Gr(jω)) on a grid inside the band (edges included) */
+  inBandError: number;
+  inBandErrorFrequency: number | null;
+  /** the same outside the band, from well below the slowest pole to well above the fastest */
+  outOfBandError: number;
+  outOfBandErrorFrequency: number | null;
+  /** frequency-limited Hankel singular values of the stable part, descending */
+  singularValues: number[];
+  /** every pole of the reduced stable part in the open left half-plane */
+  reducedStable: boolean;
+}
+
 /** accuracy_reports.figures: the FiguresTable's fields (components/workspace/figures-rows.ts) and more. */
 export interface AccuracyFiguresRecord {
   fullOrder: number;
@@ -178,6 +197,12 @@ export interface AccuracyFiguresRecord {
   orderRule: 'order' | 'tolerance';
   toleranceTarget: number | null;
   notes: string[];
+  /** why errorBound is null when the method has no a-priori bound (absent in reports written before it) */
+  errorBoundNote?: string | null;
+  /** whether the reduced model's stable part is stable (absent in older reports, where it always was) */
+  reducedStable?: boolean;
+  /** frequency-limited balanced truncation only */
+  frequencyLimited?: FrequencyLimitedRecord | null;
   engineWallMs: number;
 }
 

@@ -1,6 +1,9 @@
 // One reduction run, in a worker thread: the recipe through the engine's reduce entry (reduction/reduce.ts:
 // balanced truncation, Laub et al. 1987; balanced residualization, Liu & Anderson 1989; modal truncation,
-// reduction/modal.ts), then everything the comparison page draws and the accuracy report states:
+// reduction/modal.ts) or frequency-limited balanced truncation for a band (reduction/frequency-limited.ts,
+// Gawronski & Juang 1990: no a-priori bound; the errors inside and outside the band are measured and the
+// reduced model's stability is reported, since the method does not guarantee it), then everything the
+// comparison page draws and the accuracy report states:
 //
 //   frequency: G and Gr per channel on a log grid over the poles' band (reduction/frequency.ts, Laub 1981
 //     Hessenberg evaluation), with the H∞ error peak and the acceptance band sampled densely; σmax of each;
@@ -12,6 +15,9 @@
 import {
   errorSystem,
   frequencyEvaluator,
+  h2Norm,
+  hinfNorm,
+  splitStableUnstable,
   largestSingularValue,
   logFrequencyGrid,
   modelPoles,
@@ -22,12 +28,15 @@ import {
   impulseInput,
   toRows,
   ModelError,
+  type HinfResult,
   type ModalSelection,
+  type NormValue,
   type ReductionRecipe,
   type SimulationResult,
   type SolverStats,
   type StateSpaceModel,
 } from '../../reduction/index';
+import { frequencyLimitedReduction } from '../../reduction/frequency-limited';
 import { loadModel, type ModelFile } from './model-files';
 import { figuresFromPoles, keptPolesOf } from './order-figures';
 import type { ProgressReporter } from './progress';
@@ -37,6 +46,7 @@ import type {
   AnalysisRecord,
   ChannelCurves,
   CostRowRecord,
+  FrequencyLimitedRecord,
   ReductionCurves,
   ReductionRecord,
   SolverCostRecord,
@@ -44,10 +54,12 @@ import type {
 } from './records';
 
 export interface RecipeInput {
-  method: 'balanced' | 'residualization' | 'modal';
+  method: 'balanced' | 'residualization' | 'modal' | 'frequency-limited';
   order: number | null;
   tolerance: number | null;
   modal?: { selection: 'dominance' | 'slowest' | 'band'; band?: { minFrequency: number; maxFrequency: number } } | null;
+  /** frequency-limited: the band to balance on, rad per model time unit (0 ≤ min < max) */
+  limitedBand?: { minFrequency: number; maxFrequency: number } | null;
   acceptance?: { minFrequency: number; maxFrequency: number; maxError: number } | null;
 }
 
@@ -67,6 +79,9 @@ const EXPLICIT_MAX_STEPS = 200_000;
 const EXPLICIT_MAX_FLOPS = 3e9;
 
 export function reductionRecipe(recipe: RecipeInput): ReductionRecipe {
+  if (recipe.method === 'frequency-limited') {
+    throw new ModelError('invalid_option', 'method', 'frequency-limited balanced truncation is run by frequencyLimitedRun, not reduceModel');
+  }
   let modalSelection: ModalSelection | undefined;
   if (recipe.method === 'modal' && recipe.modal) {
     const { selection, band } = recipe.modal;
@@ -82,6 +97,102 @@ export function reductionRecipe(recipe: RecipeInput): ReductionRecipe {
     order: recipe.order ?? undefined,
     tolerance: recipe.tolerance ?? undefined,
     modalSelection,
+  };
+}
+
+/** What both reduction paths hand the rest of the run: the reduced model and its measured accuracy. */
+interface EngineReduction {
+  model: StateSpaceModel;
+  stablePart: StateSpaceModel;
+  /** the full model's stable part, which the error G − Gr = Gs − Gsr is measured against */
+  fullStablePart: StateSpaceModel;
+  method: string;
+  order: number;
+  stableOrder: number;
+  unstableStatesKept: number;
+  hinfError: HinfResult;
+  h2Error: NormValue;
+  dcGainError: number;
+  /** the a-priori bound, NaN when the method has none */
+  errorBound: number;
+  orderRule: 'order' | 'tolerance';
+  toleranceTarget: number | null;
+  notes: string[];
+  frequencyLimited: FrequencyLimitedRecord | null;
+}
+
+/** The note the accuracy report carries instead of a bound for a method that has none. */
+export const NO_BOUND_NOTE = 'no a-priori error bound for this method';
+
+/** Balanced truncation, residualization and modal truncation through the engine's reduce entry. */
+function reduceRun(model: StateSpaceModel, recipe: RecipeInput): EngineReduction {
+  const r = reduceModel(model, reductionRecipe(recipe));
+  return {
+    model: r.model,
+    stablePart: r.stablePart,
+    fullStablePart: r.basis.split.stable,
+    method: r.method,
+    order: r.order,
+    stableOrder: r.stableOrder,
+    unstableStatesKept: r.unstableStatesKept,
+    hinfError: r.hinfError,
+    h2Error: r.h2Error,
+    dcGainError: r.dcGainError,
+    errorBound: r.errorBound,
+    orderRule: r.orderChoice.rule,
+    toleranceTarget: r.orderChoice.target ?? null,
+    notes: [...r.notes],
+    frequencyLimited: null,
+  };
+}
+
+/**
+ * Frequency-limited balanced truncation (reduction/frequency-limited.ts) to the recipe's order on its band,
+ * with the same measured figures as the other methods. The reduced stable part need not be stable here:
+ * then the H∞ and H2 errors are not finite and say why, and the band errors (measured on grids, as the
+ * engine does) are what the report stands on.
+ */
+export function frequencyLimitedRun(model: StateSpaceModel, recipe: RecipeInput, stabilityTolerance: number): EngineReduction {
+  const band = recipe.limitedBand;
+  if (!band) throw new ModelError('invalid_option', 'band', 'frequency-limited balanced truncation needs the band to balance on');
+  if (recipe.order === null) throw new ModelError('invalid_option', 'order', 'frequency-limited balanced truncation needs an order (it has no bound for a tolerance to meet)');
+  const r = frequencyLimitedReduction(model, { band: [band.minFrequency, band.maxFrequency], order: recipe.order, stabilityTolerance });
+  const split = splitStableUnstable(model, { tolerance: stabilityTolerance });
+  const error = errorSystem(split.stable, r.stablePart);
+  const evaluator = frequencyEvaluator(error);
+  const unstable = 'the reduced model has poles in the closed right half-plane (frequency-limited balanced truncation does not guarantee stability)';
+  const hinfError: HinfResult = r.reducedStable ? hinfNorm(error, { evaluator, stabilityTolerance }) : { finite: false, reason: unstable };
+  const h2Error: NormValue = r.reducedStable ? h2Norm(error, { evaluator, stabilityTolerance }) : { finite: false, reason: unstable };
+  let dcGainError = NaN;
+  try {
+    dcGainError = largestSingularValue(evaluator.at(0));
+  } catch {
+    dcGainError = NaN; // a pole of the reduced model at 0: no DC gain to compare
+  }
+  return {
+    model: r.model,
+    stablePart: r.stablePart,
+    fullStablePart: split.stable,
+    method: 'frequency-limited',
+    order: r.order,
+    stableOrder: r.stableOrder,
+    unstableStatesKept: r.unstableStatesKept,
+    hinfError,
+    h2Error,
+    dcGainError,
+    errorBound: NaN,
+    orderRule: 'order',
+    toleranceTarget: null,
+    notes: [...r.notes],
+    frequencyLimited: {
+      band: { minFrequency: band.minFrequency, maxFrequency: band.maxFrequency },
+      inBandError: r.errors.inBand,
+      inBandErrorFrequency: finiteOrNull(r.errors.inBandPeakFrequency),
+      outOfBandError: r.errors.outOfBand,
+      outOfBandErrorFrequency: finiteOrNull(r.errors.outOfBandPeakFrequency),
+      singularValues: Array.from(r.singularValues),
+      reducedStable: r.reducedStable,
+    },
   };
 }
 
@@ -260,9 +371,14 @@ export function runReduction(
   const started = Date.now();
   report('Reading the model files', 0);
   const { model } = loadModel(files);
-  const methodWords = { balanced: 'balanced truncation', residualization: 'balanced residualization', modal: 'modal truncation' }[recipe.method];
+  const methodWords = {
+    balanced: 'balanced truncation',
+    residualization: 'balanced residualization',
+    modal: 'modal truncation',
+    'frequency-limited': 'frequency-limited balanced truncation',
+  }[recipe.method];
   report(`Reducing by ${methodWords} and measuring the H∞ and H2 errors`, 0.03);
-  const r = reduceModel(model, reductionRecipe(recipe));
+  const r = recipe.method === 'frequency-limited' ? frequencyLimitedRun(model, recipe, summary.stabilityTolerance) : reduceRun(model, recipe);
   const reduced = r.model;
   const p = model.C.rows;
   const m = model.B.cols;
@@ -276,11 +392,18 @@ export function runReduction(
   if (recipe.acceptance) {
     gridValues.push(...logFrequencyGrid(recipe.acceptance.minFrequency, recipe.acceptance.maxFrequency, BAND_POINTS));
   }
+  if (r.frequencyLimited) {
+    // The balancing band drawn densely, its edges and the two measured peaks on the grid.
+    const { band } = r.frequencyLimited;
+    gridValues.push(...logFrequencyGrid(band.minFrequency > 0 ? band.minFrequency : band.maxFrequency / 1e4, band.maxFrequency, BAND_POINTS));
+    gridValues.push(band.minFrequency, band.maxFrequency);
+    for (const peak of [r.frequencyLimited.inBandErrorFrequency, r.frequencyLimited.outOfBandErrorFrequency]) if (peak !== null) gridValues.push(peak);
+  }
   const w = sortedUnique(gridValues);
   const full = channelCurves(frequencyEvaluator(model), w, p, m);
   const red = channelCurves(frequencyEvaluator(reduced), w, p, m);
   report('Error of the reduced model across frequency', 0.6);
-  const errorEvaluator = frequencyEvaluator(errorSystem(r.basis.split.stable, r.stablePart));
+  const errorEvaluator = frequencyEvaluator(errorSystem(r.fullStablePart, r.stablePart));
   const error = w.map((wk) => largestSingularValue(errorEvaluator.at(wk)));
 
   const tEnd = simulationEnd(summary);
@@ -329,9 +452,12 @@ export function runReduction(
     simulationEnd: tEnd,
     costRows: cost.rows,
     acceptance,
-    orderRule: r.orderChoice.rule,
-    toleranceTarget: r.orderChoice.target ?? null,
+    orderRule: r.orderRule,
+    toleranceTarget: r.toleranceTarget,
     notes: [...r.notes],
+    errorBoundNote: r.frequencyLimited ? NO_BOUND_NOTE : null,
+    reducedStable: r.frequencyLimited ? r.frequencyLimited.reducedStable : Array.from(stablePartPoles.re).every((re) => re < 0),
+    frequencyLimited: r.frequencyLimited,
     engineWallMs: Date.now() - started,
   };
   const curves: ReductionCurves = {
