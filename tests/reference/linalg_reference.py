@@ -12,6 +12,10 @@ order. Matrices travel as lists of rows. Operations:
   gramians A, B, C    -> {"P": rows, "Q": rows, "hsv": [...]}  both gramians and Hankel singular values
   sylvester A, B, C   -> {"X": rows}                           scipy.linalg.solve_sylvester (A X + X B = C)
   qr_rank  A          -> {"rank": r}                           numpy.linalg.matrix_rank
+  product  A, B, ta, tb -> {"C": rows}                         op(A) @ op(B)
+  solve    A, B       -> {"X", "inv", "sign", "logabs", "cond1"} numpy.linalg.solve, inv, slogdet, cond(A, 1)
+  freqresp A, B, C, w -> {"re": [...], "im": [...]}            C (jwI - A)^-1 B by numpy.linalg.solve per w
+  spsolve  n, colPtr, rowIndex, values, b, shift? -> {"re", "im"} scipy.sparse.linalg.spsolve of A (or A - j*shift*I)
 """
 import json
 import sys
@@ -54,6 +58,38 @@ def run(task):
         return {"P": p.tolist(), "Q": q.tolist(), "hsv": hankel_singular_values(p, q).tolist()}
     if op == "sylvester":
         return {"X": sl.solve_sylvester(mat(task["A"]), mat(task["B"]), mat(task["C"])).tolist()}
+    if op == "product":
+        a, b = mat(task["A"]), mat(task["B"])
+        if task.get("ta"):
+            a = a.T
+        if task.get("tb"):
+            b = b.T
+        return {"C": (a @ b).tolist()}
+    if op == "solve":
+        a = mat(task["A"])
+        sign, logabs = np.linalg.slogdet(a)
+        return {
+            "X": np.linalg.solve(a, mat(task["B"])).tolist(),
+            "inv": np.linalg.inv(a).tolist(),
+            "sign": float(sign),
+            "logabs": float(logabs),
+            "cond1": float(np.linalg.cond(a, 1)),
+        }
+    if op == "freqresp":
+        a, b, c = mat(task["A"]), mat(task["B"]), mat(task["C"])
+        n = a.shape[0]
+        g = [c @ np.linalg.solve(1j * w * np.eye(n) - a, b) for w in task["w"]]
+        return {"re": [x.real.tolist() for x in g], "im": [x.imag.tolist() for x in g]}
+    if op == "spsolve":
+        import scipy.sparse as sp
+        import scipy.sparse.linalg as spl
+
+        n = task["n"]
+        m = sp.csc_matrix((task["values"], task["rowIndex"], task["colPtr"]), shape=(n, n))
+        if task.get("shift") is not None:
+            m = m.astype(complex) - 1j * task["shift"] * sp.identity(n, format="csc")
+        x = spl.spsolve(m, np.array(task["b"]))
+        return {"re": np.real(x).tolist(), "im": np.imag(x).tolist()}
     if op == "qr_rank":
         return {"rank": int(np.linalg.matrix_rank(mat(task["A"])))}
     raise ValueError(f"unknown op {op!r}")

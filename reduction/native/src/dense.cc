@@ -226,8 +226,9 @@ napi_value Svd(napi_env env, napi_callback_info info) {
     if (k == 0) return ms::undefinedValue(env);
     ms::requireFinite(A, (size_t)(m * n), (size_t)n, "A");
     std::vector<double> work(A, A + m * n);
-    int r = LAPACKE_dgesdd(LAPACK_ROW_MAJOR, vectors ? 'S' : 'N', (int)m, (int)n, work.data(), (int)n, s, U, vectors ? (int)k : 1, Vt,
-                           vectors ? (int)n : 1);
+    // Row-major LAPACKE checks the leading dimensions even when no vectors are wanted.
+    int r = LAPACKE_dgesdd(LAPACK_ROW_MAJOR, vectors ? 'S' : 'N', (int)m, (int)n, work.data(), (int)n, s, U, (int)std::max<int64_t>(1, k), Vt,
+                           (int)std::max<int64_t>(1, n));
     ms::lapackCheck(r < 0 ? r : 0, "dgesdd", "A");
     if (r > 0) fail("not_converged", "svd: the iteration did not converge for A");
     return ms::undefinedValue(env);

@@ -24,7 +24,7 @@ struct Csc {
   size_t nnz = 0;
 };
 
-Csc readCsc(const Args& a, size_t at, const char* name, bool valuesRequired = true) {
+Csc readCsc(const Args& a, size_t at, const char* name, bool withValues = true) {
   Csc c;
   int64_t n = a.integer(at, "n");
   if (n < 0 || n > 2147483647LL) fail("invalid_option", std::string(name) + ": n out of range");
@@ -38,10 +38,9 @@ Csc readCsc(const Args& a, size_t at, const char* name, bool valuesRequired = tr
   c.i = a.i32(at + 2, "rowIndex", c.nnz);
   for (size_t k = 0; k < c.nnz; k++)
     if (c.i[k] < 0 || c.i[k] >= n) fail("parse_error", std::string(name) + ": row index " + std::to_string(c.i[k]) + " out of range");
-  if (valuesRequired || !a.isNullish(at + 3)) {
-    c.x = a.f64(at + 3, "values", c.nnz);
-    ms::requireFinite(c.x, c.nnz, 0, name);
-  }
+  if (!withValues) return c;
+  c.x = a.f64(at + 3, "values", c.nnz);
+  ms::requireFinite(c.x, c.nnz, 0, name);
   if (!a.isNullish(at + 4)) {
     c.z = a.f64(at + 4, "imaginary values", c.nnz);
     ms::requireFinite(c.z, c.nnz, 0, name);
@@ -265,6 +264,8 @@ napi_value CholFactor(napi_env env, napi_callback_info info) {
     h->started = true;
     h->common.print = 0;
     h->common.error_handler = nullptr;
+    // Always L·Lᵀ (supernodal): a simplicial L·D·Lᵀ would also factor an indefinite matrix.
+    h->common.supernodal = CHOLMOD_SUPERNODAL;
     cholmod_sparse s = view(c);
     h->factor = cholmod_analyze(&s, &h->common);
     if (!h->factor) {

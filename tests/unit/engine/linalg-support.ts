@@ -42,7 +42,7 @@ export function stableMatrix(n: number, seed: number, shift = 1.5): Matrix {
 }
 
 export interface ReferenceTask {
-  op: 'eigvals' | 'svdvals' | 'eigh' | 'lyap' | 'gramians' | 'sylvester' | 'qr_rank';
+  op: 'eigvals' | 'svdvals' | 'eigh' | 'lyap' | 'gramians' | 'sylvester' | 'qr_rank' | 'product' | 'solve' | 'freqresp' | 'spsolve';
   [key: string]: unknown;
 }
 
