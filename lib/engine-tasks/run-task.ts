@@ -4,6 +4,7 @@
 //
 // The thread loads the TypeScript sources through tsx's require hook, so the worker needs no build step.
 import { createRequire } from 'node:module';
+import os from 'node:os';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { ModelError, type ModelErrorCode } from '../../reduction/index';
@@ -34,10 +35,24 @@ function bootstrap(): string {
   return `require(${JSON.stringify(tsx)}).register();\nrequire(${JSON.stringify(path.join(repoRoot(), 'lib', 'engine-tasks', 'thread.ts'))});`;
 }
 
+/**
+ * Threads the dense kernels (OpenBLAS) may use in one engine task: this machine's cores shared among the
+ * tasks the worker runs at once (MODESHELF_WORKER_CONCURRENCY), so two tasks on two cores do not
+ * oversubscribe them. MODESHELF_LINALG_THREADS, when set, wins.
+ */
+export function engineThreadsPerTask(): number {
+  const explicit = Number(process.env.MODESHELF_LINALG_THREADS);
+  if (Number.isInteger(explicit) && explicit >= 1) return explicit;
+  const cores = os.availableParallelism ? os.availableParallelism() : os.cpus().length;
+  const slots = Math.max(1, Math.floor(Number(process.env.MODESHELF_WORKER_CONCURRENCY) || 1));
+  return Math.max(1, Math.floor(cores / slots));
+}
+
 export function startEngineTask<T>(request: TaskRequest, onProgress: ProgressReporter): RunningTask<T> {
   const worker = new Worker(bootstrap(), {
     eval: true,
     workerData: request,
+    env: { ...process.env, MODESHELF_LINALG_THREADS: String(engineThreadsPerTask()) },
     resourceLimits: { maxOldGenerationSizeMb: THREAD_HEAP_MB },
   });
   let cancelled: string | null = null;

@@ -32,12 +32,13 @@ let state: WorkerState | null | undefined; // undefined: not tried; null: unavai
 const staging: Record<'a' | 'b' | 'c', Float64Array> = { a: new Float64Array(0), b: new Float64Array(0), c: new Float64Array(0) };
 
 /**
- * Number of threads the dense kernels may use (1 or 2). The default is 2 when the machine has at least
- * two cores, overridden by the environment variable `MODESHELF_LINALG_THREADS`.
+ * Number of threads the dense kernels may use: all of them for the native backend's OpenBLAS, and the
+ * portable kernels use a second core when this is 2 or more. The default is the machine's core count,
+ * overridden by the environment variable `MODESHELF_LINALG_THREADS` (the worker sets it per engine task).
  */
 export function setLinalgThreads(threads: number): void {
   if (!Number.isInteger(threads) || threads < 1) throw new Error(`setLinalgThreads: threads must be a positive integer, got ${threads}`);
-  requestedThreads = Math.min(threads, 2);
+  requestedThreads = threads;
   if (requestedThreads === 1 && state) {
     state.worker.terminate();
     state = undefined;
@@ -49,12 +50,11 @@ export function linalgThreads(): number {
   const env = typeof process !== 'undefined' ? process.env?.MODESHELF_LINALG_THREADS : undefined;
   if (env !== undefined && env !== '') {
     const t = Number(env);
-    requestedThreads = Number.isInteger(t) && t >= 1 ? Math.min(t, 2) : 1;
+    requestedThreads = Number.isInteger(t) && t >= 1 ? t : 1;
     return requestedThreads;
   }
   const os = nodeModule<{ availableParallelism?: () => number; cpus: () => unknown[] }>('node:os');
-  const cores = os ? (os.availableParallelism ? os.availableParallelism() : os.cpus().length) : 1;
-  requestedThreads = cores >= 2 ? 2 : 1;
+  requestedThreads = os ? Math.max(1, os.availableParallelism ? os.availableParallelism() : os.cpus().length) : 1;
   return requestedThreads;
 }
 
