@@ -21,6 +21,10 @@ export interface ProjectRow {
   slug: string;
   description: string;
   sample_time: number | null;
+  /** the acceptance band, rad/s (all three null when the project has none; absent where a query did not select them) */
+  acceptance_min_frequency?: number | null;
+  acceptance_max_frequency?: number | null;
+  acceptance_max_error?: number | null;
   created_by: string;
   created_at: Date;
   updated_at: Date;
@@ -33,7 +37,15 @@ export interface Project {
   description: string;
   /** Seconds; the default sample time of discretised exports. */
   sampleTime: number | null;
+  /** The frequencies the controller needs the reduced model accurate over (rad/s), and the largest error it accepts there. */
+  acceptanceBand: AcceptanceBand | null;
   createdAt: string;
+}
+
+export interface AcceptanceBand {
+  minFrequency: number;
+  maxFrequency: number;
+  maxError: number | null;
 }
 
 export interface ProjectMember {
@@ -66,6 +78,23 @@ export const sampleTimeSchema = z
   .refine((v) => Number.isFinite(v) && v > 0, 'Sample time must be a positive number of seconds.')
   .refine((v) => v <= 86_400, 'Sample time must be at most 86400 s (a day).');
 
+/** rad/s: 0 ≤ min < max, finite; the largest error, when given, positive and finite. */
+export const acceptanceBandSchema = z
+  .object({
+    minFrequency: z
+      .number({ error: 'The acceptance band’s lower edge must be a finite number of rad/s.' })
+      .min(0, 'The acceptance band’s lower edge must be 0 or above.'),
+    maxFrequency: z
+      .number({ error: 'The acceptance band’s upper edge must be a finite number of rad/s.' })
+      .positive('The acceptance band’s upper edge must be above 0.'),
+    maxError: z
+      .number({ error: 'The largest error must be a finite number.' })
+      .positive('The largest error must be above 0.')
+      .nullable()
+      .default(null),
+  })
+  .refine((b) => b.maxFrequency > b.minFrequency, { message: 'The acceptance band’s upper edge must be above its lower edge.', path: ['maxFrequency'] });
+
 const projectBase = z.object({
   name: z
     .string({ error: 'Name is required.' })
@@ -75,6 +104,7 @@ const projectBase = z.object({
   slug: projectSlugSchema,
   description: z.string({ error: 'Description must be text.' }).trim().max(2000, 'Description must be at most 2000 characters.'),
   sampleTime: sampleTimeSchema.nullable(),
+  acceptanceBand: acceptanceBandSchema.nullable(),
 });
 
 export const projectCreateSchema = projectBase
@@ -86,9 +116,9 @@ export const projectCreateSchema = projectBase
   });
 
 export const projectUpdateSchema = projectBase
-  .pick({ name: true, description: true, sampleTime: true })
+  .pick({ name: true, description: true, sampleTime: true, acceptanceBand: true })
   .partial()
-  .refine((u) => Object.values(u).some((v) => v !== undefined), { message: 'Give a name, description or sample time to change.' });
+  .refine((u) => Object.values(u).some((v) => v !== undefined), { message: 'Give a name, description, sample time or acceptance band to change.' });
 
 export const memberAddSchema = z.object({ email: emailSchema });
 
@@ -102,6 +132,10 @@ export function toProject(row: ProjectRow): Project {
     slug: row.slug,
     description: row.description,
     sampleTime: row.sample_time,
+    acceptanceBand:
+      row.acceptance_min_frequency != null && row.acceptance_max_frequency != null
+        ? { minFrequency: row.acceptance_min_frequency, maxFrequency: row.acceptance_max_frequency, maxError: row.acceptance_max_error ?? null }
+        : null,
     createdAt: row.created_at.toISOString(),
   };
 }
@@ -212,6 +246,13 @@ export async function updateProject(slug: string, change: ProjectUpdate, actor: 
         ...(change.name !== undefined ? { name: change.name } : {}),
         ...(change.description !== undefined ? { description: change.description } : {}),
         ...(change.sampleTime !== undefined ? { sample_time: change.sampleTime } : {}),
+        ...(change.acceptanceBand !== undefined
+          ? {
+              acceptance_min_frequency: change.acceptanceBand?.minFrequency ?? null,
+              acceptance_max_frequency: change.acceptanceBand?.maxFrequency ?? null,
+              acceptance_max_error: change.acceptanceBand?.maxError ?? null,
+            }
+          : {}),
         updated_at: trx.fn.now(),
       })
       .returning('*');

@@ -166,6 +166,56 @@ export function recipeInputOf(row: RecipeRow): RecipeInput {
   };
 }
 
+// ---------------------------------------------------------------------------------------------------
+// A controller project's acceptance band as the reduce page's starting band
+
+/** Seconds in one model time unit when its length is known (lib/exports/discrete.ts), else null. */
+export function timeUnitSeconds(timeUnit: string): number | null {
+  return TIME_UNIT_SECONDS[timeUnit.trim()] ?? null;
+}
+
+export interface ProjectBandSeed {
+  projectName: string;
+  projectSlug: string;
+  /** rad per the model's time unit */
+  minFrequency: number;
+  maxFrequency: number;
+  maxError: number | null;
+}
+
+/**
+ * The acceptance band of the controller project named by `projectSlug`, in rad per the model's time unit
+ * (the project keeps rad/s): null when there is no such project, it has no band, or the model's time unit
+ * has no known length (the band cannot be converted then). Any signed-in person reads projects.
+ */
+export async function projectBandSeed(projectSlug: string | undefined, timeUnit: string): Promise<ProjectBandSeed | null> {
+  if (!projectSlug || !/^[a-z0-9]+(-[a-z0-9]+)*$/.test(projectSlug) || projectSlug.length > 60) return null;
+  const row = await db()('controller_projects')
+    .where({ slug: projectSlug })
+    .first('name', 'slug', 'acceptance_min_frequency', 'acceptance_max_frequency', 'acceptance_max_error');
+  if (!row || row.acceptance_min_frequency === null || row.acceptance_max_frequency === null) return null;
+  const seconds = timeUnitSeconds(timeUnit);
+  if (seconds === null) return null;
+  return {
+    projectName: row.name,
+    projectSlug: row.slug,
+    minFrequency: row.acceptance_min_frequency * seconds,
+    maxFrequency: row.acceptance_max_frequency * seconds,
+    maxError: row.acceptance_max_error,
+  };
+}
+
+/** For a project page: the newest version of each source model its pins were reduced from, to reduce again for its band. */
+export async function pinnedSourcesOfProject(projectId: string): Promise<{ name: string; slug: string; versionNumber: number }[]> {
+  const rows = await db()('pins as p')
+    .join('reduced_models as rm', 'rm.id', 'p.reduced_model_id')
+    .join('source_models as sm', 'sm.id', 'rm.source_model_id')
+    .where('p.project_id', projectId)
+    .distinct('sm.id', 'sm.name', 'sm.slug', db().raw('(SELECT max(number) FROM source_versions sv WHERE sv.source_model_id = sm.id) AS latest'))
+    .orderBy('sm.name');
+  return rows.map((r: Record<string, unknown>) => ({ name: r.name as string, slug: r.slug as string, versionNumber: Number(r.latest) }));
+}
+
 /** Registers the recipe and its reduction job; the draft version appears when the job finishes. */
 export async function requestReduction(input: ReductionRequest, user: SessionUser): Promise<{ job: JobView; recipeId: string }> {
   const version = await findSourceVersion(input.sourceVersionId);

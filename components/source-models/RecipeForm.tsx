@@ -3,6 +3,11 @@
 // order slider, with the figures of each order read from the analysis) or by tolerance, an optional
 // acceptance band, and where the result goes (a new reduced model, or the next version of one). Running
 // it posts to /api/reductions and follows the reduction job until its draft version exists.
+//
+// Frequency-limited balanced truncation (Gawronski & Juang 1990) takes the band to balance on, in rad per
+// model time unit or in Hz, checked beside its fields as the server checks it; its order is by number only
+// (no a-priori bound, so the slider has no bound column). Arriving from a controller project with an
+// acceptance band (?project=slug), the band and the acceptance check start from the project's.
 import { useRouter } from 'next/navigation';
 import { useEffect, useId, useMemo, useState, type FormEvent } from 'react';
 import { useMutation, useQuery } from '@tanstack/react-query';
@@ -12,7 +17,7 @@ import { OrderSlider } from '@/components/workspace/OrderSlider';
 import type { AnalysisRecord, OrderFigureTable } from '@/lib/engine-tasks/records';
 import type { JobView } from '@/lib/jobs/jobs';
 import { JobProgress } from './JobProgress';
-import { orderForTolerance, storedTable, suggestedOrder, type Method, type ModalSelection } from './recipe-choices';
+import { checkLimitedBand, orderForTolerance, storedTable, suggestedOrder, type BandUnit, type Method, type ModalSelection } from './recipe-choices';
 
 export interface ReducedModelChoice {
   id: string;
@@ -20,8 +25,22 @@ export interface ReducedModelChoice {
   latestVersion: number;
 }
 
+/** A controller project's acceptance band, already in rad per the model's time unit. */
+export interface ProjectBandSeed {
+  projectName: string;
+  projectSlug: string;
+  minFrequency: number;
+  maxFrequency: number;
+  /** the largest error the project accepts in its band, when it says */
+  maxError: number | null;
+}
+
 export interface RecipeFormProps {
   analysis: AnalysisRecord;
+  /** seconds in one model time unit, when known (Hz can then be converted); null otherwise */
+  timeUnitSeconds: number | null;
+  /** the controller project the person came from, when it has an acceptance band */
+  seed?: ProjectBandSeed | null;
   sourceVersionId: string;
   sourceName: string;
   versionNumber: number;
@@ -40,7 +59,14 @@ const METHOD_WORDS: Record<Method, string> = {
   balanced: 'Balanced truncation',
   residualization: 'Balanced residualization (keeps the DC gain)',
   modal: 'Modal truncation',
+  'frequency-limited': 'Frequency-limited balanced truncation (for a band)',
 };
+
+/** Shown instead of the bound column, and on the result page. */
+export const NO_BOUND_SENTENCE =
+  'Frequency-limited balanced truncation has no a-priori error bound: the error inside and outside the band is measured once the reduction has run, and the reduced model may even be unstable (its stability is reported).';
+
+const shortNumber = (x: number) => String(Number(x.toPrecision(6)));
 
 function num(text: string): number | undefined {
   const t = text.trim();
@@ -54,13 +80,18 @@ export function RecipeForm(p: RecipeFormProps) {
   const router = useRouter();
   const id = useId();
   const [orderRule, setOrderRule] = useState<'order' | 'tolerance'>('order');
+  const seed = p.seed ?? null;
+  const [flLo, setFlLo] = useState(seed ? shortNumber(seed.minFrequency) : '');
+  const [flHi, setFlHi] = useState(seed ? shortNumber(seed.maxFrequency) : '');
+  const [flUnit, setFlUnit] = useState<BandUnit>('rad');
   const [tolerance, setTolerance] = useState('1e-3');
   const [bandLo, setBandLo] = useState('');
   const [bandHi, setBandHi] = useState('');
-  const [withAcceptance, setWithAcceptance] = useState(false);
-  const [accLo, setAccLo] = useState('');
-  const [accHi, setAccHi] = useState('');
-  const [accMax, setAccMax] = useState('');
+  const seedAcceptance = seed !== null && seed.maxError !== null && seed.minFrequency > 0;
+  const [withAcceptance, setWithAcceptance] = useState(seedAcceptance);
+  const [accLo, setAccLo] = useState(seedAcceptance ? shortNumber(seed.minFrequency) : '');
+  const [accHi, setAccHi] = useState(seedAcceptance ? shortNumber(seed.maxFrequency) : '');
+  const [accMax, setAccMax] = useState(seedAcceptance ? shortNumber(seed.maxError!) : '');
   const [target, setTarget] = useState<'new' | string>(p.reducedModels.length ? p.reducedModels[0].id : 'new');
   const [name, setName] = useState(`${p.sourceName}, reduced`);
   const [description, setDescription] = useState('');
@@ -112,8 +143,15 @@ export function RecipeForm(p: RecipeFormProps) {
   const onSubmit = (e: FormEvent) => {
     e.preventDefault();
     const found: Record<string, string> = {};
-    const recipe: Record<string, unknown> = { method, orderRule, modalSelection: selection };
-    if (orderRule === 'order') recipe.order = order;
+    const limited = method === 'frequency-limited';
+    const rule = limited ? 'order' : orderRule;
+    const recipe: Record<string, unknown> = { method, orderRule: rule, modalSelection: selection };
+    if (limited) {
+      const checked = checkLimitedBand(flLo, flHi, flUnit, p.timeUnitSeconds !== null);
+      if (!checked.ok) found[checked.field] = checked.message;
+      else recipe.limitedBand = checked.band;
+    }
+    if (rule === 'order') recipe.order = order;
     else if (!(toleranceValue! > 0)) found['recipe.tolerance'] = 'Give a positive tolerance, e.g. 1e-3.';
     else recipe.tolerance = toleranceValue;
     if (method === 'modal' && selection === 'band') {
@@ -146,6 +184,22 @@ export function RecipeForm(p: RecipeFormProps) {
     ) : null;
 
   const unit = frequencyUnit(timeUnit);
+  const hzLabel = timeUnit === 's' ? 'Hz' : 'Hz (cycles per second)';
+  const switchUnit = (next: BandUnit) => {
+    // Keep the band the same when the unit changes: ω = 2π f · (seconds per time unit).
+    const factor = p.timeUnitSeconds === null ? null : 2 * Math.PI * p.timeUnitSeconds;
+    if (factor !== null && next !== flUnit) {
+      const convert = (t: string) => {
+        const v = Number(t.trim());
+        if (t.trim() === '' || !Number.isFinite(v)) return t;
+        return shortNumber(next === 'hz' ? v / factor : v * factor);
+      };
+      setFlLo(convert(flLo));
+      setFlHi(convert(flHi));
+    }
+    setFlUnit(next);
+  };
+  const limited = method === 'frequency-limited';
   return (
     <form onSubmit={onSubmit} className="panel space-y-4 p-5" aria-label="Recipe" data-testid="recipe-form">
       <h2 className="text-base font-semibold">Recipe: how to reduce v{p.versionNumber}</h2>
@@ -198,8 +252,73 @@ export function RecipeForm(p: RecipeFormProps) {
         </div>
       ) : null}
 
+      {limited ? (
+        <fieldset data-testid="limited-band">
+          <legend className="field-label mb-1">Band to balance on</legend>
+          {seed ? (
+            <p className="mb-2 text-sm" data-testid="limited-band-seed">
+              Started from the acceptance band of the controller project{' '}
+              <a href={`/projects/${seed.projectSlug}`}>{seed.projectName}</a>: {formatFrequency(seed.minFrequency, timeUnit)} to{' '}
+              {formatFrequency(seed.maxFrequency, timeUnit)}.
+            </p>
+          ) : null}
+          <div className="grid gap-4 md:grid-cols-3">
+            <div>
+              <label htmlFor={`${id}-fl-lo`} className="field-label">
+                From
+              </label>
+              <input
+                id={`${id}-fl-lo`}
+                className="field-input num"
+                value={flLo}
+                onChange={(e) => setFlLo(e.target.value)}
+                inputMode="decimal"
+                placeholder="e.g. 0"
+                aria-invalid={errors['recipe.limitedBand.minFrequency'] ? true : undefined}
+                disabled={!p.canRun}
+              />
+              {err('recipe.limitedBand.minFrequency')}
+            </div>
+            <div>
+              <label htmlFor={`${id}-fl-hi`} className="field-label">
+                To
+              </label>
+              <input
+                id={`${id}-fl-hi`}
+                className="field-input num"
+                value={flHi}
+                onChange={(e) => setFlHi(e.target.value)}
+                inputMode="decimal"
+                placeholder="e.g. 50"
+                aria-invalid={errors['recipe.limitedBand.maxFrequency'] ? true : undefined}
+                disabled={!p.canRun}
+              />
+              {err('recipe.limitedBand.maxFrequency')}
+            </div>
+            <div>
+              <label htmlFor={`${id}-fl-unit`} className="field-label">
+                Unit
+              </label>
+              <select id={`${id}-fl-unit`} className="field-input" value={flUnit} onChange={(e) => switchUnit(e.target.value as BandUnit)} disabled={!p.canRun}>
+                <option value="rad">{unit}</option>
+                {p.timeUnitSeconds !== null ? <option value="hz">{hzLabel}</option> : null}
+              </select>
+              {err('recipe.limitedBand.unit')}
+            </div>
+          </div>
+          {err('recipe.limitedBand')}
+          <p className="mt-1 text-xs text-graphite-soft">
+            0 ≤ from &lt; to. The gramians are restricted to the frequencies inside the band (Gawronski &amp; Juang 1990); the poles&apos; band is{' '}
+            {formatFrequency(analysis.frequencyBand[0], timeUnit)} to {formatFrequency(analysis.frequencyBand[1], timeUnit)}.
+          </p>
+        </fieldset>
+      ) : null}
+
       <fieldset>
         <legend className="field-label mb-1">Order</legend>
+        {limited ? (
+          <p className="mb-3 text-sm">By number of states (the method has no bound for a tolerance to meet).</p>
+        ) : (
         <div role="radiogroup" aria-label="Order rule" className="mb-3 flex flex-wrap gap-4 text-sm">
           <label className="flex items-center gap-2">
             <input type="radio" name="orderRule" checked={orderRule === 'order'} onChange={() => setOrderRule('order')} />
@@ -210,15 +329,25 @@ export function RecipeForm(p: RecipeFormProps) {
             By tolerance: smallest order whose bound is at most tolerance × ‖G‖∞
           </label>
         </div>
+        )}
         {!table ? (
           <p className="text-sm text-graphite-soft">{method === 'modal' && selection === 'band' ? 'Give a band to see the orders it allows.' : 'Loading the orders…'}</p>
         ) : !table.available ? (
           <p role="alert" className="text-sm">
             {METHOD_WORDS[method]} is not available for this model: {table.reason}
           </p>
-        ) : orderRule === 'order' ? (
+        ) : orderRule === 'order' || limited ? (
           <>
-            <OrderSlider orders={table.orders} value={order} onChange={p.onOrder} figures={table.figures} fullOrder={analysis.states} timeUnit={timeUnit} disabled={!p.canRun} />
+            <OrderSlider
+              orders={table.orders}
+              value={order}
+              onChange={p.onOrder}
+              figures={table.figures}
+              fullOrder={analysis.states}
+              timeUnit={timeUnit}
+              disabled={!p.canRun}
+              noBoundNote={limited ? `${NO_BOUND_SENTENCE} Stiffness and step limits are shown on the result page, since the reduced poles depend on the band.` : undefined}
+            />
             {table.limitNote ? <p className="mt-1 text-xs text-graphite-soft">{table.limitNote}</p> : null}
             {err('recipe.order')}
           </>
@@ -315,7 +444,22 @@ export function RecipeForm(p: RecipeFormProps) {
         </p>
       ) : null}
       {Object.entries(errors)
-        .filter(([k]) => !['form', 'recipe.order', 'recipe.tolerance', 'recipe.band', 'recipe.acceptance.maxFrequency', 'recipe.acceptance.maxError', 'target.name'].includes(k))
+        .filter(
+          ([k]) =>
+            ![
+              'form',
+              'recipe.order',
+              'recipe.tolerance',
+              'recipe.band',
+              'recipe.acceptance.maxFrequency',
+              'recipe.acceptance.maxError',
+              'target.name',
+              'recipe.limitedBand',
+              'recipe.limitedBand.minFrequency',
+              'recipe.limitedBand.maxFrequency',
+              'recipe.limitedBand.unit',
+            ].includes(k),
+        )
         .map(([k, v]) => (
           <p key={k} role="alert" className="text-sm text-okabe-vermillion">
             {v}

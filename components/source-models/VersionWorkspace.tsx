@@ -8,7 +8,7 @@ import { PoleMap } from '@/components/charts/PoleMap';
 import { ModesTable } from '@/components/workspace/ModesTable';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { keptPoles, suggestedOrder, storedTable, type Method, type ModalSelection } from './recipe-choices';
-import { RecipeForm, type ReducedModelChoice } from './RecipeForm';
+import { RecipeForm, type ProjectBandSeed, type ReducedModelChoice } from './RecipeForm';
 
 export interface WorkspaceProps {
   analysis: AnalysisRecord;
@@ -18,11 +18,16 @@ export interface WorkspaceProps {
   timeUnit: string;
   canRun: boolean;
   reducedModels: ReducedModelChoice[];
+  /** seconds in one model time unit when known (the band may then be given in Hz) */
+  timeUnitSeconds: number | null;
+  /** a controller project's acceptance band, when the person came from that project */
+  seed?: ProjectBandSeed | null;
 }
 
 export function VersionWorkspace(props: WorkspaceProps) {
   const { analysis, timeUnit } = props;
-  const [method, setMethod] = useState<Method>('balanced');
+  // Arriving from a controller project with an acceptance band: reduce for that band.
+  const [method, setMethod] = useState<Method>(props.seed ? 'frequency-limited' : 'balanced');
   const [selection, setSelection] = useState<ModalSelection>('dominance');
   const initialTable = storedTable(analysis, 'balanced', 'dominance');
   const [order, setOrder] = useState<number>(() => (initialTable ? suggestedOrder(initialTable, analysis.stablePartHinfNorm) : 1));
@@ -44,12 +49,13 @@ export function VersionWorkspace(props: WorkspaceProps) {
             <HankelChart
               hankelSingularValues={analysis.hankelSingularValues}
               errorBound={analysis.hankelBound}
-              order={method === 'modal' ? undefined : stableOrder}
+              order={method === 'balanced' || method === 'residualization' ? stableOrder : undefined}
               title="Hankel singular values of the stable part"
             />
             <p className="mt-1 text-xs text-graphite-soft">
               Index and order count stable states{keptExact > 0 ? `; ${keptExact} marginal or unstable states are kept exactly on top` : ''}. The bound
-              2Σσ(r+1..n) holds for balanced truncation and residualization (Enns 1984; Glover 1984).
+              2Σσ(r+1..n) holds for balanced truncation and residualization (Enns 1984; Glover 1984), not for
+              frequency-limited balanced truncation, which balances on its band's gramians instead.
             </p>
           </div>
         ) : (

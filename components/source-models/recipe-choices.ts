@@ -3,17 +3,62 @@
  * order table a method and selection rule use, the order the tolerance rule would choose, and which poles a
  * modal truncation keeps. Pure functions, tested in node.
  */
-import type { AnalysisRecord, ModeRecord, OrderFigureTable } from '@/lib/engine-tasks/records';
+import type { AnalysisRecord, ModeRecord, OrderFigureTable, OrderFiguresRecord } from '@/lib/engine-tasks/records';
 
-export type Method = 'balanced' | 'residualization' | 'modal';
+export type Method = 'balanced' | 'residualization' | 'modal' | 'frequency-limited';
 export type ModalSelection = 'dominance' | 'slowest' | 'band';
 
 export function storedTable(analysis: AnalysisRecord, method: Method, selection: ModalSelection): OrderFigureTable | null {
   if (method === 'balanced') return analysis.orderFigures.balanced;
+  if (method === 'frequency-limited') return frequencyLimitedTable(analysis.orderFigures.balanced);
   if (method === 'residualization') return analysis.orderFigures.residualization;
   if (selection === 'dominance') return analysis.orderFigures.modalDominance;
   if (selection === 'slowest') return analysis.orderFigures.modalSlowest;
   return null; // the band rule's table depends on the band: fetched for it
+}
+
+/**
+ * The order slider of frequency-limited balanced truncation: the balanced orders (the band's gramians are
+ * never of higher numerical rank than the whole axis', so the same ceiling applies; reduction/frequency-
+ * limited.ts forms fewer states and says so when the band needs fewer), with no bound column (the method has
+ * no a-priori bound) and no stiffness or step figures (the reduced poles depend on the band and are known
+ * only after the run). The states kept exactly for marginal and unstable poles are the same as for every method.
+ */
+export function frequencyLimitedTable(balanced: OrderFigureTable): OrderFigureTable {
+  if (!balanced.available) return balanced;
+  const figures: Record<number, OrderFiguresRecord> = {};
+  for (const order of balanced.orders) {
+    const f = balanced.figures[order];
+    figures[order] = {
+      errorBound: null,
+      keptUnstable: f?.keptUnstable ?? 0,
+      keptMarginal: f?.keptMarginal ?? 0,
+      stiffnessRatio: null,
+      maxStableStepEuler: null,
+      maxStableStepRk4: null,
+    };
+  }
+  return { available: true, orders: [...balanced.orders], figures, limitNote: balanced.limitNote };
+}
+
+/** Frequency-limited band as entered, checked as the server checks it (lib/reduced-models.ts limitedBandSchema). */
+export type BandUnit = 'rad' | 'hz';
+export type BandCheck =
+  | { ok: true; band: { minFrequency: number; maxFrequency: number; unit: BandUnit } }
+  | { ok: false; field: 'recipe.limitedBand.minFrequency' | 'recipe.limitedBand.maxFrequency' | 'recipe.limitedBand.unit'; message: string };
+
+export function checkLimitedBand(fromText: string, toText: string, unit: BandUnit, hzAllowed: boolean): BandCheck {
+  const read = (t: string) => (t.trim() === '' ? NaN : Number(t.trim()));
+  const lo = read(fromText);
+  const hi = read(toText);
+  if (fromText.trim() === '') return { ok: false, field: 'recipe.limitedBand.minFrequency', message: 'Give the band’s lower edge (0 for a band from DC).' };
+  if (!Number.isFinite(lo)) return { ok: false, field: 'recipe.limitedBand.minFrequency', message: 'The band’s lower edge must be a finite number.' };
+  if (lo < 0) return { ok: false, field: 'recipe.limitedBand.minFrequency', message: 'The band’s lower edge must be 0 or above.' };
+  if (toText.trim() === '') return { ok: false, field: 'recipe.limitedBand.maxFrequency', message: 'Give the band’s upper edge.' };
+  if (!Number.isFinite(hi)) return { ok: false, field: 'recipe.limitedBand.maxFrequency', message: 'The band’s upper edge must be a finite number.' };
+  if (!(hi > lo)) return { ok: false, field: 'recipe.limitedBand.maxFrequency', message: 'The band’s upper edge must be above its lower edge.' };
+  if (unit === 'hz' && !hzAllowed) return { ok: false, field: 'recipe.limitedBand.unit', message: 'Hz needs a model time unit of known length; give the band in rad per time unit.' };
+  return { ok: true, band: { minFrequency: lo, maxFrequency: hi, unit } };
 }
 
 /**

@@ -31,9 +31,24 @@ export interface OrderSliderProps {
   readonly timeUnit?: string;
   readonly label?: string;
   readonly disabled?: boolean;
+  /**
+   * For a method without an a-priori error bound: the bound figure is left out and this sentence says why
+   * (frequency-limited balanced truncation: its errors are measured once the reduction has run).
+   */
+  readonly noBoundNote?: string;
 }
 
-export function OrderSlider({ orders: givenOrders, value, onChange, figures, fullOrder, timeUnit = 's', label = 'States to keep (order r)', disabled }: OrderSliderProps) {
+export function OrderSlider({
+  orders: givenOrders,
+  value,
+  onChange,
+  figures,
+  fullOrder,
+  timeUnit = 's',
+  label = 'States to keep (order r)',
+  disabled,
+  noBoundNote,
+}: OrderSliderProps) {
   const problem = allowedOrdersProblem(givenOrders);
   // Hooks below run in every render; a bad list is shown as a message after them.
   const orders = problem === null ? givenOrders : [Math.max(0, Math.trunc(value) || 0)];
@@ -127,7 +142,7 @@ export function OrderSlider({ orders: givenOrders, value, onChange, figures, ful
         ) : null}
       </div>
       <dl id={figuresId} className="mt-3 grid grid-cols-2 gap-x-6 gap-y-1 text-sm sm:grid-cols-4">
-        <Figure term="Error bound" value={current ? formatOptional(current.errorBound, (v) => formatNumber(v)) : '—'} />
+        {noBoundNote === undefined ? <Figure term="Error bound" value={current ? formatOptional(current.errorBound, (v) => formatNumber(v)) : '—'} /> : null}
         <Figure term="Kept for unstable / marginal poles" value={current ? `${exact} (${current.keptUnstable} + ${current.keptMarginal})` : '—'} />
         <Figure term="Stiffness ratio" value={current ? formatOptional(current.stiffnessRatio, (v) => formatNumber(v)) : '—'} />
         <Figure
@@ -139,6 +154,11 @@ export function OrderSlider({ orders: givenOrders, value, onChange, figures, ful
           }
         />
       </dl>
+      {noBoundNote !== undefined ? (
+        <p className="mt-2 text-xs text-graphite-soft" data-testid="order-slider-no-bound">
+          {noBoundNote}
+        </p>
+      ) : null}
     </div>
   );
 }

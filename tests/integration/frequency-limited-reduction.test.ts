@@ -4,7 +4,9 @@
 // measured errors inside and outside the band and no bound. The stored errors are checked against G and Gr
 // evaluated here, independently of the engine (a complex solve of (jωI − A) x = B per frequency), and the
 // in-band error against plain balanced truncation at the same order. Bad bands are refused with 400 naming
-// the field, leaving no recipe, job or audit row; other roles and visitors are refused (403 / 401).
+// the field, leaving no recipe, job or audit row; other roles and visitors are refused (403 / 401). A
+// controller project's acceptance band (rad/s) is set by its engineer members only, checked like the
+// recipe's band, and becomes the reduce page's starting band in the model's own time unit.
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
@@ -19,6 +21,9 @@ import { registerUpload } from '@/lib/source-models';
 import type { SessionUser } from '@/lib/auth';
 import type { AccuracyFiguresRecord } from '@/lib/engine-tasks/records';
 import { POST as reductionRoute } from '@/app/api/reductions/route';
+import { PATCH as projectRoute } from '@/app/api/projects/[project]/route';
+import { createProject } from '@/lib/projects';
+import { projectBandSeed } from '@/lib/reduced-models';
 import { reduceModel } from '@/reduction/reduce';
 import { fromRows } from '@/reduction/linalg/matrix';
 import { makeUser, migrateTestDatabase } from './helpers';
@@ -300,5 +305,52 @@ describe('frequency-limited balanced truncation through /api/reductions', () => 
     }
     asUser(null);
     expect((await post({ sourceVersionId: '00000000-0000-4000-8000-000000000000', recipe, target: { kind: 'new', name: 'x' } })).status).toBe(401);
+  });
+});
+
+describe('a controller project\'s acceptance band, the reduce page\'s starting band', () => {
+  const patch = (slug: string, body: unknown) =>
+    projectRoute(new Request(`http://127.0.0.1/api/projects/${slug}`, { method: 'PATCH', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) }), {
+      params: Promise.resolve({ project: slug }),
+    });
+
+  it('is set by an engineer member, refused with the field named when bad, and refused to others', async () => {
+    const project = await createProject({ name: uniqueName('Band controller'), slug: `band-${Date.now().toString(36)}` }, engineer);
+    asUser(engineer.id);
+    for (const [band, field] of [
+      [{ minFrequency: 60, maxFrequency: 10 }, 'acceptanceBand.maxFrequency'],
+      [{ minFrequency: -1, maxFrequency: 10 }, 'acceptanceBand.minFrequency'],
+      [{ minFrequency: 0, maxFrequency: 10, maxError: 0 }, 'acceptanceBand.maxError'],
+    ] as const) {
+      const response = await patch(project.slug, { acceptanceBand: band });
+      expect(response.status).toBe(400);
+      expect(((await response.json()) as { error: { field: string } }).error.field).toBe(field);
+    }
+    expect((await db()('controller_projects').where({ id: project.id }).first()).acceptance_max_frequency).toBeNull();
+
+    // An engineer who is not a member, and a viewer, cannot set it.
+    const outsider = await makeUser({ role: 'engineer', label: 'band-outsider' });
+    asUser(outsider.id);
+    expect((await patch(project.slug, { acceptanceBand: { minFrequency: 0, maxFrequency: 5 } })).status).toBe(403);
+    const viewer = await makeUser({ role: 'viewer', label: 'band-viewer' });
+    asUser(viewer.id);
+    expect((await patch(project.slug, { acceptanceBand: { minFrequency: 0, maxFrequency: 5 } })).status).toBe(403);
+    expect((await db()('controller_projects').where({ id: project.id }).first()).acceptance_max_frequency).toBeNull();
+
+    asUser(engineer.id);
+    const ok = await patch(project.slug, { acceptanceBand: { minFrequency: 10, maxFrequency: 60, maxError: 0.05 } });
+    expect(ok.status).toBe(200);
+    expect(((await ok.json()) as { project: { acceptanceBand: unknown } }).project.acceptanceBand).toEqual({ minFrequency: 10, maxFrequency: 60, maxError: 0.05 });
+
+    // The starting band: rad/s as is for a model in seconds; ×0.001 for one in milliseconds (rad/ms);
+    // none for a time unit of unknown length, an unknown project, or a project without a band.
+    expect(await projectBandSeed(project.slug, 's')).toEqual({ projectName: project.name, projectSlug: project.slug, minFrequency: 10, maxFrequency: 60, maxError: 0.05 });
+    const ms = await projectBandSeed(project.slug, 'ms');
+    expect(ms!.minFrequency).toBeCloseTo(0.01, 15);
+    expect(ms!.maxFrequency).toBeCloseTo(0.06, 15);
+    expect(await projectBandSeed(project.slug, 'sample')).toBeNull();
+    expect(await projectBandSeed('no-such-project-here', 's')).toBeNull();
+    expect((await patch(project.slug, { acceptanceBand: null })).status).toBe(200);
+    expect(await projectBandSeed(project.slug, 's')).toBeNull();
   });
 });

@@ -5,6 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import { limitedBandInRadians, recipeSchema, reductionRequestSchema } from '@/lib/reduced-models';
 import { validationError } from '@/lib/http';
+import { checkLimitedBand, frequencyLimitedTable } from '@/components/source-models/recipe-choices';
+import type { OrderFigureTable } from '@/lib/engine-tasks/records';
 
 const base = { method: 'frequency-limited', orderRule: 'order', order: 4 } as const;
 
@@ -80,5 +82,48 @@ describe('limitedBandInRadians', () => {
     expect(() => limitedBandInRadians({ minFrequency: 0, maxFrequency: 1e308, unit: 'hz' }, 'h')).toThrow(
       expect.objectContaining({ status: 400, field: 'recipe.limitedBand.maxFrequency' }),
     );
+  });
+});
+
+describe('the recipe form agrees with the server', () => {
+  it.each([
+    ['10', '1', 'recipe.limitedBand.maxFrequency'],
+    ['5', '5', 'recipe.limitedBand.maxFrequency'],
+    ['-1', '5', 'recipe.limitedBand.minFrequency'],
+    ['abc', '5', 'recipe.limitedBand.minFrequency'],
+    ['0', '1e400', 'recipe.limitedBand.maxFrequency'],
+    ['0', '', 'recipe.limitedBand.maxFrequency'],
+  ])('the form refuses from=%j to=%j beside the field the route names (%s)', (from, to, field) => {
+    const checked = checkLimitedBand(from, to, 'rad', true);
+    expect(checked.ok).toBe(false);
+    if (!checked.ok) expect(checked.field).toBe(field);
+    const server = refusedField({ ...base, limitedBand: { minFrequency: Number(from === '' ? NaN : from), maxFrequency: Number(to === '' ? NaN : to) } });
+    expect(server?.field).toBe(field);
+  });
+
+  it('accepts what the server accepts, and offers Hz only where it can be converted', () => {
+    expect(checkLimitedBand('0', '8', 'rad', false)).toEqual({ ok: true, band: { minFrequency: 0, maxFrequency: 8, unit: 'rad' } });
+    expect(checkLimitedBand('0', '8', 'hz', false)).toMatchObject({ ok: false, field: 'recipe.limitedBand.unit' });
+    expect(checkLimitedBand('0', '8', 'hz', true)).toEqual({ ok: true, band: { minFrequency: 0, maxFrequency: 8, unit: 'hz' } });
+  });
+
+  it('gives the frequency-limited slider the balanced orders with no bound and no pole figures', () => {
+    const balanced: OrderFigureTable = {
+      available: true,
+      orders: [1, 2, 4],
+      figures: {
+        1: { errorBound: 3, keptUnstable: 0, keptMarginal: 1, stiffnessRatio: null, maxStableStepEuler: 1, maxStableStepRk4: 2 },
+        2: { errorBound: 2, keptUnstable: 0, keptMarginal: 1, stiffnessRatio: 4, maxStableStepEuler: 0.5, maxStableStepRk4: 1 },
+        4: { errorBound: 1, keptUnstable: 0, keptMarginal: 1, stiffnessRatio: 9, maxStableStepEuler: 0.1, maxStableStepRk4: 0.2 },
+      },
+      limitNote: null,
+    };
+    const fl = frequencyLimitedTable(balanced);
+    expect(fl.available && fl.orders).toEqual([1, 2, 4]);
+    if (!fl.available) throw new Error('expected a table');
+    for (const r of fl.orders) {
+      expect(fl.figures[r]).toEqual({ errorBound: null, keptUnstable: 0, keptMarginal: 1, stiffnessRatio: null, maxStableStepEuler: null, maxStableStepRk4: null });
+    }
+    expect(frequencyLimitedTable({ available: false, reason: 'no stable part' })).toEqual({ available: false, reason: 'no stable part' });
   });
 });

@@ -1,5 +1,5 @@
 // GET   /api/projects/{project} — the project, its pins as they resolve now, its members; any signed-in person.
-// PATCH /api/projects/{project} — name, description, sample time; engineer members (checked in lib/projects).
+// PATCH /api/projects/{project} — name, description, sample time, acceptance band; engineer members (checked in lib/projects).
 import { z } from 'zod';
 import { requireRole } from '@/lib/auth';
 import { parseJson, parseParams, parseQuery, route } from '@/lib/http';

@@ -3,7 +3,7 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageRole } from '@/lib/auth';
 import { getVersionPage } from '@/lib/source-models';
-import { reducedModelsOfSource } from '@/lib/reduced-models';
+import { projectBandSeed, reducedModelsOfSource, timeUnitSeconds } from '@/lib/reduced-models';
 import { PageHeader } from '@/components/shell/PageHeader';
 import { AnalysisFigures } from '@/components/source-models/AnalysisFigures';
 import { JobProgress } from '@/components/source-models/JobProgress';
@@ -12,7 +12,13 @@ import { VersionWorkspace } from '@/components/source-models/VersionWorkspace';
 export const metadata: Metadata = { title: 'Source version' };
 export const dynamic = 'force-dynamic';
 
-export default async function SourceVersionPage({ params }: { params: Promise<{ slug: string; number: string }> }) {
+export default async function SourceVersionPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ slug: string; number: string }>;
+  searchParams: Promise<{ project?: string | string[] }>;
+}) {
   const user = await requirePageRole();
   const { slug, number } = await params;
   const n = Number(number);
@@ -22,6 +28,9 @@ export default async function SourceVersionPage({ params }: { params: Promise<{ 
   const { model, version, analysis } = data;
   const timeUnit = model.timeUnit || 's';
   const reducedModels = analysis ? await reducedModelsOfSource(model.id) : [];
+  // ?project=slug: a person arriving from a controller project starts from its acceptance band.
+  const project = (await searchParams).project;
+  const seed = analysis ? await projectBandSeed(typeof project === 'string' ? project : undefined, timeUnit) : null;
   return (
     <>
       <PageHeader
@@ -61,6 +70,8 @@ export default async function SourceVersionPage({ params }: { params: Promise<{ 
             timeUnit={timeUnit}
             canRun={user.role === 'engineer'}
             reducedModels={reducedModels}
+            timeUnitSeconds={timeUnitSeconds(timeUnit)}
+            seed={seed}
           />
         </div>
       ) : version.job ? (
