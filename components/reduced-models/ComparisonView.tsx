@@ -11,7 +11,7 @@ import { ErrorBoundChart } from '@/components/charts/ErrorBoundChart';
 import { SigmaChart } from '@/components/charts/SigmaChart';
 import { TimeResponseChart } from '@/components/charts/TimeResponseChart';
 import { channelLabel, signalNames, type Channel } from '@/components/charts/channel-names';
-import { formatCount, formatFactor, formatNumber, formatTime, formatWallTime } from '@/components/charts/format';
+import { formatCount, formatFactor, formatFrequency, formatNumber, formatTime, formatWallTime } from '@/components/charts/format';
 import { FiguresTable } from '@/components/workspace/FiguresTable';
 import type { AccuracyFigures } from '@/components/workspace/figures-rows';
 import type { AccuracyFiguresRecord, CostRowRecord, ReductionCurves } from '@/lib/engine-tasks/records';
@@ -30,7 +30,8 @@ export interface ComparisonViewProps {
   canUploadSignal: boolean;
 }
 
-export function toFiguresTable(f: AccuracyFiguresRecord): AccuracyFigures {
+export function toFiguresTable(f: AccuracyFiguresRecord, timeUnit = 's'): AccuracyFigures {
+  const fl = f.frequencyLimited ?? null;
   return {
     fullOrder: f.fullOrder,
     reducedOrder: f.reducedOrder,
@@ -43,6 +44,22 @@ export function toFiguresTable(f: AccuracyFiguresRecord): AccuracyFigures {
     stiffnessRatioFull: f.stiffnessRatioFull,
     stiffnessRatioReduced: f.stiffnessRatioReduced,
     ...(f.simulation ? { simulation: f.simulation } : {}),
+    ...(f.errorBoundNote ? { errorBoundNote: f.errorBoundNote } : {}),
+    // The stability flag is shown for the method that does not guarantee it (and wherever a report says no).
+    ...(fl || f.reducedStable === false ? { reducedStable: f.reducedStable ?? fl?.reducedStable } : {}),
+    ...(fl
+      ? {
+          bandErrors: {
+            minFrequency: fl.band.minFrequency,
+            maxFrequency: fl.band.maxFrequency,
+            inBand: fl.inBandError,
+            inBandAt: fl.inBandErrorFrequency,
+            outOfBand: fl.outOfBandError,
+            outOfBandAt: fl.outOfBandErrorFrequency,
+            timeUnit,
+          },
+        }
+      : {}),
   };
 }
 
@@ -89,6 +106,28 @@ function CostRows({ rows, input, tEnd, timeUnit }: { rows: CostRowRecord[]; inpu
   );
 }
 
+/** Frequency-limited balanced truncation: the measured errors in and out of its band, no bound, and stability. */
+function BandErrorSummary({ figures, timeUnit }: { figures: AccuracyFiguresRecord; timeUnit: string }) {
+  const fl = figures.frequencyLimited!;
+  return (
+    <div className="panel p-4 text-sm" data-testid="band-errors">
+      <p>
+        Balanced on the band {formatNumber(fl.band.minFrequency)}–{formatFrequency(fl.band.maxFrequency, timeUnit)}. Measured σmax(G − Gr): inside the band{' '}
+        <span className="num">{formatNumber(fl.inBandError)}</span>
+        {fl.inBandErrorFrequency !== null ? <> (largest at {formatFrequency(fl.inBandErrorFrequency, timeUnit)})</> : null}, outside it{' '}
+        <span className="num">{formatNumber(fl.outOfBandError)}</span>
+        {fl.outOfBandErrorFrequency !== null ? <> (largest at {formatFrequency(fl.outOfBandErrorFrequency, timeUnit)})</> : null}.
+      </p>
+      <p className="mt-1">
+        No a-priori error bound for this method: these errors are measured on frequency grids, not guaranteed between their points.
+      </p>
+      <p className={`mt-1 ${fl.reducedStable ? '' : 'font-semibold text-okabe-vermillion'}`} data-testid="reduced-stable">
+        Reduced model stable: {fl.reducedStable ? 'yes' : 'no: it has poles in the closed right half-plane (the method does not guarantee stability)'}.
+      </p>
+    </div>
+  );
+}
+
 export function ComparisonView(p: ComparisonViewProps) {
   const { curves, figures, timeUnit } = p;
   const inputs = curves.frequency.full.re[0]?.length ?? 0;
@@ -126,8 +165,9 @@ export function ComparisonView(p: ComparisonViewProps) {
             boundLabel={figures.method === 'modal' ? 'modal bound Σ‖cᵢbᵢᵀ‖/|Re λᵢ|' : 'bound 2Σσ(r+1..n)'}
             acceptance={p.acceptance ?? undefined}
             timeUnit={timeUnit}
-            title="Error |G − Gr| against its bound"
+            title={figures.errorBoundNote ? `Error |G − Gr| (${figures.errorBoundNote})` : 'Error |G − Gr| against its bound'}
           />
+          {figures.frequencyLimited ? <BandErrorSummary figures={figures} timeUnit={timeUnit} /> : null}
         </div>
       </div>
       <div className="grid gap-6 xl:grid-cols-2">
@@ -148,7 +188,7 @@ export function ComparisonView(p: ComparisonViewProps) {
         timeUnit={timeUnit}
       />
       <div className="grid gap-6 xl:grid-cols-2">
-        <FiguresTable figures={toFiguresTable(figures)} caption="Accuracy report" />
+        <FiguresTable figures={toFiguresTable(figures, timeUnit)} caption="Accuracy report" />
         <CostRows rows={figures.costRows} input={figures.simulationInput} tEnd={figures.simulationEnd} timeUnit={timeUnit} />
       </div>
       {figures.notes.length ? (

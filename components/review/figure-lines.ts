@@ -29,7 +29,12 @@ interface LineSpec {
   label: string;
   format: (v: number, figures: Record<string, unknown>) => string;
   lowerIsBetter: boolean;
+  /** where the figure sits when it is not a top-level key */
+  read?: (figures: Record<string, unknown>) => unknown;
 }
+
+const bandFigure = (key: string) => (f: Record<string, unknown>) =>
+  f.frequencyLimited && typeof f.frequencyLimited === 'object' ? (f.frequencyLimited as Record<string, unknown>)[key] : undefined;
 
 const LINES: readonly LineSpec[] = [
   { key: 'fullOrder', label: 'Full order', format: (v) => formatCount(v), lowerIsBetter: false },
@@ -43,6 +48,9 @@ const LINES: readonly LineSpec[] = [
     lowerIsBetter: false,
   },
   { key: 'errorBound', label: 'A-priori error bound', format: (v) => formatNumber(v), lowerIsBetter: true },
+  // Frequency-limited balanced truncation: measured inside and outside its band (no bound applies).
+  { key: 'inBandError', label: 'Error inside the band (measured)', format: (v) => formatNumber(v), lowerIsBetter: true, read: bandFigure('inBandError') },
+  { key: 'outOfBandError', label: 'Error outside the band (measured)', format: (v) => formatNumber(v), lowerIsBetter: true, read: bandFigure('outOfBandError') },
   { key: 'h2Error', label: '‖G − Gr‖₂', format: (v) => formatNumber(v), lowerIsBetter: true },
   { key: 'dcGainError', label: 'DC gain error (largest entry)', format: (v) => formatNumber(v), lowerIsBetter: true },
   { key: 'peakStepError', label: 'Peak step-response error', format: (v) => formatNumber(v), lowerIsBetter: true },
@@ -52,6 +60,7 @@ const LINES: readonly LineSpec[] = [
 
 function valueOf(figures: Figures, spec: LineSpec): number | null {
   if (!figures) return null;
+  if (spec.read) return finite(spec.read(figures));
   for (const key of [spec.key, ...(spec.aliases ?? [])]) {
     const v = finite(figures[key]);
     if (v !== null) return v;
@@ -85,6 +94,44 @@ export function figureLines(sets: readonly Figures[], acceptance?: readonly (boo
       numbers,
       values: numbers.map((n, i) => (n === null ? '—' : spec.format(n, sets[i] ?? {}))),
       lowerIsBetter: spec.lowerIsBetter,
+    });
+  }
+  // A method without an a-priori bound says so where the bound would be.
+  const noBound = sets.map((f) => (f && typeof f.errorBoundNote === 'string' ? f.errorBoundNote : null));
+  if (noBound.some((n) => n !== null)) {
+    const at = lines.findIndex((l) => l.key === 'errorBound');
+    const line: FigureLine = {
+      key: 'errorBoundNote',
+      label: 'A-priori error bound',
+      values: sets.map((f, i) => noBound[i] ?? (finite(f?.errorBound) !== null ? formatNumber(finite(f?.errorBound)!) : '—')),
+      numbers: sets.map(() => null),
+      lowerIsBetter: false,
+    };
+    if (at >= 0) lines.splice(at, 1, line);
+    else lines.splice(Math.min(lines.length, 4), 0, line);
+  }
+  const band = sets.map((f) => (f && f.frequencyLimited && typeof f.frequencyLimited === 'object' ? (f.frequencyLimited as Record<string, unknown>) : null));
+  if (band.some((b) => b !== null)) {
+    lines.push({
+      key: 'band',
+      label: 'Band balanced on (rad per time unit)',
+      values: band.map((b) => {
+        const lo = finite((b?.band as Record<string, unknown> | undefined)?.minFrequency);
+        const hi = finite((b?.band as Record<string, unknown> | undefined)?.maxFrequency);
+        return lo !== null && hi !== null ? `${formatNumber(lo)}–${formatNumber(hi)}` : '—';
+      }),
+      numbers: sets.map(() => null),
+      lowerIsBetter: false,
+    });
+  }
+  const stable = sets.map((f) => (f && typeof f.reducedStable === 'boolean' ? f.reducedStable : null));
+  if (band.some((b) => b !== null) || stable.some((v) => v === false)) {
+    lines.push({
+      key: 'reducedStable',
+      label: 'Reduced model stable',
+      values: stable.map((v) => (v === null ? '—' : v ? 'yes' : 'NO')),
+      numbers: sets.map(() => null),
+      lowerIsBetter: false,
     });
   }
   const verdicts = sets.map((f, i) => acceptanceText(f, acceptance?.[i]));

@@ -4,7 +4,7 @@
  * (the engine's solver statistics: steps, rejected steps, right-hand-side evaluations, factorisations,
  * points stored, wall time). Every value leaves here formatted with its unit.
  */
-import { formatCount, formatFactor, formatNumber, formatPercent, formatWallTime } from '../charts/format';
+import { formatCount, formatFactor, formatFrequency, formatNumber, formatPercent, formatWallTime } from '../charts/format';
 
 export interface SimulationCost {
   /** solver as the engine names it, e.g. "exact", "explicit", "stiff" */
@@ -34,6 +34,20 @@ export interface AccuracyFigures {
   readonly stiffnessRatioFull: number | null;
   readonly stiffnessRatioReduced: number | null;
   readonly simulation?: { readonly full: SimulationCost; readonly reduced: SimulationCost };
+  /** why there is no bound, for a method that has none (frequency-limited balanced truncation) */
+  readonly errorBoundNote?: string | null;
+  /** whether the reduced model's stable part is stable; absent where the method guarantees it */
+  readonly reducedStable?: boolean;
+  /** frequency-limited balanced truncation: the band (rad per time unit) and the errors measured in and out of it */
+  readonly bandErrors?: {
+    readonly minFrequency: number;
+    readonly maxFrequency: number;
+    readonly inBand: number;
+    readonly inBandAt: number | null;
+    readonly outOfBand: number;
+    readonly outOfBandAt: number | null;
+    readonly timeUnit: string;
+  } | null;
 }
 
 export interface FigureRow {
@@ -62,12 +76,30 @@ export function accuracyRows(f: AccuracyFigures): FigureRow[] {
   const rows: FigureRow[] = [
     { label: 'H∞ error ‖G − Gr‖∞', value: optional(f.hinfError, (v) => formatNumber(v)) },
     { label: 'H∞ error, relative to ‖G‖∞', value: optional(f.hinfErrorRelative, (v) => formatPercent(v)) },
-    {
-      label: 'A-priori bound',
-      value: optional(f.errorBound, (v) => formatNumber(v)),
-      ...(f.errorBound === null ? { note: 'the method gives no bound here' } : {}),
-    },
+    f.errorBoundNote
+      ? { label: 'A-priori bound', value: 'none', note: f.errorBoundNote }
+      : {
+          label: 'A-priori bound',
+          value: optional(f.errorBound, (v) => formatNumber(v)),
+          ...(f.errorBound === null ? { note: 'the method gives no bound here' } : {}),
+        },
   ];
+  const b = f.bandErrors;
+  if (b) {
+    const band = `${formatNumber(b.minFrequency)}–${formatFrequency(b.maxFrequency, b.timeUnit)}`;
+    const at = (w: number | null) => (w === null ? undefined : `measured; largest at ${formatFrequency(w, b.timeUnit)}`);
+    rows.push(
+      { label: `Error inside the band ${band}`, value: formatNumber(b.inBand), ...(at(b.inBandAt) ? { note: at(b.inBandAt) } : {}) },
+      { label: 'Error outside the band', value: formatNumber(b.outOfBand), ...(at(b.outOfBandAt) ? { note: at(b.outOfBandAt) } : {}) },
+    );
+  }
+  if (f.reducedStable !== undefined) {
+    rows.push({
+      label: 'Reduced model stable',
+      value: f.reducedStable ? 'yes' : 'no',
+      ...(f.reducedStable ? {} : { note: 'poles in the closed right half-plane: do not use it as it is' }),
+    });
+  }
   if (f.hinfError !== null && f.errorBound !== null) {
     const holds = f.hinfError <= f.errorBound * (1 + BOUND_SLACK);
     rows.push({

@@ -6,7 +6,7 @@
 // conforming compiler rounds a decimal floating constant to the nearest double (C99 6.4.4.2 with Annex F),
 // so the arrays hold the exported doubles bit for bit.
 import type { ExportDocument } from './document';
-import { exportWarnings } from './document';
+import { accuracyLine, exportWarnings, recipeLine } from './document';
 import type { Rows } from './source';
 
 /** An identifier stem from a slug: "kiln-zone-3" → "kiln_zone_3" (prefixed when it would start with a digit). */
@@ -75,8 +75,6 @@ export function cHeader(doc: ExportDocument): string {
   const ID = id.toUpperCase();
   const guard = `MODESHELF_${ID}_H`;
   const n = s.version.order;
-  const report = s.accuracyReport?.figures ?? {};
-  const figure = (key: string) => (typeof report[key] === 'number' ? String(report[key]) : 'not reported');
 
   const comment: string[] = [
     `Modeshelf reduced model ${s.reducedModel.name} (${s.reducedModel.slug}) v${s.version.number}, ${s.version.status}`,
@@ -87,8 +85,8 @@ export function cHeader(doc: ExportDocument): string {
     '',
     `Source model: ${s.lineage.sourceModel.slug} v${s.lineage.sourceVersion.number} (${s.lineage.sourceVersion.states} states)`,
     `Source checksum: ${s.lineage.sourceVersion.checksum}`,
-    `Recipe: ${s.recipe.method}, ${s.recipe.order !== null ? `order ${s.recipe.order}` : `tolerance ${s.recipe.tolerance}`}`,
-    `Accuracy: H-infinity error ${figure('hinfError')}, relative ${figure('hinfErrorRelative')}, bound ${figure('errorBound')}`,
+    recipeLine(s),
+    accuracyLine(s),
     `Acceptance band: ${s.accuracyReport?.acceptancePassed === true ? 'passed' : s.accuracyReport?.acceptancePassed === false ? 'FAILED' : 'not checked'}`,
     `Matrices SHA-256 (this file): ${doc.matricesSha256}`,
     `Registered SHA-256 (lock file): ${doc.registeredMatricesSha256}`,

@@ -8,7 +8,7 @@
 import { createHash } from 'node:crypto';
 import JSZip from 'jszip';
 import type { ExportDocument } from './document';
-import { exportJson, exportStem, exportWarnings } from './document';
+import { accuracyLine, exportJson, exportStem, exportWarnings, recipeLine } from './document';
 import type { Rows } from './source';
 
 export function csvNumber(x: number): string {
@@ -81,7 +81,8 @@ function readme(doc: ExportDocument, files: Record<'A' | 'B' | 'C' | 'D', string
     '',
     'PROVENANCE',
     `Source model ${s.lineage.sourceModel.slug} v${s.lineage.sourceVersion.number} (${s.lineage.sourceVersion.states} states, checksum ${s.lineage.sourceVersion.checksum})`,
-    `Recipe: ${s.recipe.method}, ${s.recipe.order !== null ? `order ${s.recipe.order}` : `tolerance ${s.recipe.tolerance}`}`,
+    recipeLine(s),
+    accuracyLine(s),
     `Generated ${doc.generatedAt.toISOString()}`,
   ];
   return lines.join('\n') + '\n';

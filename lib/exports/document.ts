@@ -69,6 +69,36 @@ export function exportWarnings(doc: ExportDocument): string[] {
   return warnings;
 }
 
+/** The recipe in one line of plain text, for the C header and the CSV bundle's README. */
+export function recipeLine(s: ExportSource): string {
+  const rule = s.recipe.order !== null ? `order ${s.recipe.order}` : `tolerance ${s.recipe.tolerance}`;
+  const band = s.recipe.options.band as { minFrequency?: unknown; maxFrequency?: unknown } | undefined;
+  if (s.recipe.method === 'frequency-limited' && band && typeof band.minFrequency === 'number' && typeof band.maxFrequency === 'number') {
+    return `Recipe: frequency-limited balanced truncation, ${rule}, band ${band.minFrequency} to ${band.maxFrequency} rad/${s.timeUnit}`;
+  }
+  return `Recipe: ${s.recipe.method}, ${rule}`;
+}
+
+/**
+ * The accuracy in one line: the measured H-infinity error and the bound; for a method without a bound
+ * (frequency-limited balanced truncation) the sentence saying so, the errors measured inside and outside
+ * its band, and whether the reduced model is stable.
+ */
+export function accuracyLine(s: ExportSource): string {
+  const report = s.accuracyReport?.figures ?? {};
+  const figure = (v: unknown) => (typeof v === 'number' ? String(v) : 'not reported');
+  const fl = report.frequencyLimited && typeof report.frequencyLimited === 'object' ? (report.frequencyLimited as Record<string, unknown>) : null;
+  if (fl || typeof report.errorBoundNote === 'string') {
+    const note = typeof report.errorBoundNote === 'string' ? report.errorBoundNote : 'no a-priori error bound for this method';
+    const stable = typeof report.reducedStable === 'boolean' ? (report.reducedStable ? 'yes' : 'NO') : 'not reported';
+    return (
+      `Accuracy: ${note}; measured error inside the band ${figure(fl?.inBandError)}, outside the band ${figure(fl?.outOfBandError)}, ` +
+      `H-infinity error ${figure(report.hinfError)}; reduced model stable: ${stable}`
+    );
+  }
+  return `Accuracy: H-infinity error ${figure(report.hinfError)}, relative ${figure(report.hinfErrorRelative)}, bound ${figure(report.errorBound)}`;
+}
+
 /** The file name stem: "<model>-v<n>" plus "-zoh-<ts>s" when discretised. */
 export function exportStem(doc: ExportDocument): string {
   const base = `${doc.source.reducedModel.slug}-v${doc.source.version.number}`;

@@ -14,7 +14,12 @@ import { formatFrequency, formatNumber } from '@/components/charts/format';
 export const metadata: Metadata = { title: 'Full and reduced compared' };
 export const dynamic = 'force-dynamic';
 
-const METHOD_WORDS: Record<string, string> = { balanced: 'balanced truncation', residualization: 'balanced residualization', modal: 'modal truncation' };
+const METHOD_WORDS: Record<string, string> = {
+  balanced: 'balanced truncation',
+  residualization: 'balanced residualization',
+  modal: 'modal truncation',
+  'frequency-limited': 'frequency-limited balanced truncation',
+};
 
 export default async function ComparisonPage({ params }: { params: Promise<{ slug: string; number: string }> }) {
   const user = await requirePageRole();
@@ -28,7 +33,15 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
   const rule =
     recipe.order !== null ? `order ${recipe.order}` : `smallest order whose bound is at most ${formatNumber(recipe.tolerance!)} × ‖G‖∞ (gave ${version.order})`;
   const selection = recipe.method === 'modal' ? `, modes kept first by ${recipe.options.selection ?? 'dominance'}` : '';
-  const band = recipe.options.band ? ` in ${formatNumber(recipe.options.band.minFrequency)}–${formatFrequency(recipe.options.band.maxFrequency, timeUnit)}` : '';
+  const entered = recipe.options.enteredBand;
+  const band =
+    recipe.method === 'frequency-limited' && recipe.options.band
+      ? ` on the band ${formatNumber(recipe.options.band.minFrequency)}–${formatFrequency(recipe.options.band.maxFrequency, timeUnit)}${
+          entered?.unit === 'hz' ? ` (given as ${formatNumber(entered.minFrequency)}–${formatNumber(entered.maxFrequency)} Hz)` : ''
+        }`
+      : recipe.options.band
+        ? ` in ${formatNumber(recipe.options.band.minFrequency)}–${formatFrequency(recipe.options.band.maxFrequency, timeUnit)}`
+        : '';
   return (
     <>
       <PageHeader
