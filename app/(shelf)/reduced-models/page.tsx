@@ -12,7 +12,12 @@ import { formatPercent } from '@/components/charts/format';
 export const metadata: Metadata = { title: 'Reduced models' };
 export const dynamic = 'force-dynamic';
 
-const METHOD_WORDS: Record<string, string> = { balanced: 'balanced truncation', residualization: 'balanced residualization', modal: 'modal truncation' };
+const METHOD_WORDS: Record<string, string> = {
+  balanced: 'balanced truncation',
+  residualization: 'balanced residualization',
+  modal: 'modal truncation',
+  'frequency-limited': 'frequency-limited balanced truncation',
+};
 
 export default async function ReducedModelsPage() {
   await requirePageRole();
