@@ -67,7 +67,15 @@ export default async function ReducedModelPage({ params }: { params: Promise<{ s
                 <td className="px-4 py-2">{v.method}</td>
                 <td className="num px-4 py-2">{v.order}</td>
                 <td className="num px-4 py-2">{v.hinfErrorRelative === null ? '—' : formatPercent(v.hinfErrorRelative)}</td>
-                <td className="num px-4 py-2">{v.errorBound === null ? '—' : formatNumber(v.errorBound)}</td>
+                <td className="num px-4 py-2">
+                  {v.errorBound !== null ? (
+                    formatNumber(v.errorBound)
+                  ) : v.method === 'frequency-limited' ? (
+                    <span title="no a-priori error bound for this method">none</span>
+                  ) : (
+                    '—'
+                  )}
+                </td>
                 <td className="px-4 py-2">{v.acceptancePassed === null ? '—' : v.acceptancePassed ? 'PASS' : 'FAIL'}</td>
                 <td className="num px-4 py-2 text-xs" title={v.matricesSha256}>
                   {v.matricesSha256.slice(0, 12)}…
