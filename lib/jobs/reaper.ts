@@ -22,7 +22,7 @@ import type { Knex } from 'knex';
 import { randomUUID } from 'node:crypto';
 import { db } from '@/lib/db';
 import type { JobRow } from './jobs';
-import { JOB_KINDS, QUEUE_NAMES, queueDb, queuePrefix, RETRY_LIMIT, sendDelivery, type JobKind } from './queue';
+import { EXPIRE_SECONDS, JOB_KINDS, QUEUE_NAMES, queueDb, queuePrefix, RETRY_LIMIT, sendDelivery, type JobKind } from './queue';
 import { crashPoint, type CrashHook } from './crash';
 
 /** Heartbeats come every few seconds (runner.ts); a minute of silence means the worker is gone. */
@@ -93,7 +93,9 @@ async function findCandidates(options: Required<Pick<RepairOptions, 'staleSecond
           OR (j.status = 'queued' AND (q.id IS NULL OR q.state IN ('completed', 'failed', 'cancelled'))
               AND j.updated_at < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
           OR (j.status IN ('succeeded', 'failed') AND q.state = 'active'
-              AND j.updated_at < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
+              AND j.updated_at < COALESCE(?::timestamptz, now()) - make_interval(secs => ?)
+              -- pg-boss itself fails an active delivery after its expiry, so older final rows need no look
+              AND j.updated_at > COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
         )
       ORDER BY j.updated_at
       LIMIT ?`,
@@ -104,6 +106,7 @@ async function findCandidates(options: Required<Pick<RepairOptions, 'staleSecond
       now, options.staleSeconds,
       now, options.graceSeconds,
       now, options.graceSeconds,
+      now, EXPIRE_SECONDS + 3600,
       options.limit,
     ],
   );
