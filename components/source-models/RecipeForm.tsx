@@ -184,6 +184,9 @@ export function RecipeForm(p: RecipeFormProps) {
     ) : null;
 
   const unit = frequencyUnit(timeUnit);
+  /** A message beside a band field stays until that band is edited. */
+  const clearBandErrors = () =>
+    setErrors((e) => Object.fromEntries(Object.entries(e).filter(([k]) => !k.startsWith('recipe.limitedBand'))));
   const hzLabel = timeUnit === 's' ? 'Hz' : 'Hz (cycles per second)';
   const switchUnit = (next: BandUnit) => {
     // Keep the band the same when the unit changes: ω = 2π f · (seconds per time unit).
@@ -198,6 +201,7 @@ export function RecipeForm(p: RecipeFormProps) {
       setFlHi(convert(flHi));
     }
     setFlUnit(next);
+    clearBandErrors();
   };
   const limited = method === 'frequency-limited';
   return (
@@ -271,7 +275,10 @@ export function RecipeForm(p: RecipeFormProps) {
                 id={`${id}-fl-lo`}
                 className="field-input num"
                 value={flLo}
-                onChange={(e) => setFlLo(e.target.value)}
+                onChange={(e) => {
+                  setFlLo(e.target.value);
+                  clearBandErrors();
+                }}
                 inputMode="decimal"
                 placeholder="e.g. 0"
                 aria-invalid={errors['recipe.limitedBand.minFrequency'] ? true : undefined}
@@ -287,7 +294,10 @@ export function RecipeForm(p: RecipeFormProps) {
                 id={`${id}-fl-hi`}
                 className="field-input num"
                 value={flHi}
-                onChange={(e) => setFlHi(e.target.value)}
+                onChange={(e) => {
+                  setFlHi(e.target.value);
+                  clearBandErrors();
+                }}
                 inputMode="decimal"
                 placeholder="e.g. 50"
                 aria-invalid={errors['recipe.limitedBand.maxFrequency'] ? true : undefined}
