@@ -83,8 +83,11 @@ export function figuresFromPoles(
   const re = Float64Array.from([...Array.from(stableRe), ...Array.from(keptStep.re)]);
   const im = Float64Array.from([...Array.from(stableIm), ...Array.from(keptStep.im)]);
   const limits = stepLimitsFromPoles({ re, im });
-  // Stiffness over the stable poles only; the reduced stable part's poles are stable by construction
-  // (Pernebo & Silverman 1982), and classifying them again would count a rounding-level one as marginal.
+  // Stiffness over the stable poles only; the reduced stable part's poles are stable by construction for the
+  // balanced methods (Pernebo & Silverman 1982), and classifying them again would count a rounding-level one
+  // as marginal. Frequency-limited balanced truncation gives no such guarantee: a pole in the right
+  // half-plane is left out of the stiffness ratio, holds both step limits at 0 (step-limits.ts), and the
+  // reduction task reports the model as not stable (AccuracyFiguresRecord.reducedStable).
   let fast = 0;
   let slow = Infinity;
   for (let k = 0; k < stableRe.length; k++) {
