@@ -86,6 +86,10 @@ export function AcceptanceBandForm({ projectSlug, band }: { projectSlug: string;
         ) : null}
       </div>
       {errorFor('form')}
+      <p className="basis-full text-xs text-graphite-soft">
+        The frequencies this controller needs the reduced model accurate over. A source version opened from this project starts frequency-limited balanced
+        truncation on this band, and its acceptance check with the largest error.
+      </p>
     </form>
   );
 }
