@@ -56,6 +56,33 @@ export async function authenticatePullRequest(request: Request, projectSlug: str
   );
 }
 
+/** Project ids by slug, learnt from authorised requests (a slug may be renamed; an id never changes). */
+const projectIds = new Map<string, string>();
+const PROJECT_IDS_MAX = 10_000;
+
+/**
+ * Authorises the request and loads what it asks for in one round trip where it can: when this process has
+ * seen the project before, `load` runs on its id beside the token check instead of after it. Its result is
+ * used only once the token is found valid for that project and the id is confirmed (a renamed or re-made
+ * project gets `load` again with the right id); a refused token discards it.
+ */
+export async function authorisedLoad<T>(
+  request: Request,
+  projectSlug: string,
+  scope: TokenScope | 'any',
+  load: (projectId: string) => Promise<T>,
+): Promise<{ caller: PullCaller; value: T }> {
+  const guess = projectIds.get(projectSlug);
+  const authorising = authenticatePullRequest(request, projectSlug, scope);
+  const early = guess === undefined ? null : load(guess);
+  early?.catch(() => undefined); // a refused token leaves it unread
+  const caller = await authorising;
+  if (caller.project.id === guess && early) return { caller, value: await early };
+  if (projectIds.size >= PROJECT_IDS_MAX) projectIds.clear();
+  projectIds.set(projectSlug, caller.project.id);
+  return { caller, value: await load(caller.project.id) };
+}
+
 export const projectParamsSchema = z.object({ project: z.string() });
 export const modelParamsSchema = z.object({ project: z.string(), model: z.string() });
 export const versionParamsSchema = z.object({ project: z.string(), model: z.string(), number: z.string() });
@@ -68,11 +95,19 @@ export function versionNumber(raw: string): number {
   return Number(raw);
 }
 
-/** The project's pin of that model, or a 404 that reads the same whether the model exists elsewhere or not. */
-export async function requirePinnedModel(caller: PullCaller, modelSlug: string): Promise<ResolvedPin> {
-  const pin = SLUG_PATTERN.test(modelSlug) ? await findPinByModelSlug(caller.project.id, modelSlug) : undefined;
+/** The project's pin of that model (undefined for none, or for a slug that cannot be one). */
+export function findPinnedModel(projectId: string, modelSlug: string): Promise<ResolvedPin | undefined> {
+  return SLUG_PATTERN.test(modelSlug) ? findPinByModelSlug(projectId, modelSlug) : Promise.resolve(undefined);
+}
+
+/** The pin found, or a 404 that reads the same whether the model exists elsewhere or not. */
+export function pinnedOr404(pin: ResolvedPin | undefined, modelSlug: string): ResolvedPin {
   if (!pin) throw new ApiError(404, 'not_found', `This project pins no reduced model "${modelSlug.slice(0, 100)}".`);
   return pin;
+}
+
+export async function requirePinnedModel(caller: PullCaller, modelSlug: string): Promise<ResolvedPin> {
+  return pinnedOr404(await findPinnedModel(caller.project.id, modelSlug), modelSlug);
 }
 
 export function pinContext(caller: PullCaller, pin: ResolvedPin): PinContext {

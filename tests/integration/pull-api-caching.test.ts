@@ -3,6 +3,8 @@
 // with it gets 304 and no body (RFC 9110 §13.1.2, §15.4.5), and anything that changes the document —
 // a newer approved version, the version retired, a newer source version, the project's sample time —
 // gives new bytes and a new ETag at once. Every request, 304s included, is still recorded as a token use.
+// The token check and the pins' query run side by side (lib/pull-api.ts, authorisedLoad): a project renamed
+// and another made under its old slug must each still get only their own pins.
 import { createHash } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb } from '@/lib/db';
@@ -12,6 +14,7 @@ import { createProject, updateProject } from '@/lib/projects';
 import { createPin } from '@/lib/pins';
 import { createProjectToken, listTokenUses } from '@/lib/project-tokens';
 import { GET as modelGet } from '@/app/api/v1/projects/[project]/models/[model]/route';
+import { GET as pinsGet } from '@/app/api/v1/projects/[project]/pins/route';
 import { GET as versionGet } from '@/app/api/v1/projects/[project]/models/[model]/versions/[number]/route';
 import { makeUser, migrateTestDatabase } from './helpers';
 import { addUpstreamVersion, addVersion, makeProjectShelf, retireVersion, stiffTestModel, uniqueSlug, type ProjectShelf } from './fixtures/projects';
@@ -130,5 +133,36 @@ describe('pull API exports: strong ETag, 304, and new bytes when the document ch
     const b = await model('?ts=project', { 'if-none-match': a.res.headers.get('etag')! });
     expect(b.res.status).toBe(200);
     expect(JSON.parse(b.body.toString()).discretisation.ts).toBe(0.02);
+  });
+});
+
+describe('the token check and the pins query in one round trip', () => {
+  it("never serves one project's pins under another's slug: a renamed project, and a new one made with its old slug", async () => {
+    const pins = async (slug: string, tok: string) => {
+      const res = await pinsGet(new Request(new URL(`/api/v1/projects/${slug}/pins`, 'http://modeshelf.test'), { headers: { authorization: `Bearer ${tok}` } }), {
+        params: Promise.resolve({ project: slug }),
+      });
+      return { status: res.status, body: await res.json() };
+    };
+    const oldSlug = uniqueSlug('renamed');
+    const a = await createProject({ name: 'Renamed controller', slug: oldSlug }, engineer);
+    await createPin(a.slug, { reducedModel: shelf.reducedModel.slug, mode: 'newest_approved' }, engineer);
+    const tokenA = (await createProjectToken(a.slug, { name: 'a' }, engineer)).token;
+    expect((await pins(oldSlug, tokenA)).body.pins).toHaveLength(1); // this process now knows the slug's id
+
+    const newSlug = uniqueSlug('renamed-to');
+    // The app never renames a project; the guard must hold even if the database is changed under it.
+    await db()('controller_projects').where({ id: a.id }).update({ slug: newSlug });
+    const b = await createProject({ name: 'Newcomer controller', slug: oldSlug }, engineer);
+    const tokenB = (await createProjectToken(b.slug, { name: 'b' }, engineer)).token;
+
+    const asB = await pins(oldSlug, tokenB);
+    expect(asB.status).toBe(200);
+    expect(asB.body.project).toMatchObject({ slug: oldSlug, name: 'Newcomer controller' });
+    expect(asB.body.pins).toEqual([]);
+    expect((await pins(oldSlug, tokenA)).body.error.code).toBe('wrong_project');
+    const asA = await pins(newSlug, tokenA);
+    expect(asA.body.project.slug).toBe(newSlug);
+    expect(asA.body.pins.map((p: { reducedModel: { slug: string } }) => p.reducedModel.slug)).toEqual([shelf.reducedModel.slug]);
   });
 });

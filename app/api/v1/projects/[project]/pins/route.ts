@@ -2,13 +2,14 @@
 import { z } from 'zod';
 import { parseParams, parseQuery } from '@/lib/http';
 import { listProjectPins } from '@/lib/pins';
-import { authenticatePullRequest, pinsBody, projectParamsSchema, pullRoute } from '@/lib/pull-api';
+import { authorisedLoad, pinsBody, projectParamsSchema, pullRoute } from '@/lib/pull-api';
 
 export const dynamic = 'force-dynamic';
 
 export const GET = pullRoute<{ project: string }>(async (request, { params }) => {
   const { project } = await parseParams(params, projectParamsSchema);
-  const caller = await authenticatePullRequest(request, project, 'any');
+  // The token check and the pins' query go together (one round trip); refusals come in the order they did.
+  const { caller, value: pins } = await authorisedLoad(request, project, 'any', (projectId) => listProjectPins(projectId));
   parseQuery(request, z.object({}).strict());
-  return pinsBody(caller, await listProjectPins(caller.project.id));
+  return pinsBody(caller, pins);
 });

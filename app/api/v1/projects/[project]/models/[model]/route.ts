@@ -3,15 +3,16 @@
 // with a strong ETag; If-None-Match with it gets 304 (lib/pull-api.ts, pullExport).
 import { parseParams, parseQuery } from '@/lib/http';
 import { exportQuerySchema } from '@/lib/exports';
-import { authenticatePullRequest, modelParamsSchema, pinContext, pullExport, pullRoute, requirePinnedModel, resolvedVersion } from '@/lib/pull-api';
+import { authorisedLoad, findPinnedModel, modelParamsSchema, pinContext, pinnedOr404, pullExport, pullRoute, resolvedVersion } from '@/lib/pull-api';
 
 export const dynamic = 'force-dynamic';
 
 export const GET = pullRoute<{ project: string; model: string }>(async (request, { params }) => {
   const { project, model } = await parseParams(params, modelParamsSchema);
-  const caller = await authenticatePullRequest(request, project, 'pull');
+  // The token check and the pin's query go together (one round trip); refusals come in the order they did.
+  const { caller, value: found } = await authorisedLoad(request, project, 'pull', (projectId) => findPinnedModel(projectId, model));
   const query = parseQuery(request, exportQuerySchema);
-  const pin = await requirePinnedModel(caller, model);
+  const pin = pinnedOr404(found, model);
   return pullExport(request, {
     version: resolvedVersion(pin),
     format: query.format,
