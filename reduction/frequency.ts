@@ -126,15 +126,32 @@ export function modalEvaluator(model: StateSpaceModel, limit = MODAL_CONDITION_L
   const VB = luSolve(f, model.B);
   const CV = matmul(model.C, vectors);
   const re = values.re, im = values.im;
+  const pm = p * m;
+  // Residues, so each frequency is a sum of p×m terms with scalar weights: a real pole λ contributes
+  // R/(jω − λ) with R = CV[:,k]·VB[k,:]; a pair contributes s/(s² + b²)·S₁ + b/(s² + b²)·S₂ (s = jω − a)
+  // with S₁ = x̂·uᵀ + ŷ·vᵀ and S₂ = x̂·vᵀ − ŷ·uᵀ, from (jωI − M)⁻¹ = (s² + b²)⁻¹·[[s, b], [−b, s]].
+  const residues = new Float64Array(2 * n * pm);
+  for (let k = 0; k < n; k++) {
+    const pair = im[k] > 0 && k + 1 < n;
+    const o = 2 * k * pm;
+    for (let i = 0; i < p; i++) {
+      const x = CV.data[i * n + k], y = pair ? CV.data[i * n + k + 1] : 0;
+      for (let j = 0; j < m; j++) {
+        const u = VB.data[k * m + j], v = pair ? VB.data[(k + 1) * m + j] : 0;
+        residues[o + i * m + j] = pair ? x * u + y * v : x * u;
+        if (pair) residues[o + pm + i * m + j] = x * v - y * u;
+      }
+    }
+    if (pair) k++;
+  }
   const many = (w: ArrayLike<number>): ComplexMatrix[] => {
     const out: ComplexMatrix[] = [];
-    // Per mode k: the m-vector coefficients z_k (complex) that multiply column k of CV.
-    const zr = new Float64Array(n * m), zi = new Float64Array(n * m);
     for (let f2 = 0; f2 < w.length; f2++) {
       const wk = w[f2];
+      const gr = new Float64Array(model.D.data), gi = new Float64Array(pm);
       for (let k = 0; k < n; k++) {
+        const o = 2 * k * pm;
         if (im[k] > 0 && k + 1 < n) {
-          // (jωI − M)⁻¹ for M = [[a, b], [−b, a]]: with s = jω − a, (s² + b²)⁻¹·[[s, b], [−b, s]].
           const a = re[k], b = im[k];
           const sr = -a, si = wk;
           const dr = sr * sr - si * si + b * b, di = 2 * sr * si;
@@ -142,12 +159,10 @@ export function modalEvaluator(model: StateSpaceModel, limit = MODAL_CONDITION_L
           const ir = dr / den, ii = -di / den; // 1/(s² + b²)
           const pr = sr * ir - si * ii, pi = sr * ii + si * ir; // s/(s² + b²)
           const qr = b * ir, qi = b * ii; // b/(s² + b²)
-          for (let j = 0; j < m; j++) {
-            const u = VB.data[k * m + j], v = VB.data[(k + 1) * m + j];
-            zr[k * m + j] = pr * u + qr * v;
-            zi[k * m + j] = pi * u + qi * v;
-            zr[(k + 1) * m + j] = -qr * u + pr * v;
-            zi[(k + 1) * m + j] = -qi * u + pi * v;
+          for (let t = 0; t < pm; t++) {
+            const s1 = residues[o + t], s2 = residues[o + pm + t];
+            gr[t] += pr * s1 + qr * s2;
+            gi[t] += pi * s1 + qi * s2;
           }
           k++;
         } else {
@@ -155,14 +170,14 @@ export function modalEvaluator(model: StateSpaceModel, limit = MODAL_CONDITION_L
           const sr = -re[k], si = wk;
           const den = sr * sr + si * si;
           const ir = sr / den, ii = -si / den;
-          for (let j = 0; j < m; j++) {
-            const u = VB.data[k * m + j];
-            zr[k * m + j] = ir * u;
-            zi[k * m + j] = ii * u;
+          for (let t = 0; t < pm; t++) {
+            const r = residues[o + t];
+            gr[t] += ir * r;
+            gi[t] += ii * r;
           }
         }
       }
-      out.push(outputMap(CV, model.D, zr, zi));
+      out.push({ re: { rows: p, cols: m, data: gr }, im: { rows: p, cols: m, data: gi } });
     }
     return out;
   };

@@ -232,7 +232,7 @@ export function hinfNorm(model: StateSpaceModel, options: NormOptions = {}): Hin
     const { model: small, slack } = options.certifyOn;
     const r = hinfNorm(small, { relativeTolerance: eps, stabilityTolerance: options.stabilityTolerance });
     if (r.finite) {
-      const evaluator = options.evaluator ?? frequencyEvaluator(model, { form: 'hessenberg' });
+      const evaluator = options.evaluator ?? frequencyEvaluator(model);
       const attained = Number.isFinite(r.peakFrequency) ? largestSingularValue(evaluator.at(r.peakFrequency)) : dNorm;
       return {
         finite: true,

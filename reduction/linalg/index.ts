@@ -105,8 +105,17 @@ export function schur(a: Matrix): { T: Matrix; Z: Matrix; values: ComplexVector 
   return kernels().schur(a);
 }
 
+/**
+ * The last eigendecomposition of each matrix object, per backend: the analysis asks for the poles, the
+ * modal form and the frequency response's modal form of the same A, and an O(n³) decomposition is done
+ * once. The engine treats a model's matrices as immutable once validated; the shared result is read-only.
+ */
+const eigMemo = new WeakMap<Matrix, { backend: string; result: { values: ComplexVector; vectors: Matrix } }>();
+
 /** Eigenvalues of a general real square matrix (complex pairs consecutive, positive imaginary part first). */
 export function eigenvalues(a: Matrix): ComplexVector {
+  const memo = eigMemo.get(a);
+  if (memo && memo.backend === kernels().name) return { re: memo.result.values.re.slice(), im: memo.result.values.im.slice() };
   return kernels().eigenvalues(a);
 }
 
@@ -114,9 +123,15 @@ export function eigenvalues(a: Matrix): ComplexVector {
  * Eigenvalues and right eigenvectors of a general real matrix. Vectors in the real packed form:
  * for a complex pair at j, j+1 (im[j] > 0), columns j and j+1 hold the real and imaginary parts of the
  * eigenvector of values[j]; the conjugate vector belongs to values[j+1]. Each vector has unit 2-norm.
+ * The result is shared with later calls on the same matrix object: do not modify it.
  */
 export function eig(a: Matrix): { values: ComplexVector; vectors: Matrix } {
-  return kernels().eig(a);
+  const backend = kernels().name;
+  const memo = eigMemo.get(a);
+  if (memo && memo.backend === backend) return memo.result;
+  const result = kernels().eig(a);
+  eigMemo.set(a, { backend, result });
+  return result;
 }
 
 /** Thin SVD A = U·diag(s)·Vᵀ with s descending. */

@@ -42,15 +42,11 @@ function requireStable(what: string, values: ComplexVector): void {
   }
 }
 
-/**
- * X with A·X + X·Aᵀ + F·Fᵀ = 0 (`transposeA` false) or Aᵀ·X + X·A + F·Fᵀ = 0 (true), for stable A
- * given by its Schur form; F is n×k. X is symmetric positive semidefinite.
- */
-export function schurLyapunov(form: SchurForm, f: Matrix, transposeA: boolean): Matrix {
+/** Y = Zᵀ·X·Z solving the equation in Schur coordinates (see `schurLyapunov`); symmetric. */
+function schurCoordinatesSolution(form: SchurForm, f: Matrix, transposeA: boolean): Matrix {
   const n = form.T.rows;
   if (f.rows !== n) throw new Error(`schurLyapunov: the right-hand factor has ${f.rows} rows, A is ${n}×${n}`);
   requireStable('schurLyapunov', form.values);
-  if (n === 0) return zeros(0, 0);
   // W = Zᵀ·F, right-hand side −W·Wᵀ.
   const W = product(form.Z, f, true, false);
   const Y = product(W, W, false, true);
@@ -59,15 +55,36 @@ export function schurLyapunov(form: SchurForm, f: Matrix, transposeA: boolean): 
   if (kernels().quasiTriangularSylvester(form.T, form.T, Y, transposeA, !transposeA)) {
     throw new Error('schurLyapunov: A and −Aᵀ share an eigenvalue to working precision (A is not stable enough)');
   }
-  const X = product(product(form.Z, Y, false, false), form.Z, false, true);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < i; j++) {
-      const v = 0.5 * (X.data[i * n + j] + X.data[j * n + i]);
-      X.data[i * n + j] = v;
-      X.data[j * n + i] = v;
+      const v = 0.5 * (Y.data[i * n + j] + Y.data[j * n + i]);
+      Y.data[i * n + j] = v;
+      Y.data[j * n + i] = v;
     }
   }
-  return X;
+  return Y;
+}
+
+/**
+ * X with A·X + X·Aᵀ + F·Fᵀ = 0 (`transposeA` false) or Aᵀ·X + X·A + F·Fᵀ = 0 (true), for stable A
+ * given by its Schur form; F is n×k. X is symmetric positive semidefinite.
+ */
+export function schurLyapunov(form: SchurForm, f: Matrix, transposeA: boolean): Matrix {
+  if (form.T.rows === 0) return zeros(0, 0);
+  const Y = schurCoordinatesSolution(form, f, transposeA);
+  return product(product(form.Z, Y, false, false), form.Z, false, true);
+}
+
+/**
+ * L (n × numerical rank) with X ≈ L·Lᵀ for the same equation: the pivoted Cholesky factor G of the
+ * Schur-coordinate solution Y = Zᵀ·X·Z, then L = Z·G (X = Z·Y·Zᵀ is never formed: one n²·r product
+ * instead of two n³ ones).
+ */
+export function schurLyapunovFactor(form: SchurForm, f: Matrix, transposeA: boolean, tolerance: number): Matrix {
+  const n = form.T.rows;
+  if (n === 0) return zeros(0, 0);
+  const G = kernels().pivotedCholesky(schurCoordinatesSolution(form, f, transposeA), tolerance);
+  return product(form.Z, G, false, false);
 }
 
 /**
@@ -90,8 +107,10 @@ export function schurGramianFactors(
   const tol = options.tolerance ?? Math.sqrt(Number.EPSILON);
   const ct: Matrix = { rows: n, cols: c.rows, data: new Float64Array(n * c.rows) };
   for (let i = 0; i < c.rows; i++) for (let j = 0; j < n; j++) ct.data[j * c.rows + i] = c.data[i * n + j];
-  const P = schurLyapunov(form, b, false);
-  const Q = schurLyapunov(form, ct, true);
-  return { controllability: kernels().pivotedCholesky(P, tol), observability: kernels().pivotedCholesky(Q, tol), form };
+  return {
+    controllability: schurLyapunovFactor(form, b, false, tol),
+    observability: schurLyapunovFactor(form, ct, true, tol),
+    form,
+  };
 }
 
