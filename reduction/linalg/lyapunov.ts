@@ -24,9 +24,12 @@
 import { type Matrix, zeros } from './matrix';
 import { luLogDeterminant } from './lu';
 import { sharedFloat64, sharedInt32 } from './parallel';
-import { kernels } from './kernels';
+import { kernels, type DenseKernels } from './kernels';
 
-const gemm: (...args: Parameters<ReturnType<typeof kernels>['gemm']>) => void = (...args) => kernels().gemm(...args);
+/** The active backend's product (BLAS dgemm's contract, see kernels.ts). */
+function gemm(...args: Parameters<DenseKernels['gemm']>): void {
+  kernels().gemm(...args);
+}
 
 export interface SignIterationOptions {
   /** Stop when ‖A_k + I‖_F ≤ tolerance·√n (A_k → −I); default 1e-12. */
