@@ -106,9 +106,6 @@ export function pinnedOr404(pin: ResolvedPin | undefined, modelSlug: string): Re
   return pin;
 }
 
-export async function requirePinnedModel(caller: PullCaller, modelSlug: string): Promise<ResolvedPin> {
-  return pinnedOr404(await findPinnedModel(caller.project.id, modelSlug), modelSlug);
-}
 
 export function pinContext(caller: PullCaller, pin: ResolvedPin): PinContext {
   return {

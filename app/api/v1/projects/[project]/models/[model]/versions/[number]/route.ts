@@ -4,12 +4,13 @@
 import { parseParams, parseQuery } from '@/lib/http';
 import { exportQuerySchema } from '@/lib/exports';
 import {
-  authenticatePullRequest,
+  authorisedLoad,
+  findPinnedModel,
   pinContext,
+  pinnedOr404,
   pinnedVersion,
   pullExport,
   pullRoute,
-  requirePinnedModel,
   versionNumber,
   versionParamsSchema,
 } from '@/lib/pull-api';
@@ -18,10 +19,11 @@ export const dynamic = 'force-dynamic';
 
 export const GET = pullRoute<{ project: string; model: string; number: string }>(async (request, { params }) => {
   const { project, model, number } = await parseParams(params, versionParamsSchema);
-  const caller = await authenticatePullRequest(request, project, 'pull');
+  // The token check and the pin's query go together (one round trip); refusals come in the order they did.
+  const { caller, value: found } = await authorisedLoad(request, project, 'pull', (projectId) => findPinnedModel(projectId, model));
   const version = versionNumber(number);
   const query = parseQuery(request, exportQuerySchema);
-  const pin = await requirePinnedModel(caller, model);
+  const pin = pinnedOr404(found, model);
   return pullExport(request, {
     version: await pinnedVersion(pin, version),
     format: query.format,
