@@ -9,7 +9,7 @@ import { ModelError } from './errors';
 import { linalgBackendReport } from './linalg/index';
 import { MAX_DENSE_ENTRIES_ENV } from './io/limits';
 import { parseArgs } from './cli/args';
-import { findVerb, listVerbs } from './cli/registry';
+import { ENGINE_PATH, findVerb, listVerbs } from './cli/registry';
 import './cli/analyze';
 import './cli/reduce';
 import './cli/freq';
@@ -29,6 +29,11 @@ function isAllocationFailure(e: unknown): boolean {
   return e instanceof RangeError && /typed array length|array buffer allocation|array length/i.test(e.message);
 }
 
+/** The path a verb reports through `ENGINE_PATH` (registry.ts): 'sparse' or 'dense'. */
+function enginePath(document: unknown): 'dense' | 'sparse' {
+  return document !== null && typeof document === 'object' && (document as { [ENGINE_PATH]?: string })[ENGINE_PATH] === 'sparse' ? 'sparse' : 'dense';
+}
+
 function main(argv: readonly string[]): number {
   const [verbName, ...rest] = argv;
   if (verbName === undefined || verbName === '--help' || verbName === 'help') {
@@ -46,7 +51,7 @@ function main(argv: readonly string[]): number {
     // Which backend and path served the verb, its wall time and the process's peak resident memory.
     const engine = {
       backend: linalgBackendReport().backend,
-      path: 'dense' as const,
+      path: enginePath(document),
       seconds: (performance.now() - started) / 1000,
       peakMemoryMiB: process.resourceUsage().maxRSS / 1024,
     };

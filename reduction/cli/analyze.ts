@@ -6,18 +6,26 @@ import { analyzeModel } from '../analysis';
 import { loadModelArgument, numberOption } from './args';
 import { finiteOrNull, matrixRows, numberList, hinfCertificate } from './output';
 import { registerVerb } from './registry';
+import { ModelError } from '../errors';
+import { runSparseAnalyze, sparseModelArgument, SPARSE_PATH_OPTIONS } from './sparse';
 
 registerVerb({
   name: 'analyze',
   summary: 'poles, stability, stiffness ratio, Hankel singular values, H2/H∞ norms and DC gain of a model',
-  usage: 'MODEL [--stability-tolerance T]',
+  usage: 'MODEL [--stability-tolerance T] [--path dense|sparse|auto] [--E E.mtx]',
   options: {
     'stability-tolerance': {
       value: true,
       description: 'relative tolerance for marginal poles: Re λ ≥ −T·max|λ| (default 1e-7)',
     },
+    ...SPARSE_PATH_OPTIONS,
   },
   run(args) {
+    const sparse = sparseModelArgument(args);
+    if (sparse) return runSparseAnalyze(sparse, args);
+    for (const o of ['adi-tolerance', 'adi-max-iterations']) {
+      if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to the sparse path only`);
+    }
     const model = loadModelArgument(args.positionals);
     const a = analyzeModel(model, { stabilityTolerance: numberOption(args, 'stability-tolerance') });
     return {

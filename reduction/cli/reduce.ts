@@ -11,6 +11,7 @@ import { frequencyLimitedReduction } from '../frequency-limited';
 import { integerOption, loadModelArgument, numberListOption, numberOption, stringOption, type ParsedArgs } from './args';
 import { complexPairs, finiteOrNull, matrixRows, numberList, hinfCertificate } from './output';
 import { registerVerb } from './registry';
+import { runSparseReduce, sparseModelArgument, SPARSE_REDUCE_OPTIONS } from './sparse';
 import { modelPoles as modelPolesOf } from '../spectral-split';
 
 const CLI_METHODS = [...REDUCTION_METHODS, 'frequency-limited'] as const;
@@ -88,7 +89,8 @@ registerVerb({
   summary: 'reduce a model by balanced truncation, balanced residualization, modal truncation or frequency-limited balanced truncation',
   usage:
     'MODEL --method balanced|residualization|modal (--order R | --tolerance T) [--keep dominance|slowest|band --band LOW,HIGH]\n' +
-    '      MODEL --method frequency-limited --band W1,W2 --order R',
+    '      MODEL --method frequency-limited --band W1,W2 --order R\n' +
+    '      A.mtx B C [D] [--E E.mtx] [--path dense|sparse|auto] --method balanced|residualization --order R   (sparse path)',
   options: {
     method: { value: true, description: 'balanced | residualization | modal | frequency-limited' },
     order: { value: true, description: 'states of the reduced model (including those kept for marginal/unstable poles)' },
@@ -96,9 +98,15 @@ registerVerb({
     keep: { value: true, description: 'modal: which modes come first — dominance (default), slowest, band' },
     band: { value: true, description: 'modal: keep the modes with natural frequency in LOW,HIGH; frequency-limited: the band W1,W2 to balance on (rad per time unit)' },
     'stability-tolerance': { value: true, description: 'relative tolerance for marginal poles (default 1e-7)' },
+    ...SPARSE_REDUCE_OPTIONS,
   },
   run(args) {
     const method = methodOf(args);
+    const sparse = sparseModelArgument(args);
+    if (sparse) return runSparseReduce(sparse, args, method);
+    for (const o of ['adi-tolerance', 'adi-max-iterations', 'error-points']) {
+      if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to the sparse path only`);
+    }
     if (method === 'frequency-limited') return runFrequencyLimited(args);
     const model = loadModelArgument(args.positionals);
     const r = reduceModel(model, {

@@ -15,6 +15,12 @@ export interface CliVerb {
   run(args: ParsedArgs): unknown;
 }
 
+/**
+ * A verb's document may carry the path that served it under this key ('dense' when absent); cli.ts reports
+ * it as `engine.path`. A symbol, so it never reaches the JSON.
+ */
+export const ENGINE_PATH: unique symbol = Symbol('engine path');
+
 const verbs = new Map<string, CliVerb>();
 
 export function registerVerb(verb: CliVerb): void {

@@ -161,3 +161,16 @@ export function writeSparseMatrixMarket(a: CscMatrix, comment?: string): string 
   for (let j = 0; j < a.n; j++) for (let p = a.colPtr[j]; p < a.colPtr[j + 1]; p++) parts.push(`${a.rowIndex[p] + 1} ${j + 1} ${a.values[p]}`);
   return parts.join('\n') + '\n';
 }
+
+/**
+ * The declared row count of a Matrix Market coordinate file from its header and size line only, or null
+ * when the text is not a coordinate file or its size line is unreadable (the full reader then says why).
+ */
+export function coordinateRowCount(text: string): number | null {
+  if (!isMatrixMarketCoordinate(text.replace(/^\uFEFF/, ''))) return null;
+  const lines = new Lines(text.replace(/^\uFEFF/, '').slice(0, 1 << 16).replace(/\r\n?/g, '\n'));
+  const size = lines.next();
+  if (size === null) return null;
+  const t = size.split(/\s+/);
+  return t.length === 3 && /^\d+$/.test(t[0]) ? Number(t[0]) : null;
+}
