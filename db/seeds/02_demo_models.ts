@@ -13,9 +13,9 @@
 // Skipped for a model that already exists, so re-running `npm start` keeps what is there.
 //
 // Time: analysis and reduction of a dense model grow as n³. Measured on the two-core development machine
-// with the native backend (busy with other work): the thousand-state wall's analysis takes about 4 s and its
-// reduction (with the comparison's responses and the simulation-cost report) about 23 s, so the first
-// `npm start` spends about half a minute here (later starts skip it). The test command seeds the same models with
+// with the native backend (busy with other work): the thousand-state wall's analysis takes about 3.4 s and
+// its reduction (with the comparison's responses and the simulation-cost report) about 15.6 s; the whole seed
+// took 26 s, once (later starts skip it). The test command seeds the same models with
 // a 200-state wall (MODESHELF_DEMO_WALL=small, 10 nodes × 20 zones), because the tests upload and reduce
 // their own models and only need the demo rows to exist; `npm run bench:web` runs a thousand-state wall
 // through the real upload and queue.
