@@ -70,6 +70,9 @@ export function sampledErrorPeak(
   frequencies: ArrayLike<number>,
 ): { value: number; frequency: number } {
   const g = 'H' in full ? full : sparseFrequencyResponse(full, frequencies);
+  if (g.w.length !== frequencies.length || g.w.some((w, k) => w !== frequencies[k])) {
+    throw new Error('sampledErrorPeak: the frequencies differ from those of the given full-model response');
+  }
   const gr = frequencyResponse(reduced, g.w).H;
   let value = 0, frequency = NaN;
   for (let k = 0; k < g.w.length; k++) {
