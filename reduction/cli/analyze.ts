@@ -23,7 +23,7 @@ registerVerb({
   run(args) {
     const sparse = sparseModelArgument(args);
     if (sparse) return runSparseAnalyze(sparse, args);
-    for (const o of ['adi-tolerance', 'adi-max-iterations']) {
+    for (const o of ['adi-tolerance', 'adi-max-iterations', 'memory-budget']) {
       if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to the sparse path only`);
     }
     const model = loadModelArgument(args.positionals);

@@ -104,7 +104,7 @@ registerVerb({
     const method = methodOf(args);
     const sparse = sparseModelArgument(args);
     if (sparse) return runSparseReduce(sparse, args, method);
-    for (const o of ['adi-tolerance', 'adi-max-iterations', 'error-points']) {
+    for (const o of ['adi-tolerance', 'adi-max-iterations', 'memory-budget', 'error-points']) {
       if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to the sparse path only`);
     }
     if (method === 'frequency-limited') return runFrequencyLimited(args);

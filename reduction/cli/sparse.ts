@@ -20,6 +20,7 @@ import { logFrequencyGrid } from '../frequency';
 import { lowRankGramians, type AdiFactor, type AdiOptions, type AdiResult } from '../sparse/adi';
 import { lowRankBalancedRealization, sparseBalancedReduction } from '../sparse/balanced';
 import { sampledErrorPeak } from '../sparse/frequency';
+import { checkFactorBudget, memoryBudgetBytes, MEMORY_BUDGET_ENV } from '../sparse/budget';
 import { finiteOrNull, matrixRows, numberList } from './output';
 import { ENGINE_PATH } from './registry';
 
@@ -39,6 +40,7 @@ export const SPARSE_PATH_OPTIONS: Readonly<Record<string, OptionSpec>> = {
   E: { value: true, description: 'descriptor matrix E (E ẋ = A x + B u) as a Matrix Market coordinate file; sparse path only' },
   'adi-tolerance': { value: true, description: 'sparse path: normalised gramian residual the low-rank ADI stops at (default 1e-10)' },
   'adi-max-iterations': { value: true, description: 'sparse path: most ADI steps per gramian (default 300)' },
+  'memory-budget': { value: true, description: `sparse path: MiB a sparse factorization may take, checked before it is made (default: ${MEMORY_BUDGET_ENV}, else unlimited)` },
 };
 
 function crossover(): number {
@@ -92,6 +94,9 @@ export function sparseModelArgument(args: ParsedArgs): SparseStateSpaceModel | n
 
 /** ADI options from the command line. */
 export function adiOptionsOf(args: ParsedArgs): AdiOptions {
+  if (args.options.has('stability-tolerance')) {
+    throw new ModelError('invalid_option', 'stability-tolerance', '--stability-tolerance applies to the dense path only (the sparse path assumes a stable model)');
+  }
   const tolerance = numberOption(args, 'adi-tolerance');
   const maxIterations = integerOption(args, 'adi-max-iterations');
   if (tolerance !== undefined && !(tolerance > 0 && tolerance < 1)) {
@@ -100,7 +105,7 @@ export function adiOptionsOf(args: ParsedArgs): AdiOptions {
   if (maxIterations !== undefined && maxIterations < 1) {
     throw new ModelError('invalid_option', 'adi-max-iterations', `--adi-max-iterations must be ≥ 1, got ${maxIterations}`);
   }
-  return { tolerance, maxIterations };
+  return { tolerance, maxIterations, memoryBudgetBytes: memoryBudgetBytes(numberOption(args, 'memory-budget')) };
 }
 
 /** `gramianResidual` of a sparse-path document: what the low-rank ADI reached. */
@@ -149,7 +154,8 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
   if (points < 0) throw new ModelError('invalid_option', 'error-points', `--error-points must be ≥ 0, got ${points}`);
   const adi = adiOptionsOf(args);
   const r = sparseBalancedReduction(model, { method, order, adi });
-  const measured = points > 0 ? sampledErrorPeak(model, r.model, sweepGrid(r.gramians, points)) : null;
+  const grid = points > 0 ? sweepGrid(r.gramians, points) : null;
+  const measured = grid ? sampledErrorPeak(model, r.model, grid, adi.memoryBudgetBytes) : null;
   return {
     [ENGINE_PATH]: 'sparse',
     method: r.method,
@@ -163,6 +169,7 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
     errorBound: finiteOrNull(r.errorBound),
     errorBoundNote: `2Σσ(r+1..k) over the ${r.factorRank} Hankel singular values the low-rank gramians resolve; the values past the ${r.factorRank}th are not computed, so this is an estimate of the a-priori bound`,
     hankelSingularValues: numberList(r.hankelSingularValues),
+    hankelSingularValuesNote: `the ${r.factorRank} values the low-rank gramian factors resolve (accurate to about the gramian residual); the model's values past the ${r.factorRank}th are not computed`,
     hsvComplete: false,
     factorRank: r.factorRank,
     gramianResidual: gramianReport(r.gramians, adi.tolerance ?? 1e-10),
@@ -187,6 +194,7 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
   let dcGain: (number | null)[][] | null = null;
   let dcGainNote: string | undefined;
   const lu = SparseLu.analyze(model.A, 'A');
+  checkFactorBudget(lu, adi.memoryBudgetBytes ?? Infinity, 'A');
   try {
     lu.factor();
     const m = model.B.cols, p = model.C.rows, n = model.A.n;

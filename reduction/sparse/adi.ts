@@ -32,6 +32,7 @@
 import { ModelError } from '../errors';
 import { type Matrix, zeros, eigenvalues, symmetricEigenvalues } from '../linalg/index';
 import { SparseLu, type CscMatrix } from '../linalg/sparse';
+import { checkFactorBudget } from './budget';
 import { cscTimesVector, shiftPattern, shiftedValues, type ShiftPattern, type SparseStateSpaceModel } from './model';
 
 export interface Shift {
@@ -53,6 +54,8 @@ export interface AdiOptions {
   readonly shiftCount?: number;
   /** Memory for keeping one factorization per distinct shift (default 1 GiB); past it, each use refactors. */
   readonly cacheBudgetBytes?: number;
+  /** Memory budget in bytes for each sparse factorization plus those held (default unlimited; see budget.ts). */
+  readonly memoryBudgetBytes?: number;
   /** Which equations to solve (default both). */
   readonly equations?: readonly ('controllability' | 'observability')[];
 }
@@ -94,7 +97,15 @@ class ShiftedSolvers {
   constructor(
     private readonly sp: ShiftPattern,
     private readonly budget: number,
+    private readonly memoryBudget: number,
   ) {}
+
+  private analyze(values: Float64Array, imag: Float64Array | null, label: string): SparseLu {
+    const lu = SparseLu.analyze({ ...this.sp.pattern, values, imag: imag ?? undefined }, label);
+    this.analyses++;
+    checkFactorBudget(lu, this.memoryBudget, label, this.cachedBytes);
+    return lu;
+  }
 
   get(p: Shift): SparseLu {
     const key = `${p.re}:${p.im}`;
@@ -103,12 +114,11 @@ class ShiftedSolvers {
     const { values, imag } = shiftedValues(this.sp, -p.re, -p.im);
     const complex = imag !== null;
     if (this.caching) {
-      const lu = SparseLu.analyze({ ...this.sp.pattern, values, imag: imag ?? undefined }, `A + (${p.re}${complex ? ` + ${p.im}i` : ''})·E`);
-      this.analyses++;
+      const lu = this.analyze(values, imag, `A + (${p.re}${complex ? ` + ${p.im}i` : ''})·E`);
       lu.factor(values, imag);
       this.factorizations++;
       const bytes = lu.factorInfo?.memoryBytes ?? lu.analysis.numericSizeBytes;
-      if (this.cachedBytes + bytes <= this.budget) {
+      if (this.cachedBytes + bytes <= Math.min(this.budget, this.memoryBudget / 2)) {
         this.cachedBytes += bytes;
         this.cache.set(key, lu);
         return lu;
@@ -127,8 +137,7 @@ class ShiftedSolvers {
     let lu = this.shared[slot];
     if (lu && this.shared.key[slot] === key) return lu;
     if (!lu) {
-      lu = SparseLu.analyze({ ...this.sp.pattern, values, imag: imag ?? undefined }, `A + p·E (${slot} shifts)`);
-      this.analyses++;
+      lu = this.analyze(values, imag, `A + p·E (${slot} shifts)`);
       this.shared[slot] = lu;
     }
     lu.factor(values, imag);
@@ -366,12 +375,15 @@ export function heuristicShifts(model: SparseStateSpaceModel, options: AdiOption
   const bsum = new Float64Array(n);
   for (let i = 0; i < n; i++) for (let c = 0; c < B.cols; c++) bsum[i] += B.data[i * B.cols + c];
   const start = startVector(n, bsum);
+  const budget = options.memoryBudgetBytes ?? Infinity;
   const aLu = SparseLu.analyze(A, 'A');
+  checkFactorBudget(aLu, budget, 'A');
   let eLu: SparseLu | null = null;
   try {
     aLu.factor();
     if (E) {
       eLu = SparseLu.analyze(E, 'E');
+      checkFactorBudget(eLu, budget, 'E', aLu.factorInfo?.memoryBytes ?? 0);
       eLu.factor();
     }
     const eInvA = (x: Float64Array) => {
@@ -435,7 +447,7 @@ export function lowRankGramians(model: SparseStateSpaceModel, options: AdiOption
   const sides: { name: 'controllability' | 'observability'; side: AdiSide }[] = [];
   if (which.includes('controllability')) sides.push({ name: 'controllability', side: new AdiSide(columnsOf(model.B, false), model.E, false, tol) });
   if (which.includes('observability')) sides.push({ name: 'observability', side: new AdiSide(columnsOf(model.C, true), model.E, true, tol) });
-  const solvers = new ShiftedSolvers(shiftPattern(model.A, model.E), options.cacheBudgetBytes ?? 2 ** 30);
+  const solvers = new ShiftedSolvers(shiftPattern(model.A, model.E), options.cacheBudgetBytes ?? 2 ** 30, options.memoryBudgetBytes ?? Infinity);
   try {
     let k = 0;
     while (sides.some((s) => !s.side.done && s.side.iterations < maxIt)) {

@@ -8,6 +8,7 @@ import { zeros } from '../linalg/index';
 import type { StateSpaceModel } from '../model';
 import { frequencyResponse, largestSingularValue, type ComplexMatrix } from '../frequency';
 import { SparseLu } from '../linalg/sparse';
+import { checkFactorBudget } from './budget';
 import { shiftPattern, shiftedValues, type SparseStateSpaceModel } from './model';
 
 export interface SparseFrequencyResponse {
@@ -17,7 +18,7 @@ export interface SparseFrequencyResponse {
   readonly H: ComplexMatrix[];
 }
 
-export function sparseFrequencyResponse(model: SparseStateSpaceModel, frequencies: ArrayLike<number>): SparseFrequencyResponse {
+export function sparseFrequencyResponse(model: SparseStateSpaceModel, frequencies: ArrayLike<number>, memoryBudgetBytes = Infinity): SparseFrequencyResponse {
   const { B, C, D } = model;
   const n = model.A.n, m = B.cols, p = C.rows;
   const sp = shiftPattern(model.A, model.E);
@@ -35,7 +36,10 @@ export function sparseFrequencyResponse(model: SparseStateSpaceModel, frequencie
       // A − iωE (a tiny imaginary part at ω = 0 keeps the analysis complex for the frequencies after it).
       const { values, imag } = shiftedValues(sp, 0, w === 0 ? Number.MIN_VALUE : w);
       const im0 = imag ?? new Float64Array(values.length);
-      if (!lu) lu = SparseLu.analyze({ ...sp.pattern, values, imag: im0 }, 'A − iωE');
+      if (!lu) {
+        lu = SparseLu.analyze({ ...sp.pattern, values, imag: im0 }, 'A − iωE');
+        checkFactorBudget(lu, memoryBudgetBytes, 'A − iωE');
+      }
       lu.factor(values, im0);
       const gr = zeros(p, m), gi = zeros(p, m);
       for (let c = 0; c < m; c++) {
@@ -68,8 +72,9 @@ export function sampledErrorPeak(
   full: SparseStateSpaceModel | SparseFrequencyResponse,
   reduced: StateSpaceModel,
   frequencies: ArrayLike<number>,
+  memoryBudgetBytes = Infinity,
 ): { value: number; frequency: number } {
-  const g = 'H' in full ? full : sparseFrequencyResponse(full, frequencies);
+  const g = 'H' in full ? full : sparseFrequencyResponse(full, frequencies, memoryBudgetBytes);
   if (g.w.length !== frequencies.length || g.w.some((w, k) => w !== frequencies[k])) {
     throw new Error('sampledErrorPeak: the frequencies differ from those of the given full-model response');
   }

@@ -182,6 +182,15 @@ describe('command line: the sparse path', () => {
     expect(relDiff(out.dcGain[0][0], ref.re[0][0])).toBeLessThan(1e-10);
   });
 
+  it('refuses a factorization over --memory-budget before making it, naming the estimate and the budget', () => {
+    const r = cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--method', 'balanced', '--order', '3', '--memory-budget', '0.01');
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/needs an estimated [\d.]+ MiB \(UMFPACK's symbolic analysis\), over the memory budget of 0\.01 MiB/);
+    expect(r.stderr).toContain('field: memory-budget, code: too_large');
+    // Within a budget the same command succeeds.
+    expect(cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--method', 'balanced', '--order', '3', '--memory-budget', '512').status).toBe(0);
+  });
+
   it('refuses --E on the dense path and methods the sparse path does not offer, exit 2 naming the option', () => {
     const e = cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--path', 'dense', '--method', 'balanced', '--order', '3');
     expect(e.status).toBe(2);
