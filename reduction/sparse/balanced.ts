@@ -12,6 +12,9 @@
  * realization; residualization (Liu & Anderson, Int. J. Control 50(4), 1989) is applied to the k-state
  * balanced realization (so it keeps the DC gain of that realization, which approximates the model's).
  *
+ * Both ADI iterations must have reached their tolerance (an unstable model never does); otherwise the
+ * reduction is refused with ModelError('unstable') unless `allowUnconverged`.
+ *
  * What is exact and what is estimated: the Hankel singular values are those of the low-rank gramians,
  * accurate to about the ADI residual for the leading ones; there are only min(rank Zc, rank Zo) of them,
  * and the tail of the model's true Hankel singular values beyond the factor rank is not computed. The
@@ -33,6 +36,8 @@ export interface SparseBalancedOptions {
   readonly rankTolerance?: number;
   /** Gramian factors already computed (both equations). */
   readonly gramians?: AdiResult;
+  /** Reduce even when an ADI stopped above its tolerance (default false: refused, see below). */
+  readonly allowUnconverged?: boolean;
 }
 
 export interface SparseBalancedResult {
@@ -93,6 +98,20 @@ export function sparseBalancedReduction(model: SparseStateSpaceModel, options: S
   if (!Number.isInteger(r) || r < 1) throw new ModelError('invalid_option', 'order', `--order must be a whole number ≥ 1, got ${r}`);
   if (r >= model.A.n) throw new ModelError('order_too_large', 'order', `--order ${r} is not below the model's ${model.A.n} states`);
   const gramians = options.gramians ?? lowRankGramians(model, options.adi);
+  if (!options.allowUnconverged) {
+    for (const side of ['controllability', 'observability'] as const) {
+      const f = gramians[side];
+      if (f && !f.converged) {
+        // An unstable model never converges with stable shifts; a stable one may just need more steps.
+        throw new ModelError(
+          'unstable',
+          'A',
+          `the ${side} gramian's low-rank ADI stopped after ${f.iterations} steps with normalised residual ${f.residual.toExponential(2)}, ` +
+            `above its tolerance: the model may be unstable (the sparse path needs a stable model), or the iteration needs more steps (--adi-max-iterations) or a looser --adi-tolerance`,
+        );
+      }
+    }
+  }
   const { realization } = lowRankBalancedRealization(model, gramians, options.rankTolerance);
   const k = realization.minimalOrder;
   const notes = [...gramians.notes];

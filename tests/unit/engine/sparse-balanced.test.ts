@@ -119,6 +119,23 @@ describe('the reduced model against the full model swept by sparse solves', () =
     for (let i = 0; i < 6; i++) expect(relDiff(r.hankelSingularValues[i], ref.hsv[i])).toBeLessThan(1e-5);
   });
 
+  it('refuses an unstable model: its ADI never reaches the tolerance (heat plate shifted right by 100)', () => {
+    // Shifting A by +100·I moves the plate's slowest eigenvalues −2π²(1 + O(h²)) ≈ −19.7 (LeVeque 2007)
+    // and the next ones (≈ −49) into the right half-plane.
+    const base = plateModel(10);
+    const values = base.A.values.slice();
+    for (let j = 0; j < base.A.n; j++) for (let p = base.A.colPtr[j]; p < base.A.colPtr[j + 1]; p++) if (base.A.rowIndex[p] === j) values[p] += 100;
+    const unstable = { ...base, A: { ...base.A, values } };
+    let error: (Error & { code?: string }) | null = null;
+    try {
+      sparseBalancedReduction(unstable, { method: 'balanced', order: 2, adi: { maxIterations: 60 } });
+    } catch (e) {
+      error = e as Error & { code?: string };
+    }
+    expect(error?.code).toBe('unstable');
+    expect(error?.message).toMatch(/low-rank ADI stopped after \d+ steps/);
+  });
+
   it('refuses an order past the resolved Hankel singular values, naming the order', () => {
     expect(() => sparseBalancedReduction(plateModel(10), { method: 'balanced', order: 90 })).toThrow(/--order 90 is past the \d+ Hankel singular values/);
   });
