@@ -23,6 +23,7 @@ import {
   modelPoles,
   reduceModel,
   simulate,
+  SharedExponentials,
   simulationCostReport,
   stepInput,
   impulseInput,
@@ -248,19 +249,26 @@ export function simulationEnd(summary: AnalysisSummary): number {
   return tEnd;
 }
 
-function timeCurves(full: StateSpaceModel, reduced: StateSpaceModel, kind: 'step' | 'impulse', tEnd: number): TimeCurves {
+function timeCurves(
+  full: StateSpaceModel,
+  reduced: StateSpaceModel,
+  kind: 'step' | 'impulse',
+  tEnd: number,
+  // The step and impulse responses of every input share each model's exponentials (exact solver).
+  shared: { full: SharedExponentials; reduced: SharedExponentials },
+): TimeCurves {
   const m = full.B.cols;
   const p = full.C.rows;
-  const perInput = (model: StateSpaceModel) => {
+  const perInput = (model: StateSpaceModel, sharedExponentials: SharedExponentials) => {
     const results: SimulationResult[] = [];
     for (let j = 0; j < m; j++) {
       const input = kind === 'step' ? stepInput(model, j + 1) : impulseInput(model, j + 1);
-      results.push(simulate(model, input, { tEnd, points: TIME_POINTS, solver: 'auto' }));
+      results.push(simulate(model, input, { tEnd, points: TIME_POINTS, solver: 'auto', sharedExponentials }));
     }
     return results;
   };
-  const f = perInput(full);
-  const r = perInput(reduced);
+  const f = perInput(full, shared.full);
+  const r = perInput(reduced, shared.reduced);
   const column = (res: SimulationResult, i: number) => Array.from({ length: res.y.rows }, (_, k) => res.y.data[k * p + i]);
   return {
     t: Array.from(f[0].t),
@@ -408,9 +416,10 @@ export function runReduction(
 
   const tEnd = simulationEnd(summary);
   report('Step responses of the full and the reduced model', 0.66);
-  const step = timeCurves(model, reduced, 'step', tEnd);
+  const shared = { full: new SharedExponentials(model.A, model.B), reduced: new SharedExponentials(reduced.A, reduced.B) };
+  const step = timeCurves(model, reduced, 'step', tEnd, shared);
   report('Impulse responses of the full and the reduced model', 0.76);
-  const impulse = timeCurves(model, reduced, 'impulse', tEnd);
+  const impulse = timeCurves(model, reduced, 'impulse', tEnd, shared);
   let peakStepError = 0;
   step.full.forEach((outputs, j) =>
     outputs.forEach((ys, i) => ys.forEach((y, k) => (peakStepError = Math.max(peakStepError, Math.abs(y - step.reduced[j][i][k]))))),

@@ -106,17 +106,25 @@ export function schur(a: Matrix): { T: Matrix; Z: Matrix; values: ComplexVector 
 }
 
 /**
- * The last eigendecomposition of each matrix object, per backend: the analysis asks for the poles, the
- * modal form and the frequency response's modal form of the same A, and an O(n³) decomposition is done
- * once. The engine treats a model's matrices as immutable once validated; the shared result is read-only.
+ * The last eigenvalues (and eigenvectors, once asked for) of each matrix object, per backend: the analysis
+ * asks for the poles, the modal form and the frequency response's modal form of the same A, a reduction
+ * and its simulations ask for the poles several times, and an O(n³) decomposition is done once. The
+ * engine treats a model's matrices as immutable once validated; a shared result is read-only.
  */
-const eigMemo = new WeakMap<Matrix, { backend: string; result: { values: ComplexVector; vectors: Matrix } }>();
+const eigMemo = new WeakMap<
+  Matrix,
+  { backend: string; values: ComplexVector; result?: { values: ComplexVector; vectors: Matrix } }
+>();
 
 /** Eigenvalues of a general real square matrix (complex pairs consecutive, positive imaginary part first). */
 export function eigenvalues(a: Matrix): ComplexVector {
-  const memo = eigMemo.get(a);
-  if (memo && memo.backend === kernels().name) return { re: memo.result.values.re.slice(), im: memo.result.values.im.slice() };
-  return kernels().eigenvalues(a);
+  const backend = kernels().name;
+  let memo = eigMemo.get(a);
+  if (!memo || memo.backend !== backend) {
+    memo = { backend, values: kernels().eigenvalues(a) };
+    eigMemo.set(a, memo);
+  }
+  return { re: memo.values.re.slice(), im: memo.values.im.slice() };
 }
 
 /**
@@ -128,9 +136,11 @@ export function eigenvalues(a: Matrix): ComplexVector {
 export function eig(a: Matrix): { values: ComplexVector; vectors: Matrix } {
   const backend = kernels().name;
   const memo = eigMemo.get(a);
-  if (memo && memo.backend === backend) return memo.result;
+  if (memo && memo.backend === backend && memo.result) return memo.result;
   const result = kernels().eig(a);
-  eigMemo.set(a, { backend, result });
+  // The eigenvalues from the vectors' computation replace any earlier values-only ones, so poles and
+  // modes always come from the same decomposition.
+  eigMemo.set(a, { backend, values: result.values, result });
   return result;
 }
 

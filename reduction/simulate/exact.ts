@@ -12,7 +12,7 @@
  * n+1, not n+m; an impulse needs Φ alone.
  */
 import { type Matrix, zeros } from '../linalg/matrix';
-import { zohMatrices } from '../discretize';
+import { zohMatrices, type ZohMatrices } from '../discretize';
 import type { StateSpaceModel } from '../model';
 import type { InputSignal } from './inputs';
 import { pieceAfter } from './inputs';
@@ -78,6 +78,31 @@ interface ZohEntry {
   powers: Map<number, PowerOfPhi>;
   /** Block terms by input piece and m. */
   terms: Map<string, BlockTerms>;
+}
+
+/**
+ * Exponentials shared by several exact runs of one model on one output grid (the step and impulse
+ * responses of every input): one augmented exponential with the whole B per interval length serves them
+ * all, since a step's Γ·w is Γ_B·w and an impulse needs only Φ (Van Loan 1978, Theorem 1). Opt-in
+ * (`SimulationOptions.sharedExponentials`): a run that is itself being timed, like the simulation-cost
+ * report's, computes its own.
+ */
+export class SharedExponentials {
+  private readonly byLength = new IntervalLengths<ZohMatrices>();
+
+  constructor(
+    readonly A: Matrix,
+    readonly B: Matrix,
+  ) {}
+
+  /** Φ and Γ_B for interval length L, and whether they were computed now. */
+  get(L: number): { zoh: ZohMatrices; computed: boolean } {
+    const hit = this.byLength.get(L);
+    if (hit) return { zoh: hit, computed: false };
+    const zoh = zohMatrices(this.A, this.B, L);
+    this.byLength.set(L, zoh);
+    return { zoh, computed: true };
+  }
 }
 
 export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: CheckedOptions): SimulationResult {
@@ -146,7 +171,27 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
     const zohFor = (L: number): ZohEntry => {
       let zoh = cache.get(L);
       if (!zoh) {
-        const z = zohMatrices(model.A, G, L);
+        const shared = opts.sharedExponentials;
+        let z: { Phi: Matrix; Gamma: Matrix };
+        let computed = true;
+        if (shared && shared.A === model.A && shared.B === model.B && (input.kind === 'step' || input.kind === 'impulse')) {
+          const hit = shared.get(L);
+          computed = hit.computed;
+          // A step's input term is B·w = G, so its Γ is Γ_B·w; an impulse needs Φ only (G has no columns).
+          const Gamma = zeros(n, G.cols);
+          if (G.cols === 1) {
+            const w = input.values[1];
+            const m = model.B.cols;
+            for (let i = 0; i < n; i++) {
+              let acc = 0;
+              for (let j = 0; j < m; j++) acc += hit.zoh.Gamma.data[i * m + j] * w[j];
+              Gamma.data[i] = acc;
+            }
+          }
+          z = { Phi: hit.zoh.Phi, Gamma };
+        } else {
+          z = zohMatrices(model.A, G, L);
+        }
         let product: ParallelMatVec | null = null;
         if (!parallelTaken) {
           parallelTaken = true;
@@ -155,7 +200,7 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
         }
         zoh = { Phi: z.Phi, Gamma: z.Gamma, product, powers: new Map(), terms: new Map() };
         cache.set(L, zoh);
-        exponentials++;
+        if (computed) exponentials++;
       }
       return zoh;
     };

@@ -18,6 +18,7 @@ import { ModelError } from '../errors';
 export * from './types';
 export { stepInput, impulseInput, parseSampledInput, type InputSignal } from './inputs';
 export { chooseSolver, estimateStiffness } from './auto';
+export { SharedExponentials } from './exact';
 export { simulationCostReport, type SimulationCostReport, type SolverCostRow } from './cost-report';
 
 /** Simulate `model` under `input` with the named solver (or `auto`). Throws ModelError on bad options. */

@@ -8,7 +8,7 @@ import { type Matrix, zeros } from '../linalg/matrix';
 import type { InputSignal } from './inputs';
 import { pieceAfter, pieceAt } from './inputs';
 import type { LinearSystem } from './linear-system';
-import { DEFAULT_ATOL, DEFAULT_POINTS, DEFAULT_RTOL, type SimulationOptions } from './types';
+import { DEFAULT_ATOL, DEFAULT_POINTS, DEFAULT_RTOL, type SharedExponentialStore, type SimulationOptions } from './types';
 
 export interface CheckedOptions {
   tEnd: number;
@@ -20,6 +20,8 @@ export interface CheckedOptions {
   x0: Float64Array;
   fixedStep?: number;
   maxSteps: number;
+  /** Exponentials shared with other exact runs of the same model (see exact.ts, SharedExponentials). */
+  sharedExponentials?: SharedExponentialStore;
 }
 
 function positive(v: unknown, field: string, what: string): number {
@@ -81,7 +83,7 @@ export function checkOptions(opts: SimulationOptions, n: number): CheckedOptions
   if (opts.fixedStep !== undefined) positive(opts.fixedStep, 'fixedStep', 'the fixed step size');
   const maxSteps = opts.maxSteps ?? 1_000_000;
   positive(maxSteps, 'maxSteps', 'the safety limit on steps');
-  return { tEnd, rtol, atol, times, uniform, x0, fixedStep: opts.fixedStep, maxSteps };
+  return { tEnd, rtol, atol, times, uniform, x0, fixedStep: opts.fixedStep, maxSteps, sharedExponentials: opts.sharedExponentials };
 }
 
 export class OutputRecorder {

@@ -41,6 +41,19 @@ export interface SimulationOptions {
   fixedStep?: number;
   /** Safety limit on accepted + rejected steps (default one million). */
   maxSteps?: number;
+  /**
+   * Exact solver only: exponentials shared with other runs of the same model on the same grid (step and
+   * impulse responses of every input; make one with `new SharedExponentials(A, B)`). Leave it out of a
+   * run whose cost is being measured.
+   */
+  sharedExponentials?: SharedExponentialStore;
+}
+
+/** What the exact solver needs of a shared exponential store (`SharedExponentials` in exact.ts). */
+export interface SharedExponentialStore {
+  readonly A: Matrix;
+  readonly B: Matrix;
+  get(L: number): { zoh: { Phi: Matrix; Gamma: Matrix }; computed: boolean };
 }
 
 export interface SimulationResult {
