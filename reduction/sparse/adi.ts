@@ -81,6 +81,20 @@ export interface AdiResult {
   readonly notes: readonly string[];
 }
 
+/** Runs a numeric factorization, turning UMFPACK's "singular" into a ModelError naming the model's matrix. */
+function factorOrRefuse(lu: SparseLu, values: Float64Array | undefined, imag: Float64Array | null | undefined, field: 'A' | 'E', message: string): void {
+  try {
+    if (values === undefined) lu.factor();
+    else lu.factor(values, imag ?? null);
+  } catch (e) {
+    if ((e as { code?: string }).code === 'singular') {
+      lu.dispose();
+      throw new ModelError(field === 'E' ? 'singular_mass' : 'unstable', field, message);
+    }
+    throw e;
+  }
+}
+
 /** A + pE factorizations for the shifts, on the union pattern. */
 class ShiftedSolvers {
   private readonly cache = new Map<string, SparseLu>();
@@ -114,8 +128,9 @@ class ShiftedSolvers {
     const { values, imag } = shiftedValues(this.sp, -p.re, -p.im);
     const complex = imag !== null;
     if (this.caching) {
-      const lu = this.analyze(values, imag, `A + (${p.re}${complex ? ` + ${p.im}i` : ''})·E`);
-      lu.factor(values, imag);
+      const label = `A + (${p.re}${complex ? ` + ${p.im}i` : ''})·E`;
+      const lu = this.analyze(values, imag, label);
+      factorOrRefuse(lu, values, imag, 'A', `${label} is singular: −(shift) is a pole of the model, which a stable model's shifts never are`);
       this.factorizations++;
       const bytes = lu.factorInfo?.memoryBytes ?? lu.analysis.numericSizeBytes;
       if (this.cachedBytes + bytes <= Math.min(this.budget, this.memoryBudget / 2)) {
@@ -140,7 +155,12 @@ class ShiftedSolvers {
       lu = this.analyze(values, imag, `A + p·E (${slot} shifts)`);
       this.shared[slot] = lu;
     }
-    lu.factor(values, imag);
+    try {
+      factorOrRefuse(lu, values, imag, 'A', `A + (${p.re}${complex ? ` + ${p.im}i` : ''})·E is singular: −(shift) is a pole of the model, which a stable model's shifts never are`);
+    } catch (e) {
+      this.shared[slot] = null; // disposed by factorOrRefuse on a singular matrix
+      throw e;
+    }
     this.factorizations++;
     this.shared.key[slot] = key;
     return lu;
@@ -380,11 +400,11 @@ export function heuristicShifts(model: SparseStateSpaceModel, options: AdiOption
   checkFactorBudget(aLu, budget, 'A');
   let eLu: SparseLu | null = null;
   try {
-    aLu.factor();
+    factorOrRefuse(aLu, undefined, undefined, 'A', 'A is singular (a pole at 0): the sparse path needs a stable model');
     if (E) {
       eLu = SparseLu.analyze(E, 'E');
       checkFactorBudget(eLu, budget, 'E', aLu.factorInfo?.memoryBytes ?? 0);
-      eLu.factor();
+      factorOrRefuse(eLu, undefined, undefined, 'E', 'E is singular: the descriptor matrix must be nonsingular (a mass matrix)');
     }
     const eInvA = (x: Float64Array) => {
       const ax = cscTimesVector(A, x);

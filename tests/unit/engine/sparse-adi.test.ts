@@ -106,6 +106,16 @@ describe('low-rank ADI', () => {
     }
   });
 
+  it('refuses a singular E and a singular A with a ModelError naming the matrix', () => {
+    const model = plateModel(6, { descriptor: true });
+    const eValues = model.E!.values.slice();
+    for (let j = 0; j < 36; j++) for (let p = model.E!.colPtr[j]; p < model.E!.colPtr[j + 1]; p++) if (j === 5 || model.E!.rowIndex[p] === 5) eValues[p] = 0;
+    expect(() => lowRankGramians({ ...model, E: { ...model.E!, values: eValues } })).toThrow(expect.objectContaining({ code: 'singular_mass', field: 'E' }));
+    const aValues = model.A.values.slice();
+    for (let j = 0; j < 36; j++) for (let p = model.A.colPtr[j]; p < model.A.colPtr[j + 1]; p++) if (j === 7) aValues[p] = 0;
+    expect(() => lowRankGramians({ ...model, A: { ...model.A, values: aValues } })).toThrow(expect.objectContaining({ code: 'unstable', field: 'A' }));
+  });
+
   it('stops at maxIterations with converged: false and says so', () => {
     const g = lowRankGramians(plateModel(20), { maxIterations: 3, tolerance: 1e-14 });
     expect(g.controllability!.converged).toBe(false);
