@@ -142,7 +142,11 @@ describe('the reduced model against the full model swept by sparse solves', () =
 });
 
 function cli(...args: string[]): { status: number | null; stdout: string; stderr: string } {
-  const r = spawnSync(path.join(ROOT, 'node_modules/.bin/tsx'), ['reduction/cli.ts', ...args], { cwd: ROOT, encoding: 'utf8' });
+  return cliWith({}, ...args);
+}
+
+function cliWith(env: Record<string, string>, ...args: string[]): { status: number | null; stdout: string; stderr: string } {
+  const r = spawnSync(path.join(ROOT, 'node_modules/.bin/tsx'), ['reduction/cli.ts', ...args], { cwd: ROOT, encoding: 'utf8', env: { ...process.env, ...env } });
   return { status: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
@@ -185,6 +189,18 @@ describe('command line: the sparse path', () => {
       return frequencyResponse(m, [0]).H[0].re.data[0];
     };
     expect(relDiff(dc(sparse), dc(auto))).toBeLessThan(1e-8);
+  });
+
+  it('--path auto takes a coordinate model above the crossover (1024 > 1000 states) to the sparse path; the environment moves the crossover', () => {
+    const big = writeModel(plateModel(32));
+    const f = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(big, x));
+    const out = JSON.parse(cli('reduce', ...f, '--method', 'balanced', '--order', '3').stdout);
+    expect(out.engine.path).toBe('sparse');
+    expect(out.states).toBe(1024);
+    const small = writeModel(plateModel(20));
+    const g = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(small, x));
+    const moved = JSON.parse(cliWith({ MODESHELF_SPARSE_CROSSOVER: '300' }, 'analyze', ...g).stdout);
+    expect(moved.engine.path).toBe('sparse');
   });
 
   it('analyze on the sparse path: DC gain matches scipy, H2 and Hankel singular values listed as estimated', () => {
