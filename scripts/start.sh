@@ -28,7 +28,7 @@ else
   export DATABASE_URL="$LOCAL_DATABASE_URL"
 fi
 
-log "migrating and seeding the demo accounts and models (the first start analyses and reduces them: about 2½ minutes on two cores)"
+log "migrating and seeding the demo accounts and models (the first start analyses and reduces them: about half a minute on two cores)"
 node_modules/.bin/tsx scripts/db.ts migrate
 node_modules/.bin/tsx scripts/db.ts seed
 
