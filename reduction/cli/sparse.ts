@@ -16,10 +16,11 @@ import { createSparseModel, type SparseStateSpaceModel } from '../sparse/model';
 import { integerOption, numberOption, stringOption, type OptionSpec, type ParsedArgs } from './args';
 import { matmul, zeros } from '../linalg/index';
 import { SparseLu } from '../linalg/sparse';
-import { logFrequencyGrid } from '../frequency';
+import { largestSingularValue, logFrequencyGrid } from '../frequency';
 import { lowRankGramians, type AdiFactor, type AdiOptions, type AdiResult } from '../sparse/adi';
 import { lowRankBalancedRealization, sparseBalancedReduction } from '../sparse/balanced';
-import { sampledErrorPeak } from '../sparse/frequency';
+import { sampledErrorPeak, sparseFrequencyResponse } from '../sparse/frequency';
+import { balancedErrorBound } from '../balanced';
 import { checkFactorBudget, memoryBudgetBytes, MEMORY_BUDGET_ENV } from '../sparse/budget';
 import { finiteOrNull, matrixRows, numberList } from './output';
 import { ENGINE_PATH } from './registry';
@@ -136,26 +137,55 @@ function sweepGrid(g: AdiResult, points: number): Float64Array {
 
 export const SPARSE_REDUCE_OPTIONS: Readonly<Record<string, OptionSpec>> = {
   ...SPARSE_PATH_OPTIONS,
-  'error-points': { value: true, description: 'sparse path: frequencies of a full-model sweep that measures the reduced model\'s error (default 0: not measured)' },
+  'error-points': { value: true, description: 'sparse path: frequencies of a full-model sweep that measures the reduced model\'s error (default 0: not measured; 40 with --tolerance)' },
 };
 
-/** `reduce` on the sparse path: balanced truncation or residualization to --order R. */
+/**
+ * `reduce` on the sparse path: balanced truncation or residualization to `--order R`, or to the smallest
+ * order whose estimated bound 2Σσ(r+1..k) is at most `--tolerance T` times ‖G‖∞. ‖G‖∞ is then estimated
+ * from below by a sweep of the full model (`--error-points`, default 40, plus ω = 0), so T·‖G‖∞ is if
+ * anything too small and the order chosen errs on the large side.
+ */
 export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, method: string): Record<string, unknown> {
   if (method !== 'balanced' && method !== 'residualization') {
     throw new ModelError('invalid_option', 'method', `the sparse path offers --method balanced or residualization, not "${method}"`);
   }
-  if (numberOption(args, 'tolerance') !== undefined) {
-    throw new ModelError('invalid_option', 'tolerance', 'the sparse path reduces to a given --order R (--tolerance is not offered there yet)');
-  }
   for (const o of ['keep', 'band']) if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to --method modal only`);
-  const order = integerOption(args, 'order');
-  if (order === undefined) throw new ModelError('invalid_option', 'order', 'the sparse path needs --order R');
-  const points = integerOption(args, 'error-points') ?? 0;
-  if (points < 0) throw new ModelError('invalid_option', 'error-points', `--error-points must be ≥ 0, got ${points}`);
+  const requested = integerOption(args, 'order');
+  const tolerance = numberOption(args, 'tolerance');
+  if ((requested === undefined) === (tolerance === undefined)) {
+    throw new ModelError('invalid_option', requested === undefined ? 'order' : 'tolerance', 'give exactly one of --order R and --tolerance T');
+  }
+  if (tolerance !== undefined && !(tolerance > 0 && tolerance < 1)) {
+    throw new ModelError('invalid_option', 'tolerance', `--tolerance must be in (0, 1), got ${tolerance}`);
+  }
+  const points = integerOption(args, 'error-points') ?? (tolerance !== undefined ? 40 : 0);
+  if (points < 0 || (tolerance !== undefined && points < 2)) {
+    throw new ModelError('invalid_option', 'error-points', `--error-points must be ${tolerance !== undefined ? '≥ 2 with --tolerance' : '≥ 0'}, got ${points}`);
+  }
   const adi = adiOptionsOf(args);
-  const r = sparseBalancedReduction(model, { method, order, adi });
-  const grid = points > 0 ? sweepGrid(r.gramians, points) : null;
-  const measured = grid ? sampledErrorPeak(model, r.model, grid, adi.memoryBudgetBytes) : null;
+  const gramians = lowRankGramians(model, adi);
+  const grid = points > 0 ? Float64Array.from([0, ...sweepGrid(gramians, points)]) : null;
+  const full = grid ? sparseFrequencyResponse(model, grid, adi.memoryBudgetBytes) : null;
+  let referenceNorm: number | null = null;
+  let order: number;
+  if (tolerance !== undefined) {
+    referenceNorm = Math.max(...full!.H.map((h) => largestSingularValue(h)));
+    const { realization } = lowRankBalancedRealization(model, gramians);
+    const hsv = realization.hankelSingularValues;
+    let r = 1;
+    while (r < hsv.length && balancedErrorBound(hsv, r) > tolerance * referenceNorm) r++;
+    if (balancedErrorBound(hsv, r) > tolerance * referenceNorm || r >= model.A.n) {
+      throw new ModelError(
+        'order_too_large',
+        'tolerance',
+        `no order up to the ${hsv.length} resolved Hankel singular values meets --tolerance ${tolerance}; loosen it or tighten --adi-tolerance`,
+      );
+    }
+    order = r;
+  } else order = requested!;
+  const r = sparseBalancedReduction(model, { method, order, adi, gramians });
+  const measured = full ? sampledErrorPeak(full, r.model, grid!) : null;
   return {
     [ENGINE_PATH]: 'sparse',
     method: r.method,
@@ -175,9 +205,16 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
     gramianResidual: gramianReport(r.gramians, adi.tolerance ?? 1e-10),
     hinfError: measured ? measured.value : null,
     ...(measured
-      ? { hinfErrorFrequency: finiteOrNull(measured.frequency), hinfErrorNote: `largest error over a ${points}-frequency sweep of the full model: a lower bound on the H∞ error` }
-      : { hinfErrorNote: 'not measured on the sparse path unless --error-points N is given' }),
-    estimated: ['hankelSingularValues', 'errorBound', ...(measured ? ['hinfError'] : [])],
+      ? {
+          hinfErrorFrequency: finiteOrNull(measured.frequency),
+          hinfErrorNote: `largest error over a sweep of the full model at ω = 0 and ${points} frequencies: a lower bound on the H∞ error`,
+        }
+      : { hinfErrorNote: 'not measured on the sparse path unless --error-points N (or --tolerance) is given' }),
+    orderRule: tolerance !== undefined ? 'tolerance' : 'order',
+    ...(referenceNorm !== null
+      ? { referenceNorm, referenceNormNote: 'largest σ_max(G(iω)) over the same sweep: a lower bound on ‖G‖∞' }
+      : {}),
+    estimated: ['hankelSingularValues', 'errorBound', ...(measured ? ['hinfError'] : []), ...(referenceNorm !== null ? ['referenceNorm'] : [])],
     notes: r.notes,
   };
 }

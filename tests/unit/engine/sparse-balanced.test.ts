@@ -203,6 +203,25 @@ describe('command line: the sparse path', () => {
     expect(moved.engine.path).toBe('sparse');
   });
 
+  it('reduce --tolerance: the smallest order whose estimated bound meets T·‖G‖∞, the same order as the dense path (n = 400)', () => {
+    const plain = writeModel(plateModel(20, { inputs: 2, outputs: 2 }));
+    const f = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(plain, x));
+    const T = 1e-4;
+    const sparse = JSON.parse(cli('reduce', ...f, '--method', 'balanced', '--tolerance', String(T), '--path', 'sparse').stdout);
+    const dense = JSON.parse(cli('reduce', ...f, '--method', 'balanced', '--tolerance', String(T), '--path', 'dense').stdout);
+    expect(sparse.engine.path).toBe('sparse');
+    expect(sparse.orderRule).toBe('tolerance');
+    expect(sparse.estimated).toContain('referenceNorm');
+    const tail = (r: number) => 2 * sparse.hankelSingularValues.slice(r).reduce((a: number, b: number) => a + b, 0);
+    expect(sparse.errorBound).toBeLessThanOrEqual(T * sparse.referenceNorm);
+    expect(tail(sparse.order - 1)).toBeGreaterThan(T * sparse.referenceNorm);
+    expect(sparse.hinfError).toBeLessThanOrEqual(sparse.errorBound * (1 + 1e-6));
+    // The dense path certifies ‖G‖∞ (Hamiltonian bisection); the sweep's lower bound is close to it here.
+    expect(sparse.referenceNorm).toBeLessThanOrEqual(dense.referenceNorm * (1 + 1e-9));
+    expect(relDiff(sparse.referenceNorm, dense.referenceNorm)).toBeLessThan(1e-3);
+    expect(sparse.order).toBe(dense.order);
+  });
+
   it('analyze on the sparse path: DC gain matches scipy, H2 and Hankel singular values listed as estimated', () => {
     const r = cli('analyze', ...files, '--E', path.join(dir, 'E.mtx'));
     expect(r.status, r.stderr).toBe(0);
