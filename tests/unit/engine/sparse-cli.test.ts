@@ -1,0 +1,146 @@
+/**
+ * The command line's sparse path (issue 13): routing (--path, the crossover, --E), the keys it adds, its
+ * refusals. Sources beside each check: the library call it wraps (reduction/sparse/balanced.ts, tested in
+ * sparse-balanced.test.ts), the dense path on the same 400-state model, and scipy.sparse.linalg.splu
+ * (Debian python3-scipy, tests/reference/sparse_reference.py task "freq") for the DC gain.
+ */
+import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import path from 'node:path';
+import { sparseBalancedReduction } from '@/reduction/sparse/balanced';
+import { frequencyResponse, logFrequencyGrid } from '@/reduction/frequency';
+import { fromRows, zeros } from '@/reduction/linalg/matrix';
+import type { StateSpaceModel } from '@/reduction/model';
+import { plateModel, relDiff, sparseReference, writeModel } from './sparse-support';
+
+const ROOT = path.resolve(__dirname, '../../..');
+
+/** max over ω of ‖G1(iω) − G2(iω)‖_F / ‖G1(iω)‖_F. */
+function responseGap(a: StateSpaceModel, b: StateSpaceModel, w: Float64Array): number {
+  const ga = frequencyResponse(a, w).H, gb = frequencyResponse(b, w).H;
+  let worst = 0;
+  for (let k = 0; k < w.length; k++) {
+    let num = 0, den = 0;
+    for (let i = 0; i < ga[k].re.data.length; i++) {
+      num += (ga[k].re.data[i] - gb[k].re.data[i]) ** 2 + (ga[k].im.data[i] - gb[k].im.data[i]) ** 2;
+      den += ga[k].re.data[i] ** 2 + ga[k].im.data[i] ** 2;
+    }
+    worst = Math.max(worst, Math.sqrt(num / den));
+  }
+  return worst;
+}
+
+function cli(...args: string[]): { status: number | null; stdout: string; stderr: string } {
+  return cliWith({}, ...args);
+}
+
+function cliWith(env: Record<string, string>, ...args: string[]): { status: number | null; stdout: string; stderr: string } {
+  const r = spawnSync(path.join(ROOT, 'node_modules/.bin/tsx'), ['reduction/cli.ts', ...args], { cwd: ROOT, encoding: 'utf8', env: { ...process.env, ...env } });
+  return { status: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+
+describe('command line: the sparse path', () => {
+  const model = plateModel(20, { convection: 100, descriptor: true });
+  const dir = writeModel(model);
+  const files = ['A.mtx', 'B.mtx', 'C.mtx'].map((f) => path.join(dir, f));
+
+  it('reduce --path sparse --E: engine.path sparse, estimated keys, the bound covering the measured error', () => {
+    const r = cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--method', 'balanced', '--order', '5', '--error-points', '30');
+    expect(r.status, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.engine.path).toBe('sparse');
+    expect(out.hsvComplete).toBe(false);
+    expect(out.descriptor).toBe(true);
+    expect(out.estimated).toEqual(['hankelSingularValues', 'errorBound', 'hinfError']);
+    expect(out.gramianResidual.controllability.residual).toBeLessThanOrEqual(1e-10);
+    expect(out.gramianResidual.observability.converged).toBe(true);
+    expect(out.A).toHaveLength(5);
+    expect(out.hinfError).toBeLessThanOrEqual(out.errorBound * (1 + 1e-6));
+    expect(out.hinfError).toBeGreaterThan(0);
+    // The same reduction through the library.
+    const lib = sparseBalancedReduction(model, { method: 'balanced', order: 5 });
+    const printed: StateSpaceModel = { A: fromRows(out.A), B: fromRows(out.B), C: fromRows(out.C), D: fromRows(out.D) };
+    expect(responseGap(lib.model, printed, logFrequencyGrid(1, 1e4, 10))).toBeLessThan(1e-9);
+  });
+
+  it('--path auto keeps a 400-state model without E on the dense path; --path sparse takes it to the sparse one', () => {
+    const plain = writeModel(plateModel(20));
+    const f = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(plain, x));
+    const auto = JSON.parse(cli('reduce', ...f, '--method', 'residualization', '--order', '4').stdout);
+    expect(auto.engine.path).toBe('dense');
+    expect(auto.hsvComplete).toBeUndefined();
+    const sparse = JSON.parse(cli('reduce', ...f, '--method', 'residualization', '--order', '4', '--path', 'sparse').stdout);
+    expect(sparse.engine.path).toBe('sparse');
+    expect(Math.abs(sparse.hankelSingularValues[0] - auto.hankelSingularValues[0]) / auto.hankelSingularValues[0]).toBeLessThan(1e-9);
+    // Both keep the DC gain: the residualized models' −C A⁻¹ B agree.
+    const dc = (o: { A: number[][]; B: number[][]; C: number[][] }) => {
+      const m = { A: fromRows(o.A), B: fromRows(o.B), C: fromRows(o.C), D: zeros(1, 1) };
+      return frequencyResponse(m, [0]).H[0].re.data[0];
+    };
+    expect(relDiff(dc(sparse), dc(auto))).toBeLessThan(1e-8);
+  });
+
+  it('--path auto takes a coordinate model above the crossover (1024 > 1000 states) to the sparse path; the environment moves the crossover', () => {
+    const big = writeModel(plateModel(32));
+    const f = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(big, x));
+    const out = JSON.parse(cli('reduce', ...f, '--method', 'balanced', '--order', '3').stdout);
+    expect(out.engine.path).toBe('sparse');
+    expect(out.states).toBe(1024);
+    const small = writeModel(plateModel(20));
+    const g = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(small, x));
+    const moved = JSON.parse(cliWith({ MODESHELF_SPARSE_CROSSOVER: '300' }, 'analyze', ...g).stdout);
+    expect(moved.engine.path).toBe('sparse');
+  });
+
+  it('reduce --tolerance: the smallest order whose estimated bound meets T·‖G‖∞, the same order as the dense path (n = 400)', () => {
+    const plain = writeModel(plateModel(20, { inputs: 2, outputs: 2 }));
+    const f = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(plain, x));
+    const T = 1e-4;
+    const sparse = JSON.parse(cli('reduce', ...f, '--method', 'balanced', '--tolerance', String(T), '--path', 'sparse').stdout);
+    const dense = JSON.parse(cli('reduce', ...f, '--method', 'balanced', '--tolerance', String(T), '--path', 'dense').stdout);
+    expect(sparse.engine.path).toBe('sparse');
+    expect(sparse.orderRule).toBe('tolerance');
+    expect(sparse.estimated).toContain('referenceNorm');
+    const tail = (r: number) => 2 * sparse.hankelSingularValues.slice(r).reduce((a: number, b: number) => a + b, 0);
+    expect(sparse.errorBound).toBeLessThanOrEqual(T * sparse.referenceNorm);
+    expect(tail(sparse.order - 1)).toBeGreaterThan(T * sparse.referenceNorm);
+    expect(sparse.hinfError).toBeLessThanOrEqual(sparse.errorBound * (1 + 1e-6));
+    // The dense path certifies ‖G‖∞ (Hamiltonian bisection); the sweep's lower bound is close to it here.
+    expect(sparse.referenceNorm).toBeLessThanOrEqual(dense.referenceNorm * (1 + 1e-9));
+    expect(relDiff(sparse.referenceNorm, dense.referenceNorm)).toBeLessThan(1e-3);
+    expect(sparse.order).toBe(dense.order);
+  });
+
+  it('analyze on the sparse path: DC gain matches scipy, H2 and Hankel singular values listed as estimated', () => {
+    const r = cli('analyze', ...files, '--E', path.join(dir, 'E.mtx'));
+    expect(r.status, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.engine.path).toBe('sparse');
+    expect(out.polesComplete).toBe(false);
+    expect(out.hsvComplete).toBe(false);
+    expect(out.estimated).toEqual(['hankelSingularValues', 'h2Norm']);
+    const ref = sparseReference(dir, ['freq'], { w: [0] }).freq[0]; // scipy splu: C (0·E − A)⁻¹ B
+    expect(relDiff(out.dcGain[0][0], ref.re[0][0])).toBeLessThan(1e-10);
+  });
+
+  it('refuses a factorization over --memory-budget before making it, naming the estimate and the budget', () => {
+    const r = cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--method', 'balanced', '--order', '3', '--memory-budget', '0.01');
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/needs an estimated [\d.]+ MiB \(UMFPACK's symbolic analysis\), over the memory budget of 0\.01 MiB/);
+    expect(r.stderr).toContain('field: memory-budget, code: too_large');
+    // Within a budget the same command succeeds.
+    expect(cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--method', 'balanced', '--order', '3', '--memory-budget', '512').status).toBe(0);
+  });
+
+  it('refuses --E on the dense path and methods the sparse path does not offer, exit 2 naming the option', () => {
+    const e = cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--path', 'dense', '--method', 'balanced', '--order', '3');
+    expect(e.status).toBe(2);
+    expect(e.stderr).toContain('field: E');
+    const m = cli('reduce', ...files, '--path', 'sparse', '--method', 'modal', '--order', '3');
+    expect(m.status).toBe(2);
+    expect(m.stderr).toContain('field: method');
+    const bad = cli('reduce', ...files, '--path', 'sometimes', '--method', 'balanced', '--order', '3');
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toContain('field: path');
+  });
+});
