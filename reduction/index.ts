@@ -6,6 +6,7 @@
  *   analysis            analysis.ts, spectral-split.ts, norms.ts, frequency.ts, step-limits.ts
  *   reduction           reduce.ts (entry), balanced.ts, modal.ts, order.ts
  *   time responses      simulate/, discretize.ts
+ *   large sparse models sparse/ (sparse model type, coordinate reader, low-rank ADI and balancing, sweeps)
  *
  * Dense kernels stay behind `reduction/linalg`; only the matrix type and its helpers are re-exported.
  */
@@ -14,6 +15,7 @@ export { zeros, identity, fromRows, toRows } from './linalg/matrix';
 export { type StateSpaceModel, stateCount, inputCount, outputCount } from './model';
 export { ModelError, type ModelErrorCode } from './errors';
 export * from './io/index';
+export * as sparse from './sparse/index';
 
 export {
   analyzeModel,

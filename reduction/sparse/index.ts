@@ -1,0 +1,16 @@
+/**
+ * The large-model (sparse) path: models with sparse A and E stay in compressed columns from file to result.
+ *
+ *   model.ts            the sparse model type and CSC helpers (coordinates, products, transpose, A − σE pattern)
+ *   matrix-market.ts    Matrix Market coordinate files straight into CSC
+ *   adi.ts              low-rank ADI gramian factors with Penzl's shifts
+ *   balanced.ts         low-rank square-root balanced truncation and residualization
+ *   frequency.ts        the full model's frequency response by sparse solves, the sampled error of a reduction
+ *   budget.ts           the memory budget checked before each sparse factorization
+ */
+export * from './model';
+export { parseSparseMatrixMarket, writeSparseMatrixMarket, isMatrixMarketCoordinate, coordinateRowCount } from './matrix-market';
+export { lowRankGramians, heuristicShifts, penzlShifts, arnoldiRitzValues, type AdiOptions, type AdiResult, type AdiFactor, type Shift } from './adi';
+export { sparseBalancedReduction, lowRankBalancedRealization, type SparseBalancedOptions, type SparseBalancedResult } from './balanced';
+export { sparseFrequencyResponse, sampledErrorPeak, type SparseFrequencyResponse } from './frequency';
+export { memoryBudgetBytes, checkFactorBudget, MEMORY_BUDGET_ENV } from './budget';
