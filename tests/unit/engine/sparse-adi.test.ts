@@ -116,6 +116,16 @@ describe('low-rank ADI', () => {
     expect(() => lowRankGramians({ ...model, A: { ...model.A, values: aValues } })).toThrow(expect.objectContaining({ code: 'unstable', field: 'A' }));
   });
 
+  it('with no memory to keep factorizations, refactors on one symbolic analysis and gets the same factor', () => {
+    const model = plateModel(20, { convection: 300, descriptor: true, inputs: 2, outputs: 2 });
+    const cached = lowRankGramians(model);
+    const shared = lowRankGramians(model, { cacheBudgetBytes: 0 });
+    expect(cached.factorizations).toBe(cached.shifts.length); // one per distinct shift
+    expect(shared.analyses).toBe(1);
+    expect(shared.factorizations).toBeGreaterThan(cached.factorizations);
+    expect(Array.from(shared.controllability!.Z.data)).toEqual(Array.from(cached.controllability!.Z.data));
+  });
+
   it('stops at maxIterations with converged: false and says so', () => {
     const g = lowRankGramians(plateModel(20), { maxIterations: 3, tolerance: 1e-14 });
     expect(g.controllability!.converged).toBe(false);
