@@ -261,6 +261,10 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
     poles: null,
     polesComplete: false,
     polesNote: 'the sparse path does not compute poles yet',
+    slowestDecayRate: g.ritzDecayRates ? g.ritzDecayRates.slowest : null,
+    fastestDecayRate: g.ritzDecayRates ? g.ritzDecayRates.fastest : null,
+    stiffnessRatio: g.ritzDecayRates ? g.ritzDecayRates.fastest / g.ritzDecayRates.slowest : null,
+    decayRatesNote: 'from the Ritz values behind the ADI shifts (Arnoldi on A⁻¹E and E⁻¹A through sparse solves): the slowest to high accuracy, the fastest usually slightly low',
     hankelSingularValues: numberList(realization.hankelSingularValues),
     hsvComplete: false,
     h2Norm: h2,
@@ -268,6 +272,6 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
     dcGain,
     ...(dcGainNote ? { dcGainNote } : {}),
     gramianResidual: gramianReport(g, adi.tolerance ?? 1e-10),
-    estimated: ['hankelSingularValues', 'h2Norm'],
+    estimated: ['slowestDecayRate', 'fastestDecayRate', 'stiffnessRatio', 'hankelSingularValues', 'h2Norm'],
   };
 }

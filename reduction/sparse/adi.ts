@@ -78,6 +78,12 @@ export interface AdiResult {
   readonly factorizations: number;
   readonly analyses: number;
   readonly seconds: number;
+  /**
+   * Decay rates −Re λ of the slowest and fastest stable Ritz values behind the shifts (absent when the shifts
+   * were given): estimates of the model's slowest and fastest poles (the slowest converges fast through the
+   * solves with A; the fastest is a Ritz value of E⁻¹A, for a normal E⁻¹A inside the spectrum).
+   */
+  readonly ritzDecayRates?: { readonly slowest: number; readonly fastest: number };
   readonly notes: readonly string[];
 }
 
@@ -387,7 +393,10 @@ export function penzlShifts(candidates: readonly Shift[], l0: number): Shift[] {
 }
 
 /** Shifts by Penzl's heuristic from Arnoldi Ritz values of E⁻¹A and A⁻¹E (through sparse solves). */
-export function heuristicShifts(model: SparseStateSpaceModel, options: AdiOptions = {}): { shifts: Shift[]; notes: string[] } {
+export function heuristicShifts(
+  model: SparseStateSpaceModel,
+  options: AdiOptions = {},
+): { shifts: Shift[]; notes: string[]; decayRates: { slowest: number; fastest: number } } {
   const { A, E, B } = model;
   const n = A.n;
   const kp = options.arnoldiSteps ?? 30, km = options.inverseArnoldiSteps ?? 20, l0 = options.shiftCount ?? 16;
@@ -433,7 +442,12 @@ export function heuristicShifts(model: SparseStateSpaceModel, options: AdiOption
     if (cands.length === 0) {
       throw new ModelError('unstable', 'A', 'no stable Ritz values of E⁻¹A were found: the low-rank gramians need a stable model');
     }
-    return { shifts: penzlShifts(cands, l0), notes };
+    let slowest = Infinity, fastest = 0;
+    for (const c of cands) {
+      slowest = Math.min(slowest, -c.re);
+      fastest = Math.max(fastest, -c.re);
+    }
+    return { shifts: penzlShifts(cands, l0), notes, decayRates: { slowest, fastest } };
   } finally {
     aLu.dispose();
     eLu?.dispose();
@@ -453,6 +467,7 @@ export function lowRankGramians(model: SparseStateSpaceModel, options: AdiOption
   const n = model.A.n;
   const notes: string[] = [];
   let shifts: Shift[];
+  let ritzDecayRates: { slowest: number; fastest: number } | undefined;
   if (options.shifts) {
     shifts = [...options.shifts];
     for (const p of shifts) {
@@ -461,6 +476,7 @@ export function lowRankGramians(model: SparseStateSpaceModel, options: AdiOption
   } else {
     const h = heuristicShifts(model, options);
     shifts = h.shifts;
+    ritzDecayRates = h.decayRates;
     notes.push(...h.notes);
   }
   const which = options.equations ?? ['controllability', 'observability'];
@@ -489,6 +505,7 @@ export function lowRankGramians(model: SparseStateSpaceModel, options: AdiOption
     factorizations: solvers.factorizations,
     analyses: solvers.analyses,
     seconds: (performance.now() - started) / 1000,
+    ...(ritzDecayRates ? { ritzDecayRates } : {}),
     notes,
   };
 }

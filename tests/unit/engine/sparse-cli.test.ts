@@ -111,6 +111,18 @@ describe('command line: the sparse path', () => {
     expect(sparse.order).toBe(dense.order);
   });
 
+  it('analyze on the sparse path: decay rates against the Laplacian closed form (LeVeque 2007), N = 40', () => {
+    const N = 40, h = 1 / (N + 1);
+    const lam = (j: number, k: number) => (4 / (h * h)) * (Math.sin((j * Math.PI) / (2 * (N + 1))) ** 2 + Math.sin((k * Math.PI) / (2 * (N + 1))) ** 2);
+    const d = writeModel(plateModel(N));
+    const out = JSON.parse(cli('analyze', ...['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(d, x))).stdout);
+    expect(out.engine.path).toBe('sparse');
+    expect(relDiff(out.slowestDecayRate, lam(1, 1))).toBeLessThan(1e-9);
+    expect(out.fastestDecayRate).toBeLessThanOrEqual(lam(N, N) * (1 + 1e-12));
+    expect(relDiff(out.fastestDecayRate, lam(N, N))).toBeLessThan(2e-2);
+    expect(relDiff(out.stiffnessRatio, lam(N, N) / lam(1, 1))).toBeLessThan(2e-2);
+  });
+
   it('analyze on the sparse path: DC gain matches scipy, H2 and Hankel singular values listed as estimated', () => {
     const r = cli('analyze', ...files, '--E', path.join(dir, 'E.mtx'));
     expect(r.status, r.stderr).toBe(0);
@@ -118,7 +130,7 @@ describe('command line: the sparse path', () => {
     expect(out.engine.path).toBe('sparse');
     expect(out.polesComplete).toBe(false);
     expect(out.hsvComplete).toBe(false);
-    expect(out.estimated).toEqual(['hankelSingularValues', 'h2Norm']);
+    expect(out.estimated).toEqual(['slowestDecayRate', 'fastestDecayRate', 'stiffnessRatio', 'hankelSingularValues', 'h2Norm']);
     const ref = sparseReference(dir, ['freq'], { w: [0] }).freq[0]; // scipy splu: C (0·E − A)⁻¹ B
     expect(relDiff(out.dcGain[0][0], ref.re[0][0])).toBeLessThan(1e-10);
   });
