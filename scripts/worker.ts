@@ -12,11 +12,15 @@
 //   MODESHELF_WORKER_CONCURRENCY   engine tasks at once in this process (default 1)
 //   MODESHELF_JOB_STALE_SECONDS    heartbeat silence after which a running job is handed back (default 60)
 //   MODESHELF_WORKER_WATCH_PARENT  1: stop when the parent process goes; 0: never; unset: when started by npm
+//   MODESHELF_WORKER_MEMORY_MIB    memory budget: a job whose estimated memory exceeds it is refused with both
+//                                  figures (lib/jobs/memory-budget.ts); default 80 % of the machine's memory.
+//                                  `npm run worker -- --memory MiB` sets it.
 import { readFileSync } from 'node:fs';
 import { closeDb } from '../lib/db';
 import { closeQueue } from '../lib/jobs/queue';
 import { startWorker, type RunningWorker } from '../lib/jobs/worker-loop';
 import { startNotificationSender } from '../lib/notification-sender';
+import { workerMemoryBudgetMiB } from '../lib/jobs/memory-budget';
 
 /** A process's start time (field 22 of /proc/<pid>/stat), so a reused pid is not taken for the same process. */
 function startTimeOf(pid: number): string | null {
@@ -72,7 +76,19 @@ function watchedAncestors(): { pid: number; started: string }[] {
   return byNpm && !chain.some((a) => isNpm(a.pid)) ? chain.slice(0, 1) : chain;
 }
 
+/** `--memory MiB` / `--memory=MiB` on the command line sets the memory budget (checked before starting). */
+function applyMemoryFlag(argv: readonly string[]): void {
+  const i = argv.findIndex((a) => a === '--memory' || a.startsWith('--memory='));
+  if (i < 0) return;
+  const value = argv[i].includes('=') ? argv[i].slice('--memory='.length) : argv[i + 1];
+  if (value === undefined) throw new Error('--memory needs a number of MiB, e.g. --memory 4096');
+  process.env.MODESHELF_WORKER_MEMORY_MIB = value;
+}
+
 async function main(): Promise<void> {
+  applyMemoryFlag(process.argv.slice(2));
+  // A budget that is not a number stops the worker here, with the reason, rather than failing every job.
+  console.log(`[modeshelf worker] memory budget ${workerMemoryBudgetMiB()} MiB`);
   let worker: RunningWorker | null = null;
   let stopNotifications: (() => Promise<void>) | null = null;
   let stopping = false;

@@ -11,14 +11,10 @@ import { findReducedVersion, recipeInputOf, registerReducedVersion, signalPathOf
 import { db } from '@/lib/db';
 import type { JobRow } from './jobs';
 import type { JobKind } from './queue';
+import { requireWithinMemoryBudget } from './memory-budget';
+import { JobInputError } from './errors';
 
-/** A job that cannot run because what it refers to is gone or incomplete; retrying would not help. */
-export class JobInputError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'JobInputError';
-  }
-}
+export { JobInputError } from './errors';
 
 export interface JobHandler<R> {
   prepare(job: JobRow): Promise<TaskRequest>;
@@ -29,6 +25,7 @@ const analysis: JobHandler<AnalysisRecord> = {
   async prepare(job) {
     const version = await findSourceVersion(String(job.payload.sourceVersionId));
     if (!version) throw new JobInputError('the source version of this analysis no longer exists');
+    requireWithinMemoryBudget('analysis', version.states);
     return { task: 'analysis', files: modelFilesOfVersion(version), engineVersion: ENGINE_VERSION };
   },
   async write(trx, job, record) {
@@ -46,6 +43,7 @@ const reduction: JobHandler<ReductionRecord> = {
     if (!recipe) throw new JobInputError('the recipe of this reduction no longer exists');
     const record = await analysisOf(version.id);
     if (!record) throw new JobInputError('the source version has no analysis yet');
+    requireWithinMemoryBudget('reduction', version.states);
     const summary: AnalysisSummary = {
       frequencyBand: record.frequencyBand,
       stablePartHinfNorm: record.stablePartHinfNorm,
@@ -69,6 +67,7 @@ const response: JobHandler<InputResponseRecord> = {
     if (!reduced) throw new JobInputError('the reduced version no longer exists');
     const version = await findSourceVersion(reduced.source_version_id);
     if (!version) throw new JobInputError('the source version of the reduced model no longer exists');
+    requireWithinMemoryBudget('response', version.states);
     return { task: 'response', files: modelFilesOfVersion(version), matrices: reduced.matrices, signal: signalPathOf(job.payload) };
   },
   async write(_trx, _job, record) {

@@ -39,8 +39,8 @@ beforeAll(async () => {
   engineer = { id: row.id, email: row.email, name: row.name, role: 'engineer' };
 });
 
-function startWorker(): ChildProcess {
-  const child = spawn(path.join(ROOT, 'node_modules', '.bin', 'tsx'), [path.join(ROOT, 'scripts', 'worker.ts')], {
+function startWorker(args: string[] = []): ChildProcess {
+  const child = spawn(path.join(ROOT, 'node_modules', '.bin', 'tsx'), [path.join(ROOT, 'scripts', 'worker.ts'), ...args], {
     cwd: ROOT,
     detached: true, // its own process group, so the kill below takes tsx's node child too
     env: {
@@ -152,6 +152,23 @@ describe('background jobs', () => {
     const audit = await db()('audit_events').where({ subject_type: 'job', subject_id: upload.job.id, action: 'job.retried' });
     expect(audit).toHaveLength(1);
     await expect(retryJob(upload.job.id, engineer)).rejects.toMatchObject({ status: 409, code: 'not_failed' });
+  });
+
+  it('refuses a job whose estimated memory exceeds the worker budget, naming both figures; the worker lives on', async () => {
+    const upload = await registerUpload(uploadRequest({ name: uniqueName('Memory guard') }, [{ field: 'model', name: 'm.json', text: firstOrderJson({ D: [[0.75]] }) }]), engineer);
+    // 64 MiB is below the estimate of any engine task (the runtime alone is counted at 200 MiB).
+    const limited = startWorker(['--memory', '64']);
+    const failed = await waitFor(upload.job.id, done);
+    expect(failed).toMatchObject({ status: 'failed', attempts: 1 });
+    expect(failed.error).toMatch(/needs an estimated \d+ MiB, more than this worker's memory budget of 64 MiB/);
+    await new Promise((r) => setTimeout(r, 500));
+    expect(limited.exitCode).toBeNull();
+    expect(limited.signalCode).toBeNull();
+    await kill(limited, 'SIGTERM');
+    // A worker with the default budget runs it.
+    startWorker();
+    await retryJob(upload.job.id, engineer);
+    expect(await waitFor(upload.job.id, done)).toMatchObject({ status: 'succeeded' });
   });
 
   it('registers a reduction as a draft version with its recipe, digest, lineage and accuracy report', async () => {
