@@ -8,7 +8,8 @@
  *      code itself, and prints as its LAST stdout line a JSON object with at least `seconds` (number),
  *      optionally `peakRssKb`, `blas`, `method`;
  *   2. a fresh Node process (so peak memory is the case's own) calls `prepare(DIR, n)` untimed, then
- *      `run(input)` timed (best of three, fewer when the runs pass 10 s in all: the rule of the reference side), then `check(DIR, output)`
+ *      `run(input)` timed (best of at least three runs and one second of runs, stopping once they pass 10 s:
+ *      the rule of the reference side too), then `check(DIR, output)`
  *      untimed, which returns a short agreement figure against the reference's saved results.
  * Before timing, the child process runs the case once at `warmupSize` so the JIT has compiled it.
  */

@@ -141,8 +141,11 @@ napi_value Eigenvalues(napi_env env, napi_callback_info info) {
     double* wi = a.f64(3, "im", (size_t)n);
     if (n == 0) return ms::undefinedValue(env);
     ms::requireFinite(A, (size_t)(n * n), (size_t)n, "A");
-    std::vector<double> work(A, A + n * n);
-    // Column-major view of the row-major data is Aᵀ, which has the same eigenvalues: no transposition.
+    // A itself in LAPACK's column order (one transposed copy), not the column-major view Aᵀ: the same
+    // eigenvalues either way, but the QR iteration then sees the matrix numpy's eigvals sees.
+    std::vector<double> work((size_t)(n * n));
+    for (int64_t j = 0; j < n; j++)
+      for (int64_t i = 0; i < n; i++) work[j * n + i] = A[i * n + j];
     int r = LAPACKE_dgeev(LAPACK_COL_MAJOR, 'N', 'N', (int)n, work.data(), (int)n, wr, wi, nullptr, 1, nullptr, 1);
     ms::lapackCheck(r < 0 ? r : 0, "dgeev", "A");
     if (r > 0) fail("not_converged", "eigenvalues: the QR algorithm did not converge for A");
