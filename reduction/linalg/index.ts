@@ -116,6 +116,11 @@ const eigMemo = new WeakMap<
   { backend: string; values: ComplexVector; result?: { values: ComplexVector; vectors: Matrix } }
 >();
 
+/** Drops what is kept for this matrix object (the benchmark times repeated runs on one matrix). */
+export function forgetDecompositions(a: Matrix): void {
+  eigMemo.delete(a);
+}
+
 /** Eigenvalues of a general real square matrix (complex pairs consecutive, positive imaginary part first). */
 export function eigenvalues(a: Matrix): ComplexVector {
   const backend = kernels().name;
