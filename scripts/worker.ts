@@ -21,6 +21,7 @@ import { closeQueue } from '../lib/jobs/queue';
 import { startWorker, type RunningWorker } from '../lib/jobs/worker-loop';
 import { startNotificationSender } from '../lib/notification-sender';
 import { workerMemoryBudgetMiB } from '../lib/jobs/memory-budget';
+import { objectStore, verifyStore } from '../lib/storage';
 
 /** A process's start time (field 22 of /proc/<pid>/stat), so a reused pid is not taken for the same process. */
 function startTimeOf(pid: number): string | null {
@@ -89,6 +90,11 @@ async function main(): Promise<void> {
   applyMemoryFlag(process.argv.slice(2));
   // A budget that is not a number stops the worker here, with the reason, rather than failing every job.
   console.log(`[modeshelf worker] memory budget ${workerMemoryBudgetMiB()} MiB`);
+  // A store this machine cannot write and read back stops the worker here, with the reason, instead of
+  // failing every job it takes.
+  const store = objectStore();
+  await verifyStore(store);
+  console.log(`[modeshelf worker] model store ${store.location} checked`);
   let worker: RunningWorker | null = null;
   let stopNotifications: (() => Promise<void>) | null = null;
   let stopping = false;

@@ -106,6 +106,30 @@ async function untilGone(pgid: number, timeoutMs = 15_000): Promise<string[]> {
 }
 
 describe('one process per worker', () => {
+  it('refuses to start, saying why, when its model store cannot be written and read back', async () => {
+    // An S3 endpoint on a loopback port nothing listens on: the start-up store check fails at once.
+    const child = spawn(path.join(ROOT, 'node_modules', '.bin', 'tsx'), [path.join(ROOT, 'scripts', 'worker.ts')], {
+      cwd: ROOT,
+      env: {
+        ...process.env,
+        MODESHELF_STORAGE: 's3',
+        MODESHELF_S3_BUCKET: 'quillmere-models',
+        MODESHELF_S3_ENDPOINT: 'http://127.0.0.1:9',
+        MODESHELF_S3_ACCESS_KEY_ID: 'test',
+        MODESHELF_S3_SECRET_ACCESS_KEY: 'test',
+        MODESHELF_S3_FORCE_PATH_STYLE: '1',
+      },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    let text = '';
+    child.stdout!.on('data', (b: Buffer) => (text += b.toString()));
+    child.stderr!.on('data', (b: Buffer) => (text += b.toString()));
+    const code = await new Promise<number | null>((resolve) => child.once('exit', (c) => resolve(c)));
+    expect(code).toBe(1);
+    expect(text).toMatch(/could not start: the store check could not write to s3:\/\/quillmere-models/);
+    expect(text).not.toMatch(/\] started/);
+  }, 60_000);
+
   it('scripts/worker.sh becomes the worker: the process a supervisor starts is the one that runs jobs', async () => {
     const { child, workerPid } = await startInGroup('bash', ['scripts/worker.sh']);
     expect(workerPid).toBe(child.pid);
