@@ -2,7 +2,7 @@
  * Option builders for the frequency-domain comparison of a full and a reduced model:
  *  - `buildBodeOption`: magnitude (dB or absolute) and phase (degrees) of one input→output channel on two
  *    stacked grids sharing a log frequency axis;
- *  - `buildSigmaOption`: the largest singular value σmax(G(jω)) over frequency, the MIMO gain whose peak
+ *  - `buildSingularValueOption`: the largest singular value σmax(G(jω)) over frequency, the MIMO gain whose peak
  *    is the H∞ norm.
  * Full model solid graphite, reduced model dashed teal (theme.ts).
  */
@@ -29,7 +29,7 @@ export interface BodeChartData {
   readonly channelLabel?: string;
 }
 
-export interface SigmaChartData {
+export interface SingularValueChartData {
   readonly frequencies: readonly number[];
   /** σmax(G(jω)) of the full model, absolute gain */
   readonly full: readonly number[];
@@ -185,8 +185,8 @@ export function buildBodeOption(data: BodeChartData, theme: ChartTheme = DEFAULT
   };
 }
 
-export function buildSigmaOption(data: SigmaChartData, theme: ChartTheme = DEFAULT_CHART_THEME): ChartOption {
-  const chart = 'SigmaChart';
+export function buildSingularValueOption(data: SingularValueChartData, theme: ChartTheme = DEFAULT_CHART_THEME): ChartOption {
+  const chart = 'SingularValueChart';
   const w = data.frequencies;
   requireGrid(chart, 'frequencies', w, true);
   if (w.length === 0) throw new ChartDataError(chart, 'frequencies', 'must hold at least one frequency');

@@ -8,7 +8,7 @@ import { useMemo, useState } from 'react';
 import { BodeChart } from '@/components/charts/BodeChart';
 import { ChannelPicker } from '@/components/charts/ChannelPicker';
 import { ErrorBoundChart } from '@/components/charts/ErrorBoundChart';
-import { SigmaChart } from '@/components/charts/SigmaChart';
+import { SingularValueChart } from '@/components/charts/SingularValueChart';
 import { TimeResponseChart } from '@/components/charts/TimeResponseChart';
 import { channelLabel, signalNames, type Channel } from '@/components/charts/channel-names';
 import { formatCount, formatFactor, formatFrequency, formatNumber, formatTime, formatWallTime } from '@/components/charts/format';
@@ -156,7 +156,7 @@ export function ComparisonView(p: ComparisonViewProps) {
       <div className="grid gap-6 xl:grid-cols-2">
         <BodeChart frequencies={f.w} full={bode.full} reduced={bode.reduced} timeUnit={timeUnit} channelLabel={label} title="Bode plot" />
         <div className="space-y-6">
-          <SigmaChart frequencies={f.w} full={f.sigmaFull} reduced={f.sigmaReduced} timeUnit={timeUnit} title="Largest singular value σmax(G(jω))" />
+          <SingularValueChart frequencies={f.w} full={f.sigmaFull} reduced={f.sigmaReduced} timeUnit={timeUnit} title="Largest singular value σmax(G(jω))" />
           <ErrorBoundChart
             frequencies={f.w}
             error={f.error}

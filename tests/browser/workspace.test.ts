@@ -79,7 +79,7 @@ describe('the reduction workspace', () => {
       await page.getByRole('button', { name: 'Run balanced truncation' }).click();
       await page.waitForURL(/\/reduced-models\/[^/]+\/versions\/1$/, { timeout: 90_000 });
 
-      for (const chart of ['bode-chart', 'sigma-chart', 'error-bound-chart', 'time-response-step', 'time-response-impulse']) {
+      for (const chart of ['bode-chart', 'singular-value-chart', 'error-bound-chart', 'time-response-step', 'time-response-impulse']) {
         await expectChartDrawn(page, chart);
       }
       await expect.poll(() => page.getByTestId('figures-table').textContent()).toMatch(/40 → 6/);

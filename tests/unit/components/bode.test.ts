@@ -1,6 +1,6 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import { buildBodeOption, buildSigmaOption, FULL_SERIES, phaseAxisRange, REDUCED_SERIES } from '@/components/charts/bode-option';
+import { buildBodeOption, buildSingularValueOption, FULL_SERIES, phaseAxisRange, REDUCED_SERIES } from '@/components/charts/bode-option';
 import { alignPhase, magnitudeDb, phaseDegrees, unwrapDegrees } from '@/components/charts/frequency-data';
 import { FULL_LINE, INK, REDUCED_LINE } from '@/components/charts/theme';
 
@@ -105,14 +105,14 @@ describe('buildBodeOption', () => {
   });
 });
 
-describe('buildSigmaOption', () => {
+describe('buildSingularValueOption', () => {
   it('draws σmax of full solid graphite and reduced dashed teal on a log frequency axis', () => {
-    const option = buildSigmaOption({ frequencies: [1, 10, 100], full: [1, 0.1, 0.01], reduced: [1, 0.1, 0.02] });
+    const option = buildSingularValueOption({ frequencies: [1, 10, 100], full: [1, 0.1, 0.01], reduced: [1, 0.1, 0.02] });
     const series = option.series as unknown as Series[];
     expect((option.xAxis as unknown as Axis).type).toBe('log');
     expect(series[0].lineStyle).toMatchObject({ color: INK.graphite, type: 'solid' });
     expect(series[1].lineStyle).toMatchObject({ color: INK.teal, type: 'dashed' });
     expect(series[0].data).toEqual([[1, 0], [10, -20], [100, -40]]);
-    expect(() => buildSigmaOption({ frequencies: [1, 2], full: [1, -1] })).toThrow(/SigmaChart: full must not be negative/);
+    expect(() => buildSingularValueOption({ frequencies: [1, 2], full: [1, -1] })).toThrow(/SingularValueChart: full must not be negative/);
   });
 });

@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import * as echarts from 'echarts/core';
 import { SVGRenderer } from 'echarts/renderers';
 import { CHART_MODULES } from '@/components/charts/echarts-modules';
-import { buildBodeOption, buildSigmaOption } from '@/components/charts/bode-option';
+import { buildBodeOption, buildSingularValueOption } from '@/components/charts/bode-option';
 import { buildErrorBoundOption } from '@/components/charts/error-bound-option';
 import { buildHankelOption } from '@/components/charts/hankel-option';
 import type { ChartOption } from '@/components/charts/option-types';
@@ -77,7 +77,7 @@ describe('charts drawn by ECharts', () => {
   it('σmax plot draws both models', () => {
     const g = lag(2);
     const sigma = W.map((_, i) => Math.hypot(g.re[i], g.im[i]));
-    const svg = renderSvg(buildSigmaOption({ frequencies: W, full: sigma, reduced: sigma.map((s) => s * 1.02) }));
+    const svg = renderSvg(buildSingularValueOption({ frequencies: W, full: sigma, reduced: sigma.map((s) => s * 1.02) }));
     expect(curves(svg, INK.graphite)).toHaveLength(1);
     expect(curves(svg, INK.teal).filter((p) => p.dashed)).toHaveLength(1);
   });

@@ -2,21 +2,21 @@
 /** Largest singular value σmax(G(jω)) of full and reduced model over frequency: the MIMO gain plot. */
 import { useState } from 'react';
 import { MagnitudeScaleSwitch } from './BodeChart';
-import { buildSigmaOption, type MagnitudeScale, type SigmaChartData } from './bode-option';
+import { buildSingularValueOption, type MagnitudeScale, type SingularValueChartData } from './bode-option';
 import { EChart, useBuiltOption } from './EChart';
 import { useChartTheme } from './useChartTheme';
 
-export interface SigmaChartProps extends Omit<SigmaChartData, 'magnitudeScale'> {
+export interface SingularValueChartProps extends Omit<SingularValueChartData, 'magnitudeScale'> {
   readonly initialMagnitudeScale?: MagnitudeScale;
   readonly height?: number | string;
   readonly title?: string;
 }
 
-export function SigmaChart({ frequencies, full, reduced, timeUnit, initialMagnitudeScale = 'dB', height = 320, title = 'Largest singular value' }: SigmaChartProps) {
+export function SingularValueChart({ frequencies, full, reduced, timeUnit, initialMagnitudeScale = 'dB', height = 320, title = 'Largest singular value' }: SingularValueChartProps) {
   const [magnitudeScale, setMagnitudeScale] = useState<MagnitudeScale>(initialMagnitudeScale);
   const theme = useChartTheme();
   const built = useBuiltOption(
-    () => buildSigmaOption({ frequencies, full, reduced, timeUnit, magnitudeScale }, theme),
+    () => buildSingularValueOption({ frequencies, full, reduced, timeUnit, magnitudeScale }, theme),
     [frequencies, full, reduced, timeUnit, magnitudeScale, theme],
   );
   return (
@@ -25,7 +25,7 @@ export function SigmaChart({ frequencies, full, reduced, timeUnit, initialMagnit
         <figcaption className="text-sm font-medium">{title}</figcaption>
         <MagnitudeScaleSwitch value={magnitudeScale} onChange={setMagnitudeScale} />
       </div>
-      <EChart built={built} height={height} testId="sigma-chart" />
+      <EChart built={built} height={height} testId="singular-value-chart" />
     </figure>
   );
 }
