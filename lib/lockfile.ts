@@ -3,9 +3,10 @@
 // (lib/checksums.ts), so a build can check that what it compiled in is what was reviewed, and a CI job can
 // ask whether the lock is still current.
 //
-// Format (ours; version 1):
+// Format (ours; version 1), named the way the JSON export names its own (lib/exports/document.ts):
 //   {
-//     "lockfileVersion": 1,
+//     "format": "modeshelf-lock",
+//     "formatVersion": 1,
 //     "project": "<project slug>",
 //     "generatedAt": "<ISO time>",
 //     "entries": [
@@ -27,7 +28,8 @@ import { limitFailures, listProjectPins, loadVersionFacts, type PinLimits, type 
 import type { ProjectRow } from '@/lib/projects';
 
 export const LOCKFILE_NAME = 'modeshelf.lock.json';
-export const LOCKFILE_VERSION = 1;
+export const LOCKFILE_FORMAT = 'modeshelf-lock';
+export const LOCKFILE_FORMAT_VERSION = 1;
 
 export interface LockEntry {
   reducedModel: string;
@@ -40,7 +42,8 @@ export interface LockEntry {
 }
 
 export interface LockFile {
-  lockfileVersion: typeof LOCKFILE_VERSION;
+  format: typeof LOCKFILE_FORMAT;
+  formatVersion: typeof LOCKFILE_FORMAT_VERSION;
   project: string;
   generatedAt: string;
   entries: LockEntry[];
@@ -51,7 +54,8 @@ const slug = z.string({ error: 'must be a slug' }).min(1, 'must not be empty').m
 
 /** What verify accepts: the fields it compares; anything else in an entry is kept by the client, ignored here. */
 export const lockFileSchema = z.object({
-  lockfileVersion: z.literal(LOCKFILE_VERSION, { error: `lockfileVersion must be ${LOCKFILE_VERSION}.` }),
+  format: z.literal(LOCKFILE_FORMAT, { error: `format must be "${LOCKFILE_FORMAT}" (download the lock file again if it was written before this field).` }),
+  formatVersion: z.literal(LOCKFILE_FORMAT_VERSION, { error: `formatVersion must be ${LOCKFILE_FORMAT_VERSION}.` }),
   project: slug,
   entries: z
     .array(
@@ -92,7 +96,7 @@ export async function buildLockFile(project: ProjectRow, now = new Date(), trx: 
       sourceVersion: v.sourceVersionNumber,
     });
   }
-  return { lockfileVersion: LOCKFILE_VERSION, project: project.slug, generatedAt: now.toISOString(), entries, unresolved };
+  return { format: LOCKFILE_FORMAT, formatVersion: LOCKFILE_FORMAT_VERSION, project: project.slug, generatedAt: now.toISOString(), entries, unresolved };
 }
 
 export type FindingCode =

@@ -209,7 +209,8 @@ describe('modeshelf.lock.json', () => {
     const { s, p, lock } = await lockedProject('lockfile');
     const stored = await db()('reduced_versions').where({ reduced_model_id: s.reducedModel.id, number: 1 }).first('matrices_sha256');
     expect(lock).toMatchObject({
-      lockfileVersion: 1,
+      format: 'modeshelf-lock',
+      formatVersion: 1,
       project: p.slug,
       entries: [
         {
@@ -262,9 +263,18 @@ describe('modeshelf.lock.json', () => {
     const foreign = await errorOf(await pull.verify(p.slug, { token: t, body: { ...lock, project: 'someone-else' } }));
     expect(foreign.status).toBe(400);
     expect(foreign.body.error.field).toBe('project');
-    const malformed = await errorOf(await pull.verify(p.slug, { token: t, body: { lockfileVersion: 1, project: p.slug, entries: [{ reducedModel: 'x', version: 'one' }] } }));
+    const malformed = await errorOf(await pull.verify(p.slug, { token: t, body: { format: 'modeshelf-lock', formatVersion: 1, project: p.slug, entries: [{ reducedModel: 'x', version: 'one' }] } }));
     expect(malformed.status).toBe(400);
     expect(malformed.body.error.field).toBe('entries.0.version');
+    // A lock without our format name (e.g. one kept from before the format was named) is refused, naming the field.
+    const { format: _format, ...unnamed } = lock;
+    const noFormat = await errorOf(await pull.verify(p.slug, { token: t, body: unnamed }));
+    expect(noFormat.status).toBe(400);
+    expect(noFormat.body.error.field).toBe('format');
+    expect(noFormat.body.error.message).toContain('modeshelf-lock');
+    const wrongVersion = await errorOf(await pull.verify(p.slug, { token: t, body: { ...lock, formatVersion: 2 } }));
+    expect(wrongVersion.status).toBe(400);
+    expect(wrongVersion.body.error.field).toBe('formatVersion');
   });
 
   it('lists an unresolved pin separately instead of locking a version', async () => {
