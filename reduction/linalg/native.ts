@@ -11,7 +11,7 @@
  */
 import { existsSync } from 'node:fs';
 import path from 'node:path';
-import type { DenseKernels } from './kernels';
+import type { DenseKernels } from './dense-kernels';
 import { type Matrix, type ComplexVector, zeros } from './matrix';
 import type { LuFactorization } from './lu';
 import { linalgThreads, setLinalgThreads } from './parallel';

@@ -14,7 +14,7 @@
  * start the worker, or an answer that does not match a small check product, turns threading off for the
  * rest of the process and the product is computed on the calling thread.
  */
-import { blockedProduct, microKernel4x4, threadKernel, wasmKernelAllowed, MC, KC } from './gemm';
+import { blockedProduct, microKernel4x4, threadKernel, wasmKernelAllowed, MC, KC } from './packed-product';
 import { createPackedKernel } from './wasm/packed-kernel';
 import { GEMM_KERNEL_WASM_HEX } from './wasm/gemm-kernel-binary';
 import { pivotedQrOfRows } from './qr';

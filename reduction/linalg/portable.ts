@@ -3,7 +3,7 @@
  * cites its paper there), for machines where the native addon cannot be built. Slower than LAPACK by a
  * factor of 3–40 depending on the operation (see the README's benchmark), same contracts.
  */
-import type { DenseKernels } from './kernels';
+import type { DenseKernels } from './dense-kernels';
 import { type Matrix, norm1 } from './matrix';
 import { gemm } from './gemm';
 import { luFactor, luSolve, luInverse, type LuFactorization } from './lu';

@@ -8,7 +8,7 @@
 import { ModelError } from '../errors';
 import type { StateSpaceModel } from '../model';
 import type { InputSignal } from './inputs';
-import { simulate } from './index';
+import { simulate } from './simulate';
 import type { SimulationOptions, SimulationResult, SolverName, SolverStats } from './types';
 
 type StatName = keyof SolverStats;

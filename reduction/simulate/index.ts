@@ -1,59 +1,13 @@
 /**
  * Time responses of ẋ = Ax + Bu, y = Cx + Du: the exact (zero-order-hold), explicit (Dormand–Prince
  * 5(4)) and stiff (variable-order NDF/BDF 1–5, `bdf.ts`; TR-BDF2 for fixed steps) solvers behind one
- * entry point, plus `auto`. Inputs are steps, impulses and
+ * entry point (`simulate.ts`), plus `auto`. Inputs are steps, impulses and
  * sampled signals (`inputs.ts`); each result carries the solver's cost figures.
  */
-import type { StateSpaceModel } from '../model';
-import { chooseSolver } from './auto';
-import { simulateExplicit } from './dormand-prince';
-import { simulateExact } from './exact';
-import type { InputSignal } from './inputs';
-import { checkOptions } from './output-grid';
-import { simulateStiff } from './tr-bdf2';
-import { simulateBdf } from './bdf';
-import type { SimulationOptions, SimulationResult, SolverChoice } from './types';
-import { ModelError } from '../errors';
 
 export * from './types';
+export { simulate } from './simulate';
 export { stepInput, impulseInput, parseSampledInput, type InputSignal } from './inputs';
 export { chooseSolver, estimateStiffness } from './auto';
 export { SharedExponentials } from './exact';
 export { simulationCostReport, type SimulationCostReport, type SolverCostRow } from './cost-report';
-
-/** Simulate `model` under `input` with the named solver (or `auto`). Throws ModelError on bad options. */
-export function simulate(
-  model: StateSpaceModel,
-  input: InputSignal,
-  options: SimulationOptions & { solver?: SolverChoice },
-): SimulationResult {
-  if (input.inputs !== model.B.cols) {
-    throw new ModelError('dimension_mismatch', 'input', `the input has ${input.inputs} channels but the model has ${model.B.cols} inputs`);
-  }
-  const opts = checkOptions(options, model.A.rows);
-  const choice = options.solver ?? 'auto';
-  let reason: string | undefined;
-  let solver = choice;
-  if (choice === 'auto') {
-    const picked = chooseSolver(model.A, input, opts);
-    solver = picked.solver;
-    reason = picked.reason;
-  }
-  let result: SimulationResult;
-  switch (solver) {
-    case 'exact':
-      result = simulateExact(model, input, opts);
-      break;
-    case 'explicit':
-      result = simulateExplicit(model, input, opts);
-      break;
-    case 'stiff':
-      // Adaptive runs take the variable-order NDFs; a fixed step (emulating a fixed-step target) takes the
-      // one-step, L-stable TR-BDF2, whose order does not change along the run.
-      result = opts.fixedStep === undefined ? simulateBdf(model, input, opts) : simulateStiff(model, input, opts);
-      break;
-    default:
-      throw new ModelError('invalid_option', 'solver', `solver must be exact, explicit, stiff or auto, got "${String(choice)}"`);
-  }
-  return reason === undefined ? result : { ...result, reason };
-}

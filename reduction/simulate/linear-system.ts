@@ -10,8 +10,6 @@ import type { StateSpaceModel } from '../model';
 import { matVecRows } from '../linalg/matvec';
 import { ParallelMatVec } from './parallel-matvec';
 
-export { matVecRows };
-
 /** out = M·x for a row-major rows×cols matrix (out must not alias x). */
 export function matVec(m: Matrix, x: Float64Array, out: Float64Array): void {
   matVecRows(m.data, m.cols, x, out, 0, m.rows);

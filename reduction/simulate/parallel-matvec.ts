@@ -15,10 +15,10 @@
  * per row is the same in every case (same summation order), so results do not depend on either choice.
  */
 import { linalgThreads } from '../linalg/index';
-import { wasmKernelAllowed } from '../linalg/gemm';
+import { wasmKernelAllowed } from '../linalg/packed-product';
 import type { Matrix } from '../linalg/matrix';
 import { MATVEC_KERNEL_WASM_HEX } from '../linalg/wasm/matvec-kernel-binary';
-import { matVecRows } from './linear-system';
+import { matVecRows } from '../linalg/matvec';
 import { acquireKernelMemory, releaseKernelMemory } from './kernel-memory';
 
 /** Below this many entries the hand-off (~10–30 µs) outweighs half a product. */

@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { assembleWat, binaryModuleSource, KERNELS } from '../../../scripts/build-wasm';
-import { blockedProduct, KC, MC, microKernel4x4, newPackedKernel } from '@/reduction/linalg/gemm';
+import { blockedProduct, KC, MC, microKernel4x4, newPackedKernel } from '@/reduction/linalg/packed-product';
 import { createPackedKernel } from '@/reduction/linalg/wasm/packed-kernel';
 import { GEMM_KERNEL_WASM_HEX } from '@/reduction/linalg/wasm/gemm-kernel-binary';
 import { seeded } from './simulate-reference';

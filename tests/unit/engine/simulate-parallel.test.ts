@@ -5,7 +5,8 @@
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { ParallelMatVec } from '@/reduction/simulate/parallel-matvec';
-import { matVec, matVecRows } from '@/reduction/simulate/linear-system';
+import { matVec } from '@/reduction/simulate/linear-system';
+import { matVecRows } from '@/reduction/linalg/matvec';
 import { IterationMatrix, luSolveVector } from '@/reduction/simulate/iteration-matrix';
 import { pooledKernelBytes } from '@/reduction/simulate/kernel-memory';
 import { linalgThreads, setLinalgThreads, useLinalgBackend, linalgBackendReport } from '@/reduction/linalg';
