@@ -104,9 +104,9 @@ export interface SplitOptions {
 }
 
 /** Newton iteration for sign(X) with Frobenius-norm scaling (Higham 2008, §5.5). */
-export function matrixSign(x0: Matrix): Matrix {
-  const n = x0.rows;
-  let x = x0;
+export function matrixSign(start: Matrix): Matrix {
+  const n = start.rows;
+  let x = start;
   let scaling = true;
   for (let it = 0; it < 100; it++) {
     const xi = inverse(x);

@@ -1,6 +1,6 @@
 /**
  * `simulate MODEL --input step|impulse|FILE.csv --t-end T --solver exact|explicit|stiff|auto
- *  [--rtol R --atol A --points N | --times t1,t2,… --channel K --x0 x1,x2,…]`: a time response with the
+ *  [--rel-tol R --abs-tol A --points N | --times t1,t2,… --channel K --initial-state x1,x2,…]`: a time response with the
  * solver's cost figures (methods: `reduction/simulate/`).
  */
 import { readFileSync } from 'node:fs';
@@ -28,17 +28,17 @@ function channelOf(args: ParsedArgs): string | undefined {
 registerVerb({
   name: 'simulate',
   summary: 'time response to a step, an impulse or a sampled input, with the solver’s cost figures',
-  usage: 'MODEL --input step|impulse|FILE.csv --t-end T [--solver exact|explicit|stiff|auto] [--rtol R] [--atol A] [--points N | --times t1,…] [--channel K] [--x0 x1,…]',
+  usage: 'MODEL --input step|impulse|FILE.csv --t-end T [--solver exact|explicit|stiff|auto] [--rel-tol R] [--abs-tol A] [--points N | --times t1,…] [--channel K] [--initial-state x1,…]',
   options: {
     input: { value: true, description: 'step, impulse, or a CSV file: time, then one column per input (held between samples)' },
     't-end': { value: true, description: 'end time (the simulation starts at 0)' },
     solver: { value: true, description: 'exact (zero-order hold), explicit (Dormand–Prince 5(4)), stiff (variable-order NDF/BDF 1–5; TR-BDF2 at a fixed step) or auto (default)' },
-    rtol: { value: true, description: 'relative tolerance of the adaptive solvers (default 1e-6)' },
-    atol: { value: true, description: 'absolute tolerance of the adaptive solvers (default 1e-9)' },
+    'rel-tol': { value: true, description: 'relative tolerance of the adaptive solvers (default 1e-6)' },
+    'abs-tol': { value: true, description: 'absolute tolerance of the adaptive solvers (default 1e-9)' },
     points: { value: true, description: 'number of output points on a uniform grid over [0, T] (default 201)' },
     times: { value: true, description: 'output times instead of a grid, comma-separated, increasing' },
     channel: { value: true, description: 'input channel of the step or impulse: 1-based number, input name, or all (default)' },
-    x0: { value: true, description: 'initial state, comma-separated (default zeros)' },
+    'initial-state': { value: true, description: 'initial state, comma-separated (default zeros)' },
   },
   run(args) {
     const model = loadModelArgument(args.positionals);
@@ -65,11 +65,11 @@ registerVerb({
     const result = simulate(model, input, {
       tEnd,
       solver: solverOf(args),
-      rtol: numberOption(args, 'rtol'),
-      atol: numberOption(args, 'atol'),
+      relTol: numberOption(args, 'rel-tol'),
+      absTol: numberOption(args, 'abs-tol'),
       points: integerOption(args, 'points'),
       times: numberListOption(args, 'times'),
-      x0: numberListOption(args, 'x0'),
+      initialState: numberListOption(args, 'initial-state'),
     });
     const s = result.stats;
     return {

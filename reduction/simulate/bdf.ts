@@ -55,15 +55,15 @@ const MIN_FACTOR = 0.2;
 /**
  * At a selection point, a raise of h by less than this factor at the same order is skipped: each change
  * of h costs a factorisation of I − cA (n³/3 multiplications, a few hundred steps' worth at n = 1000).
- * Our choice, measured on the benchmark model (n = 300, rtol 1e-6): 31 factorisations instead of 39 for
- * 217 steps instead of 210; on the 3-state test model at most 4 % more steps over rtol 1e-3…1e-8.
+ * Our choice, measured on the benchmark model (n = 300, relTol 1e-6): 31 factorisations instead of 39 for
+ * 217 steps instead of 210; on the 3-state test model at most 4 % more steps over relTol 1e-3…1e-8.
  */
 const SMALLEST_WORTHWHILE_RAISE = 1.2;
 const MAX_FACTOR = 10;
 /**
  * Safety factor on the predicted step. Codes with a Newton iteration lower 0.9 as the iteration count
  * grows; here the one linear solve is exact, so the factor stays 0.9. Measured on the 3-state test model
- * (rates 0.8, 25, 2000 s⁻¹) over rtol 1e-3…1e-8: 0.9 took 4–8 % fewer steps than 0.81, rejections included.
+ * (rates 0.8, 25, 2000 s⁻¹) over relTol 1e-3…1e-8: 0.9 took 4–8 % fewer steps than 0.81, rejections included.
  */
 const SAFETY = 0.9;
 
@@ -112,11 +112,11 @@ function rescaleDifferences(D: Float64Array, n: number, order: number, ratio: nu
   D.set(scratch.subarray(0, s * n));
 }
 
-/** Weighted RMS norm of v with scale atol + rtol·|y| (HNW93 eq. II.4.11 with the new value as scale). */
-function scaledNorm(v: Float64Array, vOff: number, y: Float64Array, n: number, rtol: number, atol: number): number {
+/** Weighted RMS norm of v with scale absTol + relTol·|y| (HNW93 eq. II.4.11 with the new value as scale). */
+function scaledNorm(v: Float64Array, vOff: number, y: Float64Array, n: number, relTol: number, absTol: number): number {
   let s = 0;
   for (let i = 0; i < n; i++) {
-    const r = v[vOff + i] / (atol + rtol * Math.abs(y[i]));
+    const r = v[vOff + i] / (absTol + relTol * Math.abs(y[i]));
     s += r * r;
   }
   return Math.sqrt(s / n);
@@ -170,9 +170,9 @@ export function simulateBdf(model: StateSpaceModel, input: InputSignal, opts: Ch
   try {
     const n = system.n;
     const recorder = new OutputRecorder(opts.times, system, input);
-    const { rtol, atol } = opts;
+    const { relTol, absTol } = opts;
 
-    const x = Float64Array.from(opts.x0);
+    const x = Float64Array.from(opts.initialState);
     if (input.impulseWeights) {
       const jump = system.inputTerm(input.impulseWeights);
       for (let i = 0; i < n; i++) x[i] += jump[i];
@@ -205,7 +205,7 @@ export function simulateBdf(model: StateSpaceModel, input: InputSignal, opts: Ch
 
       // (Re)start at order 1: ∇⁰ = x, ∇¹ = h·f(x).
       system.rhs(x, b, f);
-      let h = startingStep(system, x, b, f, tStop - t, rtol, atol, 1);
+      let h = startingStep(system, x, b, f, tStop - t, relTol, absTol, 1);
       if (hPrevious > 0) h = Math.min(h, hPrevious);
       D.fill(0);
       D.set(x, 0);
@@ -219,7 +219,7 @@ export function simulateBdf(model: StateSpaceModel, input: InputSignal, opts: Ch
         }
         const minStep = 10 * Math.abs(t) * Number.EPSILON + Number.MIN_VALUE;
         if (!(h > minStep)) {
-          throw new ModelError('invalid_option', 'rtol', `the stiff solver's step fell below ${minStep} at t = ${t}; loosen rtol or atol`);
+          throw new ModelError('invalid_option', 'relTol', `the stiff solver's step fell below ${minStep} at t = ${t}; loosen relTol or absTol`);
         }
         let landing = false;
         if (!mayOvershoot && t + h >= tStop - 1e-12 * Math.max(1, Math.abs(tStop))) {
@@ -252,7 +252,7 @@ export function simulateBdf(model: StateSpaceModel, input: InputSignal, opts: Ch
           let s = 0;
           const ec = NDF_ERROR_CONSTANT[order];
           for (let i = 0; i < n; i++) {
-            const v = (ec * d[i]) / (atol + rtol * Math.abs(yNew[i]));
+            const v = (ec * d[i]) / (absTol + relTol * Math.abs(yNew[i]));
             s += v * v;
           }
           errNorm = Math.sqrt(s / n);
@@ -292,8 +292,8 @@ export function simulateBdf(model: StateSpaceModel, input: InputSignal, opts: Ch
         if (equalSteps < order + 1) continue;
 
         // Order and step selection from the estimates of orders k − 1, k, k + 1.
-        const errLower = order > 1 ? scaledNorm(scaleInto(scratch, D, order * n, n, NDF_ERROR_CONSTANT[order - 1]), 0, yNew, n, rtol, atol) : Infinity;
-        const errHigher = order < maxOrder ? scaledNorm(scaleInto(scratch, D, (order + 2) * n, n, NDF_ERROR_CONSTANT[order + 1]), 0, yNew, n, rtol, atol) : Infinity;
+        const errLower = order > 1 ? scaledNorm(scaleInto(scratch, D, order * n, n, NDF_ERROR_CONSTANT[order - 1]), 0, yNew, n, relTol, absTol) : Infinity;
+        const errHigher = order < maxOrder ? scaledNorm(scaleInto(scratch, D, (order + 2) * n, n, NDF_ERROR_CONSTANT[order + 1]), 0, yNew, n, relTol, absTol) : Infinity;
         const fLower = Math.pow(errLower, -1 / order);
         const fSame = Math.pow(errNorm, -1 / (order + 1));
         const fHigher = Math.pow(errHigher, -1 / (order + 2));

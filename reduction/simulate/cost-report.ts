@@ -27,8 +27,8 @@ export interface SolverCostRow {
 export interface SimulationCostReport {
   input: string;
   tEnd: number;
-  rtol: number | undefined;
-  atol: number | undefined;
+  relTol: number | undefined;
+  absTol: number | undefined;
   fullStates: number;
   reducedStates: number;
   rows: SolverCostRow[];
@@ -65,8 +65,8 @@ export function simulationCostReport(
       `the reduced model has ${reduced.B.cols} inputs and ${reduced.C.rows} outputs, the full model ${full.B.cols} and ${full.C.rows}`,
     );
   }
-  if (options.x0 !== undefined) {
-    throw new ModelError('invalid_option', 'x0', 'a cost report compares responses from rest; x0 cannot be mapped to the reduced state');
+  if (options.initialState !== undefined) {
+    throw new ModelError('invalid_option', 'initialState', 'a cost report compares responses from rest; initialState cannot be mapped to the reduced state');
   }
   const rows: SolverCostRow[] = [];
   let reference: { abs: number; scale: number } | null = null;
@@ -82,8 +82,8 @@ export function simulationCostReport(
   return {
     input: input.description,
     tEnd: options.tEnd,
-    rtol: options.rtol,
-    atol: options.atol,
+    relTol: options.relTol,
+    absTol: options.absTol,
     fullStates: full.A.rows,
     reducedStates: reduced.A.rows,
     rows,

@@ -63,9 +63,9 @@ export function simulateExplicit(model: StateSpaceModel, input: InputSignal, opt
   try {
     const n = system.n;
     const recorder = new OutputRecorder(opts.times, system, input);
-    const { rtol, atol } = opts;
+    const { relTol, absTol } = opts;
 
-    const x = Float64Array.from(opts.x0);
+    const x = Float64Array.from(opts.initialState);
     if (input.impulseWeights) {
       const jump = system.inputTerm(input.impulseWeights);
       for (let i = 0; i < n; i++) x[i] += jump[i];
@@ -93,7 +93,7 @@ export function simulateExplicit(model: StateSpaceModel, input: InputSignal, opt
       const tStop = interval.end;
       system.rhs(x, b, k1); // the input may have jumped: first-same-as-last does not carry over
       if (opts.fixedStep !== undefined) h = opts.fixedStep;
-      else if (!(h > 0)) h = startingStep(system, x, b, k1, tStop - t, rtol, atol);
+      else if (!(h > 0)) h = startingStep(system, x, b, k1, tStop - t, relTol, absTol);
 
       while (t < tStop && !recorder.done) {
         if (steps + rejected >= opts.maxSteps) {
@@ -130,7 +130,7 @@ export function simulateExplicit(model: StateSpaceModel, input: InputSignal, opt
           for (let i = 0; i < n; i++) {
             err[i] = h * (E1 * k1[i] + E3 * k3[i] + E4 * k4[i] + E5 * k5[i] + E6 * k6[i] + E7 * k7[i]);
           }
-          errNorm = errorNorm(err, x, xNew, rtol, atol);
+          errNorm = errorNorm(err, x, xNew, relTol, absTol);
           accept = errNorm <= 1;
         }
         if (!accept) {
@@ -208,14 +208,14 @@ export function startingStep(
   b: Float64Array,
   f0: Float64Array,
   span: number,
-  rtol: number,
-  atol: number,
+  relTol: number,
+  absTol: number,
   order = 5,
 ): number {
   const n = system.n;
   let d0 = 0, d1 = 0;
   for (let i = 0; i < n; i++) {
-    const sc = atol + rtol * Math.abs(x[i]);
+    const sc = absTol + relTol * Math.abs(x[i]);
     d0 += (x[i] / sc) ** 2;
     d1 += (f0[i] / sc) ** 2;
   }
@@ -229,7 +229,7 @@ export function startingStep(
   system.rhs(x1, b, f1);
   let d2 = 0;
   for (let i = 0; i < n; i++) {
-    const sc = atol + rtol * Math.abs(x[i]);
+    const sc = absTol + relTol * Math.abs(x[i]);
     d2 += ((f1[i] - f0[i]) / sc) ** 2;
   }
   d2 = Math.sqrt(d2 / n) / h0;

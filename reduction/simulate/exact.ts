@@ -132,7 +132,7 @@ export function simulateExact(model: StateSpaceModel, input: InputSignal, opts: 
       inputVector = (piece) => input.values[piece];
     }
 
-    const x = Float64Array.from(opts.x0);
+    const x = Float64Array.from(opts.initialState);
     if (input.impulseWeights) {
       const jump = system.inputTerm(input.impulseWeights);
       for (let i = 0; i < n; i++) x[i] += jump[i];

@@ -8,16 +8,16 @@ import { type Matrix, zeros } from '../linalg/matrix';
 import type { InputSignal } from './inputs';
 import { pieceAfter, pieceAt } from './inputs';
 import type { LinearSystem } from './linear-system';
-import { DEFAULT_ATOL, DEFAULT_POINTS, DEFAULT_RTOL, type SharedExponentialStore, type SimulationOptions } from './types';
+import { DEFAULT_ABS_TOL, DEFAULT_POINTS, DEFAULT_REL_TOL, type SharedExponentialStore, type SimulationOptions } from './types';
 
 export interface CheckedOptions {
   tEnd: number;
-  rtol: number;
-  atol: number;
+  relTol: number;
+  absTol: number;
   times: Float64Array;
   /** True when `times` is the uniform grid k·tEnd/(N−1). */
   uniform: boolean;
-  x0: Float64Array;
+  initialState: Float64Array;
   fixedStep?: number;
   maxSteps: number;
   /** Exponentials shared with other exact runs of the same model (see exact.ts, SharedExponentials). */
@@ -34,14 +34,14 @@ function positive(v: unknown, field: string, what: string): number {
 /** Validate simulation options against a model with n states. Throws invalid_option naming the option. */
 export function checkOptions(opts: SimulationOptions, n: number): CheckedOptions {
   const tEnd = positive(opts.tEnd, 'tEnd', 'the end time of the simulation');
-  const rtol = opts.rtol ?? DEFAULT_RTOL;
-  const atol = opts.atol ?? DEFAULT_ATOL;
-  if (typeof rtol !== 'number' || !(rtol >= 1e-13 && rtol < 1)) {
-    throw new ModelError('invalid_option', 'rtol', `rtol must be between 1e-13 and 1, got ${String(rtol)}`);
+  const relTol = opts.relTol ?? DEFAULT_REL_TOL;
+  const absTol = opts.absTol ?? DEFAULT_ABS_TOL;
+  if (typeof relTol !== 'number' || !(relTol >= 1e-13 && relTol < 1)) {
+    throw new ModelError('invalid_option', 'relTol', `relTol must be between 1e-13 and 1, got ${String(relTol)}`);
   }
-  // A step from rest starts at x = 0, where a purely relative tolerance means nothing: atol must be > 0.
-  if (typeof atol !== 'number' || !(atol > 0) || !Number.isFinite(atol)) {
-    throw new ModelError('invalid_option', 'atol', `atol must be a positive finite number, got ${String(atol)}`);
+  // A step from rest starts at x = 0, where a purely relative tolerance means nothing: absTol must be > 0.
+  if (typeof absTol !== 'number' || !(absTol > 0) || !Number.isFinite(absTol)) {
+    throw new ModelError('invalid_option', 'absTol', `absTol must be a positive finite number, got ${String(absTol)}`);
   }
   let times: Float64Array;
   let uniform = false;
@@ -70,20 +70,20 @@ export function checkOptions(opts: SimulationOptions, n: number): CheckedOptions
     times[points - 1] = tEnd;
     uniform = true;
   }
-  const x0 = new Float64Array(n);
-  if (opts.x0 !== undefined) {
-    if (opts.x0.length !== n) {
-      throw new ModelError('dimension_mismatch', 'x0', `x0 has ${opts.x0.length} entries but the model has ${n} states`);
+  const initialState = new Float64Array(n);
+  if (opts.initialState !== undefined) {
+    if (opts.initialState.length !== n) {
+      throw new ModelError('dimension_mismatch', 'initialState', `initialState has ${opts.initialState.length} entries but the model has ${n} states`);
     }
     for (let i = 0; i < n; i++) {
-      if (!Number.isFinite(opts.x0[i])) throw new ModelError('non_finite', 'x0', `x0 entry ${i + 1} is not finite`);
-      x0[i] = opts.x0[i];
+      if (!Number.isFinite(opts.initialState[i])) throw new ModelError('non_finite', 'initialState', `initialState entry ${i + 1} is not finite`);
+      initialState[i] = opts.initialState[i];
     }
   }
   if (opts.fixedStep !== undefined) positive(opts.fixedStep, 'fixedStep', 'the fixed step size');
   const maxSteps = opts.maxSteps ?? 1_000_000;
   positive(maxSteps, 'maxSteps', 'the safety limit on steps');
-  return { tEnd, rtol, atol, times, uniform, x0, fixedStep: opts.fixedStep, maxSteps, sharedExponentials: opts.sharedExponentials };
+  return { tEnd, relTol, absTol, times, uniform, initialState, fixedStep: opts.fixedStep, maxSteps, sharedExponentials: opts.sharedExponentials };
 }
 
 export class OutputRecorder {
@@ -145,12 +145,12 @@ export function constantInputIntervals(input: InputSignal, tEnd: number): { star
   return out;
 }
 
-/** Weighted RMS norm of e with scale atol + rtol·max(|a|, |b|) (Hairer, Nørsett & Wanner 1993, eq. II.4.11). */
-export function errorNorm(e: Float64Array, a: Float64Array, b: Float64Array, rtol: number, atol: number): number {
+/** Weighted RMS norm of e with scale absTol + relTol·max(|a|, |b|) (Hairer, Nørsett & Wanner 1993, eq. II.4.11). */
+export function errorNorm(e: Float64Array, a: Float64Array, b: Float64Array, relTol: number, absTol: number): number {
   let s = 0;
   const n = e.length;
   for (let i = 0; i < n; i++) {
-    const sc = atol + rtol * Math.max(Math.abs(a[i]), Math.abs(b[i]));
+    const sc = absTol + relTol * Math.max(Math.abs(a[i]), Math.abs(b[i]));
     const r = e[i] / sc;
     s += r * r;
   }

@@ -68,10 +68,10 @@ export function simulateStiff(model: StateSpaceModel, input: InputSignal, opts: 
   try {
     const n = system.n;
     const recorder = new OutputRecorder(opts.times, system, input);
-    const { rtol, atol } = opts;
+    const { relTol, absTol } = opts;
     const d = TRBDF2_D, w = TRBDF2_W;
 
-    const x = Float64Array.from(opts.x0);
+    const x = Float64Array.from(opts.initialState);
     if (input.impulseWeights) {
       const jump = system.inputTerm(input.impulseWeights);
       for (let i = 0; i < n; i++) x[i] += jump[i];
@@ -96,7 +96,7 @@ export function simulateStiff(model: StateSpaceModel, input: InputSignal, opts: 
       const tStop = interval.end;
       system.rhs(x, b, f1);
       if (opts.fixedStep !== undefined) h = opts.fixedStep;
-      else if (!(h > 0)) h = startingStep(system, x, b, f1, tStop - t, rtol, atol, 2);
+      else if (!(h > 0)) h = startingStep(system, x, b, f1, tStop - t, relTol, absTol, 2);
 
       // Equal steps up to an interior jump, planned once per step size so the factorisation is reused.
       let plan: { h: number; step: number; left: number } | null = null;
@@ -135,7 +135,7 @@ export function simulateStiff(model: StateSpaceModel, input: InputSignal, opts: 
         if (opts.fixedStep === undefined) {
           for (let i = 0; i < n; i++) err[i] = hStep * (E1 * f1[i] + E2 * f2[i] + E3 * f3[i]);
           W.solve(lu, err);
-          errNorm = errorNorm(err, x, y3, rtol, atol);
+          errNorm = errorNorm(err, x, y3, relTol, absTol);
           if (errNorm > 1) {
             rejected++;
             h = hStep * Math.max(FAC_MIN, Math.min(SAFETY, SAFETY * Math.pow(errNorm, -1 / 3)));

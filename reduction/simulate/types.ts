@@ -26,14 +26,14 @@ export interface SimulationOptions {
   /** End time (the simulation starts at t = 0). */
   tEnd: number;
   /** Relative and absolute tolerances of the adaptive solvers (ignored by `exact`). */
-  rtol?: number;
-  atol?: number;
+  relTol?: number;
+  absTol?: number;
   /** Output on a uniform grid of this many points over [0, tEnd] (default 201)… */
   points?: number;
   /** …or at these times (increasing, inside [0, tEnd]). */
   times?: readonly number[];
   /** Initial state (zeros by default). */
-  x0?: readonly number[];
+  initialState?: readonly number[];
   /**
    * Fixed step instead of error control (adaptive solvers only): for order checks and to emulate a
    * fixed-step real-time target. The last step of each input interval is shortened to land on it.
@@ -67,6 +67,6 @@ export interface SimulationResult {
   reason?: string;
 }
 
-export const DEFAULT_RTOL = 1e-6;
-export const DEFAULT_ATOL = 1e-9;
+export const DEFAULT_REL_TOL = 1e-6;
+export const DEFAULT_ABS_TOL = 1e-9;
 export const DEFAULT_POINTS = 201;

@@ -7,10 +7,10 @@
  *   exact-step      exact step response at 2000 points: our ZOH recursion (expm, Al-Mohy & Higham 2009 /
  *                   Higham 2005; Van Loan 1978) vs scipy.linalg.expm of the augmented matrix plus the
  *                   recursion in numpy. Requirement (issue 4): within 5× of the reference at n = 1000.
- *   explicit-stiff  Dormand–Prince 5(4) vs solve_ivp(method='RK45'), rtol 1e-6, atol 1e-9, 201 points
+ *   explicit-stiff  Dormand–Prince 5(4) vs solve_ivp(method='RK45'), relTol 1e-6, absTol 1e-9, 201 points
  *   stiff-stiff     the stiff solver (variable-order NDF/BDF 1–5, reduction/simulate/bdf.ts) vs
  *                   solve_ivp(method='BDF', jac=A), same tolerances
- *   stiff-steps     the stiff solver at rtol 1e-3 … 1e-8 (atol = rtol·1e-3), all six runs timed together,
+ *   stiff-steps     the stiff solver at relTol 1e-3 … 1e-8 (absTol = relTol·1e-3), all six runs timed together,
  *                   against solve_ivp BDF over the same tolerances; the check prints our accepted steps
  *                   beside scipy's BDF and Radau (jac=A) at each tolerance (issue 15: ours ≤ 1.3× BDF's)
  *
@@ -55,13 +55,13 @@ function agreement(dir: string, r: SimulationResult): string {
   return `max |Δy|/max|y| ${(diff / scale).toExponential(1)}; ${ours}${theirs}`;
 }
 
-const STEP_RTOLS = [1e-3, 1e-4, 1e-5, 1e-6, 1e-7, 1e-8];
+const STEP_REL_TOLS = [1e-3, 1e-4, 1e-5, 1e-6, 1e-7, 1e-8];
 
 /** Our steps beside scipy's BDF and Radau at each tolerance, from ref_stats.json of the reference run. */
 function stepCounts(dir: string, results: SimulationResult[]): string {
   const ref = JSON.parse(readFileSync(path.join(dir, 'ref_stats.json'), 'utf8')) as { BDF: number[]; Radau: number[] };
   const worst = Math.max(...results.map((r, k) => r.stats.steps / ref.BDF[k]));
-  const rows = STEP_RTOLS.map((rtol, k) => `${rtol.toExponential(0)}: ${results[k].stats.steps}/${ref.BDF[k]}/${ref.Radau[k]}`);
+  const rows = STEP_REL_TOLS.map((relTol, k) => `${relTol.toExponential(0)}: ${results[k].stats.steps}/${ref.BDF[k]}/${ref.Radau[k]}`);
   return `steps ours/BDF/Radau ${rows.join(', ')}; worst ours÷BDF ${worst.toFixed(2)}`;
 }
 
@@ -69,7 +69,7 @@ function timeCase(
   id: 'exact-step' | 'explicit-stiff' | 'stiff-stiff',
   solver: SolverName,
   title: string,
-  tolerances: { rtol?: number; atol?: number },
+  tolerances: { relTol?: number; absTol?: number },
 ): BenchCase<TimeInput, SimulationResult> {
   return {
     id,
@@ -89,11 +89,11 @@ function timeCase(
 
 export const cases: BenchCase[] = [
   timeCase('exact-step', 'exact', 'exact step response, 2000 points (required ≤ 5× at n = 1000)', {}),
-  timeCase('explicit-stiff', 'explicit', 'Dormand–Prince 5(4) on a stiff model vs solve_ivp RK45', { rtol: 1e-6, atol: 1e-9 }),
-  timeCase('stiff-stiff', 'stiff', 'variable-order stiff solver on a stiff model vs solve_ivp BDF', { rtol: 1e-6, atol: 1e-9 }),
+  timeCase('explicit-stiff', 'explicit', 'Dormand–Prince 5(4) on a stiff model vs solve_ivp RK45', { relTol: 1e-6, absTol: 1e-9 }),
+  timeCase('stiff-stiff', 'stiff', 'variable-order stiff solver on a stiff model vs solve_ivp BDF', { relTol: 1e-6, absTol: 1e-9 }),
   {
     id: 'stiff-steps',
-    title: 'stiff solver at rtol 1e-3…1e-8 vs solve_ivp BDF; steps beside BDF and Radau',
+    title: 'stiff solver at relTol 1e-3…1e-8 vs solve_ivp BDF; steps beside BDF and Radau',
     sizes: [1000],
     quickSizes: [100],
     warmupSize: 30,
@@ -101,8 +101,8 @@ export const cases: BenchCase[] = [
     reference: (n, dir) => ({ command: PYTHON, args: [REFERENCE, 'bench', 'stiff-steps', String(n), dir] }),
     prepare: (dir) => readInput(dir),
     run: ({ model, times }) =>
-      STEP_RTOLS.map((rtol) =>
-        simulate(model, stepInput(model), { tEnd: times[times.length - 1], times, solver: 'stiff', rtol, atol: rtol * 1e-3 }),
+      STEP_REL_TOLS.map((relTol) =>
+        simulate(model, stepInput(model), { tEnd: times[times.length - 1], times, solver: 'stiff', relTol, absTol: relTol * 1e-3 }),
       ),
     check: (dir, _input, results) => stepCounts(dir, results),
   } satisfies BenchCase<TimeInput, SimulationResult[]>,

@@ -16,22 +16,22 @@ Requests:
       -> {"y": [...], "seconds": {"expm": s, "recursion": s}}
                                              expm of the augmented matrix [[A, B],[0, 0]]·ts (Van Loan 1978)
                                              then x_{k+1} = Phi x_k + Gamma u: the benchmark's reference
-  {"op": "sampled_zoh", "A","B","C","D", "sample_t": [..], "sample_u": [[..]], "t": [..], "x0": [..]}
+  {"op": "sampled_zoh", "A","B","C","D", "sample_t": [..], "sample_u": [[..]], "t": [..], "initial_state": [..]}
       -> {"y": [[..] per t]}                 exact response to u held between samples (zero before the
                                              first): expm of [[A, B],[0, 0]]*dt on every sub-interval
   {"op": "impulse", "A","B","C", "t": [..], "w": [..]}
       -> {"y": [[..] per t]}                 y(t) = C e^{At} B w, e^{At} by scipy.linalg.expm
   bench CASE N DIR [--no-time]          (command line, not stdin) the benchmark's reference: see bench()
   {"op": "solve_ivp", "A","B","C", "u": [..], "t_end", "t_eval": [..], "method": "RK45"|"BDF",
-   "rtol", "atol"}
+   "rel_tol", "abs_tol"}
       -> {"y", "nfev", "njev", "nlu", "seconds"} scipy.integrate.solve_ivp with the constant Jacobian A
-  {"op": "step_counts", "A","B","u": [..], "t_end", "methods": ["RK45","BDF","Radau"], "rtols": [..],
-   "atol" or "atol_factor", "x0" (optional, zeros by default)}
-      -> {"counts": {method: [{"rtol", "atol", "steps", "nfev", "nlu", "status"} per rtol]}}
-                                             accepted steps of scipy.integrate.solve_ivp from x0 (no
+  {"op": "step_counts", "A","B","u": [..], "t_end", "methods": ["RK45","BDF","Radau"], "rel_tols": [..],
+   "abs_tol" or "abs_tol_factor", "initial_state" (optional, zeros by default)}
+      -> {"counts": {method: [{"rel_tol", "abs_tol", "steps", "nfev", "nlu", "status"} per rel_tol]}}
+                                             accepted steps of scipy.integrate.solve_ivp from initial_state (no
                                              t_eval, so sol.t holds every step: steps = len(sol.t) - 1),
-                                             with the constant Jacobian A for BDF and Radau; atol is
-                                             fixed, or rtol * atol_factor
+                                             with the constant Jacobian A for BDF and Radau; abs_tol is
+                                             fixed, or rel_tol * abs_tol_factor
 """
 import json
 import os
@@ -85,32 +85,32 @@ BENCH = {
     "stiff-steps": (4.0, 201, "BDF"),
 }
 
-# The tolerances of the step-count case (atol = rtol * 1e-3), issue 15.
-STEP_RTOLS = [1e-3, 1e-4, 1e-5, 1e-6, 1e-7, 1e-8]
+# The relative tolerances of the step-count case (absolute = relative * 1e-3), issue 15.
+STEP_REL_TOLS = [1e-3, 1e-4, 1e-5, 1e-6, 1e-7, 1e-8]
 
 
 def stiff_steps(a, b, t_end, out, timed):
     """The "stiff-steps" case: accepted steps of solve_ivp BDF and Radau (jac=A; no t_eval, so sol.t holds
-    every step) at each tolerance of STEP_RTOLS, written to ref_stats.json; the time is the BDF runs over
+    every step) at each tolerance of STEP_REL_TOLS, written to ref_stats.json; the time is the BDF runs over
     all tolerances (best of three, fewer when they pass 10 s in all)."""
     n = a.shape[0]
     bu = b[:, 0]
 
-    def run(method, rtol):
+    def run(method, rel_tol):
         return scipy.integrate.solve_ivp(lambda _t, x: a @ x + bu, (0.0, t_end), np.zeros(n), method=method,
-                                         rtol=rtol, atol=rtol * 1e-3, jac=a)
+                                         rtol=rel_tol, atol=rel_tol * 1e-3, jac=a)
 
     if not timed:
         return None
     runs = []
     while True:
         t0 = time.perf_counter()
-        bdf = [run("BDF", rtol) for rtol in STEP_RTOLS]
+        bdf = [run("BDF", rel_tol) for rel_tol in STEP_REL_TOLS]
         runs.append(time.perf_counter() - t0)
         if sum(runs) > 10.0 or (len(runs) >= 3 and sum(runs) >= 1.0) or len(runs) >= 50:
             break
-    radau = [run("Radau", rtol) for rtol in STEP_RTOLS]
-    stats = {"rtols": STEP_RTOLS,
+    radau = [run("Radau", rel_tol) for rel_tol in STEP_REL_TOLS]
+    stats = {"rel_tols": STEP_REL_TOLS,
              "BDF": [int(len(s.t) - 1) for s in bdf], "Radau": [int(len(s.t) - 1) for s in radau],
              "BDFnlu": [int(s.nlu) for s in bdf], "Radaunlu": [int(s.nlu) for s in radau]}
     with open(os.path.join(out, "ref_stats.json"), "w") as f:
@@ -234,7 +234,7 @@ def main():
             E = scipy.linalg.expm(M)
             return E[:n, :n] @ x + E[:n, n:] @ u
 
-        x = arr(req["x0"])
+        x = arr(req["initial_state"])
         t = 0.0
         ys = []
         for tout in req["t"]:
@@ -254,8 +254,8 @@ def main():
         n = A.shape[0]
         t0 = time.perf_counter()
         sol = scipy.integrate.solve_ivp(lambda t, x: A @ x + b, (0.0, req["t_end"]), np.zeros(n),
-                                        method=req["method"], t_eval=req["t_eval"], rtol=req["rtol"],
-                                        atol=req["atol"], jac=(A if req["method"] == "BDF" else None))
+                                        method=req["method"], t_eval=req["t_eval"], rtol=req["rel_tol"],
+                                        atol=req["abs_tol"], jac=(A if req["method"] == "BDF" else None))
         seconds = time.perf_counter() - t0
         y = (C @ sol.y).T
         out = {"y": y.tolist() if req.get("return_y", True) else None, "nfev": int(sol.nfev),
@@ -268,13 +268,13 @@ def main():
         counts = {}
         for method in req["methods"]:
             rows = []
-            for rtol in req["rtols"]:
-                atol = req["atol"] if "atol" in req else rtol * req["atol_factor"]
-                x0 = np.asarray(req.get("x0", np.zeros(n)), dtype=float)
-                sol = scipy.integrate.solve_ivp(lambda t, x: A @ x + b, (0.0, req["t_end"]), x0,
-                                                method=method, rtol=rtol, atol=atol,
+            for rel_tol in req["rel_tols"]:
+                abs_tol = req["abs_tol"] if "abs_tol" in req else rel_tol * req["abs_tol_factor"]
+                initial_state = np.asarray(req.get("initial_state", np.zeros(n)), dtype=float)
+                sol = scipy.integrate.solve_ivp(lambda t, x: A @ x + b, (0.0, req["t_end"]), initial_state,
+                                                method=method, rtol=rel_tol, atol=abs_tol,
                                                 jac=(A if method in ("BDF", "Radau") else None))
-                rows.append({"rtol": rtol, "atol": atol, "steps": int(len(sol.t) - 1), "nfev": int(sol.nfev),
+                rows.append({"rel_tol": rel_tol, "abs_tol": abs_tol, "steps": int(len(sol.t) - 1), "nfev": int(sol.nfev),
                              "nlu": int(sol.nlu), "status": int(sol.status)})
             counts[method] = rows
         out = {"counts": counts}

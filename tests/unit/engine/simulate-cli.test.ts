@@ -30,7 +30,7 @@ describe('simulate verb', () => {
     const steady = solve(model.A, { rows: 3, cols: 1, data: Float64Array.of(1, 1, 2) }); // B·[1, 1]
     const yInf = -(steady.data[0] + steady.data[1]); // C = [1, 1, 0]
     for (const solver of ['exact', 'explicit', 'stiff']) {
-      const r = cli([...MTX_MODEL, '--input', 'step', '--t-end', '12', '--points', '7', '--solver', solver, '--rtol', '1e-8', '--atol', '1e-11']);
+      const r = cli([...MTX_MODEL, '--input', 'step', '--t-end', '12', '--points', '7', '--solver', solver, '--rel-tol', '1e-8', '--abs-tol', '1e-11']);
       expect(r.code).toBe(0);
       expect(r.out.solver).toBe(solver);
       const t = r.out.t as number[];

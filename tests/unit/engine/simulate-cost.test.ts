@@ -19,7 +19,7 @@ const full = assembleModel({
 const reduced = assembleModel({ A: fromRows([[-1, 0], [0, -2]]), B: fromRows([[1], [1]]), C: fromRows([[1, 1]]) });
 
 describe('simulation-cost report', () => {
-  const report = simulationCostReport(full, reduced, stepInput(full), { tEnd: 8, points: 81, rtol: 1e-4, atol: 1e-8 });
+  const report = simulationCostReport(full, reduced, stepInput(full), { tEnd: 8, points: 81, relTol: 1e-4, absTol: 1e-8 });
 
   it('has one row per solver with both models’ figures and full ÷ reduced ratios', () => {
     expect(report.rows.map((r) => r.solver)).toEqual(['exact', 'explicit', 'stiff']);

@@ -127,9 +127,9 @@ describe('ParallelMatVec', () => {
     const input = stepInput(model);
     for (const solver of ['exact', 'explicit', 'stiff'] as const) {
       setLinalgThreads(1);
-      const one = simulate(model, input, { tEnd: 0.5, points: 11, solver, rtol: 1e-4, atol: 1e-7 });
+      const one = simulate(model, input, { tEnd: 0.5, points: 11, solver, relTol: 1e-4, absTol: 1e-7 });
       setLinalgThreads(2);
-      const two = simulate(model, input, { tEnd: 0.5, points: 11, solver, rtol: 1e-4, atol: 1e-7 });
+      const two = simulate(model, input, { tEnd: 0.5, points: 11, solver, relTol: 1e-4, absTol: 1e-7 });
       expect(Array.from(two.y.data)).toEqual(Array.from(one.y.data));
       expect(two.stats.steps).toBe(one.stats.steps);
     }

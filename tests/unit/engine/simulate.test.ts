@@ -84,14 +84,14 @@ describe('exact solver against scipy closed forms', () => {
   it('sampled CSV input held between samples, with an initial state, matches an interval-by-interval scipy recursion', () => {
     const model = modelWithRates(logRates(5, 0.5, 50), 2, 2, 21, 2);
     const input = parseSampledInput(fixture('sampled_two_inputs_crlf.csv'), 2, 'sampled_two_inputs_crlf.csv');
-    const x0 = [0.1, -0.2, 0.3, 0, 0.5];
-    const r = simulate(model, input, { tEnd: 1.2, points: 25, solver: 'exact', x0 });
+    const initialState = [0.1, -0.2, 0.3, 0, 0.5];
+    const r = simulate(model, input, { tEnd: 1.2, points: 25, solver: 'exact', initialState });
     const ref = scipyReference<{ y: number[][] }>({
       op: 'sampled_zoh', A: rows(model.A), B: rows(model.B), C: rows(model.C), D: rows(model.D),
       // Grid times k·T/(N−1) land a rounding error before the jumps at 0.45 and 0.9; the solver takes them
       // as at the jump (right-continuous input), so the reference gets the decimal times.
       sample_t: [0, 0.2, 0.45, 0.9], sample_u: [[1, 0], [0.5, 1], [0, -1], [2, 0.25]],
-      t: Array.from(r.t, (t) => Number(t.toPrecision(12))), x0,
+      t: Array.from(r.t, (t) => Number(t.toPrecision(12))), initial_state: initialState,
     });
     expect(relativeError(r.y, ref.y)).toBeLessThan(1e-10);
   });
@@ -131,12 +131,12 @@ describe('exact solver: block recursion (m steps per product with Φ^m, exact-bl
   it('a sampled input held over long stretches, with an initial state, matches the interval-by-interval scipy recursion', () => {
     const csv = 'time,a,b\n0,1,0\n1,0.5,-1\n2.5,-2,0.25\n';
     const input = parseSampledInput(csv, 2, 'held.csv');
-    const x0 = Array.from({ length: 48 }, (_, i) => Math.sin(i + 1) / 4);
-    const r = simulate(model, input, { tEnd: 4, points: 401, solver: 'exact', x0 });
+    const initialState = Array.from({ length: 48 }, (_, i) => Math.sin(i + 1) / 4);
+    const r = simulate(model, input, { tEnd: 4, points: 401, solver: 'exact', initialState });
     const ref = scipyReference<{ y: number[][] }>({
       op: 'sampled_zoh', A: rows(model.A), B: rows(model.B), C: rows(model.C), D: rows(model.D),
       sample_t: [0, 1, 2.5], sample_u: [[1, 0], [0.5, -1], [-2, 0.25]],
-      t: Array.from(r.t, (t) => Number(t.toPrecision(12))), x0,
+      t: Array.from(r.t, (t) => Number(t.toPrecision(12))), initial_state: initialState,
     });
     expect(relativeError(r.y, ref.y)).toBeLessThan(1e-10);
   });
@@ -187,12 +187,12 @@ describe('simulation options', () => {
   const model = modelWithRates([1, 2, 3], 1, 1, 5);
   const cases: [Record<string, unknown>, string][] = [
     [{ tEnd: 0 }, 'tEnd'],
-    [{ tEnd: 1, rtol: 0 }, 'rtol'],
-    [{ tEnd: 1, atol: -1 }, 'atol'],
+    [{ tEnd: 1, relTol: 0 }, 'relTol'],
+    [{ tEnd: 1, absTol: -1 }, 'absTol'],
     [{ tEnd: 1, points: 1 }, 'points'],
     [{ tEnd: 1, times: [0, 2] }, 'times'],
     [{ tEnd: 1, times: [0.5, 0.5] }, 'times'],
-    [{ tEnd: 1, x0: [1, 2] }, 'x0'],
+    [{ tEnd: 1, initialState: [1, 2] }, 'initialState'],
   ];
   for (const [opts, field] of cases) {
     it(`refuses ${JSON.stringify(opts)}, naming ${field}`, () => {
