@@ -17,7 +17,7 @@ import { authenticatePull, type PullCaller, type TokenScope } from '@/lib/projec
 import { findPinByModelSlug, pinnedModelVersion, type ResolvedPin, type VersionFacts } from '@/lib/pins';
 import { SLUG_PATTERN } from '@/lib/projects';
 import { exportResponse, exportVersion, type ExportFormat, type PinContext } from '@/lib/exports';
-import { CAUTION_TEXT } from '@/components/workspace/caution-text';
+import { CAUTION_TEXT } from '@/lib/caution';
 
 type Context<P> = { params: Promise<P> };
 

@@ -1,10 +1,8 @@
 /**
- * The caution every reduced-model page carries (DESIGN.md §8). No client state; renders on the server.
- * The text itself lives in caution-text.ts so exports written by lib/ can use it without React.
+ * The caution every reduced-model page carries. No client state; renders on the server. The words live in
+ * lib/caution.ts, where the exports take them too.
  */
-import { CAUTION_POINTS, CAUTION_TEXT, CAUTION_TITLE } from './caution-text';
-
-export { CAUTION_POINTS, CAUTION_TEXT, CAUTION_TITLE };
+import { CAUTION_TEXT, CAUTION_TITLE } from '@/lib/caution';
 
 export function Caution({ className }: { className?: string }) {
   return (

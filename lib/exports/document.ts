@@ -2,7 +2,7 @@
 // and what the CSV bundle and the C header lay out in their own ways. Continuous exports carry the
 // registered matrices; discretised ones the zero-order-hold matrices, with the registered digest kept
 // beside theirs so a lock file always records the version's own checksum.
-import { CAUTION_TEXT } from '@/components/workspace/caution-text';
+import { CAUTION_TEXT } from '@/lib/caution';
 import type { PinLimits, PinMode } from '@/lib/pins';
 import type { ExportSource, RegisteredMatrices } from './source';
 import type { Discretisation } from './discrete';

@@ -19,7 +19,7 @@ import type { UserRow } from '@/lib/people';
 import { createProject, updateProject } from '@/lib/projects';
 import { createPin } from '@/lib/pins';
 import { createProjectToken } from '@/lib/project-tokens';
-import { CAUTION_TEXT } from '@/components/workspace/caution-text';
+import { CAUTION_TEXT } from '@/lib/caution';
 import { SAMPLE_TIME_FRACTION } from '@/lib/exports/discrete';
 import { makeUser, migrateTestDatabase } from './helpers';
 import { addVersion, makeProjectShelf, retireVersion, stiffTestModel, uniqueSlug, type ProjectShelf } from './fixtures/projects';

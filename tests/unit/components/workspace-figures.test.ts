@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { CAUTION_POINTS, CAUTION_TEXT } from '@/components/workspace/caution-text';
 import { accuracyRows, simulationCostRows, type AccuracyFigures, type SimulationCost } from '@/components/workspace/figures-rows';
 import { progressView } from '@/components/workspace/progress';
 
@@ -79,25 +78,5 @@ describe('job progress', () => {
     expect(progressView('running', 'x', NaN).percent).toBeNull();
     expect(progressView('running', 'x', null)).toEqual({ percent: null, valueText: 'x' });
     expect(progressView('queued', '', 0.3)).toEqual({ percent: null, valueText: 'Waiting for a worker' });
-  });
-});
-
-describe('caution (DESIGN.md §8)', () => {
-  it('covers every point of §8', () => {
-    expect(CAUTION_TEXT).toMatch(/machine that can injure people/);
-    expect(CAUTION_TEXT).toMatch(/approximates/);
-    expect(CAUTION_TEXT).toMatch(/error bounds/);
-    expect(CAUTION_TEXT).toMatch(/frequency band/);
-    expect(CAUTION_TEXT).toMatch(/closed-loop behaviour against the full model/);
-    expect(CAUTION_TEXT).toMatch(/real hardware/);
-    expect(CAUTION_TEXT).toMatch(/functional-safety process/);
-    expect(CAUTION_TEXT).toMatch(/codes and standards that apply where the machine runs/);
-    expect(CAUTION_TEXT).toMatch(/records that the model was reviewed; it is not a certification/);
-  });
-
-  it('is plain ASCII so a C header comment or CSV cell can carry it', () => {
-    expect(/^[\x20-\x7e]+$/.test(CAUTION_TEXT)).toBe(true);
-    expect(CAUTION_TEXT).not.toContain('*/');
-    expect(CAUTION_TEXT).toBe(CAUTION_POINTS.join(' '));
   });
 });
