@@ -14,6 +14,7 @@ export type { Matrix, ComplexVector } from './linalg/matrix';
 export { zeros, identity, fromRows, toRows } from './linalg/matrix';
 export { type StateSpaceModel, stateCount, inputCount, outputCount } from './model';
 export { ModelError, type ModelErrorCode } from './errors';
+export { StoppedError, throwIfStopped, type StopSignal, type LoopHooks } from './stop';
 export * from './io/index';
 export * as sparse from './sparse/index';
 

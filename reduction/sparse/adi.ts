@@ -30,6 +30,7 @@
  * numerically on one kept symbolic analysis.
  */
 import { ModelError } from '../errors';
+import { throwIfStopped, type StopSignal } from '../stop';
 import { type Matrix, zeros, eigenvalues, symmetricEigenvalues } from '../linalg/index';
 import { SparseLu, type CscMatrix } from '../linalg/sparse';
 import { checkFactorBudget } from './budget';
@@ -58,6 +59,22 @@ export interface AdiOptions {
   readonly memoryBudgetBytes?: number;
   /** Which equations to solve (default both). */
   readonly equations?: readonly ('controllability' | 'observability')[];
+  /** Looked at before each ADI step; when set, the iteration throws StoppedError (../stop.ts). */
+  readonly signal?: StopSignal;
+  /** Called after each step of each equation with its step count (a pair counts two) and normalised residual. */
+  readonly onStep?: (step: AdiStep) => void;
+}
+
+/** One ADI step as `onStep` reports it. */
+export interface AdiStep {
+  readonly equation: 'controllability' | 'observability';
+  /** steps made so far on this equation (a complex pair counts as two) */
+  readonly step: number;
+  /** the most it will make (maxIterations); it stops earlier at the tolerance */
+  readonly maxSteps: number;
+  /** ‖W‖₂²/‖B‖₂² after this step */
+  readonly residual: number;
+  readonly tolerance: number;
 }
 
 export interface AdiFactor {
@@ -487,9 +504,14 @@ export function lowRankGramians(model: SparseStateSpaceModel, options: AdiOption
   try {
     let k = 0;
     while (sides.some((s) => !s.side.done && s.side.iterations < maxIt)) {
+      throwIfStopped(options.signal, 'the low-rank ADI');
       const p = shifts[k++ % shifts.length];
       const lu = solvers.get(p);
-      for (const s of sides) if (!s.side.done && s.side.iterations < maxIt) s.side.step(p, lu);
+      for (const s of sides) {
+        if (s.side.done || s.side.iterations >= maxIt) continue;
+        s.side.step(p, lu);
+        options.onStep?.({ equation: s.name, step: s.side.iterations, maxSteps: maxIt, residual: s.side.residual, tolerance: tol });
+      }
     }
   } finally {
     solvers.dispose();

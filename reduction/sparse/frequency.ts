@@ -10,6 +10,7 @@ import { frequencyResponse, largestSingularValue, type ComplexMatrix } from '../
 import { SparseLu } from '../linalg/sparse';
 import { checkFactorBudget } from './budget';
 import { shiftPattern, shiftedValues, type SparseStateSpaceModel } from './model';
+import { throwIfStopped, type LoopHooks } from '../stop';
 
 export interface SparseFrequencyResponse {
   /** Frequencies in rad per time unit. */
@@ -18,7 +19,13 @@ export interface SparseFrequencyResponse {
   readonly H: ComplexMatrix[];
 }
 
-export function sparseFrequencyResponse(model: SparseStateSpaceModel, frequencies: ArrayLike<number>, memoryBudgetBytes = Infinity): SparseFrequencyResponse {
+/** `hooks`: a stop flag looked at before each frequency, and a report after each (`done` of `total`). */
+export function sparseFrequencyResponse(
+  model: SparseStateSpaceModel,
+  frequencies: ArrayLike<number>,
+  memoryBudgetBytes = Infinity,
+  hooks: LoopHooks<{ done: number; total: number }> = {},
+): SparseFrequencyResponse {
   const { B, C, D } = model;
   const n = model.A.n, m = B.cols, p = C.rows;
   const sp = shiftPattern(model.A, model.E);
@@ -32,6 +39,7 @@ export function sparseFrequencyResponse(model: SparseStateSpaceModel, frequencie
   }
   try {
     for (let f = 0; f < frequencies.length; f++) {
+      throwIfStopped(hooks.signal, 'the frequency sweep');
       const w = frequencies[f];
       // A − iωE (a tiny imaginary part at ω = 0 keeps the analysis complex for the frequencies after it).
       const { values, imag } = shiftedValues(sp, 0, w === 0 ? Number.MIN_VALUE : w);
@@ -57,6 +65,7 @@ export function sparseFrequencyResponse(model: SparseStateSpaceModel, frequencie
         }
       }
       H.push({ re: gr, im: gi });
+      hooks.onStep?.({ done: f + 1, total: frequencies.length });
     }
   } finally {
     lu?.dispose();

@@ -10,7 +10,7 @@
  */
 export * from './model';
 export { parseSparseMatrixMarket, writeSparseMatrixMarket, isMatrixMarketCoordinate, coordinateRowCount } from './matrix-market';
-export { lowRankGramians, heuristicShifts, penzlShifts, arnoldiRitzValues, type AdiOptions, type AdiResult, type AdiFactor, type Shift } from './adi';
+export { lowRankGramians, heuristicShifts, penzlShifts, arnoldiRitzValues, type AdiOptions, type AdiResult, type AdiFactor, type AdiStep, type Shift } from './adi';
 export { sparseBalancedReduction, lowRankBalancedRealization, type SparseBalancedOptions, type SparseBalancedResult } from './balanced';
 export { sparseFrequencyResponse, sampledErrorPeak, type SparseFrequencyResponse } from './frequency';
 export { memoryBudgetBytes, checkFactorBudget, MEMORY_BUDGET_ENV } from './budget';
