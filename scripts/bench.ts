@@ -6,6 +6,7 @@
  *   npm run bench -- --only=ID,…       some cases (IDs: see scripts/bench/*-cases.ts)
  *   npm run bench -- --backends=native one backend only (native, portable, or both: the default)
  *   npm run bench -- --large           also the large sizes (balanced truncation at n = 4000: slow on both sides)
+ *   npm run bench -- --sizes=N,…       only these sizes of the chosen cases
  *
  * The engine runs once per backend (MODESHELF_LINALG in the child), the portable one up to each case's
  * `maxPortableSize`. The issue's requirements are checked at the end (REQUIREMENTS below).
@@ -72,14 +73,14 @@ function runReference(c: BenchCase, n: number, dir: string, timed = true): Recor
 }
 
 /** In the child process: warm up, time, check, print one JSON line. */
-async function child(id: string, n: number, dir: string): Promise<void> {
+async function child(id: string, n: number, dir: string, variant: string): Promise<void> {
   const c = (await loadCases()).find((x) => x.id === id);
   if (!c) throw new Error(`unknown case ${id}`);
   const warmDir = mkdtempSync(path.join(tmpdir(), 'bench-warm-'));
   try {
     const w = c.warmupSize ?? 60;
     runReference(c, w, warmDir, false);
-    c.run(c.prepare(warmDir, w));
+    c.run(c.prepare(warmDir, w), variant);
   } finally {
     rmSync(warmDir, { recursive: true, force: true });
   }
@@ -88,7 +89,7 @@ async function child(id: string, n: number, dir: string): Promise<void> {
   let output: unknown;
   do {
     const t0 = performance.now();
-    output = c.run(input);
+    output = c.run(input, variant);
     times.push((performance.now() - t0) / 1000);
     // At least three runs and one second of runs (short cases are noisy), stopping once they pass 10 s;
     // the reference scripts follow the same rule.
@@ -109,7 +110,7 @@ function mib(kb: unknown): string {
 async function main(): Promise<void> {
   const argv = process.argv.slice(2);
   if (argv[0] === '--child') {
-    await child(argv[1], Number(argv[2]), argv[3]);
+    await child(argv[1], Number(argv[2]), argv[3], argv[4] ?? '');
     return;
   }
   const quick = argv.includes('--quick');
@@ -118,13 +119,14 @@ async function main(): Promise<void> {
   const backends = backendArg.split(',').filter((b) => b === 'native' || b === 'portable');
   if (backends.length === 0) throw new Error(`--backends must list native and/or portable, got ${backendArg}`);
   const only = argv.find((a) => a.startsWith('--only='))?.slice(7).split(',');
+  const onlySizes = argv.find((a) => a.startsWith('--sizes='))?.slice(8).split(',').map(Number);
   const cases = (await loadCases()).filter((c) => !only || only.includes(c.id));
   if (cases.length === 0) throw new Error(`no case matches --only=${only}`);
 
   const scriptPath = path.resolve(process.argv[1]);
   const rows: string[][] = [];
   const header = ['case', 'n', 'backend', 'ours (s)', 'reference (s)', 'ratio', 'ours peak', 'ref peak', 'agreement'];
-  const widths = [12, 5, 8, 9, 14, 7, 10, 9, 0];
+  const widths = [12, 5, 24, 9, 14, 7, 10, 9, 0];
   const print = (r: string[]) =>
     console.log(r.map((x, i) => (widths[i] ? pad(x, widths[i], i === 1 || (i >= 3 && i <= 7)) : x)).join('  '));
   const measured: { id: string; n: number; backend: string; seconds: number; ratio: number; peakMiB: number }[] = [];
@@ -132,26 +134,28 @@ async function main(): Promise<void> {
   let blas = '';
   print(header);
   for (const c of cases) {
-    const sizes = quick ? c.quickSizes : [...c.sizes, ...(large ? (c.largeSizes ?? []) : [])];
+    const sizes = (quick ? c.quickSizes : [...c.sizes, ...(large ? (c.largeSizes ?? []) : [])]).filter((n) => !onlySizes || onlySizes.includes(n));
     for (const n of sizes) {
       const dir = mkdtempSync(path.join(tmpdir(), `bench-${c.id}-`));
       try {
         const ref = runReference(c, n, dir);
         if (typeof ref.blas === 'string') blas = ref.blas;
-        for (const backend of backends) {
+        for (const [backend, variant] of backends.flatMap((b) => (c.variants ?? ['']).map((v) => [b, v] as const))) {
           if (backend === 'portable' && n > (c.maxPortableSize ?? Infinity)) continue;
-          const r = spawnSync(process.execPath, [...process.execArgv, scriptPath, '--child', c.id, String(n), dir], {
+          if (c.supports && !c.supports(backend, variant)) continue;
+          const r = spawnSync(process.execPath, [...process.execArgv, scriptPath, '--child', c.id, String(n), dir, variant], {
             encoding: 'utf8',
             maxBuffer: 1 << 26,
             env: { ...process.env, MODESHELF_LINALG: backend },
           });
-          if (r.status !== 0) throw new Error(`engine run for ${c.id} n=${n} (${backend}) failed:\n${r.stderr}`);
+          const label = variant ? `${backend}/${variant}` : backend;
+          if (r.status !== 0) throw new Error(`engine run for ${c.id} n=${n} (${label}) failed:\n${r.stderr}`);
           const ours = lastJsonLine(r.stdout, `engine ${c.id}`);
           const os = ours.seconds as number;
           const rs = ref.seconds as number;
           const ratio = os / rs;
-          measured.push({ id: c.id, n, backend, seconds: os, ratio, peakMiB: (ours.peakRssKb as number) / 1024 });
-          const row = [c.id, String(n), backend, os.toFixed(3), rs.toFixed(3), ratio.toFixed(2), mib(ours.peakRssKb), mib(ref.peakRssKb), String(ours.agreement)];
+          measured.push({ id: c.id, n, backend: label, seconds: os, ratio, peakMiB: (ours.peakRssKb as number) / 1024 });
+          const row = [c.id, String(n), label, os.toFixed(3), rs.toFixed(3), ratio.toFixed(2), mib(ours.peakRssKb), mib(ref.peakRssKb), String(ours.agreement)];
           rows.push(row);
           print(row);
         }

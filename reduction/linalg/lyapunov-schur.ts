@@ -17,6 +17,7 @@
  */
 import { type Matrix, type ComplexVector, zeros } from './matrix';
 import { kernels } from './kernels';
+import { nativeHammarlingFactor } from './native';
 
 export interface SchurForm {
   readonly T: Matrix;
@@ -97,7 +98,7 @@ export function schurGramianFactors(
   a: Matrix,
   b: Matrix,
   c: Matrix,
-  options: { form?: SchurForm; tolerance?: number } = {},
+  options: { form?: SchurForm; tolerance?: number; method?: SchurLyapunovMethod } = {},
 ): { controllability: Matrix; observability: Matrix; form: SchurForm } {
   const n = a.rows;
   if (a.cols !== n) throw new Error(`schurGramianFactors: A must be square, got ${a.rows}×${a.cols}`);
@@ -107,10 +108,35 @@ export function schurGramianFactors(
   const tol = options.tolerance ?? Math.sqrt(Number.EPSILON);
   const ct: Matrix = { rows: n, cols: c.rows, data: new Float64Array(n * c.rows) };
   for (let i = 0; i < c.rows; i++) for (let j = 0; j < n; j++) ct.data[j * c.rows + i] = c.data[i * n + j];
+  const factor = options.method === 'hammarling' ? hammarlingLyapunovFactor : schurLyapunovFactor;
   return {
-    controllability: schurLyapunovFactor(form, b, false, tol),
-    observability: schurLyapunovFactor(form, ct, true, tol),
+    controllability: factor(form, b, false, tol),
+    observability: factor(form, ct, true, tol),
     form,
   };
+}
+
+/**
+ * How the factors are found on the Schur form: `bartels-stewart` solves for the full Schur-coordinate
+ * solution (level 3, dtrsyl3) and factors it; `hammarling` finds the Cholesky factor directly,
+ * column by column (Hammarling 1982; level 2, native backend only). Both are measured by `npm run bench`
+ * (case "gramians"); the engine uses Bartels–Stewart, the faster of the two here.
+ */
+export type SchurLyapunovMethod = 'bartels-stewart' | 'hammarling';
+
+/**
+ * L (n×n) with X = L·Lᵀ by Hammarling's method (S. J. Hammarling, "Numerical solution of the stable,
+ * non-negative definite Lyapunov equation", IMA J. Numer. Anal. 2, 1982): the factor of the
+ * Schur-coordinate solution comes straight from the native kernel, never forming X; L = Z·F.
+ */
+export function hammarlingLyapunovFactor(form: SchurForm, f: Matrix, transposeA: boolean): Matrix {
+  const n = form.T.rows;
+  if (n === 0) return zeros(0, 0);
+  if (f.rows !== n) throw new Error(`hammarlingLyapunovFactor: the right-hand factor has ${f.rows} rows, A is ${n}×${n}`);
+  requireStable('hammarlingLyapunovFactor', form.values);
+  const W = product(form.Z, f, true, false);
+  const F = nativeHammarlingFactor(form.T, W, transposeA);
+  if (!F) throw new Error('hammarlingLyapunovFactor: needs the native backend (npm run build:native)');
+  return product(form.Z, F, false, false);
 }
 

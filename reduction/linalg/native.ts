@@ -41,6 +41,7 @@ export interface NativeAddon {
   pivotedQr(a: Float64Array, m: number, n: number, tol: number, perm: Int32Array, q: Float64Array, r: Float64Array): number;
   pivotedQrOfRows(work: Float64Array, n: number, w: number, tol: number, perm: Int32Array): number;
   trsyl(ta: boolean, tb: boolean, sign: number, m: number, n: number, a: Float64Array, b: Float64Array, c: Float64Array): number;
+  hammarlingFactor(t: Float64Array, n: number, w: Float64Array, m: number, transpose: boolean, f: Float64Array): number;
   hessenbergResponse(
     h: Float64Array, n: number, f: Float64Array, m: number, cq: Float64Array, p: number, d: Float64Array,
     w: Float64Array, re: Float64Array, im: Float64Array,
@@ -298,4 +299,19 @@ export function loadNativeKernels(): { kernels: DenseKernels | null; path: strin
   const a = nativeAddon();
   if (kernelsOnce === undefined) kernelsOnce = a.addon ? makeKernels(a.addon) : null;
   return { kernels: kernelsOnce, path: a.path, error: a.error };
+}
+
+/**
+ * Hammarling's (1982) Cholesky factor F (n×n) of the solution Y = F·Fᵀ of T·Y + Y·Tᵀ + W·Wᵀ = 0
+ * (`transpose` false) or Tᵀ·Y + Y·T + W·Wᵀ = 0 (true), T the real Schur form of a stable A and W n×m
+ * (reduction/native/src/hammarling.cc). Native backend only: null when the addon is not loaded.
+ */
+export function nativeHammarlingFactor(t: Matrix, w: Matrix, transpose: boolean): Matrix | null {
+  const native = nativeAddon().addon;
+  if (!native) return null;
+  const n = square('hammarlingFactor', t);
+  if (w.rows !== n) throw new Error(`hammarlingFactor: W has ${w.rows} rows, T is ${n}×${n}`);
+  const f = new Float64Array(n * n);
+  call('hammarlingFactor', () => native.hammarlingFactor(t.data, n, w.data, w.cols, transpose, f));
+  return { rows: n, cols: n, data: f };
 }

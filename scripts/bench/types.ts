@@ -31,8 +31,15 @@ export interface BenchCase<Input = unknown, Output = unknown> {
   reference?(n: number, dir: string): { command: string; args: string[] };
   /** Reads the inputs from DIR. Not timed. */
   prepare(dir: string, n: number): Input;
+  /**
+   * Ways of doing the same work, each timed against the same reference run (e.g. three Lyapunov
+   * solvers); the table names them beside the backend. Default: one, unnamed.
+   */
+  readonly variants?: readonly string[];
+  /** Whether a variant runs on a backend (default: every variant on every backend). */
+  supports?(backend: 'native' | 'portable', variant: string): boolean;
   /** The engine's work. Timed. */
-  run(input: Input): Output;
+  run(input: Input, variant: string): Output;
   /** Agreement with the reference's saved results, e.g. "max rel diff 3e-12". Not timed. */
   check(dir: string, input: Input, output: Output): string;
 }

@@ -14,6 +14,8 @@ Cases
                 two scipy.linalg.solve_continuous_lyapunov (Bartels-Stewart), Cholesky factors
                 (symmetric eigen-factor if a gramian is numerically singular), SVD of Lq^T Lp, and the
                 balanced realization W^T A T, W^T B, C T for the numerical minimal order
+  gramians      both gramians by scipy.linalg.solve_continuous_lyapunov, their square-root factors as in
+                `balanced`, and the Hankel singular values (singular values of Lq^T Lp)
   frequency     G(jw) = C (jwI - A)^-1 B at 1000 frequencies by the modal form (eigendecomposition once,
                 then a diagonal solve per frequency): the quickest numpy route for a diagonalizable A
   analysis      the parts of a model analysis numpy/scipy have: poles (eigvals), modal form (eig), DC gain
@@ -115,7 +117,7 @@ def main():
     if len(args) != 3:
         sys.exit("usage: bench_reference.py CASE N DIR [--no-time]")
     case, n, out = args[0], int(args[1]), args[2]
-    seed = {"eigenvalues": 1, "balanced": 2, "frequency": 3, "product": 4, "analysis": 5}.get(case)
+    seed = {"eigenvalues": 1, "balanced": 2, "frequency": 3, "product": 4, "analysis": 5, "gramians": 6}.get(case)
     if seed is None:
         sys.exit(f"bench_reference.py: unknown case {case!r}")
     a, b, c = stable_model(n, 1000 * seed + n)
@@ -137,6 +139,10 @@ def main():
                 lam = np.linalg.eigvals(a)
             elif case == "balanced":
                 hsv, _ = balanced(a, b, c)
+            elif case == "gramians":
+                p = sl.solve_continuous_lyapunov(a, -b @ b.T)
+                q = sl.solve_continuous_lyapunov(a.T, -c.T @ c)
+                hsv = np.linalg.svd(square_root_factor(q).T @ square_root_factor(p), compute_uv=False)
             elif case == "analysis":
                 poles = np.linalg.eigvals(a)
                 lam, v = np.linalg.eig(a)
@@ -154,7 +160,7 @@ def main():
             np.save(os.path.join(out, "ref_prod.npy"), prod)
         elif case == "eigenvalues":
             np.save(os.path.join(out, "ref_eig.npy"), np.stack([lam.real, lam.imag], axis=1))
-        elif case in ("balanced", "analysis"):
+        elif case in ("balanced", "analysis", "gramians"):
             np.save(os.path.join(out, "ref_hsv.npy"), hsv)
         else:
             # Every 50th frequency, as (re, im) of the p x m matrices.
@@ -172,6 +178,7 @@ def main():
                     "product": "numpy matmul (dgemm)",
                     "eigenvalues": "numpy.linalg.eigvals (dgeev)",
                     "balanced": "2x solve_continuous_lyapunov + cholesky + svd + projection",
+                    "gramians": "2x solve_continuous_lyapunov + cholesky + singular values",
                     "frequency": "eigendecomposition, diagonal solve per frequency",
                     "analysis": "eigvals + eig + solve + balanced + solve_continuous_lyapunov",
                 }[case],

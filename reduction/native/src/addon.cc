@@ -43,5 +43,6 @@ NAPI_MODULE_INIT() {
   ms::define(env, exports, "blasConfig", Config);
   ms::registerDense(env, exports);
   ms::registerSparse(env, exports);
+  ms::registerHammarling(env, exports);
   return exports;
 }

@@ -139,6 +139,7 @@ napi_value guard(napi_env env, F&& body) {
 int blasThreads();
 void registerDense(napi_env env, napi_value exports);
 void registerSparse(napi_env env, napi_value exports);
+void registerHammarling(napi_env env, napi_value exports);
 
 inline void define(napi_env env, napi_value exports, const char* name, napi_callback cb) {
   napi_value fn;

@@ -38,9 +38,9 @@ import {
   linalgBackendReport,
   kernels,
 } from '../../../reduction/linalg/index';
-import { schurLyapunov, schurGramianFactors } from '../../../reduction/linalg/lyapunov-schur';
+import { schurLyapunov, schurGramianFactors, hammarlingLyapunovFactor } from '../../../reduction/linalg/lyapunov-schur';
 import { lowRankGramianFactors } from '../../../reduction/linalg/lyapunov';
-import { nativeAddon } from '../../../reduction/linalg/native';
+import { nativeAddon, nativeHammarlingFactor } from '../../../reduction/linalg/native';
 import { SparseLu, SparseCholesky, amdOrdering, type CscMatrix } from '../../../reduction/linalg/sparse';
 import { randomMatrix, stableMatrix, reference, maxAbsDiff, maxAbs, eigenvalueDistance } from './linalg-support';
 
@@ -294,6 +294,42 @@ describe('native backend', () => {
     expect(() => lib.gemm(false, false, 3, 3, 3, 1, new Float64Array(4), 0, 3, new Float64Array(9), 0, 3, 0, new Float64Array(9), 0, 3)).toThrow(
       expect.objectContaining({ code: 'dimension_mismatch' }),
     );
+  });
+
+  it('finds the Cholesky factors of both gramians directly by Hammarling (1982), as scipy solve_continuous_lyapunov solves them', () => {
+    // Reference: scipy.linalg.solve_continuous_lyapunov (Bartels & Stewart 1972, LAPACK trsyl) on the same
+    // A, B, C; the factor L must give L·Lᵀ = P (resp. Q). Cases: complex eigenvalue pairs (2×2 Schur blocks)
+    // with one, two and three right-hand columns, and a symmetric A (real spectrum, no blocks).
+    const cases = [
+      { a: stableMatrix(60, 31), b: randomMatrix(60, 1, 32), c: randomMatrix(3, 60, 33) },
+      { a: stableMatrix(45, 34), b: randomMatrix(45, 2, 35), c: randomMatrix(1, 45, 36) },
+    ];
+    const sym = stableMatrix(30, 37, 5);
+    for (let i = 0; i < 30; i++) for (let j = 0; j < i; j++) sym.data[j * 30 + i] = sym.data[i * 30 + j];
+    cases.push({ a: sym, b: randomMatrix(30, 2, 38), c: randomMatrix(2, 30, 39) });
+    const refs = reference(cases.map(({ a, b, c }) => ({ op: 'gramians', A: a, B: b, C: c }))) as { P: number[][]; Q: number[][]; hsv: number[] }[];
+    cases.forEach(({ a, b, c }, k) => {
+      const form = schur(a);
+      const lc = hammarlingLyapunovFactor(form, b, false);
+      const lo = hammarlingLyapunovFactor(form, transpose(c), true);
+      expect(maxAbsDiff(multiplyTransposeB(lc, lc), refs[k].P) / maxAbs(fromRows(refs[k].P))).toBeLessThan(1e-12);
+      expect(maxAbsDiff(multiplyTransposeB(lo, lo), refs[k].Q) / maxAbs(fromRows(refs[k].Q))).toBeLessThan(1e-12);
+      const f = schurGramianFactors(a, b, c, { form, method: 'hammarling' });
+      const s = singularValues(multiplyTransposeA(f.observability, f.controllability));
+      // Singular values move by at most the perturbation's norm (Weyl; Golub & Van Loan 2013, Cor. 8.6.2),
+      // so the check is absolute, relative to σ₁: the reference's own small values carry its rounding.
+      for (let i = 0; i < 6; i++) expect(Math.abs(s[i] - refs[k].hsv[i])).toBeLessThan(1e-10 * refs[k].hsv[0]);
+    });
+    // One state, closed form: a·x + x·a + b² = 0 gives x = −b²/(2a), factor |b|/√(−2a).
+    const one = nativeHammarlingFactor(fromRows([[-4]]), fromRows([[3]]), false)!;
+    expect(one.data[0]).toBeCloseTo(3 / Math.sqrt(8), 14);
+  });
+
+  it('refuses an unstable A or a non-finite right-hand side in Hammarling\'s kernel with a code', () => {
+    const t = fromRows([[-1, 2], [0, 0.5]]);
+    expect(() => nativeHammarlingFactor(t, fromRows([[1], [1]]), false)).toThrow(expect.objectContaining({ code: 'unstable', message: expect.stringMatching(/not stable/) }));
+    expect(() => nativeHammarlingFactor(fromRows([[-1, 2], [0, -3]]), fromRows([[Number.NaN], [1]]), true)).toThrow(expect.objectContaining({ code: 'non_finite' }));
+    expect(() => nativeHammarlingFactor(fromRows([[-1, 2], [0, -3]]), fromRows([[1]]), true)).toThrow(/W has 1 rows/);
   });
 
   it('loads in two worker threads at once and computes there (context-aware addon)', async () => {
