@@ -12,7 +12,7 @@ import { parseArgs } from './cli/args';
 import { ENGINE_PATH, findVerb, listVerbs } from './cli/registry';
 import './cli/analyze';
 import './cli/reduce';
-import './cli/freq';
+import './cli/sweep';
 import './cli/simulate';
 
 function usage(): string {

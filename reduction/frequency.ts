@@ -206,14 +206,14 @@ export function frequencyEvaluator(
 
 export interface FrequencyResponse {
   /** Frequencies in rad per time unit. */
-  readonly w: Float64Array;
+  readonly frequencies: Float64Array;
   /** G(jω) per frequency, p×m. */
-  readonly H: readonly ComplexMatrix[];
+  readonly response: readonly ComplexMatrix[];
 }
 
 export function frequencyResponse(model: StateSpaceModel, w: ArrayLike<number>): FrequencyResponse {
-  const freqs = Float64Array.from(w);
-  return { w: freqs, H: frequencyEvaluator(model, { conditionLimit: RESPONSE_CONDITION_LIMIT }).many(freqs) };
+  const frequencies = Float64Array.from(w);
+  return { frequencies, response: frequencyEvaluator(model, { conditionLimit: RESPONSE_CONDITION_LIMIT }).many(frequencies) };
 }
 
 /** `points` frequencies spaced evenly in log10 from wMin to wMax inclusive. */
@@ -281,7 +281,8 @@ export function largestSingularValue(g: ComplexMatrix): number {
 }
 
 export interface BodeData {
-  readonly w: Float64Array;
+  /** Frequencies in rad per time unit. */
+  readonly frequencies: Float64Array;
   /** magnitude[i][j][k]: |G_ij(jω_k)| (output i, input j). */
   readonly magnitude: Float64Array[][];
   /** Phase in degrees, unwrapped along the grid so a curve has no 360° jumps. */
@@ -292,10 +293,10 @@ export interface BodeData {
 
 /** Magnitude and unwrapped phase per input→output channel and σ_max per frequency. */
 export function bodeData(model: StateSpaceModel, w: ArrayLike<number>): BodeData {
-  const response = frequencyResponse(model, w);
+  const { frequencies, response } = frequencyResponse(model, w);
   const p = model.D.rows;
   const m = model.D.cols;
-  const K = response.w.length;
+  const K = frequencies.length;
   const magnitude: Float64Array[][] = [];
   const phaseDegrees: Float64Array[][] = [];
   for (let i = 0; i < p; i++) {
@@ -306,8 +307,8 @@ export function bodeData(model: StateSpaceModel, w: ArrayLike<number>): BodeData
       const phase = new Float64Array(K);
       let previous = 0;
       for (let k = 0; k < K; k++) {
-        const re = response.H[k].re.data[i * m + j];
-        const im = response.H[k].im.data[i * m + j];
+        const re = response[k].re.data[i * m + j];
+        const im = response[k].im.data[i * m + j];
         mag[k] = Math.hypot(re, im);
         let ph = (Math.atan2(im, re) * 180) / Math.PI;
         if (k > 0) ph += 360 * Math.round((previous - ph) / 360);
@@ -321,9 +322,9 @@ export function bodeData(model: StateSpaceModel, w: ArrayLike<number>): BodeData
     phaseDegrees.push(phaseRow);
   }
   return {
-    w: response.w,
+    frequencies,
     magnitude,
     phaseDegrees,
-    largestSingularValue: Float64Array.from(response.H, (h) => largestSingularValue(h)),
+    largestSingularValue: Float64Array.from(response, (h) => largestSingularValue(h)),
   };
 }

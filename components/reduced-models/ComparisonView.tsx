@@ -154,11 +154,11 @@ export function ComparisonView(p: ComparisonViewProps) {
         <p className="text-xs text-graphite-soft">Full model solid graphite, reduced model dashed teal.</p>
       </div>
       <div className="grid gap-6 xl:grid-cols-2">
-        <BodeChart frequencies={f.w} full={bode.full} reduced={bode.reduced} timeUnit={timeUnit} channelLabel={label} title="Bode plot" />
+        <BodeChart frequencies={f.frequencies} full={bode.full} reduced={bode.reduced} timeUnit={timeUnit} channelLabel={label} title="Bode plot" />
         <div className="space-y-6">
-          <SingularValueChart frequencies={f.w} full={f.sigmaFull} reduced={f.sigmaReduced} timeUnit={timeUnit} title="Largest singular value σmax(G(jω))" />
+          <SingularValueChart frequencies={f.frequencies} full={f.sigmaFull} reduced={f.sigmaReduced} timeUnit={timeUnit} title="Largest singular value σmax(G(jω))" />
           <ErrorBoundChart
-            frequencies={f.w}
+            frequencies={f.frequencies}
             error={f.error}
             bound={figures.errorBound ?? undefined}
             errorLabel="σmax(G − Gr)"

@@ -108,7 +108,8 @@ export interface TimeCurves {
 
 export interface ReductionCurves {
   frequency: {
-    w: number[];
+    /** rad per time unit of the source model */
+    frequencies: number[];
     full: ChannelCurves;
     reduced: ChannelCurves;
     sigmaFull: number[];

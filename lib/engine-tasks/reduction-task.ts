@@ -470,7 +470,7 @@ export function runReduction(
     engineWallMs: Date.now() - started,
   };
   const curves: ReductionCurves = {
-    frequency: { w, full: full.curves, reduced: red.curves, sigmaFull: full.sigma, sigmaReduced: red.sigma, error },
+    frequency: { frequencies: w, full: full.curves, reduced: red.curves, sigmaFull: full.sigma, sigmaReduced: red.sigma, error },
     step,
     impulse,
   };

@@ -170,7 +170,7 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
   let referenceNorm: number | null = null;
   let order: number;
   if (tolerance !== undefined) {
-    referenceNorm = Math.max(...full!.H.map((h) => largestSingularValue(h)));
+    referenceNorm = Math.max(...full!.response.map((h) => largestSingularValue(h)));
     const { realization } = lowRankBalancedRealization(model, gramians);
     const hsv = realization.hankelSingularValues;
     let r = 1;

@@ -14,9 +14,9 @@ import { throwIfStopped, type LoopHooks } from '../stop';
 
 export interface SparseFrequencyResponse {
   /** Frequencies in rad per time unit. */
-  readonly w: Float64Array;
+  readonly frequencies: Float64Array;
   /** G(iω) per frequency, p×m. */
-  readonly H: ComplexMatrix[];
+  readonly response: ComplexMatrix[];
 }
 
 /** `hooks`: a stop flag looked at before each frequency, and a report after each (`done` of `total`). */
@@ -29,7 +29,7 @@ export function sparseFrequencyResponse(
   const { B, C, D } = model;
   const n = model.A.n, m = B.cols, p = C.rows;
   const sp = shiftPattern(model.A, model.E);
-  const H: ComplexMatrix[] = [];
+  const response: ComplexMatrix[] = [];
   let lu: SparseLu | null = null;
   const cols: Float64Array[] = [];
   for (let c = 0; c < m; c++) {
@@ -64,13 +64,13 @@ export function sparseFrequencyResponse(
           gi.data[r * m + c] = -si;
         }
       }
-      H.push({ re: gr, im: gi });
+      response.push({ re: gr, im: gi });
       hooks.onStep?.({ done: f + 1, total: frequencies.length });
     }
   } finally {
     lu?.dispose();
   }
-  return { w: Float64Array.from(frequencies), H };
+  return { frequencies: Float64Array.from(frequencies), response };
 }
 
 /**
@@ -83,21 +83,22 @@ export function sampledErrorPeak(
   frequencies: ArrayLike<number>,
   memoryBudgetBytes = Infinity,
 ): { value: number; frequency: number } {
-  const g = 'H' in full ? full : sparseFrequencyResponse(full, frequencies, memoryBudgetBytes);
-  if (g.w.length !== frequencies.length || g.w.some((w, k) => w !== frequencies[k])) {
+  const g = 'response' in full ? full : sparseFrequencyResponse(full, frequencies, memoryBudgetBytes);
+  if (g.frequencies.length !== frequencies.length || g.frequencies.some((w, k) => w !== frequencies[k])) {
     throw new Error('sampledErrorPeak: the frequencies differ from those of the given full-model response');
   }
-  const gr = frequencyResponse(reduced, g.w).H;
+  const gr = frequencyResponse(reduced, g.frequencies).response;
   let value = 0, frequency = NaN;
-  for (let k = 0; k < g.w.length; k++) {
+  for (let k = 0; k < g.frequencies.length; k++) {
+    const gk = g.response[k];
     const d: ComplexMatrix = {
-      re: { rows: g.H[k].re.rows, cols: g.H[k].re.cols, data: g.H[k].re.data.map((x, i) => x - gr[k].re.data[i]) },
-      im: { rows: g.H[k].im.rows, cols: g.H[k].im.cols, data: g.H[k].im.data.map((x, i) => x - gr[k].im.data[i]) },
+      re: { rows: gk.re.rows, cols: gk.re.cols, data: gk.re.data.map((x, i) => x - gr[k].re.data[i]) },
+      im: { rows: gk.im.rows, cols: gk.im.cols, data: gk.im.data.map((x, i) => x - gr[k].im.data[i]) },
     };
     const s = largestSingularValue(d);
     if (s > value) {
       value = s;
-      frequency = g.w[k];
+      frequency = g.frequencies[k];
     }
   }
   return { value, frequency };

@@ -252,8 +252,8 @@ describe('frequency-limited balanced truncation through /api/reductions', () => 
     expect(maxInside).toBeLessThan(0.5 * plainInside);
 
     // The curves the comparison page draws include the band's edge.
-    expect(report.curves.frequency.w).toContain(10);
-    expect(report.curves.frequency.w).toContain(60);
+    expect(report.curves.frequency.frequencies).toContain(10);
+    expect(report.curves.frequency.frequencies).toContain(60);
     expect(report.acceptance_passed).toBeNull();
   });
 

@@ -204,7 +204,7 @@ describe('background jobs', () => {
     expect(report.acceptance_passed).toBe(report.figures.acceptance.worstError <= 0.5);
     // The curves the comparison page draws: a peak at ω > 0 is on the grid; a peak at ω = 0 is the DC error.
     const peak = report.figures.hinfErrorFrequency;
-    if (peak > 0) expect(report.curves.frequency.w).toContain(peak);
+    if (peak > 0) expect(report.curves.frequency.frequencies).toContain(peak);
     else expect(report.figures.dcGainError).toBeCloseTo(report.figures.hinfError, 9);
     expect(report.curves.step.full).toHaveLength(1);
     expect(report.curves.step.full[0][0]).toHaveLength(report.curves.step.t.length);

@@ -3,18 +3,20 @@
 
 Usage: /usr/bin/python3 tests/reference/reduction_reference.py REQUEST.json RESPONSE.json
 
-REQUEST is {"cases": [{"name", "A", "B", "C", "D", "tasks": [...], "w": [...], "reduced": {...}}]},
+REQUEST is {"cases": [{"name", "A", "B", "C", "D", "tasks": [...], "frequencies": [...], "reduced": {...}}]},
 matrices as lists of rows. Tasks:
   "eig"   eigenvalues of A (numpy.linalg.eigvals, LAPACK dgeev), as [re, im] pairs
   "hsv"   Hankel singular values: gramians from scipy.linalg.solve_continuous_lyapunov (Bartels-Stewart),
           then the singular values of Lo^T Lc with P = Lc Lc^T, Q = Lo Lo^T from numpy.linalg.eigh (more
           accurate for the small values than sqrt(eig(P Q))), descending
-  "freq"  G(jw) = C (jwI - A)^-1 B + D at the frequencies "w", by numpy.linalg.solve (LAPACK zgesv)
-  "sv"    singular values of G(jw) at the frequencies "w" (numpy.linalg.svd, LAPACK zgesdd)
-  "h2"    sqrt(trace(C P C^T))
-  "hinf"  sup_w sigma_max(G(jw)) by a dense log sweep refined with scipy.optimize.minimize_scalar around
-          the best grid points: an estimate independent of the Hamiltonian method under test
-  "error" the same sweep on G - Gr, with Gr given as "reduced": {"A", "B", "C", "D"}
+  "response"    G(jw) = C (jwI - A)^-1 B + D at the "frequencies" (rad per time unit), by numpy.linalg.solve
+                (LAPACK zgesv)
+  "sv"          singular values of G(jw) at the "frequencies" (numpy.linalg.svd, LAPACK zgesdd)
+  "h2"          sqrt(trace(C P C^T))
+  "h_infinity"  sup_w sigma_max(G(jw)) by a dense log sweep refined with scipy.optimize.minimize_scalar
+                around the best grid points: an estimate independent of the Hamiltonian method under test;
+                {"value", "frequency"} (frequency null when the peak is at infinity)
+  "error"       the same sweep on G - Gr, with Gr given as "reduced": {"A", "B", "C", "D"}
 The response has one object per case with the keys of its tasks.
 """
 import json
@@ -79,7 +81,7 @@ def square_root_factor(X):
     return V * np.sqrt(np.clip(lam, 0.0, None))
 
 
-def hinf_sweep(A, B, C, D):
+def h_infinity_sweep(A, B, C, D):
     """sup over w >= 0 of sigma_max, by a sweep plus local refinement (bounded Brent in log10 w)."""
     lam = np.linalg.eigvals(A) if A.shape[0] > 0 else np.array([])
     mags = np.abs(lam[np.abs(lam) > 0])
@@ -119,21 +121,21 @@ def run_case(case):
             out["hsv"] = [float(x) for x in hsv]
         if "h2" in tasks:
             out["h2"] = float(np.sqrt(max(np.trace(C @ P @ C.T), 0.0)))
-    if "freq" in tasks:
-        resp = [response(A, B, C, D, w) for w in case["w"]]
-        out["freq"] = [{"re": g.real.tolist(), "im": g.imag.tolist()} for g in resp]
+    if "response" in tasks:
+        resp = [response(A, B, C, D, w) for w in case["frequencies"]]
+        out["response"] = [{"re": g.real.tolist(), "im": g.imag.tolist()} for g in resp]
     if "sv" in tasks:
-        out["sv"] = [np.linalg.svd(response(A, B, C, D, w), compute_uv=False).tolist() for w in case["w"]]
-    if "hinf" in tasks:
-        value, w = hinf_sweep(A, B, C, D)
-        out["hinf"] = {"value": float(value), "w": w if np.isfinite(w) else None}
+        out["sv"] = [np.linalg.svd(response(A, B, C, D, w), compute_uv=False).tolist() for w in case["frequencies"]]
+    if "h_infinity" in tasks:
+        value, w = h_infinity_sweep(A, B, C, D)
+        out["h_infinity"] = {"value": float(value), "frequency": w if np.isfinite(w) else None}
     if "error" in tasks:
         Ar, Br, Cr, Dr = model_of(case["reduced"])
         Ae = linalg.block_diag(A, Ar)
         Be = np.vstack([B, Br])
         Ce = np.hstack([C, -Cr])
-        value, w = hinf_sweep(Ae, Be, Ce, D - Dr)
-        out["error"] = {"value": float(value), "w": w if np.isfinite(w) else None}
+        value, w = h_infinity_sweep(Ae, Be, Ce, D - Dr)
+        out["error"] = {"value": float(value), "frequency": w if np.isfinite(w) else None}
     return out
 
 

@@ -5,7 +5,7 @@ SciPy (scipy.sparse, SuperLU, ARPACK, LAPACK), independently of the engine's cod
 Usage: /usr/bin/python3 tests/reference/sparse_reference.py REQUEST.json RESPONSE.json
 
 REQUEST is {"dir": folder holding A.mtx, B.mtx, C.mtx and optionally E.mtx (read by scipy.io.mmread),
-"tasks": [...], "w": [...], "order": r}. Tasks:
+"tasks": [...], "frequencies": [...], "order": r}. Tasks:
   "dense"     A (and E) as dense lists of rows (scipy.io.mmread, .toarray())
   "hsv"       Hankel singular values of E x' = A x + B u, y = C x from the dense gramians:
               scipy.linalg.solve_continuous_lyapunov (Bartels-Stewart) on (E^-1 A, E^-1 B) and
@@ -17,7 +17,8 @@ REQUEST is {"dir": folder holding A.mtx, B.mtx, C.mtx and optionally E.mtx (read
               (scipy.sparse.linalg.eigs on E^-1 A, largest magnitude, and with sigma=0, smallest), stopped at
               normalised residual 1e-10; then square-root balanced truncation to "order": returns
               "hsv" (singular values of Zo^T E Zc), "iterations" and the reduced model "Ar", "Br", "Cr"
-  "freq"      G(jw) = C (jw E - A)^-1 B at the frequencies "w" by SuperLU, as {"re", "im"} p x m lists
+  "response"  G(jw) = C (jw E - A)^-1 B at the "frequencies" (rad per time unit) by SuperLU, as {"re", "im"}
+              p x m lists
 The response has one key per task.
 """
 import json
@@ -163,14 +164,14 @@ def main():
             "Br": (Wm.T @ B).tolist(),
             "Cr": (C @ T).tolist(),
         }
-    if "freq" in tasks:
+    if "response" in tasks:
         Es = sp.identity(n, format="csc") if E is None else E
         res = []
-        for w in req["w"]:
+        for w in req["frequencies"]:
             lu = spla.splu((1j * w * Es - A).tocsc().astype(complex))
             G = C @ lu.solve(B.astype(complex))
             res.append({"re": G.real.tolist(), "im": G.imag.tolist()})
-        out["freq"] = res
+        out["response"] = res
     json.dump(out, open(sys.argv[2], "w"))
 
 

@@ -43,16 +43,16 @@ describe('stable/unstable split by the matrix sign function (Roberts 1971)', () 
     const model = mixedModel();
     const split = splitStableUnstable(model);
     const w = [0.01, 0.1, 1, 10, 100];
-    const [ref] = runReference([{ name: 'mixed-freq', model, tasks: ['freq'], w }]);
+    const [ref] = runReference([{ name: 'mixed-response', model, tasks: ['response'], frequencies: w }]);
     // The backward-stable Hessenberg form to 1e-9; the response curve (modal where κ(V) ≤ 1e10, here
     // with a defective double pole at 0) to the six digits RESPONSE_CONDITION_LIMIT promises.
     const recombined = parallel(split.stable, split.unstable);
     const hessenbergForm = frequencyEvaluator(recombined, { form: 'hessenberg' }).many(w);
-    const curve = frequencyResponse(recombined, w).H;
+    const curve = frequencyResponse(recombined, w).response;
     for (const [ours, tol] of [[hessenbergForm, 1e-9], [curve, 1e-6]] as const) {
       ours.forEach((h, k) => {
-        const re = ref.freq![k].re[0][0];
-        const im = ref.freq![k].im[0][0];
+        const re = ref.response![k].re[0][0];
+        const im = ref.response![k].im[0][0];
         expect(Math.hypot(h.re.data[0] - re, h.im.data[0] - im) / Math.hypot(re, im)).toBeLessThan(tol);
       });
     }

@@ -118,12 +118,12 @@ describe('DC gain', () => {
 
   it('equals D − C A⁻¹ B from numpy on a random MIMO model (frequency response at ω = 0)', () => {
     const model = randomStableModel(21, 12, 2, 3, { withD: true });
-    const [ref] = runReference([{ name: 'dc', model, tasks: ['freq'], w: [0] }]);
+    const [ref] = runReference([{ name: 'zero-frequency', model, tasks: ['response'], frequencies: [0] }]);
     const g = dcGain(model);
     expect(g.defined).toBe(true);
     if (!g.defined) return;
     for (let i = 0; i < 3; i++) {
-      for (let j = 0; j < 2; j++) expect(get(g.value, i, j)).toBeCloseTo(ref.freq![0].re[i][j], 10);
+      for (let j = 0; j < 2; j++) expect(get(g.value, i, j)).toBeCloseTo(ref.response![0].re[i][j], 10);
     }
   });
 });

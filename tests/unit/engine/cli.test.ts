@@ -111,17 +111,36 @@ describe('cli reduce', () => {
   });
 });
 
-describe('cli freq', () => {
-  it('prints G(jω) per frequency: k/(jω+a) for the JSON lag (closed form)', () => {
-    const out = json(['freq', `${FIX}/first-order-lag.json`, '--w', '0,2,20']) as {
-      w: number[];
-      H: { re: number[][]; im: number[][] }[];
+describe('cli sweep', () => {
+  it('prints G(jω) per frequency: k/(jω+a) for the JSON lag (closed form), with the unit', () => {
+    const out = json(['sweep', `${FIX}/first-order-lag.json`, '--at', '0,2,20']) as {
+      frequencies: number[];
+      frequencyUnit: string;
+      response: { re: number[][]; im: number[][] }[];
+      largestSingularValue: number[];
     };
-    expect(out.w).toEqual([0, 2, 20]);
-    out.w.forEach((w, k) => {
-      expect(out.H[k].re[0][0]).toBeCloseTo(6 / (4 + w * w), 12);
-      expect(out.H[k].im[0][0]).toBeCloseTo((-3 * w) / (4 + w * w), 12);
+    expect(out.frequencies).toEqual([0, 2, 20]);
+    expect(out.frequencyUnit).toBe('rad/s');
+    out.frequencies.forEach((w, k) => {
+      expect(out.response[k].re[0][0]).toBeCloseTo(6 / (4 + w * w), 12);
+      expect(out.response[k].im[0][0]).toBeCloseTo((-3 * w) / (4 + w * w), 12);
+      // |k/(jω+a)| = k/√(a²+ω²) for the SISO lag
+      expect(out.largestSingularValue[k]).toBeCloseTo(3 / Math.sqrt(4 + w * w), 12);
     });
+  });
+
+  it('--grid LOW,HIGH --count N: N log-spaced frequencies from LOW to HIGH inclusive', () => {
+    const out = json(['sweep', `${FIX}/first-order-lag.json`, '--grid', '0.1,1000', '--count', '5']) as { frequencies: number[] };
+    expect(out.frequencies).toHaveLength(5);
+    [0.1, 1, 10, 100, 1000].forEach((w, k) => expect(out.frequencies[k] / w).toBeCloseTo(1, 12));
+  });
+
+  it('refuses both or neither of --at and --grid, a bad grid and --count without --grid, naming the option', () => {
+    expect(cli('sweep', `${FIX}/first-order-lag.json`).stderr).toMatch(/--at w1,w2,… or a log-spaced grid as --grid LOW,HIGH/);
+    expect(cli('sweep', `${FIX}/first-order-lag.json`, '--at', '1', '--grid', '1,10').stderr).toMatch(/field: at/);
+    expect(cli('sweep', `${FIX}/first-order-lag.json`, '--grid', '10,1').stderr).toMatch(/--grid must be LOW,HIGH with 0 < LOW < HIGH/);
+    expect(cli('sweep', `${FIX}/first-order-lag.json`, '--at', '1', '--count', '5').stderr).toMatch(/--count applies to --grid only/);
+    expect(cli('sweep', `${FIX}/first-order-lag.json`, '--at', '-1').stderr).toMatch(/--at frequencies must be ≥ 0/);
   });
 });
 
@@ -149,7 +168,7 @@ describe('cli errors', () => {
   it('rejects an unknown method, an unknown option and a non-numeric frequency', () => {
     expect(cli('reduce', randomPath, '--method', 'fastest', '--order', '2').stderr).toMatch(/--method must be one of/);
     expect(cli('analyze', randomPath, '--frobnicate', '1').stderr).toMatch(/unknown option --frobnicate/);
-    expect(cli('freq', randomPath, '--w', '1,abc').stderr).toMatch(/--w must be a number, got "abc"/);
+    expect(cli('sweep', randomPath, '--at', '1,abc').stderr).toMatch(/--at must be a number, got "abc"/);
     expect(cli('transmogrify', randomPath).status).not.toBe(0);
   });
 });

@@ -26,7 +26,7 @@ function maxRelativeDifference(
   let peak = 0;
   for (const g of theirs) g.re.forEach((row, i) => row.forEach((re, j) => (peak = Math.max(peak, Math.hypot(re, g.im[i][j])))));
   let worst = 0;
-  ours.H.forEach((h, k) => {
+  ours.response.forEach((h, k) => {
     const m = h.re.cols;
     theirs[k].re.forEach((row, i) =>
       row.forEach((re, j) => {
@@ -48,16 +48,16 @@ describe('frequency response on a Hessenberg form (Laub 1981)', () => {
       disguise(heatEquation(40), 503),
       disguise(rigidBodyModel(), 504),
     ];
-    const ref = runReference(models.map((model, i) => ({ name: `freq-${i}`, model, tasks: ['freq'], w })));
+    const ref = runReference(models.map((model, i) => ({ name: `response-${i}`, model, tasks: ['response'], frequencies: w })));
     models.forEach((model, i) => {
       const ours = frequencyResponse(model, w);
-      expect(maxRelativeDifference(ours, ref[i].freq!)).toBeLessThan(1e-8);
+      expect(maxRelativeDifference(ours, ref[i].response!)).toBeLessThan(1e-8);
       // The Hessenberg form on every model; the modal form wherever it accepts the model.
       const hess = frequencyEvaluator(model, { form: 'hessenberg' });
       expect(hess.form).toBe('hessenberg');
-      expect(maxRelativeDifference({ w: Float64Array.from(w), H: hess.many(w) }, ref[i].freq!)).toBeLessThan(1e-8);
+      expect(maxRelativeDifference({ frequencies: Float64Array.from(w), response: hess.many(w) }, ref[i].response!)).toBeLessThan(1e-8);
       const auto = frequencyEvaluator(model);
-      if (auto.form === 'modal') expect(maxRelativeDifference({ w: Float64Array.from(w), H: auto.many(w) }, ref[i].freq!)).toBeLessThan(1e-8);
+      if (auto.form === 'modal') expect(maxRelativeDifference({ frequencies: Float64Array.from(w), response: auto.many(w) }, ref[i].response!)).toBeLessThan(1e-8);
     });
   });
 
@@ -65,8 +65,8 @@ describe('frequency response on a Hessenberg form (Laub 1981)', () => {
     const r = frequencyResponse(firstOrderLag(2, 3), [0, 3, 30]);
     [0, 3, 30].forEach((w, k) => {
       const den = 9 + w * w;
-      expect(r.H[k].re.data[0]).toBeCloseTo((2 * 3) / den, 14);
-      expect(r.H[k].im.data[0]).toBeCloseTo((-2 * w) / den, 14);
+      expect(r.response[k].re.data[0]).toBeCloseTo((2 * 3) / den, 14);
+      expect(r.response[k].im.data[0]).toBeCloseTo((-2 * w) / den, 14);
     });
   });
 
@@ -99,7 +99,7 @@ describe('frequency response on a Hessenberg form (Laub 1981)', () => {
     const D = fromRows([[1, 2]]);
     const model = { A: zeros(0, 0), B: zeros(0, 2), C: zeros(1, 0), D };
     const r = frequencyResponse(model, [1]);
-    expect(Array.from(r.H[0].re.data)).toEqual([1, 2]);
+    expect(Array.from(r.response[0].re.data)).toEqual([1, 2]);
   });
 });
 
@@ -107,8 +107,8 @@ describe('singular values and Bode data', () => {
   it('complex singular values agree with numpy.linalg.svd of G(jω) (LAPACK zgesdd)', () => {
     const model = randomStableModel(510, 12, 3, 2, { withD: true });
     const w = [0, 0.1, 1, 10];
-    const [ref] = runReference([{ name: 'sv', model, tasks: ['sv'], w }]);
-    frequencyResponse(model, w).H.forEach((h, k) => {
+    const [ref] = runReference([{ name: 'sv', model, tasks: ['sv'], frequencies: w }]);
+    frequencyResponse(model, w).response.forEach((h, k) => {
       const s = complexSingularValues(h);
       expect(s.length).toBe(2);
       s.forEach((x, i) => expect(Math.abs(x / ref.sv![k][i] - 1)).toBeLessThan(1e-10));

@@ -49,10 +49,10 @@ describe('modal form', () => {
     const w = [0, 0.3, 3, 30];
     const a = frequencyResponse(model, w);
     const b = frequencyResponse(form.realization, w);
-    a.H.forEach((h, i) => {
+    a.response.forEach((h, i) => {
       for (let e = 0; e < h.re.data.length; e++) {
-        expect(b.H[i].re.data[e]).toBeCloseTo(h.re.data[e], 9);
-        expect(b.H[i].im.data[e]).toBeCloseTo(h.im.data[e], 9);
+        expect(b.response[i].re.data[e]).toBeCloseTo(h.re.data[e], 9);
+        expect(b.response[i].im.data[e]).toBeCloseTo(h.im.data[e], 9);
       }
     });
   });

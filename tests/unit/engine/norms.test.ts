@@ -46,12 +46,12 @@ describe('H∞ norm by the Hamiltonian method (Boyd & Balakrishnan 1990; Bruinsm
       randomStableModel(604, 40, 2, 2, { decades: 4, withD: true }),
       disguise(heatEquation(30), 605),
     ];
-    const ref = runReference(models.map((model, i) => ({ name: `hinf-${i}`, model, tasks: ['hinf'] })));
+    const ref = runReference(models.map((model, i) => ({ name: `h-infinity-${i}`, model, tasks: ['h_infinity'] })));
     models.forEach((model, i) => {
       const r = hinfNorm(model);
       expect(r.finite).toBe(true);
       if (!r.finite) return;
-      expect(Math.abs(r.value / ref[i].hinf!.value - 1)).toBeLessThan(1e-7);
+      expect(Math.abs(r.value / ref[i].h_infinity!.value - 1)).toBeLessThan(1e-7);
       // The value is attained: σ_max at the reported frequency is the norm.
       const sigma = largestSingularValue(frequencyEvaluator(model).at(r.peakFrequency));
       expect(Math.abs(sigma / r.value - 1)).toBeLessThan(1e-12);

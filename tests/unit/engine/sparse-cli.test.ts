@@ -2,7 +2,7 @@
  * The command line's sparse path (issue 13): routing (--path, the crossover, --E), the keys it adds, its
  * refusals. Sources beside each check: the library call it wraps (reduction/sparse/balanced.ts, tested in
  * sparse-balanced.test.ts), the dense path on the same 400-state model, and scipy.sparse.linalg.splu
- * (Debian python3-scipy, tests/reference/sparse_reference.py task "freq") for the DC gain.
+ * (Debian python3-scipy, tests/reference/sparse_reference.py task "response") for the DC gain.
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
@@ -17,7 +17,7 @@ const ROOT = path.resolve(__dirname, '../../..');
 
 /** max over ω of ‖G1(iω) − G2(iω)‖_F / ‖G1(iω)‖_F. */
 function responseGap(a: StateSpaceModel, b: StateSpaceModel, w: Float64Array): number {
-  const ga = frequencyResponse(a, w).H, gb = frequencyResponse(b, w).H;
+  const ga = frequencyResponse(a, w).response, gb = frequencyResponse(b, w).response;
   let worst = 0;
   for (let k = 0; k < w.length; k++) {
     let num = 0, den = 0;
@@ -75,7 +75,7 @@ describe('command line: the sparse path', () => {
     // Both keep the DC gain: the residualized models' −C A⁻¹ B agree.
     const dc = (o: { A: number[][]; B: number[][]; C: number[][] }) => {
       const m = { A: fromRows(o.A), B: fromRows(o.B), C: fromRows(o.C), D: zeros(1, 1) };
-      return frequencyResponse(m, [0]).H[0].re.data[0];
+      return frequencyResponse(m, [0]).response[0].re.data[0];
     };
     expect(relDiff(dc(sparse), dc(auto))).toBeLessThan(1e-8);
   });
@@ -131,7 +131,7 @@ describe('command line: the sparse path', () => {
     expect(out.polesComplete).toBe(false);
     expect(out.hsvComplete).toBe(false);
     expect(out.estimated).toEqual(['slowestDecayRate', 'fastestDecayRate', 'stiffnessRatio', 'hankelSingularValues', 'h2Norm']);
-    const ref = sparseReference(dir, ['freq'], { w: [0] }).freq[0]; // scipy splu: C (0·E − A)⁻¹ B
+    const ref = sparseReference(dir, ['response'], { frequencies: [0] }).response[0]; // scipy splu: C (0·E − A)⁻¹ B
     expect(relDiff(out.dcGain[0][0], ref.re[0][0])).toBeLessThan(1e-10);
   });
 

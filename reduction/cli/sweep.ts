@@ -1,0 +1,57 @@
+/**
+ * `sweep MODEL (--at w1,w2,… | --grid LOW,HIGH [--count N])`: the frequency response G(jω), one p×m complex
+ * matrix per frequency, with σmax(G(jω)) (method: `reduction/frequency.ts`, Laub 1981). Frequencies are in
+ * rad per the model's time base (rad/s unless the model says otherwise); the document names the unit.
+ */
+import { ModelError } from '../errors';
+import { frequencyEvaluator, largestSingularValue, logFrequencyGrid } from '../frequency';
+import { integerOption, loadModelArgument, numberListOption, type ParsedArgs } from './args';
+import { matrixRows, numberList } from './output';
+import { registerVerb } from './registry';
+
+const DEFAULT_COUNT = 200;
+
+function frequenciesOf(args: ParsedArgs): number[] {
+  const at = numberListOption(args, 'at');
+  const grid = numberListOption(args, 'grid');
+  if ((at === undefined) === (grid === undefined)) {
+    throw new ModelError('invalid_option', 'at', 'give the frequencies as --at w1,w2,… or a log-spaced grid as --grid LOW,HIGH [--count N]');
+  }
+  if (at !== undefined) {
+    if (integerOption(args, 'count') !== undefined) {
+      throw new ModelError('invalid_option', 'count', '--count applies to --grid only; --at lists every frequency itself');
+    }
+    if (at.some((x) => x < 0)) throw new ModelError('invalid_option', 'at', '--at frequencies must be ≥ 0');
+    return at;
+  }
+  const [low, high] = grid as number[];
+  if (grid!.length !== 2 || !(low > 0 && high > low)) {
+    throw new ModelError('invalid_option', 'grid', '--grid must be LOW,HIGH with 0 < LOW < HIGH');
+  }
+  const count = integerOption(args, 'count') ?? DEFAULT_COUNT;
+  if (count < 2) throw new ModelError('invalid_option', 'count', '--count must be at least 2');
+  return Array.from(logFrequencyGrid(low, high, count));
+}
+
+registerVerb({
+  name: 'sweep',
+  summary: 'frequency response G(jω) at given frequencies or on a log-spaced grid',
+  usage: 'MODEL (--at w1,w2,… | --grid LOW,HIGH [--count N])',
+  options: {
+    at: { value: true, description: 'frequencies in rad per time unit of the model (rad/s for seconds), comma-separated, each ≥ 0' },
+    grid: { value: true, description: 'log-spaced grid from LOW to HIGH rad per time unit of the model' },
+    count: { value: true, description: `number of grid points for --grid (default ${DEFAULT_COUNT})` },
+  },
+  run(args) {
+    const model = loadModelArgument(args.positionals);
+    const frequencies = frequenciesOf(args);
+    const evaluator = frequencyEvaluator(model);
+    const response = frequencies.map((w) => evaluator.at(w));
+    return {
+      frequencies,
+      frequencyUnit: `rad/${model.timeUnit ?? 's'}`,
+      response: response.map((g) => ({ re: matrixRows(g.re), im: matrixRows(g.im) })),
+      largestSingularValue: numberList(response.map((g) => largestSingularValue(g))),
+    };
+  },
+});
