@@ -3,7 +3,7 @@
  * frequency sweep by sparse solves (issue 13; the command line's routing is in sparse-cli.test.ts). Sources beside each check:
  *  - the dense path (reduction/balanced.ts: Bartels–Stewart gramians, square-root balancing), itself tested
  *    against scipy, on a model small enough for both (n = 400);
- *  - scipy.sparse.linalg.splu (Debian python3-scipy, tests/reference/sparse_reference.py task "freq") for
+ *  - scipy.sparse.linalg.splu (Debian python3-scipy, tests/reference/sparse_reference.py task "response") for
  *    the full model's G(iω), and the script's independent low-rank ADI + square-root balanced truncation
  *    (task "lradi") for the reduced model;
  *  - the balanced-truncation bounds σ_{r+1} ≤ ‖G − Gr‖∞ ≤ 2 Σ_{i>r} σᵢ (Glover, Int. J. Control 39(6),
@@ -27,7 +27,7 @@ function denseOf(m: SparseStateSpaceModel): StateSpaceModel {
 
 /** max over ω of ‖G1(iω) − G2(iω)‖_F / ‖G1(iω)‖_F. */
 function responseGap(a: StateSpaceModel, b: StateSpaceModel, w: Float64Array): number {
-  const ga = frequencyResponse(a, w).H, gb = frequencyResponse(b, w).H;
+  const ga = frequencyResponse(a, w).response, gb = frequencyResponse(b, w).response;
   let worst = 0;
   for (let k = 0; k < w.length; k++) {
     let num = 0, den = 0;
@@ -66,14 +66,14 @@ describe('the reduced model against the full model swept by sparse solves', () =
   it("the full model's G(iω) matches scipy's SuperLU solves (convection–diffusion with E, n = 900)", () => {
     const model = plateModel(30, { convection: 300, descriptor: true, inputs: 2, outputs: 2 });
     const w = [0, 0.5, 30, 2e3, 1e5];
-    const ref = sparseReference(writeModel(model), ['freq'], { w }).freq;
+    const ref = sparseReference(writeModel(model), ['response'], { frequencies: w }).response;
     const g = sparseFrequencyResponse(model, w);
     for (let k = 0; k < w.length; k++) {
       for (let i = 0; i < 2; i++) {
         for (let j = 0; j < 2; j++) {
           const scale = Math.hypot(ref[k].re[i][j], ref[k].im[i][j]) + 1e-300;
-          expect(Math.abs(g.H[k].re.data[i * 2 + j] - ref[k].re[i][j]) / scale).toBeLessThan(1e-9);
-          expect(Math.abs(g.H[k].im.data[i * 2 + j] - ref[k].im[i][j]) / Math.max(scale, 1e-12)).toBeLessThan(1e-9);
+          expect(Math.abs(g.response[k].re.data[i * 2 + j] - ref[k].re[i][j]) / scale).toBeLessThan(1e-9);
+          expect(Math.abs(g.response[k].im.data[i * 2 + j] - ref[k].im[i][j]) / Math.max(scale, 1e-12)).toBeLessThan(1e-9);
         }
       }
     }
