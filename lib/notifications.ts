@@ -242,29 +242,3 @@ export async function deliverDueMail(
   await Promise.all(lanes);
   return report;
 }
-
-export interface QueuedMailSummary {
-  id: string;
-  kind: NotificationKind;
-  toAddress: string;
-  subject: string;
-  status: 'pending' | 'sending' | 'sent' | 'failed';
-  attempts: number;
-  lastError: string | null;
-  createdAt: string;
-}
-
-/** The newest queued mail (for tests and for an admin wondering why a mail has not arrived). */
-export async function recentQueuedMail(limit = 50): Promise<QueuedMailSummary[]> {
-  const rows = await db()('mail_queue').orderBy('id', 'desc').limit(limit);
-  return rows.map((r) => ({
-    id: String(r.id),
-    kind: r.kind,
-    toAddress: r.to_address,
-    subject: r.subject,
-    status: r.status,
-    attempts: r.attempts,
-    lastError: r.last_error,
-    createdAt: (r.created_at as Date).toISOString(),
-  }));
-}

@@ -283,11 +283,6 @@ export async function listMembers(projectId: string, trx: Knex | Knex.Transactio
   }));
 }
 
-/** Active members' addresses, for the project's notices. */
-export async function memberAddresses(projectId: string, trx: Knex | Knex.Transaction = db()): Promise<{ email: string; name: string }[]> {
-  return (await listMembers(projectId, trx)).filter((m) => m.active).map((m) => ({ email: m.email, name: m.name }));
-}
-
 export async function addMember(slug: string, email: string, actor: SessionUser, outer: Knex = db()): Promise<ProjectMember[]> {
   return outer.transaction(async (trx) => {
     const project = await requireProject(slug, trx);

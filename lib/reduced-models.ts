@@ -640,11 +640,3 @@ export async function requestInputResponse(request: Request, user: SessionUser):
 export function signalPathOf(payload: Record<string, unknown>): { storageKey: string; name: string } {
   return { storageKey: String(payload.signalStorageKey), name: String(payload.signalName ?? 'signal.csv') };
 }
-
-export type { InputResponseRecord };
-
-export async function requireReducedVersion(id: string): Promise<ReducedVersionRow> {
-  const row = await findReducedVersion(id);
-  if (!row) throw notFound('The reduced version');
-  return row;
-}

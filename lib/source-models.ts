@@ -19,7 +19,7 @@ import { validateInChildProcess } from '@/lib/engine-tasks/validate-process';
 import { FILE_ROLES, type FileRole, type ModelFile, type SourceFormat, type StoredModelFile } from '@/lib/engine-tasks/model-files';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { keptPolesOf, modalOrderFigures, statesInBand } from '@/lib/engine-tasks/order-figures';
-import { createJob, dispatchJob, latestJobFor, toJobView, type JobRow, type JobView } from '@/lib/jobs/jobs';
+import { createJob, dispatchJob, latestJobFor, toJobView, type JobView } from '@/lib/jobs/jobs';
 
 // ---------------------------------------------------------------------------------------------------
 // Schemas: one base, the create and version forms derived from it (STYLE.md).
@@ -502,12 +502,6 @@ export async function findSourceVersion(id: string, trx: Knex | Knex.Transaction
   return { ...version, model };
 }
 
-export async function requireSourceVersion(id: string): Promise<SourceVersionRow & { model: SourceModelRow }> {
-  const found = await findSourceVersion(id);
-  if (!found) throw notFound('The source version');
-  return found;
-}
-
 /** The engine's view of a version's files: their keys in the store, which the worker fetches (lib/storage/scratch.ts). */
 export function modelFilesOfVersion(version: Pick<SourceVersionRow, 'files'>): StoredModelFile[] {
   return version.files.map((f) => ({ role: f.role, name: f.name, storageKey: f.storageKey }));
@@ -528,8 +522,6 @@ export async function writeAnalysis(trx: Knex.Transaction, sourceVersionId: stri
     .onConflict('source_version_id')
     .ignore();
 }
-
-export type { JobRow };
 
 /** The order slider's figures for modal truncation with the band rule (lib/engine-tasks/order-figures.ts). */
 export async function bandOrderFigures(sourceVersionId: string, band: [number, number]) {

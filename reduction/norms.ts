@@ -354,8 +354,3 @@ export function h2Norm(model: StateSpaceModel, options: NormOptions = {}): NormV
   // its relative accuracy (a dense P, as Bartels–Stewart gives, would lose everything below √ε·‖G‖₂).
   return { finite: true, value: frobeniusNorm(matmul(model.C, lyapunovFactor(model.A, model.B))) };
 }
-
-/** The spectral norm ‖M‖₂ of a real matrix (0 for an empty one). */
-export function spectralNorm(m: Matrix): number {
-  return largestSingular(m);
-}

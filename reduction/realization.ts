@@ -68,12 +68,6 @@ export function selectRows(m: Matrix, indices: readonly number[]): Matrix {
   return out;
 }
 
-export function trace(m: Matrix): number {
-  let s = 0;
-  for (let i = 0; i < Math.min(m.rows, m.cols); i++) s += m.data[i * m.cols + i];
-  return s;
-}
-
 /** (X + Xᵀ)/2: removes the rounding asymmetry of a computed gramian before a symmetric decomposition. */
 export function symmetricPart(m: Matrix): Matrix {
   const n = m.rows;
@@ -82,11 +76,6 @@ export function symmetricPart(m: Matrix): Matrix {
     for (let j = 0; j < n; j++) out.data[i * n + j] = 0.5 * (m.data[i * n + j] + m.data[j * n + i]);
   }
   return out;
-}
-
-/** A realization with the same inputs and outputs as `like` and no states: the constant gain D. */
-export function staticGain(D: Matrix): StateSpaceModel {
-  return { A: zeros(0, 0), B: zeros(0, D.cols), C: zeros(D.rows, 0), D };
 }
 
 /** The realization's first `r` states (truncation of an ordered realization); D unchanged. */

@@ -3,7 +3,7 @@
 import bcrypt from 'bcryptjs';
 import { passwordSchema } from '@/lib/auth/password-rules';
 
-export { MIN_PASSWORD_LENGTH, MAX_PASSWORD_BYTES, passwordSchema } from '@/lib/auth/password-rules';
+export { passwordSchema } from '@/lib/auth/password-rules';
 
 function rounds(): number {
   // Cost 11 is common practice for interactive sign-in; tests may lower it through BCRYPT_ROUNDS.

@@ -8,5 +8,3 @@ export type TaskRequest =
   | { task: 'analysis'; files: ModelFileRef[]; engineVersion: string }
   | { task: 'reduction'; files: ModelFileRef[]; recipe: RecipeInput; summary: AnalysisSummary; engineVersion: string }
   | { task: 'response'; files: ModelFileRef[]; matrices: ReducedMatricesRecord; signal: FileRef };
-
-export type TaskName = TaskRequest['task'];

@@ -114,10 +114,6 @@ export interface Refusal {
 
 export type TransitionDecision = { ok: true; rule: TransitionRule } | { ok: false; refusal: Refusal };
 
-export function isVersionStatus(value: unknown): value is VersionStatus {
-  return typeof value === 'string' && (VERSION_STATUSES as readonly string[]).includes(value);
-}
-
 /** The refusal for a role the rule does not admit, worded like lib/auth.ts requireRole's. */
 export function roleRefusal(rule: TransitionRule): Refusal {
   return {

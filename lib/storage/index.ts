@@ -14,7 +14,7 @@ import { S3Store } from './s3';
 import { contentKey, StorageError, type ObjectStore } from './types';
 
 export * from './types';
-export { storeConfig, scratchDir, StorageConfigError, type StoreConfig } from './config';
+export { storeConfig, StorageConfigError, type StoreConfig } from './config';
 export { LocalStore } from './local';
 export { S3Store } from './s3';
 

@@ -6,12 +6,8 @@
 // Registration calls storeFile after the engine's check and before its transaction and, when the transaction
 // fails, releaseFiles for the objects it placed itself; an object another record refers to is never removed.
 import { ApiError } from '@/lib/http';
-import { contentKey, LocalStore, objectStore, putContent, StorageError } from '@/lib/storage';
+import { LocalStore, objectStore, putContent, StorageError } from '@/lib/storage';
 import { uploadsDir } from './settings';
-
-export function storageKeyFor(sha256: string): string {
-  return contentKey(sha256);
-}
 
 /**
  * The path of a storage key in the local folder (MODESHELF_UPLOADS_DIR). Only the local store keeps files

@@ -1,7 +1,15 @@
 /**
- * Command-line arguments: positionals and `--name value` / `--name=value` / `--flag` options, checked
- * against the options a verb declares, with number parsers that fail with a ModelError naming the option.
+ * Command-line arguments, read by Node's `util.parseArgs` against the options a verb declares (its
+ * `options` table in the verb's module: one entry per option, so renaming an option is one line there plus
+ * the name it is read by), with number parsers that fail with a ModelError naming the option.
+ *
+ * Accepted: positionals, `--name value`, `--name=value` and `--flag`; a value may start with a dash
+ * (`--shift -5`); `--` ends the options (everything after it is positional). An argument with a single
+ * dash (`-5`, `-x`) is positional, as it always was here. Refused, each with a ModelError naming the option:
+ * an option the verb does not declare (the message lists the known ones), an option given twice, a value
+ * on a flag, a missing or empty value.
  */
+import { parseArgs as parseWithNode } from 'node:util';
 import { ModelError } from '../errors';
 import { loadModelFiles } from '../io/index';
 import type { StateSpaceModel } from '../model';
@@ -18,17 +26,28 @@ export interface ParsedArgs {
 }
 
 export function parseArgs(argv: readonly string[], spec: Readonly<Record<string, OptionSpec>>): ParsedArgs {
+  const declared = Object.fromEntries(
+    Object.entries(spec).map(([name, option]) => [name, { type: option.value ? ('string' as const) : ('boolean' as const) }]),
+  );
+  // Not strict: the checks below word the errors themselves, in the order the arguments come.
+  const { tokens } = parseWithNode({ args: [...argv], options: declared, strict: false, allowPositionals: true, tokens: true });
   const positionals: string[] = [];
   const options = new Map<string, string | true>();
-  for (let i = 0; i < argv.length; i++) {
-    const arg = argv[i];
-    if (!arg.startsWith('--') || arg === '--') {
-      positionals.push(arg);
+  let lastShortIndex = -1;
+  for (const token of tokens) {
+    if (token.kind === 'positional') {
+      positionals.push(token.value);
       continue;
     }
-    const eq = arg.indexOf('=');
-    const name = eq >= 0 ? arg.slice(2, eq) : arg.slice(2);
-    const option = spec[name];
+    if (token.kind === 'option-terminator') continue;
+    if (!token.rawName.startsWith('--')) {
+      // A single-dash argument (a group like -abc gives one token per letter): positional, whole.
+      if (token.index !== lastShortIndex) positionals.push(argv[token.index]);
+      lastShortIndex = token.index;
+      continue;
+    }
+    const name = token.name;
+    const option = Object.hasOwn(spec, name) ? spec[name] : undefined;
     if (!option) {
       const known = Object.keys(spec).map((k) => `--${k}`);
       throw new ModelError(
@@ -39,17 +58,14 @@ export function parseArgs(argv: readonly string[], spec: Readonly<Record<string,
     }
     if (options.has(name)) throw new ModelError('invalid_option', name, `option --${name} given twice`);
     if (!option.value) {
-      if (eq >= 0) throw new ModelError('invalid_option', name, `option --${name} takes no value`);
+      if (token.inlineValue) throw new ModelError('invalid_option', name, `option --${name} takes no value`);
       options.set(name, true);
       continue;
     }
-    let value: string | undefined;
-    if (eq >= 0) value = arg.slice(eq + 1);
-    else if (i + 1 < argv.length) value = argv[++i];
-    if (value === undefined || value === '') {
+    if (token.value === undefined || token.value === '') {
       throw new ModelError('invalid_option', name, `option --${name} needs a value`);
     }
-    options.set(name, value);
+    options.set(name, token.value);
   }
   return { positionals, options };
 }
@@ -57,10 +73,6 @@ export function parseArgs(argv: readonly string[], spec: Readonly<Record<string,
 export function stringOption(args: ParsedArgs, name: string): string | undefined {
   const v = args.options.get(name);
   return typeof v === 'string' ? v : undefined;
-}
-
-export function flagOption(args: ParsedArgs, name: string): boolean {
-  return args.options.get(name) === true;
 }
 
 function toNumber(text: string, name: string): number {

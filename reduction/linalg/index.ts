@@ -10,22 +10,12 @@ import { type Matrix, type ComplexVector, zeros } from './matrix';
 import type { LuFactorization } from './lu';
 import { kernels } from './kernels';
 import { lyapunov as signLyapunov } from './lyapunov';
-import { linalgThreads } from './parallel';
 
 export * from './matrix';
 export { luLogDeterminant, type LuFactorization } from './lu';
-export { standardise2x2 } from './schur';
-export {
-  lyapunovFactor,
-  lowRankGramianFactors,
-  lyapunovResidual,
-  type SignIterationOptions,
-  type SignIterationReport,
-} from './lyapunov';
+export { lyapunovFactor, lowRankGramianFactors } from './lyapunov';
 export { linalgThreads } from './parallel';
-export { sylvester, lyapunovBartelsStewart } from './sylvester';
-export { balance } from './balance';
-export { kernels, linalgBackendReport, useLinalgBackend, type DenseKernels } from './kernels';
+export { kernels, linalgBackendReport, useLinalgBackend } from './kernels';
 
 /** Sets the dense kernels' thread count (BLAS threads for the native backend, 1 or 2 for the portable one). */
 export function setLinalgThreads(threads: number): void {
@@ -189,20 +179,10 @@ export function pivotedQr(a: Matrix, tolerance?: number): { Q: Matrix; R: Matrix
   return kernels().pivotedQr(a, tolerance);
 }
 
-/** Orthonormal basis (m×r, r the numerical rank) of the range of A. */
-export function orthonormalBasis(a: Matrix, tolerance?: number): Matrix {
-  return pivotedQr(a, tolerance).Q;
-}
-
 /**
  * X solving A·X + X·Aᵀ + Q = 0 for stable A (all eigenvalues in the open left half-plane), by the
  * scaled matrix sign-function iteration (Roberts 1971; Byers 1987), see `lyapunov.ts`.
  */
 export function lyapunov(a: Matrix, q: Matrix): Matrix {
   return signLyapunov(a, q);
-}
-
-/** How many threads the kernels use now. */
-export function kernelThreads(): number {
-  return linalgThreads();
 }

@@ -44,16 +44,8 @@ export function toRows(m: Matrix): number[][] {
   return out;
 }
 
-export function clone(m: Matrix): Matrix {
-  return { rows: m.rows, cols: m.cols, data: new Float64Array(m.data) };
-}
-
 export function get(m: Matrix, i: number, j: number): number {
   return m.data[i * m.cols + j];
-}
-
-export function set(m: Matrix, i: number, j: number, v: number): void {
-  m.data[i * m.cols + j] = v;
 }
 
 export function transpose(m: Matrix): Matrix {

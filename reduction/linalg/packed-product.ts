@@ -7,9 +7,7 @@
 import { createPackedKernel, type PackedKernel } from './wasm/packed-kernel';
 import { GEMM_KERNEL_WASM_HEX } from './wasm/gemm-kernel-binary';
 
-/** Register tile: 4×4 accumulators (16 doubles) — the best of 2×4, 3×4, 4×2, 4×4 measured here. */
-export const MR = 4;
-export const NR = 4;
+// Register tile MR×NR = 4×4 accumulators (16 doubles) — the best of 2×4, 3×4, 4×2, 4×4 measured here.
 /** Cache blocks: kc·NR doubles of B and mc·kc of A; chosen by measurement (flat between 256 and 512). */
 export const KC = 256;
 export const MC = 96;

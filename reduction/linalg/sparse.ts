@@ -155,9 +155,3 @@ export function amdOrdering(a: Pick<CscMatrix, 'n' | 'colPtr' | 'rowIndex'>): { 
   return { perm, lnz: r.lnz, flops: r.flops };
 }
 
-/** A column ordering for sparse LU (COLAMD). */
-export function colamdOrdering(rows: number, a: Pick<CscMatrix, 'n' | 'colPtr' | 'rowIndex'>): Int32Array {
-  const perm = new Int32Array(a.n);
-  native('COLAMD ordering', () => addon('COLAMD ordering').colamdOrder(rows, a.n, a.colPtr, a.rowIndex, perm));
-  return perm;
-}

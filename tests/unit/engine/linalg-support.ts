@@ -74,13 +74,6 @@ export function reference(tasks: ReferenceTask[]): Record<string, unknown>[] {
   }
 }
 
-/** Complex numbers sorted by real part, then imaginary part, for order-free comparison. */
-export function sortedComplex(re: ArrayLike<number>, im: ArrayLike<number>): [number, number][] {
-  const out: [number, number][] = [];
-  for (let i = 0; i < re.length; i++) out.push([re[i], im[i]]);
-  return out.sort((x, y) => x[0] - y[0] || x[1] - y[1]);
-}
-
 export function maxAbsDiff(a: Matrix, b: Matrix | number[][]): number {
   let e = 0;
   const rows = Array.isArray(b) ? b : toRows(b);

@@ -4,7 +4,7 @@
  */
 import { execFileSync } from 'node:child_process';
 import path from 'node:path';
-import { type Matrix, fromRows, toRows, zeros } from '@/reduction/linalg/matrix';
+import { type Matrix, toRows, zeros } from '@/reduction/linalg/matrix';
 import { matmul, inverse } from '@/reduction/linalg';
 import { assembleModel } from '@/reduction/io';
 import type { StateSpaceModel } from '@/reduction/model';
@@ -81,5 +81,3 @@ export function modelWithRates(
 export function logRates(n: number, lo: number, hi: number): number[] {
   return Array.from({ length: n }, (_, k) => lo * Math.pow(hi / lo, n === 1 ? 0 : k / (n - 1)));
 }
-
-export { fromRows };
