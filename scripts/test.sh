@@ -4,7 +4,8 @@
 #   2. starts PostgreSQL (loopback) and re-creates an empty test database, migrates and seeds it
 #   3. starts the fake SMTP on a test port
 #   4. vitest: unit, engine and integration tests (integration against the real PostgreSQL)
-#   5. tsc --noEmit over the whole tree
+#   5. tsc --noEmit over the whole tree; the import rules (dependency-cruiser, .dependency-cruiser.cjs) and
+#      the unused-code check (knip, knip.jsonc)
 #   6. builds the app into .next-test, serves it on a test port with one background worker (the jobs of
 #      uploads and reductions), runs the browser tests (playwright-core
 #      driving Debian's chromium), screenshots in test-output/
@@ -74,6 +75,12 @@ node_modules/.bin/vitest run || FAILED+=("vitest (unit, engine, integration)")
 
 log "tsc --noEmit"
 node_modules/.bin/tsc --noEmit -p . || FAILED+=("tsc --noEmit")
+
+log "import rules (dependency-cruiser: no cycles, reduction/ alone, lib/ below the UI, no database in pages and routes)"
+npm run -s check:deps || FAILED+=("import rules (npm run check:deps)")
+
+log "unused files, exports and dependencies (knip)"
+npm run -s check:unused || FAILED+=("unused code (npm run check:unused)")
 
 log "next build (into .next-test; log: .run/test/build.log)"
 if node_modules/.bin/next build >"$TEST_LOG_DIR/build.log" 2>&1; then
