@@ -16,7 +16,7 @@ export async function storeMessage(
   raw: Buffer,
   envelope: { from: string | null; to: string[] },
 ): Promise<number> {
-  const parsed = parseMessage(raw);
+  const parsed = await parseMessage(raw);
   const [row] = await knex('outbox')
     .insert({
       envelope_from: envelope.from,

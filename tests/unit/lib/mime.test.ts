@@ -1,9 +1,9 @@
-// lib/mail/mime.ts reads what our mailer writes. The reference messages are composed by nodemailer's own
-// MailComposer (the library that sends Modeshelf's mail), so the reader is checked against the real
-// encoder rather than against hand-written MIME.
+// lib/mail/mime.ts (over mailparser) reads what our mailer writes into the outbox's fields. The reference
+// messages are composed by nodemailer's own MailComposer (the library that sends Modeshelf's mail), so the
+// reader is checked against the real encoder rather than against hand-written MIME.
 import { describe, expect, it } from 'vitest';
 import MailComposer from 'nodemailer/lib/mail-composer';
-import { decodeEncodedWords, parseMessage } from '@/lib/mail/mime';
+import { parseMessage } from '@/lib/mail/mime';
 
 function compose(mail: ConstructorParameters<typeof MailComposer>[0]): Promise<Buffer> {
   return new Promise((resolve, reject) =>
@@ -21,7 +21,7 @@ describe('parseMessage', () => {
       html: '<p>Zeile <b>eins</b> — ä</p>',
       messageId: '<kiln-7@quillmere.example>',
     });
-    const parsed = parseMessage(raw);
+    const parsed = await parseMessage(raw);
     expect(parsed.subject).toBe('Ofenkurve für Prüfstand 7 — Freigabe');
     expect(parsed.to).toBe('Åsa Brännström <asa@quillmere.example>');
     expect(parsed.from).toBe('Modeshelf <modeshelf@modeshelf.invalid>');
@@ -42,19 +42,37 @@ describe('parseMessage', () => {
       attachments: [{ filename: 'rig.txt', content: 'not the body', contentType: 'text/plain' }],
     });
     expect(raw.toString('latin1')).toMatch(/Content-Transfer-Encoding: base64/);
-    const parsed = parseMessage(raw);
+    const parsed = await parseMessage(raw);
     expect(parsed.text).toBe('Kiln 3 ramp: 120 K/h\n');
     expect(parsed.html).toBeNull();
   });
 
-  it('keeps a single-part 7bit message as it is', () => {
-    const parsed = parseMessage('Subject: hello\r\nTo: x@y.example\r\n\r\nline one\r\nline two\r\n');
+  it('keeps a single-part 7bit message as it is', async () => {
+    const parsed = await parseMessage('Subject: hello\r\nTo: x@y.example\r\n\r\nline one\r\nline two\r\n');
     expect(parsed.subject).toBe('hello');
+    expect(parsed.to).toBe('x@y.example');
+    expect(parsed.from).toBeNull();
+    expect(parsed.messageId).toBeNull();
     expect(parsed.text).toBe('line one\nline two\n');
+    expect(parsed.html).toBeNull();
+  });
+
+  it('gives an HTML-only message no text body, and quotes a display name only where it must', async () => {
+    const raw = await compose({
+      from: 'Modeshelf <modeshelf@modeshelf.invalid>',
+      to: ['"Halden, Priya" <priya.halden@quillmere.example>', 'dara.lindqvist@quillmere.example'],
+      subject: 'html only',
+      html: '<p>Kiln 3</p>',
+    });
+    const parsed = await parseMessage(raw);
+    expect(parsed.text).toBeNull();
+    expect(parsed.html).toMatch(/^<p>Kiln 3<\/p>\s*$/);
+    expect(parsed.from).toBe('Modeshelf <modeshelf@modeshelf.invalid>');
+    expect(parsed.to).toBe('"Halden, Priya" <priya.halden@quillmere.example>, dara.lindqvist@quillmere.example');
   });
 });
 
-describe('decodeEncodedWords', () => {
+describe('encoded words in headers', () => {
   // The examples of RFC 2047 (Moore 1996, "MIME Part Three: Message Header Extensions for Non-ASCII Text"), §8.
   it.each([
     ['(=?ISO-8859-1?Q?a?=)', '(a)'],
@@ -67,7 +85,8 @@ describe('decodeEncodedWords', () => {
     ['=?US-ASCII?Q?Keith_Moore?= <moore@cs.utk.edu>', 'Keith Moore <moore@cs.utk.edu>'],
     ['=?ISO-8859-1?Q?Andr=E9?= Pirard <PIRARD@vm1.ulg.ac.be>', 'André Pirard <PIRARD@vm1.ulg.ac.be>'],
     ['=?ISO-8859-1?B?SWYgeW91IGNhbiByZWFkIHRoaXMgeW8=?=', 'If you can read this yo'],
-  ])('%s → %s', (input, expected) => {
-    expect(decodeEncodedWords(input)).toBe(expected);
+  ])('%s → %s', async (input, expected) => {
+    const parsed = await parseMessage(`Subject: ${input}\r\nTo: x@y.example\r\n\r\nbody\r\n`);
+    expect(parsed.subject).toBe(expected);
   });
 });
