@@ -1,4 +1,4 @@
-// Modeshelf's look (DESIGN.md §7) as theme tokens: a warm off-white drafting sheet, graphite text, one deep
+// Modeshelf's look (DEVELOPERS.md, Conventions, "Look") as theme tokens: a warm off-white drafting sheet, graphite text, one deep
 // teal accent, thin rules, and the Okabe & Ito (2008) colour-blind-safe palette for states and series.
 // Loaded by `@config` in app/globals.css (Tailwind CSS 4 reads the JavaScript config that way).
 import type { Config } from 'tailwindcss';

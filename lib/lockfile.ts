@@ -1,4 +1,4 @@
-// modeshelf.lock.json: the file a controller project keeps beside its code (DESIGN.md §2). It records, for
+// modeshelf.lock.json: the file a controller project keeps beside its code (README.md, "Pull API"). It records, for
 // each pin, the exact version it resolved to and the SHA-256 of that version's registered matrices
 // (lib/checksums.ts), so a build can check that what it compiled in is what was reviewed, and a CI job can
 // ask whether the lock is still current.

@@ -1,4 +1,4 @@
-// Pins: a controller project's dependency on a reduced model (DESIGN.md §2), and how a pin resolves to a
+// Pins: a controller project's dependency on a reduced model (README.md, "Pull API"), and how a pin resolves to a
 // version now.
 //
 //   exact            always that version, even once it is retired: a controller can re-download exactly what

@@ -1,4 +1,4 @@
-// Reduced models and their numbered versions (DESIGN.md §2): the recipe a person runs, the draft version a
+// Reduced models and their numbered versions: the recipe a person runs, the draft version a
 // finished reduction registers with its accuracy report, and the reads behind the reduced-model pages and
 // the comparison page. Status changes after draft (review, approval, retirement) live in lib/review.
 //

@@ -1,4 +1,4 @@
-// The four roles of DESIGN.md §1. Roles are explicit sets, not a ladder: each guard names every role it
+// The four roles (DEVELOPERS.md, Conventions, "Roles"). Roles are explicit sets, not a ladder: each guard names every role it
 // admits. An admin manages people and mail and is not thereby a reviewer; a reviewer does not upload.
 // A later feature that wants "engineer or reviewer" says so at its guard.
 

@@ -1,4 +1,4 @@
-// Source models and their numbered versions (DESIGN.md §2, §4): the upload and its registration, the
+// Source models and their numbered versions: the upload and its registration, the
 // list the source-model table pages through, and the reads behind the model and version pages.
 //
 // Registering a version is one transaction (the model row for a first upload, the version row, its

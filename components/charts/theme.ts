@@ -1,6 +1,6 @@
 /**
- * The chart look of DESIGN.md §7 in one place: a quiet drafting sheet (warm off-white, graphite ink, one
- * deep teal accent), full-model curves solid graphite, reduced-model curves dashed teal, bounds as a
+ * The charts' look in one place (DEVELOPERS.md, Conventions, "Look"): a quiet drafting sheet (warm
+ * off-white, graphite ink, one deep teal accent), full-model curves solid graphite, reduced-model curves dashed teal, bounds as a
  * shaded teal band, and the Okabe & Ito palette wherever several series need telling apart.
  *
  * Palette: M. Okabe and K. Ito, "Color Universal Design (CUD): how to make figures and presentations that

@@ -1,5 +1,5 @@
 'use client';
-// The recipe form (DESIGN.md §2, "recipe"): method, modal selection rule and band, order by number (the
+// The recipe form (a recipe is one reduction run's settings): method, modal selection rule and band, order by number (the
 // order slider, with the figures of each order read from the analysis) or by tolerance, an optional
 // acceptance band, and where the result goes (a new reduced model, or the next version of one). Running
 // it posts to /api/reductions and follows the reduction job until its draft version exists.

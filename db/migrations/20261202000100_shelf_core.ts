@@ -1,10 +1,10 @@
-// The shelf's core records (DESIGN.md §4): source models and their numbered versions, analyses, recipes,
+// The shelf's core records: source models and their numbered versions, analyses, recipes,
 // reduced models and their numbered versions with accuracy reports, and engine jobs with their progress.
 // Later features (review, controller projects) add their own tables and constraints in later migrations.
 //
 // Invariants the database holds itself, so no code path can break them:
 //   - version numbers are unique per model, and a source model holds a given upload checksum once;
-//   - a reduced-model version's status is one of the five life states of DESIGN.md §2;
+//   - a reduced-model version's status is one of the five life states (draft, in_review, approved, revise, retired);
 //   - a job's fraction lies in [0, 1] and its status is one of four.
 import type { Knex } from 'knex';
 

@@ -2,7 +2,7 @@
 //
 // What the database itself refuses, so that no code path (a route, a script, a hand-typed UPDATE) can make
 // an impossible record:
-//   - a status change that is not one of the life's transitions (DESIGN.md §2): draft → in_review →
+//   - a status change that is not one of the life's transitions (lib/review/state-machine.ts): draft → in_review →
 //     approved | revise, approved → retired; revise and retired are terminal;
 //   - an approved (or later retired) version without who approved it, when, and the accuracy figures they
 //     saw (the approval snapshot); an approver who is the version's author (four-eyes rule);

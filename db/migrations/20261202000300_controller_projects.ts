@@ -1,4 +1,4 @@
-// Controller projects (DESIGN.md §2, issue 7): the controllers, observers and MPC designs that pull approved
+// Controller projects (issue 7): the controllers, observers and MPC designs that pull approved
 // reduced models from the shelf. A project has members, pins (its dependencies on reduced models), and
 // project tokens for the pull API; every use of a token is recorded.
 //

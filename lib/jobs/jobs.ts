@@ -1,5 +1,6 @@
-// The jobs table: what a background job is doing, as people and pages see it (DESIGN.md §3, "a route
-// handler enqueues a job and returns its id; a worker ... writes progress and results").
+// The jobs table: what a background job is doing, as people and pages see it (DEVELOPERS.md, "How a
+// request becomes a job and a result": a route handler enqueues a job and answers with it; a worker writes
+// progress and results).
 //
 // Life of a row: queued → running → succeeded | failed; a failed attempt that will be retried goes back to
 // queued; a person may send a failed job round again (retryJob). The row and its queue delivery (pg-boss,

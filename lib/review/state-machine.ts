@@ -1,8 +1,8 @@
-// The life of a reduced-model version (DESIGN.md §2), defined once. Every transition the shelf makes is
-// decided here: which state it leaves and enters, which roles may take it, whether the actor must or must
-// not be the version's author (the four-eyes rule), and the text it requires. lib/reviews.ts applies the
-// decision inside a transaction; the database (migration 20261202000200_reviews) refuses the same
-// impossible steps again, so a bug here cannot write one.
+// The life of a reduced-model version (DEVELOPERS.md, "Review, lineage and notifications"), defined once.
+// Every transition the shelf makes is decided here: which state it leaves and enters, which roles may take
+// it, whether the actor must or must not be the version's author (the four-eyes rule), and the text it
+// requires. lib/reviews.ts applies the decision inside a transaction; the database (migration
+// 20261202000200_reviews) refuses the same impossible steps again, so a bug here cannot write one.
 //
 //   draft ──submit (author, note)──▶ in_review ──approve (reviewer ≠ author, comment)──▶ approved
 //                                        │                                                 │

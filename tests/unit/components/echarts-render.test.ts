@@ -1,6 +1,6 @@
 /**
  * Every option builder's output drawn by the real ECharts 6 (server-side SVG renderer, no DOM): the
- * options are accepted, our tick formatters run, and the drawn paths carry the look of DESIGN.md §7
+ * options are accepted, our tick formatters run, and the drawn paths carry the look of components/charts/theme.ts
  * (full model solid graphite, reduced model dashed teal, the bound band filled).
  */
 import { describe, expect, it } from 'vitest';

@@ -1,4 +1,4 @@
-// The API error shape of DESIGN.md §6: { error: { code, message, field? } }, a 4xx status, never a stack.
+// The API error shape (DEVELOPERS.md, Conventions, "Route handlers"): { error: { code, message, field? } }, a 4xx status, never a stack.
 import { describe, expect, it, vi } from 'vitest';
 import { z } from 'zod';
 import { ApiError, parseJson, parseQuery, route } from '@/lib/http';

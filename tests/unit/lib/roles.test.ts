@@ -3,7 +3,7 @@ import { isRole, roleAdmits, ROLES } from '@/lib/roles';
 import { navItemsFor } from '@/components/shell/nav-items';
 
 describe('roles', () => {
-  it('are exactly the four of DESIGN.md §1', () => {
+  it('are exactly the four: viewer, engineer, reviewer, admin', () => {
     expect(ROLES).toEqual(['viewer', 'engineer', 'reviewer', 'admin']);
     expect(isRole('admin')).toBe(true);
     expect(isRole('superuser')).toBe(false);

@@ -1,6 +1,6 @@
 // The review life of a reduced-model version as a specification: every (state, action, role, author or
 // not) combination is either one of the allowed transitions listed below, straight from issue 6 and
-// DESIGN.md §2, or refused with the reason a person can act on. The expected table is written out here by
+// DEVELOPERS.md ("Review, lineage and notifications"), or refused with the reason a person can act on. The expected table is written out here by
 // hand, independently of TRANSITIONS, so a change to the state machine that is not also a change to the
 // specification fails.
 import { describe, expect, it } from 'vitest';
