@@ -117,12 +117,6 @@ export function keptPoles(analysis: AnalysisRecord, method: Method, selection: M
   return kept;
 }
 
-export function keptExactly(table: OrderFigureTable): number {
-  if (!table.available || table.orders.length === 0) return 0;
-  const f = table.figures[table.orders[0]];
-  return f ? f.keptMarginal + f.keptUnstable : 0;
-}
-
 /** A sensible first order: the smallest offered order whose bound is below 1 % of ‖Gs‖∞, else a tenth of the list. */
 export function suggestedOrder(table: OrderFigureTable, referenceNorm: number | null): number {
   if (!table.available || table.orders.length === 0) return 1;

@@ -68,8 +68,6 @@ export const byPole: SortingFn<ModeTableRow> = (a, b) =>
 
 const STABILITY_RANK: Record<PoleStability, number> = { unstable: 0, marginal: 1, stable: 2 };
 
-export const MODE_COLUMN_IDS = ['pole', 'stability', 'naturalFrequency', 'dampingRatio', 'timeConstant', 'dominance', 'kept'] as const;
-
 export function modeColumns(timeUnit = 's', withKept = false): ColumnDef<ModeTableRow, unknown>[] {
   const col = createColumnHelper<ModeTableRow>();
   const columns = [
