@@ -4,7 +4,7 @@
  *
  *   model input         io/ (JSON, Matrix Market, CSV; second-order models), model.ts, errors.ts
  *   analysis            analysis.ts, spectral-split.ts, norms.ts, frequency.ts, step-limits.ts
- *   reduction           reduce.ts (entry), balanced.ts, modal.ts, order.ts
+ *   reduction           reduce.ts (entry), balanced.ts, modal.ts, irka.ts, order.ts
  *   time responses      simulate/, discretize.ts
  *   large sparse models sparse/ (sparse model type, coordinate reader, low-rank ADI and balancing, sweeps)
  *
@@ -61,6 +61,7 @@ export {
   PreparationCache,
   assessReduction,
   REDUCTION_METHODS,
+  IRKA_NO_BOUND_NOTE,
   type ReductionMethod,
   type ReductionOptions,
   type ReductionRecipe,
@@ -78,6 +79,18 @@ export {
   type BalancedRealization,
 } from './balanced';
 export { modalForm, rankedModalForm, modeComparator, type Mode, type ModalForm, type ModalSelection, type RankedModeFacts } from './modal';
+export {
+  irka,
+  logSpacedShifts,
+  DEFAULT_IRKA_TOLERANCE,
+  DEFAULT_IRKA_MAX_ITERATIONS,
+  type IrkaOptions,
+  type IrkaReport,
+  type IrkaResult,
+  type IrkaStep,
+  type InterpolationPoint,
+  type Shift as IrkaShift,
+} from './irka';
 export { chooseOrder, type OrderRule, type OrderChoice } from './order';
 export { errorSystem } from './realization';
 

@@ -8,11 +8,15 @@
  * stable, and its H∞ norm (Hamiltonian method, Bruinsma & Steinbuch 1990, `norms.ts`), H2 norm and DC
  * value are the measured errors reported beside the a-priori bound.
  *
+ * IRKA (Gugercin, Antoulas & Beattie 2008, `irka.ts`) has no ordered realization to slice: each order is
+ * its own run on the stable part (kept per order in the basis), and it has no a-priori bound (`errorBound`
+ * is NaN; the measured errors are what its accuracy stands on).
+ *
  * `prepareReduction` keeps the ordered realization in a `ReductionBasis`, so any other order is a slice
  * (or, for residualization, one Schur complement) of it, not a new decomposition: the order slider of
  * the web page calls `summaryAt` for each order.
  */
-import type { ComplexVector } from './linalg/index';
+import { type ComplexVector, zeros } from './linalg/index';
 import { ModelError } from './errors';
 import type { StateSpaceModel } from './model';
 import {
@@ -43,6 +47,7 @@ import {
   type ModalSelection,
   type Mode,
 } from './modal';
+import { irka, type IrkaOptions, type IrkaReport, type IrkaResult } from './irka';
 import { chooseOrder, type OrderChoice, type OrderRule, type OrderSpace } from './order';
 import { hinfNorm, h2Norm, type HinfResult, type NormValue } from './norms';
 import { frequencyEvaluator, largestSingularValue } from './frequency';
@@ -52,7 +57,7 @@ import { PreparationCache } from './preparation';
 
 export { PreparationCache } from './preparation';
 
-export const REDUCTION_METHODS = ['balanced', 'residualization', 'modal'] as const;
+export const REDUCTION_METHODS = ['balanced', 'residualization', 'modal', 'irka'] as const;
 export type ReductionMethod = (typeof REDUCTION_METHODS)[number];
 
 export interface ReductionOptions {
@@ -63,6 +68,8 @@ export interface ReductionOptions {
   readonly stabilityTolerance?: number;
   /** Balanced methods: relative rank tolerance on the Hankel singular values (see balanced.ts). */
   readonly rankTolerance?: number;
+  /** IRKA: tolerance, most iterations, initial shifts, stop flag and progress (see irka.ts). */
+  readonly irka?: IrkaOptions;
 }
 
 export interface ReductionRecipe extends ReductionOptions, OrderRule {}
@@ -78,11 +85,16 @@ export interface ReducedModel {
   readonly stableOrder: number;
   /** States kept exactly for marginal and unstable poles. */
   readonly unstableStatesKept: number;
-  /** A-priori bound on ‖G − Gr‖∞ (Glover 1984 for the balanced methods; the modal bound for diagonalizable A). */
+  /** A-priori bound on ‖G − Gr‖∞ (Glover 1984 for the balanced methods; the modal bound for diagonalizable A); NaN for IRKA, which has none. */
   readonly errorBound: number;
   /** Plain-language remarks: an order raised to keep a pair, a non-minimal model's effective order, … */
   readonly notes: readonly string[];
+  /** IRKA: iterations, convergence, shift changes, the interpolation points and the reduced model's stability. */
+  readonly irka?: IrkaReport;
 }
+
+/** The note every IRKA result carries in place of a bound. */
+export const IRKA_NO_BOUND_NOTE = 'IRKA has no a-priori error bound; the H2 and H∞ errors are measured against the full model';
 
 export interface OrderSummary {
   readonly order: number;
@@ -155,13 +167,34 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
 
   let cutPoints: number[];
   let boundAt: (r: number) => number;
-  let stableReduced: (r: number) => { model: StateSpaceModel; notes: string[] };
+  let stableReduced: (r: number) => { model: StateSpaceModel; notes: string[]; irka?: IrkaReport };
   let hankel: Float64Array | null = null;
   let minimalOrder = ns;
   let modes: readonly Mode[] | null = null;
   let balancedForm: BalancedRealization | null = null;
 
-  if (method === 'modal') {
+  if (method === 'irka') {
+    // Every order is allowed (the shifts are closed under conjugation, so any r gives a real model).
+    cutPoints = Array.from({ length: ns + 1 }, (_, k) => k);
+    boundAt = () => NaN;
+    const cls = split.classification;
+    const stablePoles = {
+      re: Float64Array.from(cls.poles.re.filter((_, i) => cls.stability[i] === 'stable')),
+      im: Float64Array.from(cls.poles.im.filter((_, i) => cls.stability[i] === 'stable')),
+    };
+    const runs = new Map<number, IrkaResult>();
+    stableReduced = (r) => {
+      const s = split.stable;
+      if (r === 0) return { model: { A: zeros(0, 0), B: zeros(0, s.B.cols), C: zeros(s.C.rows, 0), D: s.D }, notes: [] };
+      if (r === ns) return { model: s, notes: ['the order keeps every state of the stable part: nothing is reduced'] };
+      let run = runs.get(r);
+      if (!run) {
+        run = irka(s, r, options.irka ?? {}, stablePoles.re.length === ns ? stablePoles : undefined);
+        runs.set(r, run);
+      }
+      return { model: run.model, notes: [...run.notes], irka: run.report };
+    };
+  } else if (method === 'modal') {
     const form: ModalForm = rankedModalForm(split.stable, modalSelectionOf(options));
     requireDiagonalizable(form);
     modes = form.modes;
@@ -193,8 +226,8 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
   const choose = (order: number): OrderChoice => chooseOrder(space, { order }, () => 0);
 
   const reducedFor = (choice: OrderChoice): ReducedModel => {
-    const { model: stablePart, notes } = stableReduced(choice.stableOrder);
-    const allNotes = [...notes];
+    const { model: stablePart, notes, irka: irkaReport } = stableReduced(choice.stableOrder);
+    const allNotes = method === 'irka' ? [IRKA_NO_BOUND_NOTE, ...notes] : [...notes];
     if (choice.requestedOrder !== undefined) {
       allNotes.push(
         method === 'modal'
@@ -216,6 +249,7 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
       // The bound of the model actually formed (fewer states than asked for past the numerical rank).
       errorBound: boundAt(stablePart.A.rows),
       notes: allNotes,
+      ...(irkaReport ? { irka: irkaReport } : {}),
     };
   };
 
@@ -313,6 +347,9 @@ export interface ReductionResult extends ReducedModel, AccuracyFigures {
 
 /** Reduce a model by a recipe: method, and exactly one of `order` or `tolerance`. */
 export function reduceModel(model: StateSpaceModel, recipe: ReductionRecipe): ReductionResult {
+  if (recipe.method === 'irka' && recipe.tolerance !== undefined) {
+    throw new ModelError('invalid_option', 'tolerance', 'IRKA has no a-priori error bound for a tolerance to meet; give an order');
+  }
   const basis = prepareReduction(model, recipe);
   let referenceNorm: number | null = null;
   const reference = (): number => {

@@ -6,6 +6,7 @@
  *   adi.ts              low-rank ADI gramian factors with Penzl's shifts
  *   balanced.ts         low-rank square-root balanced truncation and residualization
  *   frequency.ts        the full model's frequency response by sparse solves, the sampled error of a reduction
+ *   irka.ts             IRKA (H2-optimal tangential interpolation) with UMFPACK solves of σE − A
  *   budget.ts           the memory budget checked before each sparse factorization
  */
 export * from './model';
@@ -14,3 +15,4 @@ export { lowRankGramians, heuristicShifts, penzlShifts, arnoldiRitzValues, type 
 export { sparseBalancedReduction, lowRankBalancedRealization, type SparseBalancedOptions, type SparseBalancedResult } from './balanced';
 export { sparseFrequencyResponse, sampledErrorPeak, type SparseFrequencyResponse } from './frequency';
 export { memoryBudgetBytes, checkFactorBudget, MEMORY_BUDGET_ENV } from './budget';
+export { sparseIrka, sparseSpectralRange, type SparseIrkaOptions, type SparseIrkaResult } from './irka';

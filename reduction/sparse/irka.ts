@@ -1,0 +1,282 @@
+/**
+ * IRKA on large sparse models E ẋ = A x + B u, y = C x + D u: the iteration of `../irka.ts` (Gugercin,
+ * Antoulas & Beattie, "H2 model reduction for large-scale linear dynamical systems", SIAM J. Matrix Anal.
+ * Appl. 30(2), 2008, Algorithm 4.1, tangential for several inputs and outputs) with its shifted solves by
+ * sparse LU:
+ *
+ *   v = (σE − A)⁻¹ B b,   w = (σE − A)⁻ᵀ Cᵀ c
+ *
+ * by UMFPACK (`reduction/linalg/sparse.ts`) on the union pattern of A and E (`shiftPattern`): one symbolic
+ * analysis for the real shifts and one (complex) for the conjugate pairs, kept for the whole run; each shift
+ * of each iteration costs one numeric factorization, used for both solves (the second through the plain
+ * transpose). The bases V, W are n×r and the projections Wᵀ A V, Wᵀ E V are sparse products with them:
+ * nothing forms E⁻¹A or an n×n dense matrix.
+ *
+ * Initial shifts, unless given: r real shifts log-spaced over an estimate of the pole magnitudes,
+ * [1/max|μ(A⁻¹E)|, max|μ(E⁻¹A)|] from Arnoldi Ritz values μ (20 steps each, every operator applied through
+ * sparse solves), the same rule the dense path applies to the exact poles.
+ *
+ * Stability: the sparse path reduces stable models only (IRKA's H2 setting needs them, and nothing here
+ * separates unstable modes). A singular A (a pole at 0: rigid-body modes, integrators) or a slowest Ritz
+ * value on or right of the imaginary axis (Re λ ≥ −10⁻⁷·max|λ|, the dense path's default marginal
+ * tolerance) is refused with ModelError('unstable') pointing to the dense path, which keeps such poles
+ * exactly. This check looks at the slowest poles only (where such modes sit in physical models); it is not
+ * a proof of stability.
+ */
+import { ModelError } from '../errors';
+import { throwIfStopped } from '../stop';
+import { type Matrix, zeros, matmul } from '../linalg/index';
+import { SparseLu } from '../linalg/sparse';
+import type { StateSpaceModel } from '../model';
+import {
+  type InterpolationPoint,
+  type IrkaOptions,
+  type IrkaReport,
+  type ProjectedModel,
+  type Shift,
+  type TangentialProjector,
+  initialPoints,
+  irkaReport,
+  irkaSettings,
+  iterateIrka,
+  logSpacedShifts,
+  orthonormalBasisOf,
+  petrovGalerkin,
+  setColumn,
+  shiftCount,
+  timesComplex,
+  transposeTimesComplex,
+} from '../irka';
+import { arnoldiRitzValues } from './adi';
+import { checkFactorBudget } from './budget';
+import { cscTimesDense, cscTimesVector, shiftPattern, shiftedValues, type ShiftPattern, type SparseStateSpaceModel } from './model';
+
+export interface SparseIrkaOptions extends IrkaOptions {
+  /** States of the reduced model (1 ≤ order < states). */
+  readonly order: number;
+  /** Bytes each sparse factorization (plus those held) may take, checked after its symbolic analysis (budget.ts). */
+  readonly memoryBudgetBytes?: number;
+}
+
+export interface SparseIrkaResult {
+  /** The reduced model, E_r = I, D of the model. */
+  readonly model: StateSpaceModel;
+  readonly report: IrkaReport;
+  /** Estimated [min |λ|, max |λ|] of the model's poles (Arnoldi Ritz values). */
+  readonly spectralRange: { readonly lo: number; readonly hi: number };
+  /** Numeric sparse factorizations and symbolic analyses made by the iteration. */
+  readonly factorizations: number;
+  readonly analyses: number;
+  readonly seconds: number;
+  readonly notes: readonly string[];
+}
+
+/** Relative tolerance of the marginal-pole check (as the dense path's DEFAULT_STABILITY_TOLERANCE). */
+const MARGINAL_TOLERANCE = 1e-7;
+const ARNOLDI_STEPS = 20;
+
+/** A deterministic start vector: the inputs' sum plus a fixed pseudo-random sequence. */
+function startVector(model: SparseStateSpaceModel): Float64Array {
+  const n = model.A.n, m = model.B.cols;
+  const v = new Float64Array(n);
+  let bnorm = 0;
+  for (let i = 0; i < n; i++) {
+    let s = 0;
+    for (let c = 0; c < m; c++) s += model.B.data[i * m + c];
+    v[i] = s;
+    bnorm += s * s;
+  }
+  bnorm = Math.sqrt(bnorm);
+  let state = 0x2545f491;
+  for (let i = 0; i < n; i++) {
+    state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
+    const noise = state / 4294967296 - 0.5;
+    v[i] = (bnorm > 0 ? v[i] / bnorm : 0) + noise / Math.sqrt(n);
+  }
+  return v;
+}
+
+function refuseUnstable(detail: string): never {
+  throw new ModelError(
+    'unstable',
+    'A',
+    `${detail}: the sparse path reduces stable models only and cannot keep such poles; reduce this model on the dense path (--path dense), which keeps marginal and unstable poles exactly`,
+  );
+}
+
+/**
+ * Estimated [min |λ|, max |λ|] of the poles of E⁻¹A from Arnoldi Ritz values of A⁻¹E and E⁻¹A (through sparse
+ * solves), refusing a model whose A is singular or whose slowest Ritz value is marginal or unstable.
+ */
+export function sparseSpectralRange(model: SparseStateSpaceModel, memoryBudgetBytes = Infinity): { lo: number; hi: number } {
+  const { A, E } = model;
+  const aLu = SparseLu.analyze(A, 'A');
+  checkFactorBudget(aLu, memoryBudgetBytes, 'A');
+  let eLu: SparseLu | null = null;
+  try {
+    try {
+      aLu.factor();
+    } catch (e) {
+      if ((e as { code?: string }).code === 'singular') refuseUnstable('A is singular, so the model has a pole at 0 (a rigid-body mode or an integrator)');
+      throw e;
+    }
+    if (E) {
+      eLu = SparseLu.analyze(E, 'E');
+      checkFactorBudget(eLu, memoryBudgetBytes, 'E', aLu.factorInfo?.memoryBytes ?? 0);
+      try {
+        eLu.factor();
+      } catch (e) {
+        if ((e as { code?: string }).code === 'singular') throw new ModelError('singular_mass', 'E', 'E is singular: the descriptor matrix must be nonsingular (a mass matrix)');
+        throw e;
+      }
+    }
+    const start = startVector(model);
+    const slow = arnoldiRitzValues((x) => aLu.solve(E ? cscTimesVector(E, x) : x), start, ARNOLDI_STEPS);
+    const fast = arnoldiRitzValues((x) => {
+      const ax = cscTimesVector(A, x);
+      return eLu ? eLu.solve(ax) : ax;
+    }, start, ARNOLDI_STEPS);
+    let hi = 0;
+    for (let i = 0; i < fast.re.length; i++) hi = Math.max(hi, Math.hypot(fast.re[i], fast.im[i]));
+    // The largest |μ| of A⁻¹E is the best-converged Ritz value: 1/μ estimates the slowest pole.
+    let k = -1, top = 0;
+    for (let i = 0; i < slow.re.length; i++) {
+      const mag = Math.hypot(slow.re[i], slow.im[i]);
+      if (mag > top) {
+        top = mag;
+        k = i;
+      }
+    }
+    if (!(top > 0) || !(hi > 0)) refuseUnstable('no nonzero Ritz values were found');
+    const d = top * top;
+    const slowRe = slow.re[k] / d; // Re(1/μ) = Re μ / |μ|²
+    hi = Math.max(hi, 1 / top);
+    if (slowRe >= -MARGINAL_TOLERANCE * hi) {
+      refuseUnstable(`the slowest pole is estimated at ${slowRe.toPrecision(4)} ${slow.im[k] === 0 ? '' : `± ${Math.abs(slow.im[k] / d).toPrecision(4)}i `}(an Arnoldi Ritz value), on or right of the imaginary axis`);
+    }
+    return { lo: 1 / top, hi };
+  } finally {
+    aLu.dispose();
+    eLu?.dispose();
+  }
+}
+
+/** The sparse projector: A − σE factorized by UMFPACK on one kept analysis per kind of shift. */
+class SparseProjector implements TangentialProjector {
+  readonly states: number;
+  readonly inputs: number;
+  readonly outputs: number;
+  factorizations = 0;
+  analyses = 0;
+  private readonly sp: ShiftPattern;
+  private real: SparseLu | null = null;
+  private complex: SparseLu | null = null;
+
+  constructor(
+    private readonly model: SparseStateSpaceModel,
+    private readonly budget: number,
+  ) {
+    this.sp = shiftPattern(model.A, model.E);
+    this.states = model.A.n;
+    this.inputs = model.B.cols;
+    this.outputs = model.C.rows;
+  }
+
+  private factorAt(pt: Shift): SparseLu {
+    const { values, imag } = shiftedValues(this.sp, pt.re, pt.im); // A − σE
+    const isComplex = imag !== null;
+    let lu = isComplex ? this.complex : this.real;
+    if (!lu) {
+      const label = isComplex ? 'A − σE (complex shifts)' : 'A − σE (real shifts)';
+      lu = SparseLu.analyze({ ...this.sp.pattern, values, imag: imag ?? undefined }, label);
+      this.analyses++;
+      const other = isComplex ? this.real : this.complex;
+      checkFactorBudget(lu, this.budget, label, other?.factorInfo?.memoryBytes ?? 0);
+      if (isComplex) this.complex = lu;
+      else this.real = lu;
+    }
+    try {
+      lu.factor(values, imag);
+    } catch (e) {
+      if ((e as { code?: string }).code === 'singular') {
+        refuseUnstable(`σE − A is singular at the shift σ = ${pt.re}${pt.im > 0 ? ` + ${pt.im}i` : ''}, so the model has a pole there`);
+      }
+      throw e;
+    }
+    this.factorizations++;
+    return lu;
+  }
+
+  project(points: readonly InterpolationPoint[]): ProjectedModel {
+    const n = this.states;
+    const r = shiftCount(points);
+    const V = zeros(n, r), W = zeros(n, r);
+    let col = 0;
+    for (const pt of points) {
+      const lu = this.factorAt(pt);
+      const f = timesComplex(this.model.B, pt.b);
+      const g = transposeTimesComplex(this.model.C, pt.c);
+      if (pt.im === 0) {
+        setColumn(V, col, lu.solve(f.re));
+        setColumn(W, col, lu.solve(g.re, { transpose: true }));
+        col += 1;
+      } else {
+        const x = lu.solveComplex(f.re, f.im);
+        const y = lu.solveComplex(g.re, g.im, { transpose: true });
+        setColumn(V, col, x.re);
+        setColumn(V, col + 1, x.im);
+        setColumn(W, col, y.re);
+        setColumn(W, col + 1, y.im);
+        col += 2;
+      }
+    }
+    const Vq = orthonormalBasisOf(V, 'right (input)');
+    const Wq = orthonormalBasisOf(W, 'left (output)');
+    const { A, E, B, C } = this.model;
+    const EV: Matrix = E ? cscTimesDense(E, Vq) : Vq;
+    return petrovGalerkin(Wq, cscTimesDense(A, Vq), EV, B, matmul(C, Vq));
+  }
+
+  dispose(): void {
+    this.real?.dispose();
+    this.complex?.dispose();
+    this.real = null;
+    this.complex = null;
+  }
+}
+
+/** IRKA on a sparse model to `order` states (see the header). */
+export function sparseIrka(model: SparseStateSpaceModel, options: SparseIrkaOptions): SparseIrkaResult {
+  const started = performance.now();
+  const n = model.A.n;
+  const r = options.order;
+  if (!Number.isInteger(r) || r < 1) throw new ModelError('invalid_option', 'order', `--order must be a whole number ≥ 1, got ${r}`);
+  if (r >= n) throw new ModelError('order_too_large', 'order', `--order ${r} is not below the model's ${n} states`);
+  const settings = irkaSettings(options, r);
+  const budget = options.memoryBudgetBytes ?? Infinity;
+  throwIfStopped(options.signal, 'IRKA');
+  const spectralRange = sparseSpectralRange(model, budget);
+  const shifts: Shift[] = options.initialShifts ? [...options.initialShifts] : logSpacedShifts(spectralRange.lo, spectralRange.hi, r);
+  const projector = new SparseProjector(model, budget);
+  let run: ReturnType<typeof iterateIrka>;
+  try {
+    run = iterateIrka(projector, initialPoints(shifts, projector.inputs, projector.outputs), { ...settings, signal: options.signal, onStep: options.onStep });
+  } finally {
+    projector.dispose();
+  }
+  const report = irkaReport(run, settings, shifts, options.initialShifts ? 'given' : 'log-spaced');
+  const notes = [...run.notes];
+  if (!report.reducedStable) {
+    notes.push('the reduced model has poles in the closed right half-plane (IRKA does not guarantee stability); try another order or initial shifts');
+  }
+  notes.push('the full model was checked for marginal and unstable poles at its slowest Ritz value only; the sparse path assumes a stable model');
+  return {
+    model: { A: run.reduced.A, B: run.reduced.B, C: run.reduced.C, D: model.D },
+    report,
+    spectralRange,
+    factorizations: projector.factorizations,
+    analyses: projector.analyses,
+    seconds: (performance.now() - started) / 1000,
+    notes,
+  };
+}
