@@ -5,7 +5,7 @@
 //                    it was built with. A retired version is flagged, never silently swapped.
 //   newest approved  the highest-numbered approved version (a retired one never) that meets every limit the
 //                    pin sets: maximum order, maximum relative H-infinity error (the accuracy report's
-//                    hinfErrorRelative, ||G - Gr||inf / ||G||inf), and "acceptance band passed".
+//                    hInfinityErrorRelative, ||G - Gr||inf / ||G||inf), and "acceptance band passed".
 //
 // Either way the resolved version is flagged "upstream changed" when its source model has a version with a
 // greater number than the source version it was reduced from.
@@ -24,7 +24,7 @@ export type PinMode = (typeof PIN_MODES)[number];
 export interface PinLimits {
   maxOrder: number | null;
   /** Ratio, not per cent: 0.01 admits versions whose ||G - Gr||inf / ||G||inf is at most 1 %. */
-  maxRelativeHinfError: number | null;
+  maxRelativeHInfinityError: number | null;
   requireAcceptancePassed: boolean;
 }
 
@@ -35,7 +35,7 @@ export interface PinRow {
   mode: PinMode;
   reduced_version_id: string | null;
   max_order: number | null;
-  max_relative_hinf_error: number | null;
+  max_relative_h_infinity_error: number | null;
   require_acceptance_passed: boolean;
   notice_state: NoticeState | null;
   created_by: string;
@@ -65,7 +65,7 @@ export interface VersionFacts {
   sourceVersionId: string;
   sourceVersionNumber: number;
   newestSourceVersionNumber: number;
-  hinfErrorRelative: number | null;
+  hInfinityErrorRelative: number | null;
   acceptancePassed: boolean | null;
 }
 
@@ -109,7 +109,7 @@ const pinFields = z.object({
   mode: z.enum(PIN_MODES, { error: 'Mode must be "exact" or "newest_approved".' }),
   version: positiveInt('Version').optional(),
   maxOrder: positiveInt('Maximum order').nullable().optional(),
-  maxRelativeHinfError: z
+  maxRelativeHInfinityError: z
     .number({ error: 'Maximum relative H-infinity error must be a number (a ratio, e.g. 0.01 for 1 %).' })
     .refine((v) => Number.isFinite(v) && v > 0, 'Maximum relative H-infinity error must be a positive ratio, e.g. 0.01 for 1 %.')
     .nullable()
@@ -122,7 +122,7 @@ type PinShape = Omit<z.infer<typeof pinFields>, 'reducedModel'>;
 function checkPinShape(pin: PinShape, ctx: z.RefinementCtx): void {
   if (pin.mode === 'exact') {
     if (pin.version === undefined) ctx.addIssue({ code: 'custom', path: ['version'], message: 'An exact pin needs the version number to pin.' });
-    for (const field of ['maxOrder', 'maxRelativeHinfError', 'requireAcceptancePassed'] as const) {
+    for (const field of ['maxOrder', 'maxRelativeHInfinityError', 'requireAcceptancePassed'] as const) {
       if (pin[field] !== undefined && pin[field] !== null && pin[field] !== false) {
         ctx.addIssue({ code: 'custom', path: [field], message: 'Limits apply to "newest approved" pins only; an exact pin names its version.' });
       }
@@ -140,10 +140,10 @@ export const pinUpdateSchema = pinFields.omit({ reducedModel: true }).superRefin
 export type PinUpdate = z.infer<typeof pinUpdateSchema>;
 export type PinInput = z.infer<typeof pinInputSchema>;
 
-export function limitsOf(row: Pick<PinRow, 'max_order' | 'max_relative_hinf_error' | 'require_acceptance_passed'>): PinLimits {
+export function limitsOf(row: Pick<PinRow, 'max_order' | 'max_relative_h_infinity_error' | 'require_acceptance_passed'>): PinLimits {
   return {
     maxOrder: row.max_order,
-    maxRelativeHinfError: row.max_relative_hinf_error,
+    maxRelativeHInfinityError: row.max_relative_h_infinity_error,
     requireAcceptancePassed: row.require_acceptance_passed,
   };
 }
@@ -156,10 +156,10 @@ export function specOf(row: PinRow): PinSpec {
 export function limitFailures(limits: PinLimits, v: VersionFacts): string[] {
   const failures: string[] = [];
   if (limits.maxOrder !== null && v.order > limits.maxOrder) failures.push(`order ${v.order} > ${limits.maxOrder}`);
-  if (limits.maxRelativeHinfError !== null) {
-    if (v.hinfErrorRelative === null) failures.push('no relative H-infinity error in its accuracy report');
-    else if (v.hinfErrorRelative > limits.maxRelativeHinfError) {
-      failures.push(`relative H-infinity error ${v.hinfErrorRelative.toPrecision(3)} > ${limits.maxRelativeHinfError}`);
+  if (limits.maxRelativeHInfinityError !== null) {
+    if (v.hInfinityErrorRelative === null) failures.push('no relative H-infinity error in its accuracy report');
+    else if (v.hInfinityErrorRelative > limits.maxRelativeHInfinityError) {
+      failures.push(`relative H-infinity error ${v.hInfinityErrorRelative.toPrecision(3)} > ${limits.maxRelativeHInfinityError}`);
     }
   }
   if (limits.requireAcceptancePassed && v.acceptancePassed !== true) {
@@ -212,7 +212,7 @@ export function resolvePin(spec: PinSpec, versions: readonly VersionFacts[]): Pi
 }
 
 export function hasLimits(limits: PinLimits): boolean {
-  return limits.maxOrder !== null || limits.maxRelativeHinfError !== null || limits.requireAcceptancePassed;
+  return limits.maxOrder !== null || limits.maxRelativeHInfinityError !== null || limits.requireAcceptancePassed;
 }
 
 interface FactsRow {
@@ -227,7 +227,7 @@ interface FactsRow {
   source_version_id: string;
   source_number: number;
   newest_source_number: number;
-  hinf_error_relative: number | null;
+  h_infinity_error_relative: number | null;
   acceptance_passed: boolean | null;
 }
 
@@ -261,8 +261,8 @@ export async function loadVersionFacts(
       'sv.number as source_number',
       trx.raw('(SELECT max(s2.number) FROM source_versions s2 WHERE s2.source_model_id = sv.source_model_id) AS newest_source_number'),
       // A report that states no finite figure counts as "no figure", never as zero error.
-      trx.raw(`CASE WHEN jsonb_typeof(ar.figures->'hinfErrorRelative') = 'number'
-                    THEN (ar.figures->>'hinfErrorRelative')::float8 END AS hinf_error_relative`),
+      trx.raw(`CASE WHEN jsonb_typeof(ar.figures->'hInfinityErrorRelative') = 'number'
+                    THEN (ar.figures->>'hInfinityErrorRelative')::float8 END AS h_infinity_error_relative`),
       'ar.acceptance_passed',
     );
   const rows = await preparedRows<FactsRow>(query, trx);
@@ -279,7 +279,7 @@ export async function loadVersionFacts(
       sourceVersionId: r.source_version_id,
       sourceVersionNumber: r.source_number,
       newestSourceVersionNumber: Number(r.newest_source_number),
-      hinfErrorRelative: r.hinf_error_relative,
+      hInfinityErrorRelative: r.h_infinity_error_relative,
       acceptancePassed: r.acceptance_passed,
     };
     const list = byModel.get(r.reduced_model_id) ?? [];
@@ -378,7 +378,7 @@ function pinColumns(spec: PinShape, versionId: string | null) {
     mode: spec.mode,
     reduced_version_id: versionId,
     max_order: exact ? null : (spec.maxOrder ?? null),
-    max_relative_hinf_error: exact ? null : (spec.maxRelativeHinfError ?? null),
+    max_relative_h_infinity_error: exact ? null : (spec.maxRelativeHInfinityError ?? null),
     require_acceptance_passed: exact ? false : (spec.requireAcceptancePassed ?? false),
   };
 }
@@ -451,7 +451,7 @@ export async function deletePin(projectSlug: string, pinId: string, actor: Sessi
 export interface PinCandidate {
   slug: string;
   name: string;
-  approvedVersions: { number: number; order: number; hinfErrorRelative: number | null; acceptancePassed: boolean | null }[];
+  approvedVersions: { number: number; order: number; hInfinityErrorRelative: number | null; acceptancePassed: boolean | null }[];
 }
 
 /** Reduced models with at least one approved version: what a pin may point at. */
@@ -467,7 +467,7 @@ export async function pinCandidates(trx: Knex | Knex.Transaction = db()): Promis
     approvedVersions: (facts.get(m.id) ?? [])
       .filter((v) => v.status === 'approved')
       .sort((a, b) => b.number - a.number)
-      .map((v) => ({ number: v.number, order: v.order, hinfErrorRelative: v.hinfErrorRelative, acceptancePassed: v.acceptancePassed })),
+      .map((v) => ({ number: v.number, order: v.order, hInfinityErrorRelative: v.hInfinityErrorRelative, acceptancePassed: v.acceptancePassed })),
   }));
 }
 

@@ -226,7 +226,7 @@ export function pinsBody(caller: PullCaller, pins: ResolvedPin[]) {
               matricesSha256: v.matricesSha256,
               sourceModel: v.sourceModelSlug,
               sourceVersion: v.sourceVersionNumber,
-              hinfErrorRelative: v.hinfErrorRelative,
+              hInfinityErrorRelative: v.hInfinityErrorRelative,
               acceptancePassed: v.acceptancePassed,
             }
           : null,

@@ -422,7 +422,7 @@ export interface ReducedModelListRow {
   status: string;
   order: number;
   method: string;
-  hinfErrorRelative: number | null;
+  hInfinityErrorRelative: number | null;
   acceptancePassed: boolean | null;
   author: string;
   updatedAt: string;
@@ -432,7 +432,7 @@ export async function listReducedModels(): Promise<ReducedModelListRow[]> {
   const result = await db().raw(`
     SELECT rm.id, rm.name, rm.slug, sm.name AS source_name, sm.slug AS source_slug,
            l.number, l.status, l."order", r.method, l.created_at, u.name AS author,
-           CASE WHEN jsonb_typeof(ar.figures->'hinfErrorRelative') = 'number' THEN (ar.figures->>'hinfErrorRelative')::float8 END AS rel,
+           CASE WHEN jsonb_typeof(ar.figures->'hInfinityErrorRelative') = 'number' THEN (ar.figures->>'hInfinityErrorRelative')::float8 END AS rel,
            ar.acceptance_passed
     FROM reduced_models rm
     JOIN source_models sm ON sm.id = rm.source_model_id
@@ -450,7 +450,7 @@ export async function listReducedModels(): Promise<ReducedModelListRow[]> {
     status: r.status as string,
     order: r.order as number,
     method: r.method as string,
-    hinfErrorRelative: (r.rel as number | null) ?? null,
+    hInfinityErrorRelative: (r.rel as number | null) ?? null,
     acceptancePassed: (r.acceptance_passed as boolean | null) ?? null,
     author: r.author as string,
     updatedAt: new Date(r.created_at as string).toISOString(),
@@ -473,7 +473,7 @@ export interface ReducedVersionSummary {
   method: string;
   sourceVersionNumber: number;
   matricesSha256: string;
-  hinfErrorRelative: number | null;
+  hInfinityErrorRelative: number | null;
   errorBound: number | null;
   acceptancePassed: boolean | null;
   author: string;
@@ -512,7 +512,7 @@ export async function getReducedModel(slug: string): Promise<{ model: ReducedMod
         method: v.method as string,
         sourceVersionNumber: v.source_number as number,
         matricesSha256: v.matrices_sha256 as string,
-        hinfErrorRelative: figures.hinfErrorRelative ?? null,
+        hInfinityErrorRelative: figures.hInfinityErrorRelative ?? null,
         errorBound: figures.errorBound ?? null,
         acceptancePassed: (v.acceptance_passed as boolean | null) ?? null,
         author: v.author as string,

@@ -319,7 +319,7 @@ export interface QueueEntry {
   method: string;
   order: number;
   fullOrder: number | null;
-  hinfErrorRelative: number | null;
+  hInfinityErrorRelative: number | null;
   errorBound: number | null;
   acceptancePassed: boolean | null;
   upstreamChanged: boolean;
@@ -352,7 +352,7 @@ export async function reviewQueue(viewer: Actor): Promise<QueueEntry[]> {
       method: s.recipe.method,
       order: s.order,
       fullOrder: numberOrNull(figures.fullOrder),
-      hinfErrorRelative: numberOrNull(figures.hinfErrorRelative),
+      hInfinityErrorRelative: numberOrNull(figures.hInfinityErrorRelative),
       errorBound: numberOrNull(figures.errorBound),
       acceptancePassed: s.accuracy?.acceptancePassed ?? null,
       upstreamChanged: s.upstreamChanged,

@@ -22,7 +22,7 @@ import {
   type PoleClassification,
   type PoleStability,
 } from './spectral-split';
-import { hinfNorm, h2Norm, type HinfResult, type NormValue } from './norms';
+import { hInfinityNorm, h2Norm, type HInfinityResult, type NormValue } from './norms';
 import { balancedCertificate, DEFAULT_RANK_TOLERANCE, type BalancedRealization } from './balanced';
 import { PreparationCache } from './preparation';
 import { rankedModalForm, isReliableModalForm, type Mode } from './modal';
@@ -40,7 +40,7 @@ export interface PoleData {
   readonly stability: PoleStability;
 }
 
-export type DcGain = { readonly defined: true; readonly value: Matrix } | { readonly defined: false; readonly reason: string };
+export type ZeroFrequencyGain = { readonly defined: true; readonly value: Matrix } | { readonly defined: false; readonly reason: string };
 
 export interface ModalDominance {
   /** Stable modes, most dominant first (a complex pair is one mode). */
@@ -65,9 +65,9 @@ export interface ModelAnalysis {
   readonly stiffnessRatio: number | null;
   readonly slowestDecayRate: number | null;
   readonly fastestDecayRate: number | null;
-  readonly dcGain: DcGain;
+  readonly zeroFrequencyGain: ZeroFrequencyGain;
   readonly h2Norm: NormValue;
-  readonly hinfNorm: HinfResult;
+  readonly hInfinityNorm: HInfinityResult;
   /** Hankel singular values of the stable part, descending. */
   readonly hankelSingularValues: Float64Array;
   readonly modalDominance: ModalDominance;
@@ -85,7 +85,7 @@ export interface AnalysisOptions {
  * Relative accuracy asked of ‖G‖∞ when its certification runs on a balanced truncation: the slack
  * 2Σσ(tail) stays below this fraction of σ₁ ≤ ‖G‖∞ (common practice: far below any figure shown).
  */
-export const HINF_CERTIFICATION_SLACK = 1e-6;
+export const H_INFINITY_CERTIFICATION_SLACK = 1e-6;
 
 export function poleData(classification: PoleClassification): PoleData[] {
   const { poles, stability } = classification;
@@ -127,7 +127,7 @@ export function stiffnessRatio(poles: ComplexVector, tolerance = DEFAULT_STABILI
 }
 
 /** G(0) = D − C A⁻¹ B, or why it is not defined (a pole at s = 0 within the relative tolerance). */
-export function dcGain(model: StateSpaceModel, classification?: PoleClassification): DcGain {
+export function zeroFrequencyGain(model: StateSpaceModel, classification?: PoleClassification): ZeroFrequencyGain {
   if (model.A.rows === 0) return { defined: true, value: model.D };
   const c = classification ?? classifyPoles(modelPoles(model.A));
   const t = c.tolerance * c.scale;
@@ -188,7 +188,7 @@ export function analyzeModel(model: StateSpaceModel, options: AnalysisOptions = 
   // small realization within 1e-6·σ₁ on which the H∞ norm is certified (O(q³) instead of O(n³)).
   const balanced: BalancedRealization = cache.balanced(split.stable, tolerance, DEFAULT_RANK_TOLERANCE);
   const hsv = balanced.hankelSingularValues;
-  const certifyOn = stable && hsv.length > 0 ? (balancedCertificate(balanced, HINF_CERTIFICATION_SLACK * hsv[0]) ?? undefined) : undefined;
+  const certifyOn = stable && hsv.length > 0 ? (balancedCertificate(balanced, H_INFINITY_CERTIFICATION_SLACK * hsv[0]) ?? undefined) : undefined;
   return {
     states: stateCount(model),
     inputs: inputCount(model),
@@ -200,13 +200,13 @@ export function analyzeModel(model: StateSpaceModel, options: AnalysisOptions = 
     unstablePoles: split.unstablePoles,
     stabilityTolerance: tolerance,
     ...stiffnessOf(classification),
-    dcGain: dcGain(model, classification),
+    zeroFrequencyGain: zeroFrequencyGain(model, classification),
     // ‖G‖₂ = ‖C Lc‖_F from the factor the balancing already has (stable, strictly proper G only).
     h2Norm:
       stable && balanced.factors && frobeniusNorm(model.D) === 0
         ? { finite: true, value: frobeniusNorm(matmul(split.stable.C, balanced.factors.controllability)) }
         : h2Norm(model, { poles, stabilityTolerance: tolerance }),
-    hinfNorm: hinfNorm(model, { poles, stabilityTolerance: tolerance, certifyOn }),
+    hInfinityNorm: hInfinityNorm(model, { poles, stabilityTolerance: tolerance, certifyOn }),
     hankelSingularValues: hsv,
     modalDominance: {
       modes: modal.modes,

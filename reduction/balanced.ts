@@ -137,7 +137,7 @@ export function balancedCutPoints(real: BalancedRealization): number[] {
 /**
  * The smallest balanced truncation G_q (q ≥ minOrder) whose a-priori error 2Σ_{i>q} σ_i (Enns 1984;
  * Glover 1984) is at most `slack`: a stand-in for G in the O(q³) certification steps of the H∞ norm
- * (`hinfNorm`'s `certifyOn`). Null when no order below the numerical minimal order meets the slack.
+ * (`hInfinityNorm`'s `certifyOn`). Null when no order below the numerical minimal order meets the slack.
  */
 export function balancedCertificate(
   real: BalancedRealization,

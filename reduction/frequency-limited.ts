@@ -51,7 +51,7 @@ import { controllabilityGramian, observabilityGramian } from './gramians';
 import { errorSystem, leadingStates, blockDiagonal, stackRows, stackColumns, symmetricPart } from './realization';
 import { splitStableUnstable, modelPoles, DEFAULT_STABILITY_TOLERANCE } from './spectral-split';
 import { frequencyEvaluator, largestSingularValue, logFrequencyGrid } from './frequency';
-import { hinfNorm } from './norms';
+import { hInfinityNorm } from './norms';
 
 /** Gauss–Legendre nodes and weights on [0, 1] (Newton's method on Pₘ; Golub & Welsch's values to rounding). */
 export function gaussLegendre01(m: number): { nodes: Float64Array; weights: Float64Array } {
@@ -335,7 +335,7 @@ export interface FrequencyLimitedResult {
   readonly singularValues: Float64Array;
   readonly errors: BandErrors;
   /** Measured ‖G − Gr‖∞ over all frequencies, or null when the reduced stable part is not stable. */
-  readonly hinfError: number | null;
+  readonly hInfinityError: number | null;
   /** Whether every pole of the reduced stable part is in the open left half-plane. */
   readonly reducedStable: boolean;
   readonly notes: readonly string[];
@@ -385,10 +385,10 @@ export function frequencyLimitedReduction(
           D: stablePart.D,
         };
   const errors = bandErrors(split.stable, stablePart, options.band);
-  let hinfError: number | null = null;
+  let hInfinityError: number | null = null;
   if (reducedStable) {
-    const h = hinfNorm(errorSystem(split.stable, stablePart));
-    hinfError = h.finite ? h.value : null;
+    const h = hInfinityNorm(errorSystem(split.stable, stablePart));
+    hInfinityError = h.finite ? h.value : null;
   }
   return {
     method: 'frequency-limited',
@@ -400,7 +400,7 @@ export function frequencyLimitedReduction(
     unstableStatesKept: nu,
     singularValues: real.singularValues,
     errors,
-    hinfError,
+    hInfinityError,
     reducedStable,
     notes,
   };

@@ -22,12 +22,12 @@ export {
   analyzeModel,
   snapMarginalPoles,
   poleData,
-  dcGain,
+  zeroFrequencyGain,
   stiffnessRatio,
   type ModelAnalysis,
   type AnalysisOptions,
   type PoleData,
-  type DcGain,
+  type ZeroFrequencyGain,
   type ModalDominance,
 } from './analysis';
 export {
@@ -39,7 +39,7 @@ export {
   type PoleClassification,
   type PoleStability,
 } from './spectral-split';
-export { hinfNorm, h2Norm, type HinfNorm, type HinfResult, type NormValue, type NormOptions } from './norms';
+export { hInfinityNorm, h2Norm, type HInfinityNorm, type HInfinityResult, type NormValue, type NormOptions } from './norms';
 export {
   frequencyResponse,
   frequencyEvaluator,

@@ -51,7 +51,7 @@ import { classifyPoles, modelPoles, DEFAULT_STABILITY_TOLERANCE } from './spectr
 /** A norm that is finite, or a reason it is not (a pole on or right of the axis; a feedthrough for H2). */
 export type NormValue = { readonly finite: true; readonly value: number } | { readonly finite: false; readonly reason: string };
 
-export interface HinfNorm {
+export interface HInfinityNorm {
   readonly finite: true;
   readonly value: number;
   /** Frequency (rad per time unit) where the peak is attained; Infinity when the peak is σ_max(D) at ω → ∞. */
@@ -69,7 +69,7 @@ export interface HinfNorm {
   readonly certificationSlack: number;
 }
 
-export type HinfResult = HinfNorm | { readonly finite: false; readonly reason: string };
+export type HInfinityResult = HInfinityNorm | { readonly finite: false; readonly reason: string };
 
 export interface NormOptions {
   /** Relative accuracy ε of the H∞ bracket (default 1e-9). */
@@ -215,7 +215,7 @@ function maximizeNear(sigmaAt: (w: number) => number, w0: number, halfWidth: num
 }
 
 /** ‖G‖∞ and its peak frequency by the Hamiltonian level-set iteration (see the file header). */
-export function hinfNorm(model: StateSpaceModel, options: NormOptions = {}): HinfResult {
+export function hInfinityNorm(model: StateSpaceModel, options: NormOptions = {}): HInfinityResult {
   const eps = options.relativeTolerance ?? 1e-9;
   const n = model.A.rows;
   const dNorm = largestSingular(model.D);
@@ -232,7 +232,7 @@ export function hinfNorm(model: StateSpaceModel, options: NormOptions = {}): Hin
     // The whole level-set iteration on G_q; then σ of G itself at G_q's peak, so the value is attained
     // by G, and the bracket widened by the slack: ‖G‖∞ ≤ ‖G_q‖∞ + ‖G − G_q‖∞.
     const { model: small, slack } = options.certifyOn;
-    const r = hinfNorm(small, { relativeTolerance: eps, stabilityTolerance: options.stabilityTolerance });
+    const r = hInfinityNorm(small, { relativeTolerance: eps, stabilityTolerance: options.stabilityTolerance });
     if (r.finite) {
       const evaluator = options.evaluator ?? frequencyEvaluator(model);
       const attained = Number.isFinite(r.peakFrequency) ? largestSingularValue(evaluator.at(r.peakFrequency)) : dNorm;

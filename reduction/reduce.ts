@@ -49,7 +49,7 @@ import {
 } from './modal';
 import { irka, type IrkaOptions, type IrkaReport, type IrkaResult } from './irka';
 import { chooseOrder, type OrderChoice, type OrderRule, type OrderSpace } from './order';
-import { hinfNorm, h2Norm, type HinfResult, type NormValue } from './norms';
+import { hInfinityNorm, h2Norm, type HInfinityResult, type NormValue } from './norms';
 import { frequencyEvaluator, largestSingularValue } from './frequency';
 import { stiffnessOf } from './analysis';
 import { errorSystem, leadingStates, blockDiagonal, stackRows, stackColumns } from './realization';
@@ -283,11 +283,11 @@ export function prepareReduction(model: StateSpaceModel, options: ReductionOptio
 
 export interface AccuracyFigures {
   /** Measured ‖G − Gr‖∞ with the frequency where the error peaks. */
-  readonly hinfError: HinfResult;
+  readonly hInfinityError: HInfinityResult;
   /** ‖G − Gr‖₂ (not finite when the error has a feedthrough, as residualization's usually has). */
   readonly h2Error: NormValue;
   /** σ_max(G(0) − Gr(0)); the error system is stable, so this is defined even when G(0) is not. */
-  readonly dcGainError: number;
+  readonly zeroFrequencyGainError: number;
   readonly poles: ComplexVector;
   readonly stiffnessRatio: number | null;
 }
@@ -329,9 +329,9 @@ export function assessReduction(basis: ReductionBasis, reduced: ReducedModel, st
     if (small) certifyOn = { model: errorSystem(small.model, reduced.stablePart), slack: small.slack };
   }
   return {
-    hinfError: hinfNorm(error, { ...options, certifyOn }),
+    hInfinityError: hInfinityNorm(error, { ...options, certifyOn }),
     h2Error: h2Norm(error, options),
-    dcGainError: largestSingularValue(evaluator.at(0)),
+    zeroFrequencyGainError: largestSingularValue(evaluator.at(0)),
     poles,
     stiffnessRatio: stiffnessOf(classifyPoles(poles, tolerance)).stiffnessRatio,
   };
@@ -356,7 +356,7 @@ export function reduceModel(model: StateSpaceModel, recipe: ReductionRecipe): Re
     // G − Gr = Gs − Gsr, so the natural scale for a relative tolerance is ‖Gs‖∞ (= ‖G‖∞ for stable G).
     const { split } = basis;
     const poles = split.unstableStates === 0 ? split.classification.poles : undefined;
-    const norm = hinfNorm(split.stable, { stabilityTolerance: split.classification.tolerance, poles });
+    const norm = hInfinityNorm(split.stable, { stabilityTolerance: split.classification.tolerance, poles });
     referenceNorm = norm.finite ? norm.value : 0;
     return referenceNorm;
   };

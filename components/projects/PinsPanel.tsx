@@ -19,7 +19,7 @@ function Flag({ tone, children }: { tone: 'warn' | 'bad' | 'info'; children: str
 function limitsText(limits: PinLimits): string {
   const parts: string[] = [];
   if (limits.maxOrder !== null) parts.push(`order ≤ ${limits.maxOrder}`);
-  if (limits.maxRelativeHinfError !== null) parts.push(`rel. H∞ error ≤ ${formatPercent(limits.maxRelativeHinfError)}`);
+  if (limits.maxRelativeHInfinityError !== null) parts.push(`rel. H∞ error ≤ ${formatPercent(limits.maxRelativeHInfinityError)}`);
   if (limits.requireAcceptancePassed) parts.push('acceptance band passed');
   return parts.length > 0 ? parts.join(', ') : 'no limits';
 }
@@ -95,9 +95,9 @@ export function PinsPanel({
                         <span className="num font-medium">v{v.number}</span>{' '}
                         <span className="text-xs text-graphite-soft">
                           order <span className="num">{v.order}</span>
-                          {v.hinfErrorRelative !== null ? (
+                          {v.hInfinityErrorRelative !== null ? (
                             <>
-                              , rel. H∞ error <span className="num">{formatPercent(v.hinfErrorRelative)}</span>
+                              , rel. H∞ error <span className="num">{formatPercent(v.hInfinityErrorRelative)}</span>
                             </>
                           ) : null}
                         </span>
@@ -222,9 +222,9 @@ function NewPinForm({ projectSlug, candidates }: { projectSlug: string; candidat
         if (mode === 'exact') body.version = numberField(form.get('version'));
         else {
           const maxOrder = numberField(form.get('maxOrder'));
-          const maxError = numberField(form.get('maxRelativeHinfErrorPercent'));
+          const maxError = numberField(form.get('maxRelativeHInfinityErrorPercent'));
           if (maxOrder !== undefined) body.maxOrder = maxOrder;
-          if (maxError !== undefined) body.maxRelativeHinfError = typeof maxError === 'number' ? maxError / 100 : maxError;
+          if (maxError !== undefined) body.maxRelativeHInfinityError = typeof maxError === 'number' ? maxError / 100 : maxError;
           body.requireAcceptancePassed = form.get('requireAcceptancePassed') === 'on';
         }
         create.mutate(body);
@@ -260,7 +260,7 @@ function NewPinForm({ projectSlug, candidates }: { projectSlug: string; candidat
             {versions.map((v) => (
               <option key={v.number} value={v.number}>
                 v{v.number} · order {v.order}
-                {v.hinfErrorRelative !== null ? ` · ${formatPercent(v.hinfErrorRelative)}` : ''}
+                {v.hInfinityErrorRelative !== null ? ` · ${formatPercent(v.hInfinityErrorRelative)}` : ''}
               </option>
             ))}
           </select>
@@ -275,8 +275,8 @@ function NewPinForm({ projectSlug, candidates }: { projectSlug: string; candidat
           </label>
           <label>
             <span className="field-label">Max rel. H∞ error, %</span>
-            <input className="field-input num" name="maxRelativeHinfErrorPercent" inputMode="decimal" placeholder="any" />
-            {errorFor('maxRelativeHinfError')}
+            <input className="field-input num" name="maxRelativeHInfinityErrorPercent" inputMode="decimal" placeholder="any" />
+            {errorFor('maxRelativeHInfinityError')}
           </label>
           <label className="col-span-2 flex items-center gap-2 text-sm">
             <input type="checkbox" name="requireAcceptancePassed" />
@@ -288,14 +288,14 @@ function NewPinForm({ projectSlug, candidates }: { projectSlug: string; candidat
         <button type="submit" className="button-primary w-full" disabled={create.isPending}>
           {create.isPending ? 'Pinning…' : 'Pin'}
         </button>
-        {error && !['reducedModel', 'version', 'maxOrder', 'maxRelativeHinfError'].includes(error.field ?? '') ? (
+        {error && !['reducedModel', 'version', 'maxOrder', 'maxRelativeHInfinityError'].includes(error.field ?? '') ? (
           <p className="mt-2 text-sm text-okabe-vermillion" role="alert">
             {error.message}
           </p>
         ) : null}
       </div>
       <p className="text-xs text-graphite-soft md:col-span-4">
-        Versions of the model, newest first: {versions.map((v) => `v${v.number} (order ${v.order}${v.hinfErrorRelative !== null ? `, ${formatNumber(v.hinfErrorRelative * 100)} %` : ''})`).join(', ')}.
+        Versions of the model, newest first: {versions.map((v) => `v${v.number} (order ${v.order}${v.hInfinityErrorRelative !== null ? `, ${formatNumber(v.hInfinityErrorRelative * 100)} %` : ''})`).join(', ')}.
       </p>
     </form>
   );

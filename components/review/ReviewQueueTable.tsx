@@ -70,7 +70,7 @@ export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: Qu
         header: 'Method, order',
         cell: (info) => <span className="num text-xs">{info.getValue()}</span>,
       }),
-      column.accessor('hinfErrorRelative', {
+      column.accessor('hInfinityErrorRelative', {
         header: '‖G − Gr‖∞ / ‖G‖∞',
         cell: (info) => <span className="num">{formatOptional(info.getValue(), (v) => formatPercent(v))}</span>,
         sortUndefined: 'last',

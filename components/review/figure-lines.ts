@@ -39,10 +39,10 @@ const bandFigure = (key: string) => (f: Record<string, unknown>) =>
 const LINES: readonly LineSpec[] = [
   { key: 'fullOrder', label: 'Full order', format: (v) => formatCount(v), lowerIsBetter: false },
   { key: 'reducedOrder', aliases: ['order'], label: 'Reduced order', format: (v) => formatCount(v), lowerIsBetter: false },
-  { key: 'hinfError', label: '‖G − Gr‖∞', format: (v) => formatNumber(v), lowerIsBetter: true },
-  { key: 'hinfErrorRelative', label: '‖G − Gr‖∞ / ‖G‖∞', format: (v) => formatPercent(v), lowerIsBetter: true },
+  { key: 'hInfinityError', label: '‖G − Gr‖∞', format: (v) => formatNumber(v), lowerIsBetter: true },
+  { key: 'hInfinityErrorRelative', label: '‖G − Gr‖∞ / ‖G‖∞', format: (v) => formatPercent(v), lowerIsBetter: true },
   {
-    key: 'hinfErrorFrequency',
+    key: 'hInfinityErrorFrequency',
     label: 'Frequency of the largest error',
     format: (v, f) => formatFrequency(v, typeof f.timeUnit === 'string' ? f.timeUnit : 's'),
     lowerIsBetter: false,
@@ -52,7 +52,7 @@ const LINES: readonly LineSpec[] = [
   { key: 'inBandError', label: 'Error inside the band (measured)', format: (v) => formatNumber(v), lowerIsBetter: true, read: bandFigure('inBandError') },
   { key: 'outOfBandError', label: 'Error outside the band (measured)', format: (v) => formatNumber(v), lowerIsBetter: true, read: bandFigure('outOfBandError') },
   { key: 'h2Error', label: '‖G − Gr‖₂', format: (v) => formatNumber(v), lowerIsBetter: true },
-  { key: 'dcGainError', label: 'DC gain error (largest entry)', format: (v) => formatNumber(v), lowerIsBetter: true },
+  { key: 'zeroFrequencyGainError', label: 'DC gain error (largest entry)', format: (v) => formatNumber(v), lowerIsBetter: true },
   { key: 'peakStepError', label: 'Peak step-response error', format: (v) => formatNumber(v), lowerIsBetter: true },
   { key: 'stiffnessRatioFull', aliases: ['fullStiffnessRatio'], label: 'Stiffness ratio, full', format: (v) => formatNumber(v), lowerIsBetter: false },
   { key: 'stiffnessRatioReduced', aliases: ['reducedStiffnessRatio'], label: 'Stiffness ratio, reduced', format: (v) => formatNumber(v), lowerIsBetter: false },

@@ -64,16 +64,16 @@ export function AnalysisFigures({ analysis: a, timeUnit }: { analysis: AnalysisR
           <tbody>
             <Row
               label="H∞ norm ‖G‖∞"
-              value={a.hinfNorm.finite ? formatNumber(a.hinfNorm.value) : '—'}
+              value={a.hInfinityNorm.finite ? formatNumber(a.hInfinityNorm.value) : '—'}
               note={
-                a.hinfNorm.finite
-                  ? a.hinfNorm.peakFrequency === null
+                a.hInfinityNorm.finite
+                  ? a.hInfinityNorm.peakFrequency === null
                     ? 'peak as ω → ∞'
-                    : `peak at ${formatFrequency(a.hinfNorm.peakFrequency, timeUnit)}`
-                  : a.hinfNorm.reason
+                    : `peak at ${formatFrequency(a.hInfinityNorm.peakFrequency, timeUnit)}`
+                  : a.hInfinityNorm.reason
               }
             />
-            {!a.stable && a.stablePartHinfNorm !== null ? <Row label="H∞ norm of the stable part" value={formatNumber(a.stablePartHinfNorm)} note="the scale of relative errors" /> : null}
+            {!a.stable && a.stablePartHInfinityNorm !== null ? <Row label="H∞ norm of the stable part" value={formatNumber(a.stablePartHInfinityNorm)} note="the scale of relative errors" /> : null}
             <Row label="H2 norm ‖G‖2" value={a.h2Norm.finite ? formatNumber(a.h2Norm.value) : '—'} note={a.h2Norm.finite ? undefined : a.h2Norm.reason} />
             <Row
               label="Modal dominance"
@@ -84,11 +84,11 @@ export function AnalysisFigures({ analysis: a, timeUnit }: { analysis: AnalysisR
         </table>
         <div className="mt-3 text-sm">
           <p className="font-medium">DC gain G(0)</p>
-          {a.dcGain.defined ? (
+          {a.zeroFrequencyGain.defined ? (
             a.inputs * a.outputs <= MAX_DC_ENTRIES ? (
               <table className="num mt-1 border-collapse text-xs" data-testid="dc-gain">
                 <tbody>
-                  {a.dcGain.value.map((row, i) => (
+                  {a.zeroFrequencyGain.value.map((row, i) => (
                     <tr key={i}>
                       {row.map((v, j) => (
                         <td key={j} className="border border-rule px-2 py-0.5 text-right">
@@ -101,11 +101,11 @@ export function AnalysisFigures({ analysis: a, timeUnit }: { analysis: AnalysisR
               </table>
             ) : (
               <p className="num text-xs">
-                {a.outputs}×{a.inputs} matrix; largest entry {formatNumber(Math.max(...a.dcGain.value.flat().map(Math.abs)))}
+                {a.outputs}×{a.inputs} matrix; largest entry {formatNumber(Math.max(...a.zeroFrequencyGain.value.flat().map(Math.abs)))}
               </p>
             )
           ) : (
-            <p className="text-xs text-graphite-soft">{a.dcGain.reason}</p>
+            <p className="text-xs text-graphite-soft">{a.zeroFrequencyGain.reason}</p>
           )}
         </div>
       </div>

@@ -120,7 +120,7 @@ export function RecipeForm(p: RecipeFormProps) {
     if (!available) return;
     if (!available.orders.includes(order)) {
       const inBand = bandQuery.data?.statesInBand;
-      const wanted = method === 'modal' && selection === 'band' && inBand ? inBand : suggestedOrder(available, analysis.stablePartHinfNorm);
+      const wanted = method === 'modal' && selection === 'band' && inBand ? inBand : suggestedOrder(available, analysis.stablePartHInfinityNorm);
       const nearest = available.orders.reduce((a, b) => (Math.abs(b - wanted) < Math.abs(a - wanted) ? b : a), available.orders[0]);
       p.onOrder(nearest);
     }
@@ -129,7 +129,7 @@ export function RecipeForm(p: RecipeFormProps) {
   }, [available, bandQuery.data]);
 
   const toleranceValue = num(tolerance);
-  const byTolerance = available && toleranceValue ? orderForTolerance(available, toleranceValue, analysis.stablePartHinfNorm) : null;
+  const byTolerance = available && toleranceValue ? orderForTolerance(available, toleranceValue, analysis.stablePartHInfinityNorm) : null;
 
   const run = useMutation({
     mutationFn: (body: unknown) => apiFetch<{ job: JobView }>('/api/reductions', { method: 'POST', body }),
@@ -370,7 +370,7 @@ export function RecipeForm(p: RecipeFormProps) {
             {err('recipe.tolerance')}
             <p className="mt-1 text-sm" aria-live="polite">
               {byTolerance
-                ? `Order ${byTolerance.order}: bound ${formatNumber(byTolerance.bound)} ≤ ${formatNumber(toleranceValue! * (analysis.stablePartHinfNorm ?? 0))}`
+                ? `Order ${byTolerance.order}: bound ${formatNumber(byTolerance.bound)} ≤ ${formatNumber(toleranceValue! * (analysis.stablePartHInfinityNorm ?? 0))}`
                 : 'No order on the slider meets it; the reduction will search the larger orders.'}
             </p>
           </div>

@@ -30,7 +30,7 @@ export function VersionWorkspace(props: WorkspaceProps) {
   const [method, setMethod] = useState<Method>(props.seed ? 'frequency-limited' : 'balanced');
   const [selection, setSelection] = useState<ModalSelection>('dominance');
   const initialTable = storedTable(analysis, 'balanced', 'dominance');
-  const [order, setOrder] = useState<number>(() => (initialTable ? suggestedOrder(initialTable, analysis.stablePartHinfNorm) : 1));
+  const [order, setOrder] = useState<number>(() => (initialTable ? suggestedOrder(initialTable, analysis.stablePartHInfinityNorm) : 1));
 
   const keptExact = analysis.marginalPoles + analysis.unstablePoles;
   const stableOrder = Math.max(0, order - keptExact);

@@ -21,14 +21,14 @@ export interface AccuracyFigures {
   readonly fullOrder: number;
   readonly reducedOrder: number;
   /** ‖G - Gr‖∞, absolute */
-  readonly hinfError: number | null;
+  readonly hInfinityError: number | null;
   /** ‖G - Gr‖∞ / ‖G‖∞ as a fraction */
-  readonly hinfErrorRelative: number | null;
+  readonly hInfinityErrorRelative: number | null;
   /** the method's a-priori bound on ‖G - Gr‖∞; null when the method has none */
   readonly errorBound: number | null;
   readonly h2Error: number | null;
   /** largest entry of |G(0) - Gr(0)|; null when the DC gain is not defined (pole at 0) */
-  readonly dcGainError: number | null;
+  readonly zeroFrequencyGainError: number | null;
   /** largest absolute step-response error over all channels */
   readonly peakStepError: number | null;
   readonly stiffnessRatioFull: number | null;
@@ -74,8 +74,8 @@ function optional(x: number | null, format: (v: number) => string): string {
 
 export function accuracyRows(f: AccuracyFigures): FigureRow[] {
   const rows: FigureRow[] = [
-    { label: 'H∞ error ‖G − Gr‖∞', value: optional(f.hinfError, (v) => formatNumber(v)) },
-    { label: 'H∞ error, relative to ‖G‖∞', value: optional(f.hinfErrorRelative, (v) => formatPercent(v)) },
+    { label: 'H∞ error ‖G − Gr‖∞', value: optional(f.hInfinityError, (v) => formatNumber(v)) },
+    { label: 'H∞ error, relative to ‖G‖∞', value: optional(f.hInfinityErrorRelative, (v) => formatPercent(v)) },
     f.errorBoundNote
       ? { label: 'A-priori bound', value: 'none', note: f.errorBoundNote }
       : {
@@ -100,8 +100,8 @@ export function accuracyRows(f: AccuracyFigures): FigureRow[] {
       ...(f.reducedStable ? {} : { note: 'poles in the closed right half-plane: do not use it as it is' }),
     });
   }
-  if (f.hinfError !== null && f.errorBound !== null) {
-    const holds = f.hinfError <= f.errorBound * (1 + BOUND_SLACK);
+  if (f.hInfinityError !== null && f.errorBound !== null) {
+    const holds = f.hInfinityError <= f.errorBound * (1 + BOUND_SLACK);
     rows.push({
       label: 'Error within bound',
       value: holds ? 'yes' : 'no',
@@ -112,8 +112,8 @@ export function accuracyRows(f: AccuracyFigures): FigureRow[] {
     { label: 'H2 error ‖G − Gr‖2', value: optional(f.h2Error, (v) => formatNumber(v)) },
     {
       label: 'DC-gain error',
-      value: optional(f.dcGainError, (v) => formatNumber(v)),
-      ...(f.dcGainError === null ? { note: 'not defined (pole at 0) or not computed' } : {}),
+      value: optional(f.zeroFrequencyGainError, (v) => formatNumber(v)),
+      ...(f.zeroFrequencyGainError === null ? { note: 'not defined (pole at 0) or not computed' } : {}),
     },
     { label: 'Peak step-response error', value: optional(f.peakStepError, (v) => formatNumber(v)) },
     { label: 'Order, full → reduced', value: `${formatCount(f.fullOrder)} → ${formatCount(f.reducedOrder)}` },

@@ -7,7 +7,7 @@ import {
   analyzeModel,
   balancedErrorBound,
   defaultFrequencyBand,
-  hinfNorm,
+  hInfinityNorm,
   splitStableUnstable,
   toRows,
   type ModelAnalysis,
@@ -57,12 +57,12 @@ export function runAnalysis(files: readonly ModelFile[], engineVersion: string, 
     { re: a.poles.map((p) => p.re), im: a.poles.map((p) => p.im), stability: a.poles.map((p) => p.stability) },
     a.stabilityTolerance,
   );
-  let stablePartHinfNorm: number | null = a.hinfNorm.finite ? a.hinfNorm.value : null;
+  let stablePartHInfinityNorm: number | null = a.hInfinityNorm.finite ? a.hInfinityNorm.value : null;
   if (!a.stable && a.stablePoles > 0) {
     report('Computing the H∞ norm of the stable part', STAGES.read + STAGES.analysis * 0.95);
     const split = splitStableUnstable(model, { tolerance: a.stabilityTolerance });
-    const norm = hinfNorm(split.stable, { stabilityTolerance: a.stabilityTolerance });
-    stablePartHinfNorm = norm.finite ? norm.value : null;
+    const norm = hInfinityNorm(split.stable, { stabilityTolerance: a.stabilityTolerance });
+    stablePartHInfinityNorm = norm.finite ? norm.value : null;
   }
 
   let at = STAGES.read + STAGES.analysis;
@@ -108,12 +108,12 @@ export function runAnalysis(files: readonly ModelFile[], engineVersion: string, 
     stiffnessRatio: a.stiffnessRatio === null ? null : finiteOrNull(a.stiffnessRatio),
     slowestDecayRate: a.slowestDecayRate,
     fastestDecayRate: a.fastestDecayRate,
-    dcGain: a.dcGain.defined ? { defined: true, value: toRows(a.dcGain.value) } : { defined: false, reason: a.dcGain.reason },
+    zeroFrequencyGain: a.zeroFrequencyGain.defined ? { defined: true, value: toRows(a.zeroFrequencyGain.value) } : { defined: false, reason: a.zeroFrequencyGain.reason },
     h2Norm: a.h2Norm.finite ? { finite: true, value: a.h2Norm.value } : { finite: false, reason: a.h2Norm.reason },
-    hinfNorm: a.hinfNorm.finite
-      ? { finite: true, value: a.hinfNorm.value, peakFrequency: finiteOrNull(a.hinfNorm.peakFrequency) }
-      : { finite: false, reason: a.hinfNorm.reason },
-    stablePartHinfNorm,
+    hInfinityNorm: a.hInfinityNorm.finite
+      ? { finite: true, value: a.hInfinityNorm.value, peakFrequency: finiteOrNull(a.hInfinityNorm.peakFrequency) }
+      : { finite: false, reason: a.hInfinityNorm.reason },
+    stablePartHInfinityNorm,
     hankelSingularValues: hsv,
     hankelBound: hsv.map((_, r) => balancedErrorBound(hsv, r)).concat([0]),
     modes,

@@ -67,12 +67,12 @@ export interface AnalysisRecord {
   stiffnessRatio: number | null;
   slowestDecayRate: number | null;
   fastestDecayRate: number | null;
-  dcGain: { defined: true; value: number[][] } | { defined: false; reason: string };
+  zeroFrequencyGain: { defined: true; value: number[][] } | { defined: false; reason: string };
   h2Norm: NormRecord;
   /** ‖G‖∞ with its peak frequency (null: the peak is σmax(D) as ω → ∞) */
-  hinfNorm: ({ finite: true; value: number; peakFrequency: number | null }) | { finite: false; reason: string };
+  hInfinityNorm: ({ finite: true; value: number; peakFrequency: number | null }) | { finite: false; reason: string };
   /** ‖Gs‖∞ of the stable part: the scale of relative errors (= ‖G‖∞ when G is stable) */
-  stablePartHinfNorm: number | null;
+  stablePartHInfinityNorm: number | null;
   hankelSingularValues: number[];
   /** 2Σσ(r+1..n) for r = 0..n, the balanced methods' bound on the stable part */
   hankelBound: number[];
@@ -176,14 +176,14 @@ export interface AccuracyFiguresRecord {
   stableOrder: number;
   unstableStatesKept: number;
   method: string;
-  hinfError: number | null;
-  hinfErrorFrequency: number | null;
-  hinfErrorRelative: number | null;
-  referenceHinfNorm: number | null;
+  hInfinityError: number | null;
+  hInfinityErrorFrequency: number | null;
+  hInfinityErrorRelative: number | null;
+  referenceHInfinityNorm: number | null;
   errorBound: number | null;
   h2Error: number | null;
   h2ErrorNote: string | null;
-  dcGainError: number | null;
+  zeroFrequencyGainError: number | null;
   peakStepError: number | null;
   stiffnessRatioFull: number | null;
   stiffnessRatioReduced: number | null;

@@ -16,7 +16,7 @@ import {
   errorSystem,
   frequencyEvaluator,
   h2Norm,
-  hinfNorm,
+  hInfinityNorm,
   splitStableUnstable,
   largestSingularValue,
   logFrequencyGrid,
@@ -29,7 +29,7 @@ import {
   impulseInput,
   toRows,
   ModelError,
-  type HinfResult,
+  type HInfinityResult,
   type ModalSelection,
   type NormValue,
   type ReductionRecipe,
@@ -65,7 +65,7 @@ export interface RecipeInput {
 }
 
 /** What the reduction needs from the stored analysis, so it is not computed twice. */
-export type AnalysisSummary = Pick<AnalysisRecord, 'frequencyBand' | 'stablePartHinfNorm' | 'stiffnessRatio' | 'modes' | 'fastestDecayRate' | 'poles' | 'stabilityTolerance'>;
+export type AnalysisSummary = Pick<AnalysisRecord, 'frequencyBand' | 'stablePartHInfinityNorm' | 'stiffnessRatio' | 'modes' | 'fastestDecayRate' | 'poles' | 'stabilityTolerance'>;
 
 const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
@@ -111,9 +111,9 @@ interface EngineReduction {
   order: number;
   stableOrder: number;
   unstableStatesKept: number;
-  hinfError: HinfResult;
+  hInfinityError: HInfinityResult;
   h2Error: NormValue;
-  dcGainError: number;
+  zeroFrequencyGainError: number;
   /** the a-priori bound, NaN when the method has none */
   errorBound: number;
   orderRule: 'order' | 'tolerance';
@@ -136,9 +136,9 @@ function reduceRun(model: StateSpaceModel, recipe: RecipeInput): EngineReduction
     order: r.order,
     stableOrder: r.stableOrder,
     unstableStatesKept: r.unstableStatesKept,
-    hinfError: r.hinfError,
+    hInfinityError: r.hInfinityError,
     h2Error: r.h2Error,
-    dcGainError: r.dcGainError,
+    zeroFrequencyGainError: r.zeroFrequencyGainError,
     errorBound: r.errorBound,
     orderRule: r.orderChoice.rule,
     toleranceTarget: r.orderChoice.target ?? null,
@@ -162,13 +162,13 @@ export function frequencyLimitedRun(model: StateSpaceModel, recipe: RecipeInput,
   const error = errorSystem(split.stable, r.stablePart);
   const evaluator = frequencyEvaluator(error);
   const unstable = 'the reduced model has poles in the closed right half-plane (frequency-limited balanced truncation does not guarantee stability)';
-  const hinfError: HinfResult = r.reducedStable ? hinfNorm(error, { evaluator, stabilityTolerance }) : { finite: false, reason: unstable };
+  const hInfinityError: HInfinityResult = r.reducedStable ? hInfinityNorm(error, { evaluator, stabilityTolerance }) : { finite: false, reason: unstable };
   const h2Error: NormValue = r.reducedStable ? h2Norm(error, { evaluator, stabilityTolerance }) : { finite: false, reason: unstable };
-  let dcGainError = NaN;
+  let zeroFrequencyGainError = NaN;
   try {
-    dcGainError = largestSingularValue(evaluator.at(0));
+    zeroFrequencyGainError = largestSingularValue(evaluator.at(0));
   } catch {
-    dcGainError = NaN; // a pole of the reduced model at 0: no DC gain to compare
+    zeroFrequencyGainError = NaN; // a pole of the reduced model at 0: no DC gain to compare
   }
   return {
     model: r.model,
@@ -178,9 +178,9 @@ export function frequencyLimitedRun(model: StateSpaceModel, recipe: RecipeInput,
     order: r.order,
     stableOrder: r.stableOrder,
     unstableStatesKept: r.unstableStatesKept,
-    hinfError,
+    hInfinityError,
     h2Error,
-    dcGainError,
+    zeroFrequencyGainError,
     errorBound: NaN,
     orderRule: 'order',
     toleranceTarget: null,
@@ -394,8 +394,8 @@ export function runReduction(
   report('Frequency responses of the full and the reduced model', 0.5);
   const [lo, hi] = summary.frequencyBand;
   const gridValues = Array.from(logFrequencyGrid(lo, hi, GRID_POINTS));
-  if (r.hinfError.finite && Number.isFinite(r.hinfError.peakFrequency) && r.hinfError.peakFrequency > 0) {
-    gridValues.push(r.hinfError.peakFrequency);
+  if (r.hInfinityError.finite && Number.isFinite(r.hInfinityError.peakFrequency) && r.hInfinityError.peakFrequency > 0) {
+    gridValues.push(r.hInfinityError.peakFrequency);
   }
   if (recipe.acceptance) {
     gridValues.push(...logFrequencyGrid(recipe.acceptance.minFrequency, recipe.acceptance.maxFrequency, BAND_POINTS));
@@ -436,22 +436,22 @@ export function runReduction(
   const reducedRow = cost.rows.find((row) => row.solver === needs(reducedOrderFigures.stiffnessRatio)) ?? cost.rows.find((row) => row.solver === 'stiff');
 
   const acceptance = recipe.acceptance ? checkAcceptance(recipe.acceptance, w, error) : null;
-  const hinfError = r.hinfError.finite ? r.hinfError.value : null;
-  const reference = summary.stablePartHinfNorm;
+  const hInfinityError = r.hInfinityError.finite ? r.hInfinityError.value : null;
+  const reference = summary.stablePartHInfinityNorm;
   const figures: AccuracyFiguresRecord = {
     fullOrder: model.A.rows,
     reducedOrder: r.order,
     stableOrder: r.stableOrder,
     unstableStatesKept: r.unstableStatesKept,
     method: r.method,
-    hinfError,
-    hinfErrorFrequency: r.hinfError.finite ? finiteOrNull(r.hinfError.peakFrequency) : null,
-    hinfErrorRelative: hinfError !== null && reference !== null && reference > 0 ? hinfError / reference : null,
-    referenceHinfNorm: reference,
+    hInfinityError,
+    hInfinityErrorFrequency: r.hInfinityError.finite ? finiteOrNull(r.hInfinityError.peakFrequency) : null,
+    hInfinityErrorRelative: hInfinityError !== null && reference !== null && reference > 0 ? hInfinityError / reference : null,
+    referenceHInfinityNorm: reference,
     errorBound: finiteOrNull(r.errorBound),
     h2Error: r.h2Error.finite ? r.h2Error.value : null,
     h2ErrorNote: r.h2Error.finite ? null : r.h2Error.reason,
-    dcGainError: finiteOrNull(r.dcGainError),
+    zeroFrequencyGainError: finiteOrNull(r.zeroFrequencyGainError),
     peakStepError,
     stiffnessRatioFull: summary.stiffnessRatio,
     stiffnessRatioReduced: reducedOrderFigures.stiffnessRatio,

@@ -93,10 +93,10 @@ export function accuracyLine(s: ExportSource): string {
     const stable = typeof report.reducedStable === 'boolean' ? (report.reducedStable ? 'yes' : 'NO') : 'not reported';
     return (
       `Accuracy: ${note}; measured error inside the band ${figure(fl?.inBandError)}, outside the band ${figure(fl?.outOfBandError)}, ` +
-      `H-infinity error ${figure(report.hinfError)}; reduced model stable: ${stable}`
+      `H-infinity error ${figure(report.hInfinityError)}; reduced model stable: ${stable}`
     );
   }
-  return `Accuracy: H-infinity error ${figure(report.hinfError)}, relative ${figure(report.hinfErrorRelative)}, bound ${figure(report.errorBound)}`;
+  return `Accuracy: H-infinity error ${figure(report.hInfinityError)}, relative ${figure(report.hInfinityErrorRelative)}, bound ${figure(report.errorBound)}`;
 }
 
 /** The file name stem: "<model>-v<n>" plus "-zoh-<ts>s" when discretised. */

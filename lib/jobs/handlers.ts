@@ -46,7 +46,7 @@ const reduction: JobHandler<ReductionRecord> = {
     requireWithinMemoryBudget('reduction', version.states);
     const summary: AnalysisSummary = {
       frequencyBand: record.frequencyBand,
-      stablePartHinfNorm: record.stablePartHinfNorm,
+      stablePartHInfinityNorm: record.stablePartHInfinityNorm,
       stiffnessRatio: record.stiffnessRatio,
       modes: record.modes,
       fastestDecayRate: record.fastestDecayRate,

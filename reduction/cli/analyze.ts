@@ -4,7 +4,7 @@
  */
 import { analyzeModel } from '../analysis';
 import { loadModelArgument, numberOption } from './args';
-import { finiteOrNull, matrixRows, numberList, hinfCertificate } from './output';
+import { finiteOrNull, matrixRows, numberList, hInfinityCertificate } from './output';
 import { registerVerb } from './registry';
 import { ModelError } from '../errors';
 import { runSparseAnalyze, sparseModelArgument, SPARSE_PATH_OPTIONS } from './sparse';
@@ -36,14 +36,14 @@ registerVerb({
       stable: a.stable,
       stiffnessRatio: a.stiffnessRatio === null ? null : finiteOrNull(a.stiffnessRatio),
       hankelSingularValues: numberList(a.hankelSingularValues),
-      hinfNorm: a.hinfNorm.finite ? a.hinfNorm.value : null,
+      hInfinityNorm: a.hInfinityNorm.finite ? a.hInfinityNorm.value : null,
       h2Norm: a.h2Norm.finite ? a.h2Norm.value : null,
-      dcGain: a.dcGain.defined ? matrixRows(a.dcGain.value) : null,
-      ...(a.hinfNorm.finite
-        ? { peakFrequency: finiteOrNull(a.hinfNorm.peakFrequency), hinfNormCertificate: hinfCertificate(a.hinfNorm) }
-        : { hinfNormNote: a.hinfNorm.reason }),
+      zeroFrequencyGain: a.zeroFrequencyGain.defined ? matrixRows(a.zeroFrequencyGain.value) : null,
+      ...(a.hInfinityNorm.finite
+        ? { hInfinityPeakFrequency: finiteOrNull(a.hInfinityNorm.peakFrequency), hInfinityNormCertificate: hInfinityCertificate(a.hInfinityNorm) }
+        : { hInfinityNormNote: a.hInfinityNorm.reason }),
       ...(a.h2Norm.finite ? {} : { h2NormNote: a.h2Norm.reason }),
-      ...(a.dcGain.defined ? {} : { dcGainNote: a.dcGain.reason }),
+      ...(a.zeroFrequencyGain.defined ? {} : { zeroFrequencyGainNote: a.zeroFrequencyGain.reason }),
       stablePoles: a.stablePoles,
       marginalPoles: a.marginalPoles,
       unstablePoles: a.unstablePoles,

@@ -28,7 +28,7 @@ export function complexPairs(v: ComplexVector): [number | null, number | null][]
 }
 
 /** How an H∞ figure was certified: its bracket, the method and the Hamiltonian eigenvalue computations it took. */
-export function hinfCertificate(h: {
+export function hInfinityCertificate(h: {
   lowerBound: number;
   upperBound: number;
   method: string;

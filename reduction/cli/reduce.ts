@@ -9,7 +9,7 @@ import type { ModalSelection } from '../modal';
 import { reduceModel, REDUCTION_METHODS, type ReductionMethod } from '../reduce';
 import { frequencyLimitedReduction } from '../frequency-limited';
 import { integerOption, loadModelArgument, numberListOption, numberOption, stringOption, type ParsedArgs } from './args';
-import { complexPairs, finiteOrNull, matrixRows, numberList, hinfCertificate } from './output';
+import { complexPairs, finiteOrNull, matrixRows, numberList, hInfinityCertificate } from './output';
 import { registerVerb } from './registry';
 import { runSparseReduce, sparseModelArgument, SPARSE_REDUCE_OPTIONS } from './sparse';
 import { modelPoles as modelPolesOf } from '../spectral-split';
@@ -55,7 +55,7 @@ function runFrequencyLimited(args: ParsedArgs): Record<string, unknown> {
     inBandErrorFrequency: finiteOrNull(r.errors.inBandPeakFrequency),
     outOfBandError: r.errors.outOfBand,
     outOfBandErrorFrequency: finiteOrNull(r.errors.outOfBandPeakFrequency),
-    hinfError: r.hinfError,
+    hInfinityError: r.hInfinityError,
     frequencyLimitedSingularValues: numberList(r.singularValues),
     reducedStable: r.reducedStable,
     stableOrder: r.stableOrder,
@@ -124,14 +124,14 @@ registerVerb({
       C: matrixRows(r.model.C),
       D: matrixRows(r.model.D),
       errorBound: finiteOrNull(r.errorBound),
-      hinfError: r.hinfError.finite ? r.hinfError.value : null,
+      hInfinityError: r.hInfinityError.finite ? r.hInfinityError.value : null,
       hankelSingularValues: r.hankelSingularValues ? numberList(r.hankelSingularValues) : null,
-      ...(r.hinfError.finite
-        ? { hinfErrorFrequency: finiteOrNull(r.hinfError.peakFrequency), hinfErrorCertificate: hinfCertificate(r.hinfError) }
-        : { hinfErrorNote: r.hinfError.reason }),
+      ...(r.hInfinityError.finite
+        ? { hInfinityErrorFrequency: finiteOrNull(r.hInfinityError.peakFrequency), hInfinityErrorCertificate: hInfinityCertificate(r.hInfinityError) }
+        : { hInfinityErrorNote: r.hInfinityError.reason }),
       h2Error: r.h2Error.finite ? r.h2Error.value : null,
       ...(r.h2Error.finite ? {} : { h2ErrorNote: r.h2Error.reason }),
-      dcGainError: finiteOrNull(r.dcGainError),
+      zeroFrequencyGainError: finiteOrNull(r.zeroFrequencyGainError),
       stableOrder: r.stableOrder,
       unstableStatesKept: r.unstableStatesKept,
       poles: complexPairs(r.poles),

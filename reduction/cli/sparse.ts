@@ -203,18 +203,18 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
     hsvComplete: false,
     factorRank: r.factorRank,
     gramianResidual: gramianReport(r.gramians, adi.tolerance ?? 1e-10),
-    hinfError: measured ? measured.value : null,
+    hInfinityError: measured ? measured.value : null,
     ...(measured
       ? {
-          hinfErrorFrequency: finiteOrNull(measured.frequency),
-          hinfErrorNote: `largest error over a sweep of the full model at ω = 0 and ${points} frequencies: a lower bound on the H∞ error`,
+          hInfinityErrorFrequency: finiteOrNull(measured.frequency),
+          hInfinityErrorNote: `largest error over a sweep of the full model at ω = 0 and ${points} frequencies: a lower bound on the H∞ error`,
         }
-      : { hinfErrorNote: 'not measured on the sparse path unless --error-points N (or --tolerance) is given' }),
+      : { hInfinityErrorNote: 'not measured on the sparse path unless --error-points N (or --tolerance) is given' }),
     orderRule: tolerance !== undefined ? 'tolerance' : 'order',
     ...(referenceNorm !== null
       ? { referenceNorm, referenceNormNote: 'largest σ_max(G(iω)) over the same sweep: a lower bound on ‖G‖∞' }
       : {}),
-    estimated: ['hankelSingularValues', 'errorBound', ...(measured ? ['hinfError'] : []), ...(referenceNorm !== null ? ['referenceNorm'] : [])],
+    estimated: ['hankelSingularValues', 'errorBound', ...(measured ? ['hInfinityError'] : []), ...(referenceNorm !== null ? ['referenceNorm'] : [])],
     notes: r.notes,
   };
 }
@@ -228,8 +228,8 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
   const cz = matmul(model.C, zc);
   const h2 = model.D.data.some((x) => x !== 0) ? null : Math.sqrt(cz.data.reduce((s, x) => s + x * x, 0));
   // DC gain G(0) = D − C A⁻¹ B by one sparse LU of A.
-  let dcGain: (number | null)[][] | null = null;
-  let dcGainNote: string | undefined;
+  let zeroFrequencyGain: (number | null)[][] | null = null;
+  let zeroFrequencyGainNote: string | undefined;
   const lu = SparseLu.analyze(model.A, 'A');
   checkFactorBudget(lu, adi.memoryBudgetBytes ?? Infinity, 'A');
   try {
@@ -246,9 +246,9 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
         g0.data[r * m + c] = model.D.data[r * m + c] - s;
       }
     }
-    dcGain = matrixRows(g0);
+    zeroFrequencyGain = matrixRows(g0);
   } catch (e) {
-    dcGainNote = `A is singular to working precision (${(e as Error).message}): no DC gain`;
+    zeroFrequencyGainNote = `A is singular to working precision (${(e as Error).message}): no DC gain`;
   } finally {
     lu.dispose();
   }
@@ -269,8 +269,8 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
     hsvComplete: false,
     h2Norm: h2,
     h2NormNote: h2 === null ? 'D ≠ 0: the H2 norm is infinite' : '‖C Zc‖_F from the low-rank controllability factor',
-    dcGain,
-    ...(dcGainNote ? { dcGainNote } : {}),
+    zeroFrequencyGain,
+    ...(zeroFrequencyGainNote ? { zeroFrequencyGainNote } : {}),
     gramianResidual: gramianReport(g, adi.tolerance ?? 1e-10),
     estimated: ['slowestDecayRate', 'fastestDecayRate', 'stiffnessRatio', 'hankelSingularValues', 'h2Norm'],
   };

@@ -11,9 +11,9 @@ import type { BenchCase } from './types';
 const ROOT = path.resolve(__dirname, '..', '..');
 
 interface CliReduceOutput {
-  hinfError: number;
+  hInfinityError: number;
   hankelSingularValues: number[];
-  hinfErrorCertificate?: { hamiltonianSolves: number; hamiltonianOrder: number };
+  hInfinityErrorCertificate?: { hamiltonianSolves: number; hamiltonianOrder: number };
   engine: { backend: string; seconds: number; peakMemoryMiB: number };
 }
 
@@ -38,11 +38,11 @@ const cliReduceCase: BenchCase<string, CliReduceOutput> = {
     return JSON.parse(r.stdout) as CliReduceOutput;
   },
   check(dir, _input, out) {
-    const ref = JSON.parse(readFileSync(path.join(dir, 'ref_cli_reduce.json'), 'utf8')) as { hsv: number[]; hinfError: number; hamiltonianSolves: number };
+    const ref = JSON.parse(readFileSync(path.join(dir, 'ref_cli_reduce.json'), 'utf8')) as { hsv: number[]; hInfinityError: number; hamiltonianSolves: number };
     let worst = 0;
     for (let i = 0; i < 20; i++) worst = Math.max(worst, Math.abs(out.hankelSingularValues[i] - ref.hsv[i]) / ref.hsv[i]);
-    const dh = Math.abs(out.hinfError - ref.hinfError) / ref.hinfError;
-    const c = out.hinfErrorCertificate;
+    const dh = Math.abs(out.hInfinityError - ref.hInfinityError) / ref.hInfinityError;
+    const c = out.hInfinityErrorCertificate;
     return (
       `H∞ error rel diff ${dh.toExponential(1)}; σ1..20 rel diff ${worst.toExponential(1)}; ` +
       `Hamiltonian solves ${c ? `${c.hamiltonianSolves} of order ${c.hamiltonianOrder}` : '?'} (reference ${ref.hamiltonianSolves} of order ${2 * (out.hankelSingularValues.length + 20)})`

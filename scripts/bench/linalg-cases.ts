@@ -153,7 +153,7 @@ const analysisCase: BenchCase<StateSpaceModel, ModelAnalysis> = {
     const ref = readNpy(path.join(dir, 'ref_hsv.npy')).data;
     let worst = 0;
     for (let i = 0; i < ref.length && ref[i] > 1e-6 * ref[0]; i++) worst = Math.max(worst, Math.abs(a.hankelSingularValues[i] - ref[i]) / ref[i]);
-    const h = a.hinfNorm;
+    const h = a.hInfinityNorm;
     const how = h.finite ? `H∞ by ${h.hamiltonianSolves} Hamiltonian solve(s) of order ${h.hamiltonianOrder}` : 'H∞ not finite';
     return `HSV max rel diff ${worst.toExponential(1)}; ${how}`;
   },

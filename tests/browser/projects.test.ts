@@ -16,7 +16,7 @@ let shelf: ProjectShelf;
 
 beforeAll(async () => {
   shelf = await makeProjectShelf('browser');
-  await addVersion(shelf, { matrices: MODEL, hinfErrorRelative: 4e-3 });
+  await addVersion(shelf, { matrices: MODEL, hInfinityErrorRelative: 4e-3 });
 });
 
 afterAll(async () => {

@@ -199,13 +199,13 @@ describe('background jobs', () => {
     const sigma = analysis.hankelSingularValues;
     const tail = 2 * sigma.slice(2).reduce((s, x) => s + x, 0);
     expect(report.figures.errorBound).toBeCloseTo(tail, 12);
-    expect(report.figures.hinfError).toBeGreaterThanOrEqual(sigma[2] * (1 - 1e-8));
-    expect(report.figures.hinfError).toBeLessThanOrEqual(tail * (1 + 1e-8));
+    expect(report.figures.hInfinityError).toBeGreaterThanOrEqual(sigma[2] * (1 - 1e-8));
+    expect(report.figures.hInfinityError).toBeLessThanOrEqual(tail * (1 + 1e-8));
     expect(report.acceptance_passed).toBe(report.figures.acceptance.worstError <= 0.5);
     // The curves the comparison page draws: a peak at ω > 0 is on the grid; a peak at ω = 0 is the DC error.
-    const peak = report.figures.hinfErrorFrequency;
+    const peak = report.figures.hInfinityErrorFrequency;
     if (peak > 0) expect(report.curves.frequency.frequencies).toContain(peak);
-    else expect(report.figures.dcGainError).toBeCloseTo(report.figures.hinfError, 9);
+    else expect(report.figures.zeroFrequencyGainError).toBeCloseTo(report.figures.hInfinityError, 9);
     expect(report.curves.step.full).toHaveLength(1);
     expect(report.curves.step.full[0][0]).toHaveLength(report.curves.step.t.length);
 
@@ -254,14 +254,14 @@ describe('background jobs', () => {
     // The H∞ norm is the L2-induced gain (Zhou, Doyle & Glover, "Robust and Optimal Control", 1996, §4.3), so
     // ‖y − yr‖₂ ≤ ‖G − Gr‖∞·‖u‖₂ with ‖u‖₂ = √(2²·2 s); the output error's L2 norm is taken by the trapezoid
     // rule over the record (5 % slack for the quadrature).
-    const hinf = (await db()('accuracy_reports').where({ reduced_version_id: reducedVersionId }).first()).figures.hinfError as number;
+    const hInfinityError = (await db()('accuracy_reports').where({ reduced_version_id: reducedVersionId }).first()).figures.hInfinityError as number;
     let energy = 0;
     for (let i = 1; i < result.t.length; i++) {
       const e0 = result.full[0][i - 1] - result.reduced[0][i - 1];
       const e1 = result.full[0][i] - result.reduced[0][i];
       energy += ((e0 * e0 + e1 * e1) / 2) * (result.t[i] - result.t[i - 1]);
     }
-    expect(Math.sqrt(energy)).toBeLessThanOrEqual(1.05 * hinf * Math.sqrt(2 * 2 * 2) + 1e-12);
+    expect(Math.sqrt(energy)).toBeLessThanOrEqual(1.05 * hInfinityError * Math.sqrt(2 * 2 * 2) + 1e-12);
     expect(Math.sqrt(energy)).toBeGreaterThan(0);
   });
 });

@@ -127,13 +127,13 @@ describe('pin resolution', () => {
 
   it('newest approved within limits: order, relative H-infinity error and acceptance band', async () => {
     const s = await makeProjectShelf('limits');
-    await addVersion(s, { matrices: stiffTestModel(3), hinfErrorRelative: 4e-3, acceptancePassed: true }); // v1 meets all
-    await addVersion(s, { matrices: stiffTestModel(6), hinfErrorRelative: 1e-4, acceptancePassed: true }); // v2 order 6
-    await addVersion(s, { matrices: stiffTestModel(4), hinfErrorRelative: 2e-2, acceptancePassed: true }); // v3 error 2 %
-    await addVersion(s, { matrices: stiffTestModel(4), hinfErrorRelative: 1e-3, acceptancePassed: false }); // v4 band failed
-    await addVersion(s, { matrices: stiffTestModel(4), hinfErrorRelative: null, acceptancePassed: true }); // v5 no figure
+    await addVersion(s, { matrices: stiffTestModel(3), hInfinityErrorRelative: 4e-3, acceptancePassed: true }); // v1 meets all
+    await addVersion(s, { matrices: stiffTestModel(6), hInfinityErrorRelative: 1e-4, acceptancePassed: true }); // v2 order 6
+    await addVersion(s, { matrices: stiffTestModel(4), hInfinityErrorRelative: 2e-2, acceptancePassed: true }); // v3 error 2 %
+    await addVersion(s, { matrices: stiffTestModel(4), hInfinityErrorRelative: 1e-3, acceptancePassed: false }); // v4 band failed
+    await addVersion(s, { matrices: stiffTestModel(4), hInfinityErrorRelative: null, acceptancePassed: true }); // v5 no figure
 
-    const limits = { maxOrder: 4, maxRelativeHinfError: 0.01, requireAcceptancePassed: true };
+    const limits = { maxOrder: 4, maxRelativeHInfinityError: 0.01, requireAcceptancePassed: true };
     const { project } = await pinOf({ mode: 'newest_approved', ...limits }, s);
     const [pin] = await listProjectPins(project.id);
     expect(pin.resolution.version?.number).toBe(1);
@@ -143,7 +143,7 @@ describe('pin resolution', () => {
     // Each limit alone admits a different newest version.
     const byOrder = await pinOf({ mode: 'newest_approved', maxOrder: 4 }, s);
     expect((await listProjectPins(byOrder.project.id))[0].resolution.version?.number).toBe(5);
-    const byError = await pinOf({ mode: 'newest_approved', maxRelativeHinfError: 0.01 }, s);
+    const byError = await pinOf({ mode: 'newest_approved', maxRelativeHInfinityError: 0.01 }, s);
     expect((await listProjectPins(byError.project.id))[0].resolution.version?.number).toBe(4);
     const byBand = await pinOf({ mode: 'newest_approved', requireAcceptancePassed: true, maxOrder: 5 }, s);
     expect((await listProjectPins(byBand.project.id))[0].resolution.version?.number).toBe(5);
@@ -182,8 +182,8 @@ describe('pin resolution', () => {
     expect(exactWithLimit.error?.issues[0].path).toEqual(['maxOrder']);
     const newestWithVersion = pinInputSchema.safeParse({ reducedModel: shelf.reducedModel.slug, mode: 'newest_approved', version: 1 });
     expect(newestWithVersion.error?.issues[0].path).toEqual(['version']);
-    const badError = pinInputSchema.safeParse({ reducedModel: shelf.reducedModel.slug, mode: 'newest_approved', maxRelativeHinfError: -1 });
-    expect(badError.error?.issues[0].path).toEqual(['maxRelativeHinfError']);
+    const badError = pinInputSchema.safeParse({ reducedModel: shelf.reducedModel.slug, mode: 'newest_approved', maxRelativeHInfinityError: -1 });
+    expect(badError.error?.issues[0].path).toEqual(['maxRelativeHInfinityError']);
   });
 
   it('one pin per model and project; changed and removed by engineer members only', async () => {
@@ -221,10 +221,10 @@ describe('pin resolution', () => {
     const drafts = await makeProjectShelf('cand-draft');
     await addVersion(drafts, { status: 'draft' });
     const approved = await makeProjectShelf('cand-ok');
-    await addVersion(approved, { hinfErrorRelative: 3e-3 });
+    await addVersion(approved, { hInfinityErrorRelative: 3e-3 });
     const candidates = await pinCandidates();
     expect(candidates.some((c) => c.slug === drafts.reducedModel.slug)).toBe(false);
     const ok = candidates.find((c) => c.slug === approved.reducedModel.slug);
-    expect(ok?.approvedVersions).toEqual([{ number: 1, order: 3, hinfErrorRelative: 3e-3, acceptancePassed: true }]);
+    expect(ok?.approvedVersions).toEqual([{ number: 1, order: 3, hInfinityErrorRelative: 3e-3, acceptancePassed: true }]);
   });
 });

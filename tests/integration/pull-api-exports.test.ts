@@ -72,7 +72,7 @@ beforeAll(async () => {
   await migrateTestDatabase();
   engineer = asSession(await makeUser({ role: 'engineer', label: 'export-eng' }));
   shelf = await makeProjectShelf('export');
-  await addVersion(shelf, { matrices: MODEL, labels: LABELS, hinfErrorRelative: 2.5e-3 });
+  await addVersion(shelf, { matrices: MODEL, labels: LABELS, hInfinityErrorRelative: 2.5e-3 });
   project = await createProject({ name: 'Export checks', slug: uniqueSlug('export') }, engineer);
   await createPin(project.slug, { reducedModel: shelf.reducedModel.slug, mode: 'newest_approved' }, engineer);
   token = (await createProjectToken(project.slug, { name: 'exports' }, engineer)).token;
@@ -110,7 +110,7 @@ describe('JSON export', () => {
       names: { inputs: LABELS.inputNames, outputs: LABELS.outputNames, states: LABELS.stateNames },
       recipe: { method: 'balanced', order: 1 },
       lineage: { sourceModel: { slug: shelf.sourceModel.slug }, sourceVersion: { number: 1 }, upstreamChanged: false },
-      accuracyReport: { figures: { hinfErrorRelative: 2.5e-3 }, acceptancePassed: true },
+      accuracyReport: { figures: { hInfinityErrorRelative: 2.5e-3 }, acceptancePassed: true },
       pin: { project: { slug: project.slug }, mode: 'newest_approved' },
       discretisation: null,
       warnings: [],

@@ -215,7 +215,7 @@ describe('modeshelf.lock.json', () => {
       entries: [
         {
           reducedModel: s.reducedModel.slug,
-          pin: { mode: 'newest_approved', maxOrder: 4, maxRelativeHinfError: null, requireAcceptancePassed: false },
+          pin: { mode: 'newest_approved', maxOrder: 4, maxRelativeHInfinityError: null, requireAcceptancePassed: false },
           version: 1,
           matricesSha256: stored.matrices_sha256,
           status: 'approved',

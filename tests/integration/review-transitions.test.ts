@@ -236,14 +236,14 @@ describe('the approval snapshot', () => {
   it('keeps the figures the approver saw when the accuracy report is edited later, and cannot itself be edited', async () => {
     const { version } = await makeShelf(engineer.id);
     await transitionVersion(version.id, 'submit', actor(engineer), 'Ready.');
-    await transitionVersion(version.id, 'approve', actor(reviewer), 'Approved at hinf 1.2e-3.');
-    await db()('accuracy_reports').where({ reduced_version_id: version.id }).update({ figures: JSON.stringify({ ...SAMPLE_FIGURES, hinfErrorRelative: 0.5 }), acceptance_passed: false });
+    await transitionVersion(version.id, 'approve', actor(reviewer), 'Approved at an H∞ error of 1.2e-3.');
+    await db()('accuracy_reports').where({ reduced_version_id: version.id }).update({ figures: JSON.stringify({ ...SAMPLE_FIGURES, hInfinityErrorRelative: 0.5 }), acceptance_passed: false });
 
     const summary = (await versionSummary(version.id))!;
-    expect(summary.accuracy).toMatchObject({ figures: { hinfErrorRelative: 0.5 }, acceptancePassed: false });
-    expect(summary.approval!.figures).toMatchObject({ figures: { hinfErrorRelative: 1.2e-3 }, acceptancePassed: true });
+    expect(summary.accuracy).toMatchObject({ figures: { hInfinityErrorRelative: 0.5 }, acceptancePassed: false });
+    expect(summary.approval!.figures).toMatchObject({ figures: { hInfinityErrorRelative: 1.2e-3 }, acceptancePassed: true });
     await expectRefusedBy(
-      db()('reduced_versions').where({ id: version.id }).update({ approved_figures: JSON.stringify({ figures: { hinfErrorRelative: 0.5 } }) }),
+      db()('reduced_versions').where({ id: version.id }).update({ approved_figures: JSON.stringify({ figures: { hInfinityErrorRelative: 0.5 } }) }),
       'reduced_versions_frozen',
     );
     await expectRefusedBy(db()('reduced_versions').where({ id: version.id }).update({ approved_by: secondReviewer.id }), 'reduced_versions_frozen');
@@ -340,7 +340,7 @@ describe('comments and the queue', () => {
     const { version } = await makeShelf(engineer.id);
     await transitionVersion(version.id, 'submit', actor(engineer), 'Please check the band 1 to 100 rad/s.');
     const forReviewer = (await reviewQueue(actor(reviewer))).find((q) => q.versionId === version.id);
-    expect(forReviewer).toMatchObject({ number: 1, note: 'Please check the band 1 to 100 rad/s.', yoursToDecide: true, hinfErrorRelative: 1.2e-3, fullOrder: 40 });
+    expect(forReviewer).toMatchObject({ number: 1, note: 'Please check the band 1 to 100 rad/s.', yoursToDecide: true, hInfinityErrorRelative: 1.2e-3, fullOrder: 40 });
     const forAuthor = (await reviewQueue(actor(engineer))).find((q) => q.versionId === version.id);
     expect(forAuthor!.yoursToDecide).toBe(false);
   });

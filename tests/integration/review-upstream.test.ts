@@ -146,11 +146,11 @@ describe('re-running the recipe on the new version', () => {
       recipeId: shelf.recipe.id,
       authorId: engineer.id,
       predecessorId: shelf.version.id,
-      figures: { ...SAMPLE_FIGURES, hinfErrorRelative: 3.4e-3 },
+      figures: { ...SAMPLE_FIGURES, hInfinityErrorRelative: 3.4e-3 },
     });
     const pair = await accuracySideBySide(shelf.version.id, rerun.id);
-    expect(pair.old.accuracy!.figures.hinfErrorRelative).toBe(1.2e-3);
-    expect(pair.new.accuracy!.figures.hinfErrorRelative).toBe(3.4e-3);
+    expect(pair.old.accuracy!.figures.hInfinityErrorRelative).toBe(1.2e-3);
+    expect(pair.new.accuracy!.figures.hInfinityErrorRelative).toBe(3.4e-3);
     expect(pair.new.predecessor).toMatchObject({ id: shelf.version.id, sourceNumber: 1 });
     const other = await makeShelf(engineer.id);
     await expect(accuracySideBySide(shelf.version.id, other.version.id)).rejects.toMatchObject({ status: 400 });

@@ -202,7 +202,7 @@ describe('uploads with the S3 store', () => {
     expect((analysis.result as AnalysisRecord).states).toBe(3);
     // D − C A⁻¹ B by hand: the 2×2 block's inverse is [[−0.2, −5], [5, −0.2]] / 25.04, the last entry −1,
     // so C A⁻¹ B = −0.2/25.04 − 1 and the DC gain is 0.25 + 0.2/25.04 + 1.
-    const dc = (analysis.result as AnalysisRecord).dcGain;
+    const dc = (analysis.result as AnalysisRecord).zeroFrequencyGain;
     expect(dc.defined).toBe(true);
     expect(dc.defined && dc.value[0][0]).toBeCloseTo(0.25 + 0.2 / 25.04 + 1, 10);
     const keys = files.map((f) => `sha256/${sha256(f.text).slice(0, 2)}/${sha256(f.text)}`);

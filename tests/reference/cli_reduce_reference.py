@@ -107,7 +107,7 @@ def run(directory, order):
         if vals.max() <= gamma:
             break
         lower = vals.max()
-    return {"hsv": s.tolist(), "hinfError": float(lower), "hamiltonianSolves": solves}
+    return {"hsv": s.tolist(), "hInfinityError": float(lower), "hamiltonianSolves": solves}
 
 
 def main():

@@ -67,7 +67,7 @@ export default async function ReducedModelsPage() {
                   </td>
                   <td className="num px-4 py-2">{m.order}</td>
                   <td className="px-4 py-2">{METHOD_WORDS[m.method] ?? m.method}</td>
-                  <td className="num px-4 py-2">{m.hinfErrorRelative === null ? '—' : formatPercent(m.hinfErrorRelative)}</td>
+                  <td className="num px-4 py-2">{m.hInfinityErrorRelative === null ? '—' : formatPercent(m.hInfinityErrorRelative)}</td>
                   <td className="px-4 py-2">{m.acceptancePassed === null ? '—' : m.acceptancePassed ? 'PASS' : 'FAIL'}</td>
                   <td className="px-4 py-2">{m.author}</td>
                   <td className="num px-4 py-2 text-xs">{m.updatedAt.replace('T', ' ').slice(0, 16)}</td>

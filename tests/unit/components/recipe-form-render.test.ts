@@ -17,7 +17,7 @@ const table: OrderFigureTable = { available: true, orders: [2, 4, 6], figures: {
 const analysis = {
   states: 8,
   frequencyBand: [0.1, 500],
-  stablePartHinfNorm: 12,
+  stablePartHInfinityNorm: 12,
   marginalPoles: 0,
   unstablePoles: 0,
   orderFigures: { balanced: table, residualization: table, modalDominance: table, modalSlowest: table },

@@ -78,8 +78,8 @@ describe('server-rendered components', () => {
     const html = renderToStaticMarkup(
       h(FiguresTable, {
         figures: {
-          fullOrder: 400, reducedOrder: 12, hinfError: 2e-3, hinfErrorRelative: 0.01, errorBound: 5e-3, h2Error: 1e-3,
-          dcGainError: 0, peakStepError: 4e-3, stiffnessRatioFull: 1e4, stiffnessRatioReduced: 20,
+          fullOrder: 400, reducedOrder: 12, hInfinityError: 2e-3, hInfinityErrorRelative: 0.01, errorBound: 5e-3, h2Error: 1e-3,
+          zeroFrequencyGainError: 0, peakStepError: 4e-3, stiffnessRatioFull: 1e4, stiffnessRatioReduced: 20,
           simulation: {
             full: { solver: 'stiff', steps: 900, pointsStored: 501, wallMs: 80 },
             reduced: { solver: 'stiff', steps: 300, pointsStored: 501, wallMs: 2 },

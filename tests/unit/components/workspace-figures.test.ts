@@ -8,11 +8,11 @@ const NB = '\u00a0';
 const FIGURES: AccuracyFigures = {
   fullOrder: 1200,
   reducedOrder: 18,
-  hinfError: 3.2e-4,
-  hinfErrorRelative: 0.008,
+  hInfinityError: 3.2e-4,
+  hInfinityErrorRelative: 0.008,
   errorBound: 9.1e-4,
   h2Error: 1.5e-4,
-  dcGainError: null,
+  zeroFrequencyGainError: null,
   peakStepError: 2.25e-3,
   stiffnessRatioFull: 4.8e5,
   stiffnessRatioReduced: 35.2,
@@ -39,7 +39,7 @@ describe('accuracy figures', () => {
 
   it('checks the measured error against the bound and flags a violation', () => {
     expect(rows['Error within bound'].value).toBe('yes');
-    const broken = Object.fromEntries(accuracyRows({ ...FIGURES, hinfError: 1e-3 }).map((r) => [r.label, r]));
+    const broken = Object.fromEntries(accuracyRows({ ...FIGURES, hInfinityError: 1e-3 }).map((r) => [r.label, r]));
     expect(broken['Error within bound']).toMatchObject({ value: 'no', note: expect.stringMatching(/exceeds/) });
     const noBound = accuracyRows({ ...FIGURES, errorBound: null }).map((r) => r.label);
     expect(noBound).not.toContain('Error within bound');

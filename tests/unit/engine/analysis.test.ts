@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { analyzeModel, dcGain, stiffnessRatio } from '../../../reduction/analysis';
+import { analyzeModel, zeroFrequencyGain, stiffnessRatio } from '../../../reduction/analysis';
 import { fromRows, get } from '../../../reduction/linalg/matrix';
 import {
   randomStableModel,
@@ -105,13 +105,13 @@ describe('stiffness ratio', () => {
 
 describe('DC gain', () => {
   it('of k/(s+a) is k/a (closed form)', () => {
-    const g = dcGain(firstOrderLag(3, 4));
+    const g = zeroFrequencyGain(firstOrderLag(3, 4));
     expect(g.defined).toBe(true);
     if (g.defined) expect(get(g.value, 0, 0)).toBeCloseTo(0.75, 14);
   });
 
   it('is a typed "not defined" with a pole at 0, not NaN', () => {
-    const g = analyzeModel(rigidBodyModel()).dcGain;
+    const g = analyzeModel(rigidBodyModel()).zeroFrequencyGain;
     expect(g.defined).toBe(false);
     if (!g.defined) expect(g.reason).toMatch(/pole\(s\) at s = 0/);
   });
@@ -119,7 +119,7 @@ describe('DC gain', () => {
   it('equals D − C A⁻¹ B from numpy on a random MIMO model (frequency response at ω = 0)', () => {
     const model = randomStableModel(21, 12, 2, 3, { withD: true });
     const [ref] = runReference([{ name: 'zero-frequency', model, tasks: ['response'], frequencies: [0] }]);
-    const g = dcGain(model);
+    const g = zeroFrequencyGain(model);
     expect(g.defined).toBe(true);
     if (!g.defined) return;
     for (let i = 0; i < 3; i++) {
@@ -139,7 +139,7 @@ describe('norms and Hankel singular values in the analysis', () => {
     const doubleIntegrator = { A: fromRows([[0, 1], [0, 0]]), B: fromRows([[0], [1]]), C: fromRows([[0.5, 0]]), D: fromRows([[0]]) };
     const model = disguise(appendModels(stablePart, doubleIntegrator), 4);
     const a = analyzeModel(model);
-    expect(a.hinfNorm.finite).toBe(false);
+    expect(a.hInfinityNorm.finite).toBe(false);
     expect(a.h2Norm.finite).toBe(false);
     const [ref] = runReference([{ name: 'stable-part', model: stablePart, tasks: ['hsv'] }]);
     expect(a.hankelSingularValues.length).toBe(2);

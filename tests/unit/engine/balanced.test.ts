@@ -7,8 +7,8 @@ import {
 } from '../../../reduction/balanced';
 import { controllabilityGramian, observabilityGramian } from '../../../reduction/gramians';
 import { PreparationCache, prepareReduction, reduceModel } from '../../../reduction/reduce';
-import { dcGain } from '../../../reduction/analysis';
-import { hinfNorm } from '../../../reduction/norms';
+import { zeroFrequencyGain } from '../../../reduction/analysis';
+import { hInfinityNorm } from '../../../reduction/norms';
 import { ModelError } from '../../../reduction/errors';
 import { fromRows, get, matmul, transpose, zeros, frobeniusNorm } from '../../../reduction/linalg/index';
 import {
@@ -137,9 +137,9 @@ describe('balanced truncation and residualization error bounds', () => {
           if (hsv[r - 1] - hsv[r] < 1e-8 * hsv[0]) continue; // σ_r = σ_{r+1}: the cut is not unique
           const result = reduceModel(model, { method, order: r });
           expect(result.order).toBe(r);
-          expect(result.hinfError.finite).toBe(true);
-          if (!result.hinfError.finite) continue;
-          const err = result.hinfError.value;
+          expect(result.hInfinityError.finite).toBe(true);
+          if (!result.hInfinityError.finite) continue;
+          const err = result.hInfinityError.value;
           expect(err).toBeGreaterThanOrEqual(hsv[r] * (1 - 1e-7));
           expect(err).toBeLessThanOrEqual(result.errorBound * (1 + 1e-7));
           checked++;
@@ -164,10 +164,10 @@ describe('balanced truncation and residualization error bounds', () => {
       cases.map(({ model, method, order, r }) => ({ name: `${method}-${order}`, model, tasks: ['error'], reduced: r.model })),
     );
     cases.forEach(({ r }, i) => {
-      expect(r.hinfError.finite).toBe(true);
-      if (!r.hinfError.finite) return;
+      expect(r.hInfinityError.finite).toBe(true);
+      if (!r.hInfinityError.finite) return;
       // The sweep is a lower estimate refined to ~1e-10; the Hamiltonian bracket is 2e-9 wide.
-      expect(Math.abs(r.hinfError.value / ref[i].error!.value - 1)).toBeLessThan(1e-6);
+      expect(Math.abs(r.hInfinityError.value / ref[i].error!.value - 1)).toBeLessThan(1e-6);
     });
   });
 });
@@ -197,17 +197,17 @@ describe('balanced residualization', () => {
   it('keeps the DC gain exactly (Liu & Anderson 1989)', () => {
     for (const seed of [201, 202, 203, 204]) {
       const model = randomStableModel(seed, 20, 2, 3, { decades: 3, withD: seed % 2 === 0 });
-      const full = dcGain(model);
+      const full = zeroFrequencyGain(model);
       for (const r of [1, 4, 9]) {
         const result = reduceModel(model, { method: 'residualization', order: r });
-        const reduced = dcGain(result.model);
+        const reduced = zeroFrequencyGain(result.model);
         expect(full.defined && reduced.defined).toBe(true);
         if (!full.defined || !reduced.defined) continue;
         const scale = frobeniusNorm(full.value);
         for (let k = 0; k < full.value.data.length; k++) {
           expect(Math.abs(full.value.data[k] - reduced.value.data[k])).toBeLessThan(1e-9 * scale);
         }
-        expect(result.dcGainError).toBeLessThan(1e-9 * scale);
+        expect(result.zeroFrequencyGainError).toBeLessThan(1e-9 * scale);
       }
     }
   });
@@ -237,8 +237,8 @@ describe('non-minimal and non-stable models', () => {
       for (const order of [3, 10, 15, 20]) {
         const r = reduceModel(doubled, { method, order });
         expect(allFinite(r.model)).toBe(true);
-        expect(r.hinfError.finite).toBe(true);
-        if (r.hinfError.finite) expect(r.hinfError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-6) + 1e-9 * hsvG[0]);
+        expect(r.hInfinityError.finite).toBe(true);
+        if (r.hInfinityError.finite) expect(r.hInfinityError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-6) + 1e-9 * hsvG[0]);
         if (order > 10) expect(r.notes.join(' ')).toMatch(/numerically of order/);
       }
     }
@@ -269,8 +269,8 @@ describe('non-minimal and non-stable models', () => {
       expect(r.stableOrder).toBe(4);
       const nearZero = Array.from(r.poles.re).filter((re, i) => Math.hypot(re, r.poles.im[i]) < 1e-6);
       expect(nearZero.length).toBe(2);
-      expect(r.hinfError.finite).toBe(true);
-      if (r.hinfError.finite) expect(r.hinfError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-6));
+      expect(r.hInfinityError.finite).toBe(true);
+      if (r.hInfinityError.finite) expect(r.hInfinityError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-6));
     }
   });
 
@@ -315,7 +315,7 @@ describe('equal Hankel singular values', () => {
       expect(r.order).toBe(4);
       expect(r.notes.join(' ')).toMatch(/equal Hankel singular values/);
       expect(allFinite(r.model)).toBe(true);
-      expect(r.hinfError.finite && r.hinfError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-7));
+      expect(r.hInfinityError.finite && r.hInfinityError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-7));
     }
   });
 });
@@ -323,7 +323,7 @@ describe('equal Hankel singular values', () => {
 describe('order by tolerance and the reduction basis', () => {
   it('picks the smallest r with 2Σσ(r+1..n) ≤ tolerance·‖G‖∞', () => {
     const model = randomStableModel(401, 30, 2, 2, { decades: 3 });
-    const norm = hinfNorm(model);
+    const norm = hInfinityNorm(model);
     expect(norm.finite).toBe(true);
     if (!norm.finite) return;
     const tol = 1e-3;
@@ -332,7 +332,7 @@ describe('order by tolerance and the reduction basis', () => {
     expect(r.errorBound).toBeLessThanOrEqual(tol * norm.value);
     expect(basis.errorBoundAt(r.stableOrder - 1)).toBeGreaterThan(tol * norm.value);
     expect(r.referenceNorm! / norm.value - 1).toBeLessThan(1e-12);
-    expect(r.hinfError.finite && r.hinfError.value <= tol * norm.value).toBe(true);
+    expect(r.hInfinityError.finite && r.hInfinityError.value <= tol * norm.value).toBe(true);
   });
 
   it('slices any order from one balanced realization: truncateAt(r) equals a fresh reduction', () => {

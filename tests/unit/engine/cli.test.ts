@@ -35,7 +35,7 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }));
 describe('cli analyze', () => {
   it('prints the contract keys for a JSON model; 3/(s+2) has HSV k/(2a), H∞ k/a, H2 k/√(2a) (closed forms)', () => {
     const out = json(['analyze', `${FIX}/first-order-lag.json`]);
-    for (const key of ['states', 'inputs', 'outputs', 'poles', 'stable', 'stiffnessRatio', 'hankelSingularValues', 'hinfNorm', 'h2Norm', 'dcGain']) {
+    for (const key of ['states', 'inputs', 'outputs', 'poles', 'stable', 'stiffnessRatio', 'hankelSingularValues', 'hInfinityNorm', 'h2Norm', 'zeroFrequencyGain']) {
       expect(out).toHaveProperty(key);
     }
     // 3/(s+2): pole −2, HSV 3/4, ‖G‖∞ = 3/2 at ω = 0, ‖G‖₂ = 3/√4 = 1.5, G(0) = 1.5 (closed forms).
@@ -43,9 +43,9 @@ describe('cli analyze', () => {
     expect(out.poles).toEqual([[-2, 0]]);
     expect(out.stable).toBe(true);
     expect(out.hankelSingularValues).toEqual([expect.closeTo(0.75, 12)]);
-    expect(out.hinfNorm).toBeCloseTo(1.5, 12);
+    expect(out.hInfinityNorm).toBeCloseTo(1.5, 12);
     expect(out.h2Norm).toBeCloseTo(1.5, 12);
-    expect(out.dcGain).toEqual([[expect.closeTo(1.5, 12)]]);
+    expect(out.zeroFrequencyGain).toEqual([[expect.closeTo(1.5, 12)]]);
   });
 
   it('reads Matrix Market A, B, C files and reports the rigid-body poles, with DC gain not defined', () => {
@@ -53,9 +53,9 @@ describe('cli analyze', () => {
     expect(out.states).toBe(4);
     expect(out.stable).toBe(false);
     expect(out.marginalPoles).toBe(2);
-    expect(out.dcGain).toBeNull();
-    expect(out.dcGainNote).toMatch(/s = 0/);
-    expect(out.hinfNorm).toBeNull();
+    expect(out.zeroFrequencyGain).toBeNull();
+    expect(out.zeroFrequencyGainNote).toMatch(/s = 0/);
+    expect(out.hInfinityNorm).toBeNull();
     // Stable part (1/2)/(s² + 0.2s + 2): two HSVs.
     expect((out.hankelSingularValues as number[]).length).toBe(2);
   });
@@ -68,7 +68,7 @@ describe('cli analyze', () => {
       expect(Math.abs(im)).toBeCloseTo(2 * Math.sqrt(0.99), 12);
     }
     // G(0) = 1 + D = 1.5; H2 is not finite with D ≠ 0.
-    expect(out.dcGain).toEqual([[expect.closeTo(1.5, 12)]]);
+    expect(out.zeroFrequencyGain).toEqual([[expect.closeTo(1.5, 12)]]);
     expect(out.h2Norm).toBeNull();
   });
 });
@@ -76,7 +76,7 @@ describe('cli analyze', () => {
 describe('cli reduce', () => {
   it('balanced --order 4 prints the reduced model with its bound, which covers the measured error', () => {
     const out = json(['reduce', randomPath, '--method', 'balanced', '--order', '4']);
-    for (const key of ['method', 'order', 'A', 'B', 'C', 'D', 'errorBound', 'hinfError', 'hankelSingularValues']) {
+    for (const key of ['method', 'order', 'A', 'B', 'C', 'D', 'errorBound', 'hInfinityError', 'hankelSingularValues']) {
       expect(out).toHaveProperty(key);
     }
     expect(out.method).toBe('balanced');
@@ -85,15 +85,15 @@ describe('cli reduce', () => {
     expect((out.B as number[][])[0].length).toBe(2);
     expect((out.C as number[][]).length).toBe(2);
     const hsv = out.hankelSingularValues as number[];
-    expect(out.hinfError as number).toBeGreaterThanOrEqual(hsv[4] * (1 - 1e-7));
-    expect(out.hinfError as number).toBeLessThanOrEqual((out.errorBound as number) * (1 + 1e-7));
+    expect(out.hInfinityError as number).toBeGreaterThanOrEqual(hsv[4] * (1 - 1e-7));
+    expect(out.hInfinityError as number).toBeLessThanOrEqual((out.errorBound as number) * (1 + 1e-7));
   });
 
   it('residualization --tolerance picks an order whose bound meets tolerance·‖G‖∞', () => {
     const out = json(['reduce', randomPath, '--method', 'residualization', '--tolerance', '0.01']);
     expect(out.orderRule).toBe('tolerance');
     expect(out.errorBound as number).toBeLessThanOrEqual(0.01 * (out.referenceNorm as number));
-    expect(out.dcGainError as number).toBeLessThan(1e-9);
+    expect(out.zeroFrequencyGainError as number).toBeLessThan(1e-9);
   });
 
   it('modal keeps the rigid-body poles of the Matrix Market model and says so', () => {

@@ -157,9 +157,9 @@ describe('reduction on the band', () => {
       expect(fl.errors.outOfBand).toBeGreaterThan(btErrors.outOfBand);
       expect(fl.notes.join(' ')).toMatch(/no a-priori error bound/);
       expect(fl.reducedStable).toBe(true);
-      expect(fl.hinfError).not.toBeNull();
+      expect(fl.hInfinityError).not.toBeNull();
       // ‖G − Gr‖∞ bounds every grid value from above (up to the H∞ algorithm's relative tolerance).
-      expect(fl.hinfError!).toBeGreaterThanOrEqual(Math.max(fl.errors.inBand, fl.errors.outOfBand) * (1 - 1e-6));
+      expect(fl.hInfinityError!).toBeGreaterThanOrEqual(Math.max(fl.errors.inBand, fl.errors.outOfBand) * (1 - 1e-6));
     });
   }
 

@@ -106,9 +106,9 @@ describe('modal truncation', () => {
       for (const cut of [cuts[1], cuts[Math.floor(cuts.length / 2)]]) {
         const r = basis.truncateAt(cut);
         const measured = reduceModel(model, { method: 'modal', order: cut });
-        expect(measured.hinfError.finite).toBe(true);
-        if (!measured.hinfError.finite) continue;
-        expect(measured.hinfError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-8));
+        expect(measured.hInfinityError.finite).toBe(true);
+        if (!measured.hInfinityError.finite) continue;
+        expect(measured.hInfinityError.value).toBeLessThanOrEqual(r.errorBound * (1 + 1e-8));
         checked++;
       }
     }
@@ -135,7 +135,7 @@ describe('modal truncation', () => {
     expect((caught as ModelError).message).toMatch(/balanced truncation/);
     // Balanced truncation handles the same model.
     const bt = reduceModel(lagCascade(4, 2), { method: 'balanced', order: 2 });
-    expect(bt.hinfError.finite).toBe(true);
+    expect(bt.hInfinityError.finite).toBe(true);
   });
 
   it('keeps the rigid-body pole pair at 0 of a Jordan block and reduces the stable pair to nothing at order 2', () => {
@@ -148,7 +148,7 @@ describe('modal truncation', () => {
     const wn = Math.SQRT2;
     const zeta = 0.1 / wn;
     const peak = 0.5 / (wn * wn * 2 * zeta * Math.sqrt(1 - zeta * zeta));
-    expect(r.hinfError.finite && Math.abs(r.hinfError.value / peak - 1)).toBeLessThan(1e-7);
+    expect(r.hInfinityError.finite && Math.abs(r.hInfinityError.value / peak - 1)).toBeLessThan(1e-7);
   });
 
   it('with repeated poles (two identical resonators) meets its bound or refuses — never a wrong bound', () => {
@@ -172,12 +172,12 @@ describe('modal truncation', () => {
       expect((e as ModelError).field).toBe('method');
     }
     if (result) {
-      expect(result.hinfError.finite).toBe(true);
-      if (result.hinfError.finite) expect(result.hinfError.value).toBeLessThanOrEqual(result.errorBound * (1 + 1e-8) + 1e-12);
+      expect(result.hInfinityError.finite).toBe(true);
+      if (result.hInfinityError.finite) expect(result.hInfinityError.value).toBeLessThanOrEqual(result.errorBound * (1 + 1e-8) + 1e-12);
     }
     // Balanced truncation reduces the same model and keeps both resonators (4 states, error at rounding level).
     const bt = reduceModel(twin, { method: 'balanced', order: 4 });
-    expect(bt.hinfError.finite && bt.hinfError.value).toBeLessThan(1e-8);
+    expect(bt.hInfinityError.finite && bt.hInfinityError.value).toBeLessThan(1e-8);
   });
 
   it('rejects a band with low ≥ high, on field "band"', () => {
@@ -191,6 +191,6 @@ describe('modal truncation', () => {
     const r = reduceModel(model, { method: 'modal', order: 2 });
     expect(r.order).toBe(2);
     expect(r.errorBound).toBe(0);
-    expect(r.hinfError.finite && r.hinfError.value).toBe(0);
+    expect(r.hInfinityError.finite && r.hInfinityError.value).toBe(0);
   });
 });

@@ -1,5 +1,5 @@
 import { describe, it, expect } from 'vitest';
-import { hinfNorm, h2Norm, hamiltonian } from '../../../reduction/norms';
+import { hInfinityNorm, h2Norm, hamiltonian } from '../../../reduction/norms';
 import { fromRows, eigenvalues } from '../../../reduction/linalg/index';
 import { frequencyEvaluator, largestSingularValue } from '../../../reduction/frequency';
 import { errorSystem } from '../../../reduction/realization';
@@ -8,7 +8,7 @@ import { runReference } from '../../fixtures/engine/reference';
 
 describe('H∞ norm by the Hamiltonian method (Boyd & Balakrishnan 1990; Bruinsma & Steinbuch 1990)', () => {
   it('of k/(s+a) is k/a, attained at ω = 0 (closed form)', () => {
-    const r = hinfNorm(firstOrderLag(3, 0.5));
+    const r = hInfinityNorm(firstOrderLag(3, 0.5));
     expect(r.finite).toBe(true);
     if (!r.finite) return;
     expect(r.value).toBeCloseTo(6, 12);
@@ -18,7 +18,7 @@ describe('H∞ norm by the Hamiltonian method (Boyd & Balakrishnan 1990; Bruinsm
   for (const zeta of [0.005, 0.02, 0.1, 0.3, 0.6]) {
     it(`of a second-order system with ζ = ${zeta} is the resonant peak 1/(2ζ√(1−ζ²)) at ωn√(1−2ζ²) (Ogata, Modern Control Engineering, ch. 5)`, () => {
       const wn = 40;
-      const r = hinfNorm(disguise(secondOrder(wn, zeta), 7));
+      const r = hInfinityNorm(disguise(secondOrder(wn, zeta), 7));
       expect(r.finite).toBe(true);
       if (!r.finite) return;
       const peak = 1 / (2 * zeta * Math.sqrt(1 - zeta * zeta));
@@ -34,7 +34,7 @@ describe('H∞ norm by the Hamiltonian method (Boyd & Balakrishnan 1990; Bruinsm
   }
 
   it('of a well-damped second-order system (ζ = 0.8 > 1/√2) is the DC gain 1 (no resonant peak)', () => {
-    const r = hinfNorm(secondOrder(3, 0.8));
+    const r = hInfinityNorm(secondOrder(3, 0.8));
     expect(r.finite && r.value).toBeCloseTo(1, 10);
   });
 
@@ -48,7 +48,7 @@ describe('H∞ norm by the Hamiltonian method (Boyd & Balakrishnan 1990; Bruinsm
     ];
     const ref = runReference(models.map((model, i) => ({ name: `h-infinity-${i}`, model, tasks: ['h_infinity'] })));
     models.forEach((model, i) => {
-      const r = hinfNorm(model);
+      const r = hInfinityNorm(model);
       expect(r.finite).toBe(true);
       if (!r.finite) return;
       expect(Math.abs(r.value / ref[i].h_infinity!.value - 1)).toBeLessThan(1e-7);
@@ -60,7 +60,7 @@ describe('H∞ norm by the Hamiltonian method (Boyd & Balakrishnan 1990; Bruinsm
 
   it('builds a Hamiltonian whose imaginary eigenvalues are exactly where a singular value of G(jω) equals γ', () => {
     const model = randomStableModel(610, 10, 2, 2, { withD: true });
-    const norm = hinfNorm(model);
+    const norm = hInfinityNorm(model);
     if (!norm.finite) throw new Error('expected a finite norm');
     const gamma = 0.7 * norm.value;
     const ev = eigenvalues(hamiltonian(model, gamma));
@@ -83,10 +83,10 @@ describe('H∞ norm by the Hamiltonian method (Boyd & Balakrishnan 1990; Bruinsm
   });
 
   it('is a typed "not finite" for a model with a pole at 0 or in the right half-plane', () => {
-    const rigid = hinfNorm(rigidBodyModel());
+    const rigid = hInfinityNorm(rigidBodyModel());
     expect(rigid.finite).toBe(false);
     if (!rigid.finite) expect(rigid.reason).toMatch(/imaginary axis/);
-    const unstable = hinfNorm({ A: fromRows([[0.5]]), B: fromRows([[1]]), C: fromRows([[1]]), D: fromRows([[0]]) });
+    const unstable = hInfinityNorm({ A: fromRows([[0.5]]), B: fromRows([[1]]), C: fromRows([[1]]), D: fromRows([[0]]) });
     expect(unstable.finite).toBe(false);
     if (!unstable.finite) expect(unstable.reason).toMatch(/right half-plane/);
   });

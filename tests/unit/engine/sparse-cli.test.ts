@@ -51,12 +51,12 @@ describe('command line: the sparse path', () => {
     expect(out.engine.path).toBe('sparse');
     expect(out.hsvComplete).toBe(false);
     expect(out.descriptor).toBe(true);
-    expect(out.estimated).toEqual(['hankelSingularValues', 'errorBound', 'hinfError']);
+    expect(out.estimated).toEqual(['hankelSingularValues', 'errorBound', 'hInfinityError']);
     expect(out.gramianResidual.controllability.residual).toBeLessThanOrEqual(1e-10);
     expect(out.gramianResidual.observability.converged).toBe(true);
     expect(out.A).toHaveLength(5);
-    expect(out.hinfError).toBeLessThanOrEqual(out.errorBound * (1 + 1e-6));
-    expect(out.hinfError).toBeGreaterThan(0);
+    expect(out.hInfinityError).toBeLessThanOrEqual(out.errorBound * (1 + 1e-6));
+    expect(out.hInfinityError).toBeGreaterThan(0);
     // The same reduction through the library.
     const lib = sparseBalancedReduction(model, { method: 'balanced', order: 5 });
     const printed: StateSpaceModel = { A: fromRows(out.A), B: fromRows(out.B), C: fromRows(out.C), D: fromRows(out.D) };
@@ -104,7 +104,7 @@ describe('command line: the sparse path', () => {
     const tail = (r: number) => 2 * sparse.hankelSingularValues.slice(r).reduce((a: number, b: number) => a + b, 0);
     expect(sparse.errorBound).toBeLessThanOrEqual(T * sparse.referenceNorm);
     expect(tail(sparse.order - 1)).toBeGreaterThan(T * sparse.referenceNorm);
-    expect(sparse.hinfError).toBeLessThanOrEqual(sparse.errorBound * (1 + 1e-6));
+    expect(sparse.hInfinityError).toBeLessThanOrEqual(sparse.errorBound * (1 + 1e-6));
     // The dense path certifies ‖G‖∞ (Hamiltonian bisection); the sweep's lower bound is close to it here.
     expect(sparse.referenceNorm).toBeLessThanOrEqual(dense.referenceNorm * (1 + 1e-9));
     expect(relDiff(sparse.referenceNorm, dense.referenceNorm)).toBeLessThan(1e-3);
@@ -132,7 +132,7 @@ describe('command line: the sparse path', () => {
     expect(out.hsvComplete).toBe(false);
     expect(out.estimated).toEqual(['slowestDecayRate', 'fastestDecayRate', 'stiffnessRatio', 'hankelSingularValues', 'h2Norm']);
     const ref = sparseReference(dir, ['response'], { frequencies: [0] }).response[0]; // scipy splu: C (0·E − A)⁻¹ B
-    expect(relDiff(out.dcGain[0][0], ref.re[0][0])).toBeLessThan(1e-10);
+    expect(relDiff(out.zeroFrequencyGain[0][0], ref.re[0][0])).toBeLessThan(1e-10);
   });
 
   it('refuses a factorization over --memory-budget before making it, naming the estimate and the budget', () => {

@@ -10,8 +10,8 @@ const NBSP = '\u00a0';
 describe('figure lines', () => {
   it('lines up two reports, reading the older name of a figure too, with units', () => {
     const lines = figureLines([
-      { fullOrder: 40, reducedOrder: 4, hinfErrorRelative: 1.2e-3, hinfError: 2.4e-3 },
-      { fullOrder: 40, order: 4, hinfErrorRelative: 3.6e-3, hinfError: 7.2e-3 },
+      { fullOrder: 40, reducedOrder: 4, hInfinityErrorRelative: 1.2e-3, hInfinityError: 2.4e-3 },
+      { fullOrder: 40, order: 4, hInfinityErrorRelative: 3.6e-3, hInfinityError: 7.2e-3 },
     ]);
     expect(lines.map((l) => [l.label, l.values])).toEqual([
       ['Full order', ['40', '40']],
@@ -24,7 +24,7 @@ describe('figure lines', () => {
   });
 
   it('shows a missing or non-finite figure as a dash, never as zero, and drops lines no report states', () => {
-    const lines = figureLines([{ h2Error: null, dcGainError: Number.NaN, peakStepError: 0.05 }, { peakStepError: 'n/a' }]);
+    const lines = figureLines([{ h2Error: null, zeroFrequencyGainError: Number.NaN, peakStepError: 0.05 }, { peakStepError: 'n/a' }]);
     expect(lines.map((l) => [l.key, l.values])).toEqual([['peakStepError', ['0.05', '—']]]);
     expect(comparisonNote(lines[0])).toBe('');
     expect(figureLines([null, undefined])).toEqual([]);

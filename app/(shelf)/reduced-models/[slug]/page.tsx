@@ -66,7 +66,7 @@ export default async function ReducedModelPage({ params }: { params: Promise<{ s
                 </td>
                 <td className="px-4 py-2">{v.method}</td>
                 <td className="num px-4 py-2">{v.order}</td>
-                <td className="num px-4 py-2">{v.hinfErrorRelative === null ? '—' : formatPercent(v.hinfErrorRelative)}</td>
+                <td className="num px-4 py-2">{v.hInfinityErrorRelative === null ? '—' : formatPercent(v.hInfinityErrorRelative)}</td>
                 <td className="num px-4 py-2">
                   {v.errorBound !== null ? (
                     formatNumber(v.errorBound)
