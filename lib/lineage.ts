@@ -5,6 +5,7 @@
 // predecessor, drawn as an edge between reduced versions.
 //
 // Also the old-versus-new accuracy comparison of a version and its predecessor.
+import { methodOrderLabel } from '@/lib/recipe-words';
 import { db } from '@/lib/db';
 import { ApiError, notFound } from '@/lib/http';
 import type { VersionStatus } from '@/lib/review/state-machine';
@@ -54,7 +55,7 @@ export interface LineageEdge {
   to: string;
   /** reduced_from: source version → reduced version; predecessor: older → newer reduced version; pinned_by: reduced version → project */
   kind: 'reduced_from' | 'predecessor' | 'pinned_by';
-  /** e.g. "balanced, r = 12", "re-run", "exact pin" */
+  /** e.g. "balanced truncation, r = 12" (lib/recipe-words.ts), "re-run", "exact pin" */
   label: string;
 }
 
@@ -63,10 +64,6 @@ export interface Lineage {
   sourceModel: { id: string; name: string; slug: string };
   nodes: LineageNode[];
   edges: LineageEdge[];
-}
-
-function methodLabel(method: string, order: number): string {
-  return `${method}, r = ${order}`;
 }
 
 async function buildLineage(sourceModelId: string, reducedModelId: string | null, title: (sm: { name: string }) => string): Promise<Lineage> {
@@ -137,7 +134,7 @@ async function buildLineage(sourceModelId: string, reducedModelId: string | null
       inputChecksum: r.input_checksum,
       engineVersion: r.engine_version,
     });
-    edges.push({ from: r.source_version_id, to: r.id, kind: 'reduced_from', label: methodLabel(r.method, r.order) });
+    edges.push({ from: r.source_version_id, to: r.id, kind: 'reduced_from', label: methodOrderLabel(r.method, r.order) });
     if (r.predecessor_id && shownIds.has(r.predecessor_id)) {
       edges.push({ from: r.predecessor_id, to: r.id, kind: 'predecessor', label: 'made from' });
     }

@@ -14,6 +14,7 @@ import { z } from 'zod';
 import { db } from '@/lib/db';
 import { preparedRows } from '@/lib/prepared';
 import { recordAudit } from '@/lib/audit';
+import { storedAcceptance, type StoredAcceptance } from '@/lib/acceptance';
 import { ApiError, notFound } from '@/lib/http';
 import { requireProject, requireProjectManager, SLUG_PATTERN } from '@/lib/projects';
 import type { SessionUser } from '@/lib/auth';
@@ -67,6 +68,8 @@ export interface VersionFacts {
   newestSourceVersionNumber: number;
   hInfinityErrorRelative: number | null;
   acceptancePassed: boolean | null;
+  /** the stored acceptance verdict (lib/acceptance.ts); null when the recipe set no band */
+  acceptance: StoredAcceptance | null;
 }
 
 export interface PinSpec {
@@ -229,6 +232,7 @@ interface FactsRow {
   newest_source_number: number;
   h_infinity_error_relative: number | null;
   acceptance_passed: boolean | null;
+  acceptance_record: Record<string, unknown> | null;
 }
 
 /**
@@ -264,6 +268,7 @@ export async function loadVersionFacts(
       trx.raw(`CASE WHEN jsonb_typeof(ar.figures->'hInfinityErrorRelative') = 'number'
                     THEN (ar.figures->>'hInfinityErrorRelative')::float8 END AS h_infinity_error_relative`),
       'ar.acceptance_passed',
+      trx.raw(`ar.figures->'acceptance' AS acceptance_record`),
     );
   const rows = await preparedRows<FactsRow>(query, trx);
   for (const r of rows) {
@@ -281,6 +286,7 @@ export async function loadVersionFacts(
       newestSourceVersionNumber: Number(r.newest_source_number),
       hInfinityErrorRelative: r.h_infinity_error_relative,
       acceptancePassed: r.acceptance_passed,
+      acceptance: storedAcceptance(r.acceptance_record ? { acceptance: r.acceptance_record } : null, r.acceptance_passed),
     };
     const list = byModel.get(r.reduced_model_id) ?? [];
     list.push(facts);

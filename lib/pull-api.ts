@@ -228,6 +228,8 @@ export function pinsBody(caller: PullCaller, pins: ResolvedPin[]) {
               sourceVersion: v.sourceVersionNumber,
               hInfinityErrorRelative: v.hInfinityErrorRelative,
               acceptancePassed: v.acceptancePassed,
+              // The worker's stored verdict (lib/acceptance.ts): pass, fail or not-checked; null without a band.
+              acceptance: v.acceptance ? v.acceptance.status : null,
             }
           : null,
         flags: { retired: pin.resolution.retired, upstreamChanged: pin.resolution.upstreamChanged, unresolved: v === null },

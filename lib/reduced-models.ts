@@ -10,6 +10,7 @@ import type { Knex } from 'knex';
 import { z } from 'zod';
 import { db } from '@/lib/db';
 import { recordAudit } from '@/lib/audit';
+import { storedAcceptance, type StoredAcceptance } from '@/lib/acceptance';
 import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
 import { matricesSha256 } from '@/lib/checksums';
@@ -424,6 +425,8 @@ export interface ReducedModelListRow {
   method: string;
   hInfinityErrorRelative: number | null;
   acceptancePassed: boolean | null;
+  /** the latest version's stored acceptance verdict (lib/acceptance.ts); null when its recipe set no band */
+  acceptance: StoredAcceptance | null;
   author: string;
   updatedAt: string;
 }
@@ -433,7 +436,7 @@ export async function listReducedModels(): Promise<ReducedModelListRow[]> {
     SELECT rm.id, rm.name, rm.slug, sm.name AS source_name, sm.slug AS source_slug,
            l.number, l.status, l."order", r.method, l.created_at, u.name AS author,
            CASE WHEN jsonb_typeof(ar.figures->'hInfinityErrorRelative') = 'number' THEN (ar.figures->>'hInfinityErrorRelative')::float8 END AS rel,
-           ar.acceptance_passed
+           ar.acceptance_passed, ar.figures->'acceptance' AS acceptance_record
     FROM reduced_models rm
     JOIN source_models sm ON sm.id = rm.source_model_id
     JOIN LATERAL (SELECT * FROM reduced_versions rv WHERE rv.reduced_model_id = rm.id ORDER BY rv.number DESC LIMIT 1) l ON TRUE
@@ -452,6 +455,7 @@ export async function listReducedModels(): Promise<ReducedModelListRow[]> {
     method: r.method as string,
     hInfinityErrorRelative: (r.rel as number | null) ?? null,
     acceptancePassed: (r.acceptance_passed as boolean | null) ?? null,
+    acceptance: storedAcceptance(r.acceptance_record ? { acceptance: r.acceptance_record } : null, (r.acceptance_passed as boolean | null) ?? null),
     author: r.author as string,
     updatedAt: new Date(r.created_at as string).toISOString(),
   }));
@@ -476,6 +480,8 @@ export interface ReducedVersionSummary {
   hInfinityErrorRelative: number | null;
   errorBound: number | null;
   acceptancePassed: boolean | null;
+  /** the stored acceptance verdict (lib/acceptance.ts); null when the recipe set no band */
+  acceptance: StoredAcceptance | null;
   author: string;
   createdAt: string;
 }
@@ -515,6 +521,7 @@ export async function getReducedModel(slug: string): Promise<{ model: ReducedMod
         hInfinityErrorRelative: figures.hInfinityErrorRelative ?? null,
         errorBound: figures.errorBound ?? null,
         acceptancePassed: (v.acceptance_passed as boolean | null) ?? null,
+        acceptance: v.figures ? storedAcceptance(v.figures, (v.acceptance_passed as boolean | null) ?? null) : null,
         author: v.author as string,
         createdAt: new Date(v.created_at as string).toISOString(),
       };
@@ -640,3 +647,4 @@ export async function requestInputResponse(request: Request, user: SessionUser):
 export function signalPathOf(payload: Record<string, unknown>): { storageKey: string; name: string } {
   return { storageKey: String(payload.signalStorageKey), name: String(payload.signalName ?? 'signal.csv') };
 }
+

@@ -12,6 +12,7 @@ import { z } from 'zod';
 import { db } from '@/lib/db';
 import { appUrl } from '@/lib/config';
 import { recordAudit } from '@/lib/audit';
+import { storedAcceptance, type AcceptanceStatus, type StoredAcceptance } from '@/lib/acceptance';
 import { ApiError, notFound } from '@/lib/http';
 import type { Role } from '@/lib/roles';
 import {
@@ -94,7 +95,7 @@ export interface VersionSummary {
   matricesSha256: string;
   inputChecksum: string;
   engineVersion: string;
-  source: { modelId: string; modelName: string; modelSlug: string; versionId: string; number: number; checksum: string };
+  source: { modelId: string; modelName: string; modelSlug: string; versionId: string; number: number; checksum: string; timeUnit: string };
   newestSourceNumber: number;
   newestSourceVersionId: string;
   /** A newer version of the source model exists than the one this was reduced from. */
@@ -104,6 +105,8 @@ export interface VersionSummary {
   approval: { by: PersonRef; at: string; figures: ApprovalSnapshot } | null;
   retirement: { by: PersonRef; at: string; reason: string } | null;
   accuracy: { figures: Record<string, unknown>; acceptancePassed: boolean | null } | null;
+  /** the report's stored acceptance verdict (lib/acceptance.ts); null when the recipe set no band */
+  acceptance: StoredAcceptance | null;
 }
 
 /** What the approver saw: the accuracy report's figures and the matrices' digest at that moment. */
@@ -152,6 +155,7 @@ function summaryQuery(trx: Knex | Knex.Transaction) {
       'sm.id as sm_id',
       'sm.name as sm_name',
       'sm.slug as sm_slug',
+      'sm.time_unit as sm_time_unit',
       'sv.id as sv_id',
       'sv.number as sv_number',
       'sv.checksum as sv_checksum',
@@ -198,6 +202,7 @@ function toSummary(r: SummaryRow): VersionSummary {
       versionId: r.sv_id,
       number: r.sv_number,
       checksum: r.sv_checksum,
+      timeUnit: r.sm_time_unit || 's',
     },
     newestSourceNumber: r.newest_source_number,
     newestSourceVersionId: r.newest_source_version_id,
@@ -217,6 +222,7 @@ function toSummary(r: SummaryRow): VersionSummary {
       ? { by: { id: r.retirer_id, name: r.retirer_name }, at: iso(r.retired_at)!, reason: r.retired_reason }
       : null,
     accuracy: r.ar_figures ? { figures: r.ar_figures, acceptancePassed: r.ar_acceptance_passed } : null,
+    acceptance: r.ar_figures ? storedAcceptance(r.ar_figures, r.ar_acceptance_passed) : null,
   };
 }
 
@@ -322,6 +328,8 @@ export interface QueueEntry {
   hInfinityErrorRelative: number | null;
   errorBound: number | null;
   acceptancePassed: boolean | null;
+  /** the stored verdict: pass, fail or not-checked; null when the recipe set no band */
+  acceptance: AcceptanceStatus | null;
   upstreamChanged: boolean;
   newestSourceNumber: number;
   note: string | null;
@@ -355,6 +363,7 @@ export async function reviewQueue(viewer: Actor): Promise<QueueEntry[]> {
       hInfinityErrorRelative: numberOrNull(figures.hInfinityErrorRelative),
       errorBound: numberOrNull(figures.errorBound),
       acceptancePassed: s.accuracy?.acceptancePassed ?? null,
+      acceptance: s.acceptance?.status ?? null,
       upstreamChanged: s.upstreamChanged,
       newestSourceNumber: s.newestSourceNumber,
       note: notes.get(s.id) ?? null,

@@ -18,7 +18,8 @@ import { releaseFiles, storeFile, type StoredFile } from '@/lib/uploads/store';
 import { validateInChildProcess } from '@/lib/engine-tasks/validate-process';
 import { FILE_ROLES, type FileRole, type ModelFile, type SourceFormat, type StoredModelFile } from '@/lib/engine-tasks/model-files';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
-import { keptPolesOf, modalOrderFigures, statesInBand } from '@/lib/engine-tasks/order-figures';
+import { keptPolesOf, modalOrderFigures } from '@/lib/engine-tasks/order-figures';
+import { statesInBand } from '@/reduction/mode-ranking';
 import { createJob, dispatchJob, latestJobFor, toJobView, type JobView } from '@/lib/jobs/jobs';
 
 // ---------------------------------------------------------------------------------------------------

@@ -3,8 +3,8 @@
  * stiffness ratio, DC gain, H2 and H∞ norms, Hankel singular values of the stable part and the modal
  * dominance ranking.
  *
- * Modal data of a pole λ (e.g. Ogata, "Modern Control Engineering", 5th ed. 2010, ch. 5):
- * natural frequency ωn = |λ|, damping ratio ζ = −Re λ / |λ|, time constant τ = −1/Re λ (stable poles).
+ * Modal data of a pole λ (natural frequency, damping ratio, time constant) and the stable / marginal /
+ * unstable classification: `poles.ts`, one rule shared with the pages.
  * Stiffness ratio: the fastest over the slowest decay rate among the stable poles,
  * max|Re λ| / min|Re λ| (Lambert, "Numerical Methods for Ordinary Differential Systems", Wiley 1991,
  * ch. 6). DC gain G(0) = D − C A⁻¹ B, not defined with a pole at s = 0 (integrator or rigid-body mode).
@@ -27,6 +27,7 @@ import { balancedCertificate, DEFAULT_RANK_TOLERANCE, type BalancedRealization }
 import { PreparationCache } from './preparation';
 import { rankedModalForm, isReliableModalForm, type Mode } from './modal';
 import { stepLimitsFromPoles, type StepLimits } from './step-limits';
+import { modalFigures } from './poles';
 
 export interface PoleData {
   readonly re: number;
@@ -35,7 +36,7 @@ export interface PoleData {
   readonly naturalFrequency: number;
   /** −Re λ/|λ|; null for λ = 0. */
   readonly dampingRatio: number | null;
-  /** −1/Re λ for stable poles, null otherwise. */
+  /** 1/|Re λ|: decay time of a stable pole, e-folding growth time of an unstable one; null for a marginal pole. */
   readonly timeConstant: number | null;
   readonly stability: PoleStability;
 }
@@ -92,15 +93,8 @@ export function poleData(classification: PoleClassification): PoleData[] {
   return stability.map((s, i) => {
     const re = poles.re[i];
     const im = poles.im[i];
-    const mag = Math.hypot(re, im);
-    return {
-      re,
-      im,
-      naturalFrequency: mag,
-      dampingRatio: mag > 0 ? -re / mag : null,
-      timeConstant: s === 'stable' ? -1 / re : null,
-      stability: s,
-    };
+    const { naturalFrequency, dampingRatio, timeConstant } = modalFigures(re, im, s);
+    return { re, im, naturalFrequency, dampingRatio, timeConstant, stability: s };
   });
 }
 

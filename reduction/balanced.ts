@@ -31,13 +31,10 @@ import { type Matrix, zeros, matmul, transpose, svd, solve, block, sub } from '.
 import type { StateSpaceModel } from './model';
 import { gramianFactors } from './gramians';
 import { leadingStates, stackColumns } from './realization';
+import { balancedErrorBound, DEFAULT_RANK_TOLERANCE, numericalOrder } from './hankel-figures';
 
-/**
- * Relative rank tolerance on Σ: singular values ≤ tol·σ₁ are treated as zero (numerically uncontrollable
- * or unobservable directions). Common practice: a small multiple of the accuracy a square-root method
- * delivers for σ₁, well above ε so that Σ^(−½) stays below about 10⁶·σ₁^(−½).
- */
-export const DEFAULT_RANK_TOLERANCE = 1e-12;
+/** The rank tolerance, the numerical order and the bound are pure rules shared with the pages (hankel-figures.ts). */
+export { DEFAULT_RANK_TOLERANCE, balancedErrorBound };
 
 export interface BalancedRealization {
   /** All Hankel singular values of the stable model, descending (length n); those past its numerical rank are at rounding level or 0. */
@@ -77,9 +74,7 @@ export function balancedRealization(
   const { U, s, V } = svd(matmul(transpose(Lo), Lc));
   const hsv = new Float64Array(n);
   hsv.set(s.subarray(0, Math.min(n, s.length)));
-  const tol = (options.rankTolerance ?? DEFAULT_RANK_TOLERANCE) * s[0];
-  let k = 0;
-  while (k < s.length && s[k] > tol) k++;
+  const k = numericalOrder(s, options.rankTolerance ?? DEFAULT_RANK_TOLERANCE);
   const invSqrt = new Float64Array(k);
   for (let i = 0; i < k; i++) invSqrt[i] = 1 / Math.sqrt(s[i]);
   const T = matmul(Lc, scaleColumns(block(V, 0, V.rows, 0, k), invSqrt));
@@ -103,13 +98,6 @@ export function hankelSingularValues(stable: StateSpaceModel): Float64Array {
   const s = svd(matmul(transpose(Lo), Lc)).s;
   hsv.set(s.subarray(0, Math.min(n, s.length)));
   return hsv;
-}
-
-/** 2 Σ_{i>r} σ_i (Enns 1984; Glover 1984). */
-export function balancedErrorBound(hankel: ArrayLike<number>, r: number): number {
-  let tail = 0;
-  for (let i = hankel.length - 1; i >= r; i--) tail += hankel[i];
-  return 2 * tail;
 }
 
 /**

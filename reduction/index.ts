@@ -74,26 +74,37 @@ export {
 export {
   hankelSingularValues,
   balancedRealization,
-  balancedErrorBound,
-  DEFAULT_RANK_TOLERANCE,
   type BalancedRealization,
 } from './balanced';
-export { modalForm, rankedModalForm, modeComparator, type Mode, type ModalForm, type ModalSelection, type RankedModeFacts } from './modal';
+export { balancedErrorBound, balancedErrorBounds, numericalOrder, roundingFloor, DEFAULT_RANK_TOLERANCE } from './hankel-figures';
+export { modalForm, rankedModalForm, type Mode, type ModalForm } from './modal';
+export { modeComparator, rankStoredModes, statesInBand, type ModalSelection, type RankedModeFacts, type StoredMode } from './mode-ranking';
 export {
   irka,
   logSpacedShifts,
+  slowestPoleShifts,
   DEFAULT_IRKA_TOLERANCE,
   DEFAULT_IRKA_MAX_ITERATIONS,
   type IrkaOptions,
   type IrkaReport,
   type IrkaResult,
   type IrkaStep,
+  type InitialShiftRule,
   type InterpolationPoint,
   type Shift as IrkaShift,
 } from './irka';
 export { chooseOrder, type OrderRule, type OrderChoice } from './order';
+export { acceptanceVerdict, checkAcceptanceBand, type AcceptanceBand, type AcceptanceStatus, type AcceptanceVerdict } from './acceptance';
 export { errorSystem } from './realization';
 
-export { stepLimits, stepLimitsFromPoles, realTimeReadiness, type StepLimit, type StepLimits, type RealTimeReadiness } from './step-limits';
+export {
+  stepLimits,
+  stepLimitsFromPoles,
+  realTimeReadiness,
+  explicitStabilitySteps,
+  type StepLimit,
+  type StepLimits,
+  type RealTimeReadiness,
+} from './step-limits';
 export { discretizeZoh, discretePoles, type DiscreteModel } from './discretize';
 export * from './simulate/index';

@@ -22,6 +22,8 @@ import { type Matrix, zeros, eig, inverse, matmul, frobeniusNorm, norm1 } from '
 import { ModelError } from './errors';
 import type { StateSpaceModel } from './model';
 import { selectColumns, selectRows } from './realization';
+import { modalFigures } from './poles';
+import { modeComparator, type ModalSelection } from './mode-ranking';
 
 /** Eigenvector condition above which modal truncation refuses (common practice: about 1/√ε·100). */
 export const MAX_EIGENVECTOR_CONDITION = 1e10;
@@ -58,11 +60,6 @@ export interface ModalForm {
   /** ‖AV − VΛ‖_F/(‖A‖_F‖V‖_F) of the computed eigenvectors (Λ in real block form). */
   readonly eigenvectorResidual: number;
 }
-
-export type ModalSelection =
-  | { readonly rule: 'dominance' }
-  | { readonly rule: 'slowest' }
-  | { readonly rule: 'band'; readonly band: readonly [number, number] };
 
 interface RawMode extends Mode {
   readonly columns: readonly number[];
@@ -107,8 +104,9 @@ export function modalForm(stable: StateSpaceModel): ModalForm {
   for (let j = 0; j < n; j++) {
     const re = values.re[j];
     const im = values.im[j];
-    const mag = Math.hypot(re, im);
-    const damping = mag > 0 ? -re / mag : 1;
+    // The stable part's poles are stable by construction (spectral-split.ts), so ωn > 0 and ζ is defined.
+    const { naturalFrequency: mag, dampingRatio } = modalFigures(re, im, 'stable');
+    const damping = dampingRatio ?? 1;
     if (im !== 0 && j + 1 < n) {
       // Real packed pair (j, j+1): columns Re v, Im v of the eigenvector of values[j].
       const c2 = colNorm2(Cm, j) + colNorm2(Cm, j + 1);
@@ -200,31 +198,6 @@ function assemble(
   };
 }
 
-/** What a selection rule looks at in a mode. */
-export interface RankedModeFacts {
-  readonly re: number;
-  readonly naturalFrequency: number;
-  readonly dominance: number;
-}
-
-/**
- * The order in which modal truncation keeps modes under a selection rule, as a comparator: by dominance
- * (largest first); slowest first (smallest |Re λ|, then dominance); or the modes whose natural frequency
- * lies in the band first, then by dominance. `facts` reads a mode of any record type (the order slider
- * ranks stored mode records by the same rule).
- */
-export function modeComparator<M>(selection: ModalSelection, facts: (m: M) => RankedModeFacts): (a: M, b: M) => number {
-  const byDominance = (a: M, b: M) => facts(b).dominance - facts(a).dominance;
-  if (selection.rule === 'dominance') return byDominance;
-  if (selection.rule === 'slowest') return (a, b) => Math.abs(facts(a).re) - Math.abs(facts(b).re) || byDominance(a, b);
-  const [lo, hi] = selection.band;
-  const inBand = (m: M) => {
-    const wn = facts(m).naturalFrequency;
-    return wn >= lo && wn <= hi;
-  };
-  return (a, b) => Number(inBand(b)) - Number(inBand(a)) || byDominance(a, b);
-}
-
 /** The modal form with modes sorted by a selection rule: the modes to keep first. */
 export function rankedModalForm(stable: StateSpaceModel, selection: ModalSelection = { rule: 'dominance' }): ModalForm {
   const form = modalForm(stable);
@@ -288,11 +261,4 @@ export function modalErrorBound(form: ModalForm, r: number): number {
     states += m.states;
   }
   return bound;
-}
-
-/** Number of states of the modes inside [lo, hi] rad per time unit (the band rule's default order). */
-export function statesInBand(modes: readonly Mode[], band: readonly [number, number]): number {
-  return modes
-    .filter((m) => m.naturalFrequency >= band[0] && m.naturalFrequency <= band[1])
-    .reduce((s, m) => s + m.states, 0);
 }

@@ -42,11 +42,10 @@ import {
   requireDiagonalizable,
   modalCutPoints,
   modalErrorBound,
-  statesInBand,
   type ModalForm,
-  type ModalSelection,
   type Mode,
 } from './modal';
+import { statesInBand, type ModalSelection } from './mode-ranking';
 import { irka, type IrkaOptions, type IrkaReport, type IrkaResult } from './irka';
 import { chooseOrder, type OrderChoice, type OrderRule, type OrderSpace } from './order';
 import { hInfinityNorm, h2Norm, type HInfinityResult, type NormValue } from './norms';

@@ -34,16 +34,11 @@ import {
 import type { StateSpaceModel } from './model';
 import { ModelError } from './errors';
 import { stackColumns } from './realization';
+import { classifyPoles, DEFAULT_STABILITY_TOLERANCE, type PoleClassification as GenericPoleClassification } from './poles';
 
-/**
- * Relative tolerance for "marginal": a pole with Re λ ≥ −tol·scale (scale = spectral radius) counts as
- * marginal. The default sits above √ε ≈ 1.5e-8 because rounding spreads the two eigenvalues of a defective
- * double pole at 0 by about √(ε‖A‖) (an eigenvalue of a k×k Jordan block moves by ε^(1/k) under a perturbation ε:
- * Wilkinson, "The Algebraic Eigenvalue Problem", 1965, ch. 2), and both must land on the same side.
- */
-export const DEFAULT_STABILITY_TOLERANCE = 1e-7;
-
-export type PoleStability = 'stable' | 'marginal' | 'unstable';
+/** Pole classification and its tolerance live in poles.ts (one rule for the engine and the pages). */
+export { classifyPoles, DEFAULT_STABILITY_TOLERANCE, type PoleStability } from './poles';
+export type PoleClassification = GenericPoleClassification<ComplexVector>;
 
 /** A relative tolerance option: a number in [0, 1), or the default when absent (throws ModelError on `field`). */
 export function relativeToleranceOption(value: number | undefined, fallback: number, field: string): number {
@@ -52,28 +47,6 @@ export function relativeToleranceOption(value: number | undefined, fallback: num
     throw new ModelError('invalid_option', field, `${field} must be a relative tolerance in [0, 1), got ${value}`);
   }
   return value;
-}
-
-export interface PoleClassification {
-  readonly poles: ComplexVector;
-  readonly stability: readonly PoleStability[];
-  /** The spectral radius used to make the tolerance relative (1 when every pole is 0). */
-  readonly scale: number;
-  readonly tolerance: number;
-}
-
-/** Classify precomputed poles: stable Re λ < −t, marginal |Re λ| ≤ t, unstable Re λ > t, t = tol·scale. */
-export function classifyPoles(poles: ComplexVector, tolerance = DEFAULT_STABILITY_TOLERANCE): PoleClassification {
-  let radius = 0;
-  for (let i = 0; i < poles.re.length; i++) radius = Math.max(radius, Math.hypot(poles.re[i], poles.im[i]));
-  const scale = radius > 0 ? radius : 1;
-  const t = tolerance * scale;
-  const stability: PoleStability[] = [];
-  for (let i = 0; i < poles.re.length; i++) {
-    const re = poles.re[i];
-    stability.push(re < -t ? 'stable' : re > t ? 'unstable' : 'marginal');
-  }
-  return { poles, stability, scale, tolerance };
 }
 
 export function modelPoles(A: Matrix): ComplexVector {

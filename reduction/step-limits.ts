@@ -21,6 +21,23 @@ import { discretizeZoh, discretePoles, type DiscreteModel } from './discretize';
 import { eigenvalues } from './linalg/index';
 import type { StateSpaceModel } from './model';
 
+/**
+ * Dormand–Prince 5(4), the adaptive explicit solver (simulate/dormand-prince.ts), is stable along the
+ * negative real axis for |hλ| up to about 3.3 (E. Hairer & G. Wanner, "Solving Ordinary Differential
+ * Equations II", 2nd ed., Springer 1996, §IV.2, the stability region of DOPRI5; the value is read from its
+ * figure, so "about").
+ */
+export const DORMAND_PRINCE_STABILITY_RADIUS = 3.3;
+
+/**
+ * Steps an explicit solver needs over `duration` for stability alone when the fastest pole has modulus
+ * (or decay rate) `fastestRate`: duration·rate/3.3. On a stiff model this, not the accuracy asked for,
+ * sets the step count (common practice).
+ */
+export function explicitStabilitySteps(fastestRate: number, duration: number): number {
+  return (fastestRate * duration) / DORMAND_PRINCE_STABILITY_RADIUS;
+}
+
 export interface StepLimit {
   /** Largest stable fixed step (Infinity when no pole limits it, 0 when no step is stable). */
   maxStep: number;

@@ -1,12 +1,14 @@
 'use client';
 /**
- * Error magnitude against its a-priori bound over frequency, with the acceptance band and its verdict.
- * The verdict is also written in the page text (not only on the canvas) so it can be read aloud and found.
+ * Error magnitude against its a-priori bound over frequency, with the acceptance band and its stored
+ * verdict (decided by the worker; lib/acceptance.ts). The verdict's sentence is written once, inside the
+ * chart's frame in the row the option leaves free above the plot area, as page text (not canvas), so it
+ * wraps instead of being clipped, can be read aloud and found.
  */
-import { useMemo } from 'react';
-import { acceptanceVerdict } from './acceptance';
+import { acceptanceSentence } from '@/lib/acceptance';
 import { EChart, useBuiltOption } from './EChart';
 import { buildErrorBoundOption, type ErrorBoundChartData } from './error-bound-option';
+import { plotGrid } from './chart-base';
 import { VERDICT_COLORS } from './theme';
 import { useChartTheme } from './useChartTheme';
 
@@ -14,6 +16,9 @@ export interface ErrorBoundChartProps extends ErrorBoundChartData {
   readonly height?: number | string;
   readonly title?: string;
 }
+
+/** The plot area's left and right margins (chart-base.ts), so the sentence lines up with the plot. */
+const MARGINS = plotGrid({ top: 0 });
 
 export function ErrorBoundChart({
   frequencies,
@@ -31,20 +36,24 @@ export function ErrorBoundChart({
     () => buildErrorBoundOption({ frequencies, error, bound, boundLabel, errorLabel, acceptance, timeUnit }, theme),
     [frequencies, error, bound, boundLabel, errorLabel, acceptance, timeUnit, theme],
   );
-  const verdict = useMemo(() => {
-    if (!acceptance || built.problem !== null) return null;
-    return acceptanceVerdict(frequencies, error, acceptance, timeUnit);
-  }, [frequencies, error, acceptance, timeUnit, built.problem]);
-  const color = verdict ? (verdict.status === 'pass' ? VERDICT_COLORS.pass : verdict.status === 'fail' ? VERDICT_COLORS.fail : VERDICT_COLORS.notCovered) : undefined;
+  const verdict = acceptance && built.problem === null ? acceptance : null;
   return (
     <figure className="panel p-4">
       <figcaption className="mb-2 text-sm font-medium">{title}</figcaption>
-      {verdict ? (
-        <p role="status" data-testid="acceptance-verdict" data-status={verdict.status} className="num mb-2 text-sm font-semibold" style={{ color }}>
-          {verdict.text}
-        </p>
-      ) : null}
-      <EChart built={built} height={height} testId="error-bound-chart" />
+      <div className="relative">
+        <EChart built={built} height={height} testId="error-bound-chart" />
+        {verdict ? (
+          <p
+            role="status"
+            data-testid="acceptance-verdict"
+            data-status={verdict.status}
+            className="num absolute text-xs font-semibold leading-4"
+            style={{ color: VERDICT_COLORS[verdict.status], left: MARGINS.left, right: MARGINS.right, top: 24 }}
+          >
+            {acceptanceSentence(verdict, timeUnit)}
+          </p>
+        ) : null}
+      </div>
     </figure>
   );
 }

@@ -7,7 +7,7 @@
  * Full model solid graphite, reduced model dashed teal (theme.ts).
  */
 import { axisInk, baseOption, plotGrid, escapeHtml, legendBox, tooltipBox } from './chart-base';
-import { formatDecibel, formatDegrees, formatFrequency, formatNumber, frequencyUnit } from './format';
+import { formatDecibel, formatDegrees, formatFrequency, formatNumber, frequencyUnit } from '@/lib/format';
 import { alignPhase, checkComplexSamples, magnitude, magnitudeDb, phaseDegrees, type ComplexSamples } from './frequency-data';
 import type { ChartOption, LineSeriesOption } from './option-types';
 import { ChartDataError, decadeRange, requireGrid, requireNonNegative, requireSameLength } from './series-checks';

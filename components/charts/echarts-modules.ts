@@ -7,6 +7,7 @@ import { LineChart, ScatterChart } from 'echarts/charts';
 import {
   AriaComponent,
   DataZoomInsideComponent,
+  DataZoomSliderComponent,
   GridComponent,
   LegendComponent,
   MarkAreaComponent,
@@ -21,6 +22,7 @@ export const CHART_MODULES = [
   ScatterChart,
   AriaComponent,
   DataZoomInsideComponent,
+  DataZoomSliderComponent,
   GridComponent,
   LegendComponent,
   MarkAreaComponent,

@@ -2,12 +2,14 @@
  * Option builder for the error against its bound: the error magnitude |G - Gr|(jω) (or σmax of the error
  * system for MIMO) over a log frequency axis, under the a-priori bound drawn as a line with the admissible
  * region below it shaded. An acceptance band, when set, is drawn as a dashed rectangle from the axis floor
- * to its maximum error over its frequency range, and the verdict of `acceptanceVerdict` is written as the
- * chart title in words (PASS / FAIL / NOT CHECKED); its colour only repeats the word.
+ * to its maximum error over its frequency range, coloured by the stored verdict (decided by the worker,
+ * lib/acceptance.ts; never recomputed here), with a pin on the worst error when it failed. The verdict's
+ * sentence is written once, by ErrorBoundChart, inside the chart's frame above the plot area: `grid.top`
+ * leaves that row free.
  */
-import { acceptanceVerdict, type AcceptanceBand } from './acceptance';
+import type { StoredAcceptance } from '@/lib/acceptance';
 import { axisInk, baseOption, plotGrid, escapeHtml, legendBox, tooltipBox } from './chart-base';
-import { formatFrequency, formatNumber, frequencyUnit } from './format';
+import { formatFrequency, formatNumber, frequencyUnit } from '@/lib/format';
 import type { ChartOption, LineSeriesOption } from './option-types';
 import { ChartDataError, decadeRange, requireGrid, requireNonNegative, requireSameLength } from './series-checks';
 import { BOUND_LINE, DEFAULT_CHART_THEME, INK, OKABE_ITO, VERDICT_COLORS, type ChartTheme } from './theme';
@@ -20,7 +22,8 @@ export interface ErrorBoundChartData {
   readonly bound?: number | readonly number[];
   readonly boundLabel?: string;
   readonly errorLabel?: string;
-  readonly acceptance?: AcceptanceBand;
+  /** the stored verdict of the recipe's acceptance band, with the band itself */
+  readonly acceptance?: StoredAcceptance;
   readonly timeUnit?: string;
 }
 
@@ -28,6 +31,16 @@ const CHART = 'ErrorBoundChart';
 export const DEFAULT_ERROR_LABEL = '|G - Gr|';
 export const DEFAULT_BOUND_LABEL = 'a-priori bound';
 export const ACCEPTANCE_LABEL = 'acceptance band';
+/** Top of the plot area: the legend, then a row for the verdict's sentence when a band is set (pixels). */
+export const PLOT_TOP = 40;
+export const PLOT_TOP_WITH_VERDICT = 72;
+
+/** The band of a stored verdict, when the report kept it. */
+function bandOf(v: StoredAcceptance | undefined): { minFrequency: number; maxFrequency: number; maxError: number } | null {
+  return v && v.minFrequency !== null && v.maxFrequency !== null && v.maxError !== null && v.minFrequency > 0
+    ? { minFrequency: v.minFrequency, maxFrequency: v.maxFrequency, maxError: v.maxError }
+    : null;
+}
 
 export function buildErrorBoundOption(
   data: ErrorBoundChartData,
@@ -51,13 +64,14 @@ export function buildErrorBoundOption(
     requireNonNegative(CHART, 'bound', data.bound);
     boundValues = [...data.bound];
   }
-  const verdict = data.acceptance ? acceptanceVerdict(w, data.error, data.acceptance, timeUnit) : undefined;
+  const verdict = data.acceptance;
+  const band = bandOf(verdict);
 
-  const yRange = decadeRange([...data.error, ...(boundValues ?? []), ...(data.acceptance ? [data.acceptance.maxError] : [])]) ?? {
+  const yRange = decadeRange([...data.error, ...(boundValues ?? []), ...(band ? [band.maxError] : [])]) ?? {
     min: 1e-6,
     max: 1,
   };
-  const xRange = decadeRange([...w, ...(data.acceptance ? [data.acceptance.minFrequency, data.acceptance.maxFrequency] : [])])!;
+  const xRange = decadeRange([...w, ...(band ? [band.minFrequency, band.maxFrequency] : [])])!;
   const ink = axisInk(theme);
 
   const series: LineSeriesOption[] = [];
@@ -94,9 +108,9 @@ export function buildErrorBoundOption(
     sampling: 'lttb',
     z: 3,
   };
-  if (data.acceptance && verdict) {
-    const a = data.acceptance;
-    const color = verdict.status === 'pass' ? VERDICT_COLORS.pass : verdict.status === 'fail' ? VERDICT_COLORS.fail : VERDICT_COLORS.notCovered;
+  if (verdict && band) {
+    const a = band;
+    const color = VERDICT_COLORS[verdict.status];
     errorSeries.markArea = {
       silent: true,
       itemStyle: { color: 'rgba(0, 0, 0, 0)', borderColor: color, borderWidth: 1.5, borderType: 'dashed' },
@@ -116,22 +130,10 @@ export function buildErrorBoundOption(
   }
   series.push(errorSeries);
 
-  const verdictColor =
-    verdict?.status === 'pass' ? VERDICT_COLORS.pass : verdict?.status === 'fail' ? VERDICT_COLORS.fail : VERDICT_COLORS.notCovered;
   return {
-    ...baseOption(theme, `Error magnitude over frequency against its bound.${verdict ? ' ' + verdict.text : ''}`),
-    ...(verdict
-      ? {
-          title: {
-            text: verdict.text,
-            left: 80,
-            top: 22,
-            textStyle: { color: verdictColor, fontFamily: theme.fontMono, fontSize: 12, fontWeight: 'bold' as const },
-          },
-        }
-      : {}),
+    ...baseOption(theme, 'Error magnitude over frequency against its bound.'),
     legend: legendBox(theme),
-    grid: plotGrid({ top: verdict ? 56 : 40, bottom: 52 }),
+    grid: plotGrid({ top: verdict ? PLOT_TOP_WITH_VERDICT : PLOT_TOP, bottom: 52 }),
     tooltip: {
       ...tooltipBox(theme),
       trigger: 'axis',

@@ -1,19 +1,17 @@
 /**
  * Figures derived from a list of Hankel singular values σ1 ≥ σ2 ≥ … ≥ σn ≥ 0 of the stable part.
  *
- * Error bound of balanced truncation (and of balanced residualization) at order r:
- *   ‖G - Gr‖∞ ≤ 2 Σ_{i=r+1..n} σi
- * (D. Enns, "Model reduction with balanced realizations: an error bound and a frequency weighted
- * generalization", IEEE CDC 1984; K. Glover, "All optimal Hankel-norm approximations of linear
- * multivariable systems and their L∞-error bounds", Int. J. Control 39(6), 1984; cited from memory). Glover's
- * statement counts each distinct σ once; summing every entry, as here, gives a bound at least as large, so
- * it stays valid. Pages should prefer the bound the engine stores and pass it in.
+ * Error bound of balanced truncation (and of balanced residualization) at order r, 2 Σ_{i=r+1..n} σi: the
+ * engine's rule (reduction/hankel-figures.ts, with its sources). Glover's statement counts each distinct σ
+ * once; summing every entry, as there, gives a bound at least as large, so it stays valid. Pages should
+ * prefer the bound the engine stores and pass it in.
  *
  * Cumulative energy at order k: Σ_{i≤k} σi² / Σ σi² by default. Σ σi² = trace(P Q) is the squared
  * Hilbert–Schmidt norm of the Hankel operator (A. C. Antoulas, "Approximation of Large-Scale Dynamical
  * Systems", SIAM 2005, ch. 5; cited from memory), so this is the share of that norm the first k states
  * carry. `'linear'` gives Σσi / Σσ instead, the complement of the bound relative to its value at r = 0.
  */
+import { balancedErrorBounds } from '@/reduction/hankel-figures';
 import { ChartDataError, requireNonNegative } from './series-checks';
 
 export type EnergyMeasure = 'squared' | 'linear';
@@ -27,18 +25,10 @@ export function checkHankelSingularValues(chart: string, hsv: readonly number[])
   }
 }
 
-/** bound[r] = 2 Σ_{i>r} σi for r = 0..n (bound[n] = 0), summed from the smallest up for accuracy. */
+/** bound[r] = 2 Σ_{i>r} σi for r = 0..n (bound[n] = 0): the engine's rule (reduction/hankel-figures.ts), on checked input. */
 export function balancedTruncationBound(hsv: readonly number[]): number[] {
   checkHankelSingularValues('balancedTruncationBound', hsv);
-  const n = hsv.length;
-  const bound = new Array<number>(n + 1);
-  let tail = 0;
-  bound[n] = 0;
-  for (let r = n - 1; r >= 0; r--) {
-    tail += hsv[r];
-    bound[r] = 2 * tail;
-  }
-  return bound;
+  return balancedErrorBounds(hsv);
 }
 
 /** energy[k-1] = percentage of the total carried by σ1..σk, k = 1..n. All-zero input gives 100 %. */

@@ -4,11 +4,20 @@
  * in % on a second axis. The chosen order r is a vertical marker; with σi plotted at i and the bound at r,
  * the bound at the marker is twice the sum of the values to its right.
  *
+ * A large model has hundreds of values, most of them at rounding level (down to 1e-17·σ1), which would
+ * squeeze the few that matter into the left edge. The chart therefore opens on the meaningful values: those
+ * above the engine's rank tolerance σ1·1e-12 (reduction/hankel-figures.ts, numericalOrder), at most the
+ * first OPENING_MAX_VALUES, always including the chosen order; a slider and the mouse wheel (dataZoom) show
+ * the rest. The log axis reaches down to the smallest value in that view, or to the rounding floor σ1·n·ε
+ * (common practice; reduction/hankel-figures.ts, roundingFloor), which is shaded and labelled: values
+ * under it cannot be told from the rounding of the computation that produced them.
+ *
  * Index and order here count states of the stable part only; the page adds the unstable and marginal
  * states it keeps exactly.
  */
+import { numericalOrder, roundingFloor } from '@/reduction/hankel-figures';
 import { axisInk, baseOption, plotGrid, emptyTitle, legendBox, tooltipBox } from './chart-base';
-import { formatNumber, formatPercent } from './format';
+import { formatNumber, formatPercent } from '@/lib/format';
 import { balancedTruncationBound, checkHankelSingularValues, cumulativeEnergy, type EnergyMeasure } from './hankel-data';
 import type { ChartOption, LineSeriesOption } from './option-types';
 import { ChartDataError, decadeRange, powerOfTen, requireNonNegative } from './series-checks';
@@ -28,8 +37,22 @@ export const HSV_SERIES = 'Hankel singular value σi';
 export const BOUND_SERIES = 'error bound 2Σσ(r+1..n)';
 export const ENERGY_SERIES = 'cumulative energy';
 
-/** Singular values below this fraction of σ1 are rounding noise; the log axis stops there (common practice). */
-const NOISE_FLOOR = 1e-16;
+export const FLOOR_LABEL = 'rounding floor σ1·n·ε';
+/** The opening view shows at most this many values (common practice for a readable index axis); zoom shows the rest. */
+export const OPENING_MAX_VALUES = 100;
+
+/**
+ * The last index the chart opens on: the meaningful values (above σ1·1e-12), at most OPENING_MAX_VALUES,
+ * and at least one past the chosen order so its marker and the next value show.
+ */
+export function openingView(hsv: readonly number[], order?: number): number {
+  const n = hsv.length;
+  let end = Math.min(Math.max(numericalOrder(hsv), 1), OPENING_MAX_VALUES);
+  if (order !== undefined) end = Math.max(end, order + 1);
+  return Math.min(end, n);
+}
+
+const decadeBelow = (v: number) => powerOfTen(Math.floor(Math.log10(v)));
 
 export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEFAULT_CHART_THEME): ChartOption {
   const hsv = data.hankelSingularValues;
@@ -51,8 +74,12 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
     return { ...base, title: emptyTitle(theme, 'No Hankel singular values (no stable, controllable and observable part)'), series: [] };
   }
   const energy = cumulativeEnergy(hsv, data.energyMeasure ?? 'squared');
-  const floor = hsv[0] * NOISE_FLOOR;
-  const range = decadeRange([...hsv, ...bound].filter((v) => v >= floor))!;
+  const end = openingView(hsv, data.order);
+  const floor = roundingFloor(hsv);
+  // The values in the opening view set the axis; below the rounding floor only the floor's decade is kept.
+  const inView = [...hsv.slice(0, end), ...bound.slice(0, end)].filter((v) => v > 0);
+  const range = decadeRange(inView)!;
+  const yMin = Math.max(range.min, decadeBelow(floor));
   const positive = (v: number) => (v > 0 ? v : null);
 
   const hsvSeries: LineSeriesOption = {
@@ -66,6 +93,12 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
     symbolSize: 5,
     showSymbol: n <= 200,
     connectNulls: false,
+  };
+  hsvSeries.markArea = {
+    silent: true,
+    itemStyle: { color: INK.rule, opacity: 1 },
+    label: { show: true, position: 'insideTopRight', formatter: `${FLOOR_LABEL} = ${formatNumber(floor)}`, color: INK.graphiteMuted, fontFamily: theme.fontMono, fontSize: 11 },
+    data: [[{ yAxis: yMin }, { yAxis: floor }]],
   };
   if (data.order !== undefined) {
     hsvSeries.markLine = {
@@ -105,7 +138,7 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
   return {
     ...base,
     legend: legendBox(theme),
-    grid: plotGrid({ right: 64, top: 40, bottom: 52 }),
+    grid: plotGrid({ right: 64, top: 40, bottom: 76 }),
     tooltip: {
       ...tooltipBox(theme),
       trigger: 'axis',
@@ -115,7 +148,21 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
         return hankelTooltipLines(at, hsv, bound, energy).join('<br/>');
       },
     },
-    dataZoom: [{ type: 'inside', xAxisIndex: 0, filterMode: 'none' }],
+    dataZoom: [
+      { type: 'inside', xAxisIndex: 0, filterMode: 'none', startValue: 0, endValue: end },
+      {
+        type: 'slider',
+        xAxisIndex: 0,
+        filterMode: 'none',
+        startValue: 0,
+        endValue: end,
+        height: 16,
+        bottom: 4,
+        showDetail: false,
+        borderColor: INK.rule,
+        textStyle: { color: INK.graphite, fontFamily: theme.fontMono, fontSize: 11 },
+      },
+    ],
     xAxis: {
       ...ink,
       type: 'value',
@@ -130,7 +177,7 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
       {
         ...ink,
         type: 'log',
-        min: Math.max(range.min, powerOfTen(Math.floor(Math.log10(floor)))),
+        min: yMin,
         max: range.max,
         name: 'σi and bound (gain)',
         nameGap: 52,

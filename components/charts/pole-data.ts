@@ -1,55 +1,8 @@
 /**
- * Modal figures of a pole as the pole map and the modes table show them. For λ = σ + jω:
- *   natural frequency ωn = |λ|, damping ratio ζ = -σ/|λ|, time constant τ = 1/|σ|
- * (the standard second-order parametrisation λ = -ζωn ± jωn√(1-ζ²); G. F. Franklin, J. D. Powell and
- * A. Emami-Naeini, "Feedback Control of Dynamic Systems", §3.3, cited from memory). For a growing pole
- * (σ > 0) τ is the e-folding growth time and `growing` is set; for σ = 0 it is infinite.
- *
- * The engine reports its own stable/marginal/unstable split; `classifyPoles` is only the fallback when a
- * page has poles without that split, and follows the same idea: a pole is marginal when |Re λ| is within
- * a relative tolerance of the spectral radius, because rounding in the eigenvalue solver scales with ‖A‖
- * (common practice).
+ * Axis helpers of the pole map. The modal figures of a pole and the stable / marginal / unstable rule with
+ * its tolerance are the engine's (reduction/poles.ts), shared with the worker and the modes table.
  */
-import { ChartDataError, powerOfTen, requireFinite, requireSameLength } from './series-checks';
-
-export type PoleStability = 'stable' | 'marginal' | 'unstable';
-
-export interface ModalFigures {
-  readonly naturalFrequency: number;
-  /** NaN for λ = 0, where damping is undefined */
-  readonly dampingRatio: number;
-  readonly timeConstant: number;
-  readonly growing: boolean;
-}
-
-export function modalFigures(re: number, im: number): ModalFigures {
-  const naturalFrequency = Math.hypot(re, im);
-  return {
-    naturalFrequency,
-    dampingRatio: naturalFrequency > 0 ? -re / naturalFrequency : NaN,
-    timeConstant: re === 0 ? Infinity : 1 / Math.abs(re),
-    growing: re > 0,
-  };
-}
-
-export const DEFAULT_STABILITY_TOLERANCE = 1e-9;
-
-export function classifyPoles(
-  re: readonly number[],
-  im: readonly number[],
-  relativeTolerance = DEFAULT_STABILITY_TOLERANCE,
-): PoleStability[] {
-  requireSameLength('classifyPoles', 're', re, 'im', im);
-  requireFinite('classifyPoles', 're', re);
-  requireFinite('classifyPoles', 'im', im);
-  if (!(relativeTolerance >= 0)) {
-    throw new ChartDataError('classifyPoles', 'relativeTolerance', `must be a non-negative number (got ${relativeTolerance})`);
-  }
-  let radius = 0;
-  for (let i = 0; i < re.length; i++) radius = Math.max(radius, Math.hypot(re[i], im[i]));
-  const threshold = relativeTolerance * radius;
-  return re.map((r) => (Math.abs(r) <= threshold ? 'marginal' : r < 0 ? 'stable' : 'unstable'));
-}
+import { powerOfTen } from './series-checks';
 
 /**
  * Symmetric-log transform for axes that span many decades on both sides of zero: linear inside

@@ -10,16 +10,10 @@
  * unstable), colour only repeats it; kept modes are filled, truncated ones hollow.
  */
 import { axisInk, baseOption, plotGrid, emptyTitle, escapeHtml, legendBox, tooltipBox } from './chart-base';
-import { formatComplex, formatFrequency, formatNumber, formatTime } from './format';
+import { formatComplex, formatFrequency, formatNumber, formatTime } from '@/lib/format';
 import type { ChartOption, ScatterSeriesOption } from './option-types';
-import {
-  classifyPoles,
-  modalFigures,
-  symlog,
-  symlogInverse,
-  symlogThreshold,
-  type PoleStability,
-} from './pole-data';
+import { symlog, symlogInverse, symlogThreshold } from './pole-data';
+import { classifyPoles, modalFigures, type PoleStability } from '@/reduction/poles';
 import { ChartDataError, requireFinite, requireSameLength } from './series-checks';
 import { DEFAULT_CHART_THEME, INK, STABILITY_STYLE, type ChartTheme } from './theme';
 
@@ -64,13 +58,12 @@ export function poleTooltipLines(
   kept: boolean | undefined,
   timeUnit = 's',
 ): string[] {
-  const m = modalFigures(re, im);
-  const tau =
-    m.timeConstant === Infinity ? '∞' : `${formatTime(m.timeConstant, timeUnit)}${m.growing ? ' (growth)' : ''}`;
+  const m = modalFigures(re, im, stability);
+  const tau = m.timeConstant === null ? '∞' : `${formatTime(m.timeConstant, timeUnit)}${m.growing ? ' (growth)' : ''}`;
   return [
     `λ = ${formatComplex(re, im)}`,
     `ωn = ${formatFrequency(m.naturalFrequency, timeUnit)}`,
-    `ζ = ${formatNumber(m.dampingRatio)}`,
+    `ζ = ${m.dampingRatio === null ? '—' : formatNumber(m.dampingRatio)}`,
     `τ = ${tau}`,
     poleSeriesName(stability, kept),
   ];
@@ -90,7 +83,7 @@ function checkData(data: PoleMapData): PoleStability[] {
     });
     return [...data.stability];
   }
-  return classifyPoles(data.re, data.im);
+  return [...classifyPoles({ re: data.re, im: data.im }).stability];
 }
 
 function symlogAxis(values: readonly number[], c: number) {

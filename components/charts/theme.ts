@@ -60,7 +60,7 @@ export function seriesColor(index: number): string {
 export const VERDICT_COLORS = {
   pass: OKABE_ITO.bluishGreen,
   fail: OKABE_ITO.vermillion,
-  notCovered: OKABE_ITO.orange,
+  'not-checked': OKABE_ITO.orange,
 } as const;
 
 /**

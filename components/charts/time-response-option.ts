@@ -4,7 +4,7 @@
  * log to see small errors across decades).
  */
 import { axisInk, baseOption, plotGrid, escapeHtml, legendBox, tooltipBox } from './chart-base';
-import { formatNumber, formatTime } from './format';
+import { formatNumber, formatTime } from '@/lib/format';
 import type { ChartOption, LineSeriesOption } from './option-types';
 import { decadeRange } from './series-checks';
 import { DEFAULT_CHART_THEME, FULL_LINE, OKABE_ITO, REDUCED_LINE, type ChartTheme } from './theme';

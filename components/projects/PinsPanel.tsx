@@ -7,7 +7,7 @@ import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { useMutation } from '@tanstack/react-query';
 import { apiFetch, ApiClientError } from '@/components/api-client';
-import { formatNumber, formatPercent } from '@/components/charts/format';
+import { formatNumber, formatPercent } from '@/lib/format';
 import type { PinCandidate, PinLimits, ResolvedPin } from '@/lib/pins';
 import { numberField } from './form-values';
 

@@ -15,7 +15,7 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import { apiFetch, ApiClientError } from '@/components/api-client';
-import { formatTime } from '@/components/charts/format';
+import { formatTime } from '@/lib/format';
 import { numberField } from './form-values';
 import type { Project, ProjectSummary } from '@/lib/projects';
 import { SortableHead } from '@/components/table/SortableHead';

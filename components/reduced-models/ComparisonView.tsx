@@ -11,18 +11,20 @@ import { ErrorBoundChart } from '@/components/charts/ErrorBoundChart';
 import { SingularValueChart } from '@/components/charts/SingularValueChart';
 import { TimeResponseChart } from '@/components/charts/TimeResponseChart';
 import { channelLabel, signalNames, type Channel } from '@/components/charts/channel-names';
-import { formatCount, formatFactor, formatFrequency, formatNumber, formatTime, formatWallTime } from '@/components/charts/format';
+import { formatCount, formatFactor, formatFrequency, formatNumber, formatTime, formatWallTime } from '@/lib/format';
 import { FiguresTable } from '@/components/workspace/FiguresTable';
 import type { AccuracyFigures } from '@/components/workspace/figures-rows';
 import type { AccuracyFiguresRecord, CostRowRecord, ReductionCurves } from '@/lib/engine-tasks/records';
 import type { JobView } from '@/lib/jobs/jobs';
+import type { StoredAcceptance } from '@/lib/acceptance';
 import { InputSignalPanel } from './InputSignalPanel';
 
 export interface ComparisonViewProps {
   reducedVersionId: string;
   figures: AccuracyFiguresRecord;
   curves: ReductionCurves;
-  acceptance: { minFrequency: number; maxFrequency: number; maxError: number } | null;
+  /** the stored acceptance verdict with its band (lib/acceptance.ts); null when the recipe set none */
+  acceptance: StoredAcceptance | null;
   timeUnit: string;
   inputNames: string[] | null;
   outputNames: string[] | null;

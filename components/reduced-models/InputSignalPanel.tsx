@@ -5,7 +5,7 @@
 import { useId, useState, type FormEvent } from 'react';
 import { TimeResponseChart } from '@/components/charts/TimeResponseChart';
 import type { Channel } from '@/components/charts/channel-names';
-import { formatWallTime } from '@/components/charts/format';
+import { formatWallTime } from '@/lib/format';
 import type { InputResponseRecord } from '@/lib/engine-tasks/records';
 import type { JobView } from '@/lib/jobs/jobs';
 import { JobProgress } from '@/components/source-models/JobProgress';

@@ -1,40 +1,46 @@
 import Link from 'next/link';
-import type { ActivityItem } from '@/lib/activity';
-import { SOURCE_VERSION_STYLE, STATUS_STYLE } from './status-style';
+import type { ActivityItem, ActivityTone } from '@/lib/activity';
+import { PROJECT_STYLE, SOURCE_VERSION_STYLE, STATUS_STYLE, type NodeStyle } from './status-style';
+import { INK } from '@/components/charts/theme';
 import { formatWhen } from './when';
 
-const WORDS = { submitted: 'submitted for review', approved: 'approved', revise: 'sent back for revision', retired: 'retired' } as const;
-const STATE_AFTER = { submitted: 'in_review', approved: 'approved', revise: 'revise', retired: 'retired' } as const;
+const PEOPLE_STYLE: NodeStyle = { symbol: 'circle', glyph: '◇', label: 'people', color: INK.graphiteMuted };
+const JOB_STYLE: NodeStyle = { symbol: 'circle', glyph: '↻', label: 'job', color: INK.graphiteMuted };
 
-/** The shelf's latest events, newest first: review steps and new source versions. */
+const TONE_STYLE: Record<ActivityTone, NodeStyle> = {
+  source: SOURCE_VERSION_STYLE,
+  draft: STATUS_STYLE.draft,
+  in_review: STATUS_STYLE.in_review,
+  approved: STATUS_STYLE.approved,
+  revise: STATUS_STYLE.revise,
+  retired: STATUS_STYLE.retired,
+  project: PROJECT_STYLE,
+  people: PEOPLE_STYLE,
+  job: JOB_STYLE,
+};
+
+/** The shelf's latest events from the audit log, newest first (lib/activity.ts). */
 export function ActivityFeed({ items }: { items: ActivityItem[] }) {
   if (items.length === 0) return <p className="text-sm text-graphite-soft">Nothing has happened on the shelf yet.</p>;
   return (
     <ol className="space-y-2 text-sm" aria-label="Recent activity">
-      {items.map((item, i) => {
-        const style = item.kind === 'source_version' ? SOURCE_VERSION_STYLE : STATUS_STYLE[STATE_AFTER[item.kind]];
+      {items.map((item) => {
+        const style = TONE_STYLE[item.tone];
         return (
-          <li key={i} className="flex gap-2" data-testid="activity-item" data-kind={item.kind}>
+          <li key={item.id} className="flex gap-2" data-testid="activity-item" data-action={item.action}>
             <span aria-hidden="true" style={{ color: style.color }} className="w-4 shrink-0 text-center">
               {style.glyph}
             </span>
             <span className="min-w-0">
-              {item.kind === 'source_version' ? (
+              {item.actorName} {item.verb}
+              {item.subject ? (
                 <>
-                  {item.actorName} registered <Link href={`/lineage/source-models/${item.sourceModelSlug}`}>{item.sourceModelName} v{item.number}</Link>
-                  {item.upstreamChangedCount > 0
-                    ? `: ${item.upstreamChangedCount} reduced model version${item.upstreamChangedCount === 1 ? '' : 's'} now upstream changed`
-                    : ''}
+                  {' '}
+                  {item.subject.href ? <Link href={item.subject.href}>{item.subject.label}</Link> : item.subject.label}
                 </>
-              ) : (
-                <>
-                  {item.actorName} {WORDS[item.kind]}{' '}
-                  <Link href={`/reviews/${item.versionId}`}>
-                    {item.reducedModelName} v{item.number}
-                  </Link>
-                  <span className="block truncate text-graphite-soft">“{item.body}”</span>
-                </>
-              )}
+              ) : null}
+              {item.suffix}
+              {item.detail ? <span className="block truncate text-graphite-soft">{item.action.startsWith('reduced_version.') ? `“${item.detail}”` : item.detail}</span> : null}
               <time className="num block text-xs text-graphite-faint" dateTime={item.at}>
                 {formatWhen(item.at)}
               </time>

@@ -14,11 +14,13 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import { apiFetch } from '@/components/api-client';
-import { formatCount, formatNumber, formatOptional, formatPercent } from '@/components/charts/format';
+import { formatCount, formatNumber, formatOptional, formatPercent } from '@/lib/format';
 import type { DecisionEntry, QueueEntry } from '@/lib/reviews';
 import { UpstreamChangedBadge } from './StatusBadge';
 import { formatWhen } from './when';
 import { SortableHead } from '@/components/table/SortableHead';
+import { ACCEPTANCE_WORD } from '@/lib/acceptance';
+import { methodName } from '@/lib/recipe-words';
 
 const column = createColumnHelper<QueueEntry>();
 
@@ -65,7 +67,7 @@ export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: Qu
           </span>
         ),
       }),
-      column.accessor((q) => `${q.method}, ${q.fullOrder === null ? '?' : formatCount(q.fullOrder)} → ${formatCount(q.order)}`, {
+      column.accessor((q) => `${methodName(q.method)}, ${q.fullOrder === null ? '?' : formatCount(q.fullOrder)} → ${formatCount(q.order)}`, {
         id: 'reduction',
         header: 'Method, order',
         cell: (info) => <span className="num text-xs">{info.getValue()}</span>,
@@ -80,7 +82,7 @@ export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: Qu
         cell: (info) => <span className="num">{formatOptional(info.getValue(), (v) => formatNumber(v))}</span>,
         sortUndefined: 'last',
       }),
-      column.accessor((q) => (q.acceptancePassed === null ? '—' : q.acceptancePassed ? 'PASS' : 'FAIL'), {
+      column.accessor((q) => (q.acceptance === null ? '—' : ACCEPTANCE_WORD[q.acceptance]), {
         id: 'acceptance',
         header: 'Acceptance',
       }),

@@ -3,9 +3,10 @@
  * against now; an old version against its re-run). Reads accuracy_reports.figures as the reduction job
  * writes it (lib/engine-tasks/records.ts, AccuracyFiguresRecord), tolerating older or partial reports: a
  * figure that is missing or not a finite number shows as a dash, never as zero. Values leave formatted
- * with their units (components/charts/format.ts).
+ * with their units (lib/format.ts).
  */
-import { formatCount, formatFrequency, formatNumber, formatPercent } from '@/components/charts/format';
+import { formatCount, formatFrequency, formatNumber, formatPercent } from '@/lib/format';
+import { acceptanceWord, storedAcceptance } from '@/lib/acceptance';
 
 export interface FigureLine {
   key: string;
@@ -68,20 +69,17 @@ function valueOf(figures: Figures, spec: LineSpec): number | null {
   return null;
 }
 
-/** The acceptance verdict in words: PASS / FAIL with the worst error, or a dash. */
+/** The stored acceptance verdict in words (lib/acceptance.ts): PASS / FAIL / NOT CHECKED with the worst error, or a dash. */
 export function acceptanceText(figures: Figures, acceptancePassed: boolean | null | undefined): string {
-  const acceptance = figures && typeof figures.acceptance === 'object' && figures.acceptance !== null ? (figures.acceptance as Record<string, unknown>) : null;
-  const passed = typeof acceptancePassed === 'boolean' ? acceptancePassed : typeof acceptance?.passed === 'boolean' ? (acceptance.passed as boolean) : null;
-  if (passed === null) return '—';
-  const worst = finite(acceptance?.worstError);
-  const limit = finite(acceptance?.maxError);
-  const detail = worst !== null && limit !== null ? ` (worst ${formatNumber(worst)} against ${formatNumber(limit)})` : '';
-  return `${passed ? 'PASS' : 'FAIL'}${detail}`;
+  const v = storedAcceptance(figures, acceptancePassed);
+  if (!v) return '—';
+  const detail = v.worstError !== null && v.maxError !== null ? ` (worst ${formatNumber(v.worstError)} against ${formatNumber(v.maxError)})` : '';
+  return `${acceptanceWord(v)}${detail}`;
 }
 
 /**
  * One line per known figure that at least one set states. `acceptance` gives each set's
- * accuracy_reports.acceptance_passed, which wins over the figures' own verdict.
+ * accuracy_reports.acceptance_passed, read with the figures' verdict record by lib/acceptance.ts.
  */
 export function figureLines(sets: readonly Figures[], acceptance?: readonly (boolean | null | undefined)[]): FigureLine[] {
   const lines: FigureLine[] = [];

@@ -2,7 +2,7 @@
  * The analysis of a source version in figures: dimensions and sparsity, the stability split, stiffness and
  * the largest stable explicit steps, norms and the DC gain. No client state; renders on the server.
  */
-import { formatComplex, formatFrequency, formatNumber, formatPercent, formatTime } from '@/components/charts/format';
+import { formatComplex, formatFrequency, formatNumber, formatPercent, formatTime } from '@/lib/format';
 import type { AnalysisRecord, StepLimitRecord } from '@/lib/engine-tasks/records';
 
 function Row({ label, value, note, testId }: { label: string; value: string; note?: string; testId?: string }) {

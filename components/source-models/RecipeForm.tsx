@@ -12,12 +12,13 @@ import { useRouter } from 'next/navigation';
 import { useEffect, useId, useMemo, useState, type FormEvent } from 'react';
 import { useMutation, useQuery } from '@tanstack/react-query';
 import { apiFetch, ApiClientError } from '@/components/api-client';
-import { formatFrequency, formatNumber, frequencyUnit } from '@/components/charts/format';
+import { formatFrequency, formatNumber, frequencyUnit } from '@/lib/format';
 import { OrderSlider } from '@/components/workspace/OrderSlider';
 import type { AnalysisRecord, OrderFigureTable } from '@/lib/engine-tasks/records';
 import type { JobView } from '@/lib/jobs/jobs';
 import { JobProgress } from './JobProgress';
 import { checkLimitedBand, orderForTolerance, storedTable, suggestedOrder, type BandUnit, type Method, type ModalSelection } from './recipe-choices';
+import { METHOD_NAMES, methodChoiceLabel } from '@/lib/recipe-words';
 
 export interface ReducedModelChoice {
   id: string;
@@ -55,12 +56,7 @@ export interface RecipeFormProps {
   onOrder: (r: number) => void;
 }
 
-const METHOD_WORDS: Record<Method, string> = {
-  balanced: 'Balanced truncation',
-  residualization: 'Balanced residualization (keeps the DC gain)',
-  modal: 'Modal truncation',
-  'frequency-limited': 'Frequency-limited balanced truncation (for a band)',
-};
+const METHODS: readonly Method[] = ['balanced', 'residualization', 'modal', 'frequency-limited'];
 
 /** Shown instead of the bound column, and on the result page. */
 export const NO_BOUND_SENTENCE =
@@ -213,9 +209,9 @@ export function RecipeForm(p: RecipeFormProps) {
             Method
           </label>
           <select id={`${id}-method`} className="field-input" value={method} onChange={(e) => p.onMethod(e.target.value as Method)} disabled={!p.canRun}>
-            {(Object.keys(METHOD_WORDS) as Method[]).map((m) => (
+            {METHODS.map((m) => (
               <option key={m} value={m}>
-                {METHOD_WORDS[m]}
+                {methodChoiceLabel(m)}
               </option>
             ))}
           </select>
@@ -344,7 +340,7 @@ export function RecipeForm(p: RecipeFormProps) {
           <p className="text-sm text-graphite-soft">{method === 'modal' && selection === 'band' ? 'Give a band to see the orders it allows.' : 'Loading the orders…'}</p>
         ) : !table.available ? (
           <p role="alert" className="text-sm">
-            {METHOD_WORDS[method]} is not available for this model: {table.reason}
+            {methodChoiceLabel(method)} is not available for this model: {table.reason}
           </p>
         ) : orderRule === 'order' || limited ? (
           <>
@@ -478,7 +474,7 @@ export function RecipeForm(p: RecipeFormProps) {
 
       {p.canRun ? (
         <button type="submit" className="button-primary" disabled={run.isPending || (job !== null && job.status !== 'failed') || !available}>
-          {run.isPending ? 'Queuing…' : `Run ${METHOD_WORDS[method].split(' (')[0].toLowerCase()}`}
+          {run.isPending ? 'Queuing…' : `Run ${METHOD_NAMES[method]}`}
         </button>
       ) : (
         <p className="text-sm text-graphite-soft">Only engineers run recipes; you can explore the orders here.</p>
@@ -489,6 +485,7 @@ export function RecipeForm(p: RecipeFormProps) {
           initial={job}
           label="Reduction"
           canRetry={p.canRun}
+          canCancel={p.canRun}
           onSucceeded={(done) => {
             const url = done.result?.url;
             if (typeof url === 'string') router.push(url);

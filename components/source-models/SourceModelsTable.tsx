@@ -8,7 +8,7 @@ import { useEffect, useMemo, useState } from 'react';
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
 import { apiFetch } from '@/components/api-client';
-import { formatNumber } from '@/components/charts/format';
+import { formatNumber } from '@/lib/format';
 import type { SourceModelListRow, SourceModelSort } from '@/lib/source-models';
 import { SortableHead } from '@/components/table/SortableHead';
 

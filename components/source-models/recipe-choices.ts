@@ -3,7 +3,9 @@
  * order table a method and selection rule use, the order the tolerance rule would choose, and which poles a
  * modal truncation keeps. Pure functions, tested in node.
  */
-import type { AnalysisRecord, ModeRecord, OrderFigureTable, OrderFiguresRecord } from '@/lib/engine-tasks/records';
+import type { AnalysisRecord, OrderFigureTable, OrderFiguresRecord } from '@/lib/engine-tasks/records';
+// The engine's own ranking rule (a pure module: no linear algebra reaches the browser).
+import { rankStoredModes } from '@/reduction/mode-ranking';
 
 export type Method = 'balanced' | 'residualization' | 'modal' | 'frequency-limited';
 export type ModalSelection = 'dominance' | 'slowest' | 'band';
@@ -76,13 +78,6 @@ export function orderForTolerance(table: OrderFigureTable, tolerance: number, re
   return null;
 }
 
-/** The ranking order-figures.ts uses for the stored modal tables: the modes kept first come first. */
-function rankedStable(modes: readonly ModeRecord[], selection: 'dominance' | 'slowest'): ModeRecord[] {
-  const stable = modes.filter((m) => m.stability === 'stable' && m.dominance !== null);
-  const byDominance = (a: ModeRecord, b: ModeRecord) => (b.dominance ?? 0) - (a.dominance ?? 0);
-  return selection === 'dominance' ? stable.sort(byDominance) : stable.sort((a, b) => Math.abs(a.re) - Math.abs(b.re) || byDominance(a, b));
-}
-
 /**
  * For the pole map: which poles a modal truncation to `order` states keeps (every marginal and unstable
  * pole, then the ranked modes until the order is reached). Null for the balanced methods, whose reduced
@@ -108,7 +103,7 @@ export function keptPoles(analysis: AnalysisRecord, method: Method, selection: M
     }
     if (best >= 0) kept[best] = true;
   };
-  for (const mode of rankedStable(analysis.modes, selection)) {
+  for (const mode of rankStoredModes(analysis.modes, { rule: selection })) {
     if (states >= order) break;
     take(mode.re, Math.abs(mode.im));
     if (mode.states === 2) take(mode.re, -Math.abs(mode.im));

@@ -9,7 +9,7 @@
  * number field, arrow up/down step to the next allowed order and Enter commits a typed one.
  */
 import { useEffect, useId, useState, type KeyboardEvent } from 'react';
-import { formatNumber, formatOptional, formatTime } from '../charts/format';
+import { formatNumber, formatOptional, formatTime } from '@/lib/format';
 import {
   checkAllowedOrders,
   figuresFor,

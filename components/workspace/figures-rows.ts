@@ -4,7 +4,7 @@
  * (the engine's solver statistics: steps, rejected steps, right-hand-side evaluations, factorisations,
  * points stored, wall time). Every value leaves here formatted with its unit.
  */
-import { formatCount, formatFactor, formatFrequency, formatNumber, formatPercent, formatWallTime } from '../charts/format';
+import { formatCount, formatFactor, formatFrequency, formatNumber, formatPercent, formatWallTime } from '@/lib/format';
 
 export interface SimulationCost {
   /** solver as the engine names it, e.g. "exact", "explicit", "stiff" */

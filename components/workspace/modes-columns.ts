@@ -3,8 +3,8 @@
  * checked in node. Units are in the headers; cells hold bare numbers in the monospace face.
  */
 import { createColumnHelper, type ColumnDef, type SortingFn } from '@tanstack/react-table';
-import { formatComplex, formatNumber, frequencyUnit } from '../charts/format';
-import { classifyPoles, modalFigures, type PoleStability } from '../charts/pole-data';
+import { formatComplex, formatNumber, frequencyUnit } from '@/lib/format';
+import { classifyPoles, modalFigures, type PoleStability } from '@/reduction/poles';
 import { ChartDataError } from '../charts/series-checks';
 import { STABILITY_STYLE } from '../charts/theme';
 
@@ -25,8 +25,10 @@ export interface ModeTableRow {
   readonly pair: boolean;
   readonly stability: PoleStability;
   readonly naturalFrequency: number;
-  readonly dampingRatio: number;
-  readonly timeConstant: number;
+  /** null at λ = 0 */
+  readonly dampingRatio: number | null;
+  /** null for a marginal pole (shown as ∞) */
+  readonly timeConstant: number | null;
   readonly growing: boolean;
   readonly dominance: number | null;
   readonly kept: boolean | null;
@@ -39,14 +41,15 @@ export function toModeTableRows(modes: readonly ModeInput[]): ModeTableRow[] {
     }
   });
   const missing = modes.some((m) => m.stability === undefined);
-  const split = missing ? classifyPoles(modes.map((m) => m.re), modes.map((m) => m.im)) : null;
+  const split = missing ? classifyPoles({ re: modes.map((m) => m.re), im: modes.map((m) => m.im) }).stability : null;
   return modes.map((m, i) => {
-    const f = modalFigures(m.re, m.im);
+    const stability = m.stability ?? split![i];
+    const f = modalFigures(m.re, m.im, stability);
     return {
       re: m.re,
       im: m.im,
       pair: m.pair ?? false,
-      stability: m.stability ?? split![i],
+      stability,
       naturalFrequency: f.naturalFrequency,
       dampingRatio: f.dampingRatio,
       timeConstant: f.timeConstant,
@@ -92,12 +95,16 @@ export function modeColumns(timeUnit = 's', withKept = false): ColumnDef<ModeTab
       id: 'dampingRatio',
       header: 'Damping ratio ζ',
       sortUndefined: 'last',
-      cell: (c) => formatNumber(c.row.original.dampingRatio, { significant: 3 }),
+      cell: (c) => (c.row.original.dampingRatio === null ? '—' : formatNumber(c.row.original.dampingRatio, { significant: 3 })),
     }),
-    col.accessor((r) => r.timeConstant, {
+    // A marginal pole neither decays nor grows: its τ is infinite, and sorts after every finite one.
+    col.accessor((r) => r.timeConstant ?? Infinity, {
       id: 'timeConstant',
       header: `Time constant τ (${timeUnit})`,
-      cell: (c) => `${formatNumber(c.row.original.timeConstant, { significant: 3 })}${c.row.original.growing ? ' (growth)' : ''}`,
+      cell: (c) =>
+        c.row.original.timeConstant === null
+          ? '∞'
+          : `${formatNumber(c.row.original.timeConstant, { significant: 3 })}${c.row.original.growing ? ' (growth)' : ''}`,
     }),
     col.accessor((r) => sortable(r.dominance), {
       id: 'dominance',

@@ -3,7 +3,7 @@
  * that would split a complex-conjugate pair, none below the states kept exactly for unstable and
  * marginal poles); the slider moves only between those, and a typed number snaps to the nearest one.
  */
-import { formatNumber, formatTime } from '../charts/format';
+import { formatNumber, formatTime } from '@/lib/format';
 
 export interface OrderFigures {
   /** a-priori error bound at this order (absolute gain); null when the method has none */

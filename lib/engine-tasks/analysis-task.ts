@@ -5,7 +5,7 @@
 import {
   PreparationCache,
   analyzeModel,
-  balancedErrorBound,
+  balancedErrorBounds,
   defaultFrequencyBand,
   hInfinityNorm,
   splitStableUnstable,
@@ -71,7 +71,7 @@ export function runAnalysis(files: readonly ModelFile[], engineVersion: string, 
     const start = at;
     try {
       return balancedOrderFigures(model, method, kept, (done, total) => {
-        report(words, start + weight * (0.3 + (0.7 * done) / total));
+        report(words, start + weight * (0.3 + (0.7 * done) / total), { done, total, unit: 'order' });
       }, preparation);
     } catch (e) {
       return unavailable(e);
@@ -115,7 +115,7 @@ export function runAnalysis(files: readonly ModelFile[], engineVersion: string, 
       : { finite: false, reason: a.hInfinityNorm.reason },
     stablePartHInfinityNorm,
     hankelSingularValues: hsv,
-    hankelBound: hsv.map((_, r) => balancedErrorBound(hsv, r)).concat([0]),
+    hankelBound: balancedErrorBounds(hsv),
     modes,
     modalDominanceReliable: a.modalDominance.reliable,
     eigenvectorCondition: finiteOrNull(a.modalDominance.eigenvectorCondition),

@@ -15,12 +15,13 @@
 //     analysis' mode list by running sums and minima, without any matrix work.
 import {
   modelPoles,
-  modeComparator,
+  rankStoredModes,
   prepareReduction,
   snapMarginalPoles,
   stepLimitsFromPoles,
   type PreparationCache,
   type ComplexVector,
+  type ModalSelection,
   type ReductionMethod,
   type StateSpaceModel,
 } from '../../reduction/index';
@@ -146,38 +147,19 @@ export function balancedOrderFigures(
   return { available: true, orders, figures, limitNote };
 }
 
-export type ModalRanking = { rule: 'dominance' } | { rule: 'slowest' } | { rule: 'band'; band: readonly [number, number] };
-
-/**
- * The stable modes in the order modal truncation keeps them: the engine's own rule (reduction/modal.ts,
- * modeComparator) applied to the stored mode records.
- */
-export function rankModes(modes: readonly ModeRecord[], ranking: ModalRanking): ModeRecord[] {
-  const stable = modes.filter((m) => m.stability === 'stable' && m.dominance !== null);
-  const order = modeComparator<ModeRecord>(ranking, (m) => ({ re: m.re, naturalFrequency: Math.hypot(m.re, m.im), dominance: m.dominance ?? 0 }));
-  return [...stable].sort(order);
-}
-
-/** Number of states of the modes inside the band: the band rule's own order (reduction/modal.ts, statesInBand). */
-export function statesInBand(modes: readonly ModeRecord[], band: readonly [number, number]): number {
-  return modes
-    .filter((m) => m.stability === 'stable' && Math.hypot(m.re, m.im) >= band[0] && Math.hypot(m.re, m.im) <= band[1])
-    .reduce((s, m) => s + m.states, 0);
-}
-
 /**
  * Modal truncation figures at every cut point of the ranking: the modal bound Σ dominance over the
  * discarded modes (reduction/modal.ts; Antoulas 2005, §9.2), and stiffness and step limits from the kept
  * modes by running minima (each step limit is the minimum of per-pole limits, reduction/step-limits.ts).
  */
-export function modalOrderFigures(modes: readonly ModeRecord[], kept: KeptPoles, ranking: ModalRanking, reliable: boolean): OrderFigureTable {
+export function modalOrderFigures(modes: readonly ModeRecord[], kept: KeptPoles, ranking: ModalSelection, reliable: boolean): OrderFigureTable {
   if (!reliable) {
     return {
       available: false,
       reason: 'modal truncation needs a diagonalizable A, and this model has (nearly) repeated poles in a Jordan chain; use balanced truncation',
     };
   }
-  const ranked = rankModes(modes, ranking);
+  const ranked = rankStoredModes(modes, ranking);
   if (ranked.length === 0) return { available: false, reason: 'the model has no stable modes to choose from' };
   const nu = kept.unstable + kept.marginal;
   const keptLimits = stepLimitsFromPoles(snapMarginalPoles(kept.re, kept.im, kept.stability, kept.tolerance, kept.scale));

@@ -4,8 +4,10 @@
 //
 // Type-only module: pages and client components may import it.
 import type { SourceFormat } from './model-files';
+import type { PoleStability } from '../../reduction/poles';
+import type { AcceptanceStatus } from '../../reduction/acceptance';
 
-export type PoleStability = 'stable' | 'marginal' | 'unstable';
+export type { PoleStability };
 
 /** A norm that is finite, or why it is not. */
 export type NormRecord = { finite: true; value: number } | { finite: false; reason: string };
@@ -140,14 +142,28 @@ export interface CostRowRecord {
   maxOutputDifference: number | null;
 }
 
+/**
+ * The acceptance band's verdict as the worker decided it (reduction/acceptance.ts) on the error curve it
+ * stored; every page, export and API shows this record (read through lib/acceptance.ts), never a verdict of
+ * its own.
+ */
 export interface AcceptanceRecord {
   minFrequency: number;
   maxFrequency: number;
   maxError: number;
+  /** absent in reports written before the three-state verdict (lib/acceptance.ts reads those) */
+  status?: AcceptanceStatus;
+  /** status === 'pass' */
   passed: boolean;
-  worstError: number;
-  worstFrequency: number;
-  samplesChecked: number;
+  /** null when no point lies in the band */
+  worstError: number | null;
+  worstFrequency: number | null;
+  /** grid samples in the band plus interpolated band edges */
+  pointsChecked?: number;
+  /** the name of pointsChecked in older reports */
+  samplesChecked?: number;
+  /** first and last frequency of the error curve */
+  computedRange?: [number, number] | null;
 }
 
 /**

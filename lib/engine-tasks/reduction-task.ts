@@ -13,7 +13,10 @@
 //   figures: measured H∞ (Bruinsma & Steinbuch 1990) and H2 errors and the DC-gain error from
 //     assessReduction, the a-priori bound, stiffness ratios, and the acceptance verdict.
 import {
+  acceptanceVerdict,
   errorSystem,
+  explicitStabilitySteps,
+  STIFF_RATIO,
   frequencyEvaluator,
   h2Norm,
   hInfinityNorm,
@@ -39,6 +42,8 @@ import {
 } from '../../reduction/index';
 import { frequencyLimitedReduction } from '../../reduction/frequency-limited';
 import { loadModel, type ModelFile } from './model-files';
+import { acceptancePassedColumn } from '../acceptance';
+import { METHOD_NAMES, NO_BOUND_NOTE, type RecipeMethod } from '../recipe-words';
 import { figuresFromPoles, keptPolesOf } from './order-figures';
 import type { ProgressReporter } from './progress';
 import type {
@@ -55,7 +60,7 @@ import type {
 } from './records';
 
 export interface RecipeInput {
-  method: 'balanced' | 'residualization' | 'modal' | 'frequency-limited';
+  method: RecipeMethod;
   order: number | null;
   tolerance: number | null;
   modal?: { selection: 'dominance' | 'slowest' | 'band'; band?: { minFrequency: number; maxFrequency: number } } | null;
@@ -73,8 +78,6 @@ const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : nul
 const GRID_POINTS = 240;
 const BAND_POINTS = 120;
 const TIME_POINTS = 401;
-/** Stiffness ratio from which a model counts as stiff (common practice; reduction/simulate/auto.ts uses the same). */
-const STIFF_RATIO = 1e3;
 /** Explicit (Dormand–Prince) runs are skipped above these estimates: the point is made long before. */
 const EXPLICIT_MAX_STEPS = 200_000;
 const EXPLICIT_MAX_FLOPS = 3e9;
@@ -122,8 +125,6 @@ interface EngineReduction {
   frequencyLimited: FrequencyLimitedRecord | null;
 }
 
-/** The note the accuracy report carries instead of a bound for a method that has none. */
-export const NO_BOUND_NOTE = 'no a-priori error bound for this method';
 
 /** Balanced truncation, residualization and modal truncation through the engine's reduce entry. */
 function reduceRun(model: StateSpaceModel, recipe: RecipeInput): EngineReduction {
@@ -256,14 +257,18 @@ function timeCurves(
   tEnd: number,
   // The step and impulse responses of every input share each model's exponentials (exact solver).
   shared: { full: SharedExponentials; reduced: SharedExponentials },
+  // After each simulation: `done` of `total` (each input, full model then reduced).
+  onSimulation?: (done: number, total: number) => void,
 ): TimeCurves {
   const m = full.B.cols;
   const p = full.C.rows;
+  let done = 0;
   const perInput = (model: StateSpaceModel, sharedExponentials: SharedExponentials) => {
     const results: SimulationResult[] = [];
     for (let j = 0; j < m; j++) {
       const input = kind === 'step' ? stepInput(model, j + 1) : impulseInput(model, j + 1);
       results.push(simulate(model, input, { tEnd, points: TIME_POINTS, solver: 'auto', sharedExponentials }));
+      onSimulation?.(++done, 2 * m);
     }
     return results;
   };
@@ -291,9 +296,9 @@ function costOf(solver: string, s: SolverStats): SolverCostRecord {
   };
 }
 
-/** Dormand–Prince is stable along the negative real axis for |hλ| ≲ 3.3 (Hairer & Wanner 1996, §IV.2). */
+/** Steps and flops of an explicit run, its steps held by stability (reduction/step-limits.ts, explicitStabilitySteps). */
 function explicitEstimate(model: StateSpaceModel, spectralRadius: number, tEnd: number): { steps: number; flops: number } {
-  const steps = (tEnd * spectralRadius) / 3.3;
+  const steps = explicitStabilitySteps(spectralRadius, tEnd);
   const n = model.A.rows;
   return { steps, flops: steps * 6 * 2 * n * (n + model.B.cols) };
 }
@@ -342,30 +347,19 @@ function costRows(full: StateSpaceModel, reduced: StateSpaceModel, fullRadius: n
   return { rows, description: both.input };
 }
 
-function checkAcceptance(
-  band: NonNullable<RecipeInput['acceptance']>,
-  w: readonly number[],
-  error: readonly number[],
-): AcceptanceRecord {
-  let worstError = -Infinity;
-  let worstFrequency = band.minFrequency;
-  let samples = 0;
-  w.forEach((wk, k) => {
-    if (wk < band.minFrequency || wk > band.maxFrequency) return;
-    samples++;
-    if (error[k] > worstError) {
-      worstError = error[k];
-      worstFrequency = wk;
-    }
-  });
+/** The acceptance band's verdict on the error curve just computed (reduction/acceptance.ts), as stored. */
+export function acceptanceRecord(band: NonNullable<RecipeInput['acceptance']>, w: readonly number[], error: readonly number[]): AcceptanceRecord {
+  const v = acceptanceVerdict(w, error, band);
   return {
     minFrequency: band.minFrequency,
     maxFrequency: band.maxFrequency,
     maxError: band.maxError,
-    passed: samples > 0 && worstError <= band.maxError,
-    worstError: Math.max(0, worstError),
-    worstFrequency,
-    samplesChecked: samples,
+    status: v.status,
+    passed: v.status === 'pass',
+    worstError: v.worstError,
+    worstFrequency: v.worstFrequency,
+    pointsChecked: v.pointsChecked,
+    computedRange: v.computedRange ? [v.computedRange[0], v.computedRange[1]] : null,
   };
 }
 
@@ -379,13 +373,7 @@ export function runReduction(
   const started = Date.now();
   report('Reading the model files', 0);
   const { model } = loadModel(files);
-  const methodWords = {
-    balanced: 'balanced truncation',
-    residualization: 'balanced residualization',
-    modal: 'modal truncation',
-    'frequency-limited': 'frequency-limited balanced truncation',
-  }[recipe.method];
-  report(`Reducing by ${methodWords} and measuring the H∞ and H2 errors`, 0.03);
+  report(`Reducing by ${METHOD_NAMES[recipe.method]} and measuring the H∞ and H2 errors`, 0.03);
   const r = recipe.method === 'frequency-limited' ? frequencyLimitedRun(model, recipe, summary.stabilityTolerance) : reduceRun(model, recipe);
   const reduced = r.model;
   const p = model.C.rows;
@@ -417,9 +405,13 @@ export function runReduction(
   const tEnd = simulationEnd(summary);
   report('Step responses of the full and the reduced model', 0.66);
   const shared = { full: new SharedExponentials(model.A, model.B), reduced: new SharedExponentials(reduced.A, reduced.B) };
-  const step = timeCurves(model, reduced, 'step', tEnd, shared);
+  const step = timeCurves(model, reduced, 'step', tEnd, shared, (done, total) =>
+    report('Step responses of the full and the reduced model', 0.66 + (0.1 * done) / total, { done, total, unit: 'simulation' }),
+  );
   report('Impulse responses of the full and the reduced model', 0.76);
-  const impulse = timeCurves(model, reduced, 'impulse', tEnd, shared);
+  const impulse = timeCurves(model, reduced, 'impulse', tEnd, shared, (done, total) =>
+    report('Impulse responses of the full and the reduced model', 0.76 + (0.1 * done) / total, { done, total, unit: 'simulation' }),
+  );
   let peakStepError = 0;
   step.full.forEach((outputs, j) =>
     outputs.forEach((ys, i) => ys.forEach((y, k) => (peakStepError = Math.max(peakStepError, Math.abs(y - step.reduced[j][i][k]))))),
@@ -435,7 +427,7 @@ export function runReduction(
   const fullRow = cost.rows.find((row) => row.solver === needs(summary.stiffnessRatio) && row.full) ?? cost.rows.find((row) => row.solver === 'stiff');
   const reducedRow = cost.rows.find((row) => row.solver === needs(reducedOrderFigures.stiffnessRatio)) ?? cost.rows.find((row) => row.solver === 'stiff');
 
-  const acceptance = recipe.acceptance ? checkAcceptance(recipe.acceptance, w, error) : null;
+  const acceptance = recipe.acceptance ? acceptanceRecord(recipe.acceptance, w, error) : null;
   const hInfinityError = r.hInfinityError.finite ? r.hInfinityError.value : null;
   const reference = summary.stablePartHInfinityNorm;
   const figures: AccuracyFiguresRecord = {
@@ -489,7 +481,7 @@ export function runReduction(
     unstableStatesKept: r.unstableStatesKept,
     figures,
     curves,
-    acceptancePassed: acceptance ? acceptance.passed : null,
+    acceptancePassed: acceptancePassedColumn(acceptance?.status ?? null),
     engineVersion,
   };
 }

@@ -6,7 +6,7 @@
 // conforming compiler rounds a decimal floating constant to the nearest double (C99 6.4.4.2 with Annex F),
 // so the arrays hold the exported doubles bit for bit.
 import type { ExportDocument } from './document';
-import { accuracyLine, exportWarnings, recipeLine } from './document';
+import { acceptanceLine, accuracyLine, exportWarnings, recipeLine } from './document';
 import type { Rows } from './source';
 
 /** An identifier stem from a slug: "kiln-zone-3" → "kiln_zone_3" (prefixed when it would start with a digit). */
@@ -87,7 +87,7 @@ export function cHeader(doc: ExportDocument): string {
     `Source checksum: ${s.lineage.sourceVersion.checksum}`,
     recipeLine(s),
     accuracyLine(s),
-    `Acceptance band: ${s.accuracyReport?.acceptancePassed === true ? 'passed' : s.accuracyReport?.acceptancePassed === false ? 'FAILED' : 'not checked'}`,
+    acceptanceLine(s),
     `Matrices SHA-256 (this file): ${doc.matricesSha256}`,
     `Registered SHA-256 (lock file): ${doc.registeredMatricesSha256}`,
     `Generated ${doc.generatedAt.toISOString()} by Modeshelf`,

@@ -8,7 +8,7 @@
 import { createHash } from 'node:crypto';
 import JSZip from 'jszip';
 import type { ExportDocument } from './document';
-import { accuracyLine, exportJson, exportStem, exportWarnings, recipeLine } from './document';
+import { acceptanceLine, accuracyLine, exportJson, exportStem, exportWarnings, recipeLine } from './document';
 import type { Rows } from './source';
 
 export function csvNumber(x: number): string {
@@ -83,6 +83,7 @@ function readme(doc: ExportDocument, files: Record<'A' | 'B' | 'C' | 'D', string
     `Source model ${s.lineage.sourceModel.slug} v${s.lineage.sourceVersion.number} (${s.lineage.sourceVersion.states} states, checksum ${s.lineage.sourceVersion.checksum})`,
     recipeLine(s),
     accuracyLine(s),
+    acceptanceLine(s),
     `Generated ${doc.generatedAt.toISOString()}`,
   ];
   return lines.join('\n') + '\n';

@@ -4,6 +4,8 @@
 // beside theirs so a lock file always records the version's own checksum.
 import { CAUTION_TEXT } from '@/lib/caution';
 import type { PinLimits, PinMode } from '@/lib/pins';
+import { acceptanceSentence, storedAcceptance } from '@/lib/acceptance';
+import { describeRecipe, NO_BOUND_NOTE } from '@/lib/recipe-words';
 import type { ExportSource, RegisteredMatrices } from './source';
 import type { Discretisation } from './discrete';
 
@@ -69,14 +71,20 @@ export function exportWarnings(doc: ExportDocument): string[] {
   return warnings;
 }
 
-/** The recipe in one line of plain text, for the C header and the CSV bundle's README. */
+/** The recipe in one line of plain text, for the C header and the CSV bundle's README (lib/recipe-words.ts). */
 export function recipeLine(s: ExportSource): string {
-  const rule = s.recipe.order !== null ? `order ${s.recipe.order}` : `tolerance ${s.recipe.tolerance}`;
-  const band = s.recipe.options.band as { minFrequency?: unknown; maxFrequency?: unknown } | undefined;
-  if (s.recipe.method === 'frequency-limited' && band && typeof band.minFrequency === 'number' && typeof band.maxFrequency === 'number') {
-    return `Recipe: frequency-limited balanced truncation, ${rule}, band ${band.minFrequency} to ${band.maxFrequency} rad/${s.timeUnit}`;
-  }
-  return `Recipe: ${s.recipe.method}, ${rule}`;
+  return `Recipe: ${describeRecipe(s.recipe, { timeUnit: s.timeUnit, resultOrder: s.version.order, plain: true })}`;
+}
+
+/** The stored acceptance verdict in one line (lib/acceptance.ts): what the comparison page and the API show. */
+export function acceptanceLine(s: ExportSource): string {
+  const v = storedAcceptance(s.accuracyReport?.figures, s.accuracyReport?.acceptancePassed);
+  return `Acceptance band: ${v ? acceptanceSentence(v, s.timeUnit, true) : 'none set'}`;
+}
+
+function exportAcceptance(s: ExportSource) {
+  const v = storedAcceptance(s.accuracyReport?.figures, s.accuracyReport?.acceptancePassed);
+  return v ? { ...v, text: acceptanceSentence(v, s.timeUnit, true) } : null;
 }
 
 /**
@@ -89,7 +97,7 @@ export function accuracyLine(s: ExportSource): string {
   const figure = (v: unknown) => (typeof v === 'number' ? String(v) : 'not reported');
   const fl = report.frequencyLimited && typeof report.frequencyLimited === 'object' ? (report.frequencyLimited as Record<string, unknown>) : null;
   if (fl || typeof report.errorBoundNote === 'string') {
-    const note = typeof report.errorBoundNote === 'string' ? report.errorBoundNote : 'no a-priori error bound for this method';
+    const note = typeof report.errorBoundNote === 'string' ? report.errorBoundNote : NO_BOUND_NOTE;
     const stable = typeof report.reducedStable === 'boolean' ? (report.reducedStable ? 'yes' : 'NO') : 'not reported';
     return (
       `Accuracy: ${note}; measured error inside the band ${figure(fl?.inBandError)}, outside the band ${figure(fl?.outOfBandError)}, ` +
@@ -150,6 +158,8 @@ export function exportJson(doc: ExportDocument, includeMatrices = true) {
       engineVersion: s.version.engineVersion,
     },
     accuracyReport: s.accuracyReport,
+    // The stored verdict, decided by the worker (lib/acceptance.ts): what the pages and the pins list show.
+    acceptance: exportAcceptance(s),
     flags: doc.flags,
     warnings: exportWarnings(doc),
     pin: doc.pin,

@@ -3,15 +3,18 @@
  * with its a-priori bound and measured errors (methods and papers: `reduction/reduce.ts`).
  * `reduce MODEL --method frequency-limited --band W1,W2 --order R`: frequency-limited balanced truncation
  * (`reduction/frequency-limited.ts`), with its measured errors inside and outside the band (no bound).
+ * `reduce MODEL --method irka --order R`: IRKA on either path (`./irka.ts`; no bound, measured errors).
  */
 import { ModelError } from '../errors';
-import type { ModalSelection } from '../modal';
+import type { ModalSelection } from '../mode-ranking';
 import { reduceModel, REDUCTION_METHODS, type ReductionMethod } from '../reduce';
 import { frequencyLimitedReduction } from '../frequency-limited';
 import { integerOption, loadModelArgument, numberListOption, numberOption, stringOption, type ParsedArgs } from './args';
 import { complexPairs, finiteOrNull, matrixRows, numberList, hInfinityCertificate } from './output';
 import { registerVerb } from './registry';
 import { runSparseReduce, sparseModelArgument, SPARSE_REDUCE_OPTIONS } from './sparse';
+import { runSparseModalReduce } from './sparse-modes';
+import { IRKA_OPTIONS, runIrkaReduce } from './irka';
 import { modelPoles as modelPolesOf } from '../spectral-split';
 
 const CLI_METHODS = [...REDUCTION_METHODS, 'frequency-limited'] as const;
@@ -86,24 +89,27 @@ function selectionOf(args: ParsedArgs, method: ReductionMethod): ModalSelection 
 
 registerVerb({
   name: 'reduce',
-  summary: 'reduce a model by balanced truncation, balanced residualization, modal truncation or frequency-limited balanced truncation',
+  summary: 'reduce a model by balanced truncation, balanced residualization, modal truncation, IRKA or frequency-limited balanced truncation',
   usage:
     'MODEL --method balanced|residualization|modal (--order R | --tolerance T) [--keep dominance|slowest|band --band LOW,HIGH]\n' +
     '      MODEL --method frequency-limited --band W1,W2 --order R\n' +
-    '      A.mtx B C [D] [--E E.mtx] [--path dense|sparse|auto] --method balanced|residualization --order R   (sparse path)',
+    '      MODEL --method irka --order R [--irka-tolerance T] [--irka-max-iterations N]   (dense or sparse path)\n' +
+    '      A.mtx B C [D] [--E E.mtx] [--path dense|sparse|auto] --method balanced|residualization|modal --order R   (sparse path)',
   options: {
-    method: { value: true, description: 'balanced | residualization | modal | frequency-limited' },
+    method: { value: true, description: 'balanced | residualization | modal | irka | frequency-limited' },
     order: { value: true, description: 'states of the reduced model (including those kept for marginal/unstable poles)' },
     tolerance: { value: true, description: 'smallest order whose error bound is at most T·‖G‖∞' },
     keep: { value: true, description: 'modal: which modes come first — dominance (default), slowest, band' },
     band: { value: true, description: 'modal: keep the modes with natural frequency in LOW,HIGH; frequency-limited: the band W1,W2 to balance on (rad per time unit)' },
     'stability-tolerance': { value: true, description: 'relative tolerance for marginal poles (default 1e-7)' },
     ...SPARSE_REDUCE_OPTIONS,
+    ...IRKA_OPTIONS,
   },
   run(args) {
     const method = methodOf(args);
+    if (method === 'irka') return runIrkaReduce(args);
     const sparse = sparseModelArgument(args);
-    if (sparse) return runSparseReduce(sparse, args, method);
+    if (sparse) return method === 'modal' ? runSparseModalReduce(sparse, args, selectionOf(args, method)) : runSparseReduce(sparse, args, method);
     for (const o of ['adi-tolerance', 'adi-max-iterations', 'memory-budget', 'error-points']) {
       if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to the sparse path only`);
     }

@@ -7,8 +7,9 @@
  *   `EXACT_MAX` states it is taken for stiff models, where the alternatives pay for stiffness too.
  * - Otherwise a stiff model (stiffness ratio ≥ 10³, or a stability-bound explicit step count above 10⁵)
  *   goes to the stiff solver and the rest to the explicit one. The threshold 10³ is common practice for
- *   calling a linear model stiff; the explicit bound uses RK stability along the real axis (|hλ| ≲ 3.3 for
- *   Dormand–Prince 5(4), Hairer & Wanner 1996, §IV.2).
+ *   calling a linear model stiff; the explicit bound uses RK stability along the real axis
+ *   (step-limits.ts, explicitStabilitySteps: |hλ| ≲ 3.3 for Dormand–Prince 5(4), Hairer & Wanner 1996, §IV.2).
+ *   The stable poles are those of the analysis' rule (poles.ts, classifyPoles).
  *
  * The stiffness ratio (fastest over slowest decay rate of the stable poles) comes from the eigenvalues for
  * small models; above `EIGEN_MAX` states it is estimated by power iteration on A and on A⁻¹ (largest over
@@ -22,11 +23,14 @@ import { matVec } from './linear-system';
 import type { CheckedOptions } from './output-grid';
 import { IntervalLengths } from './exact';
 import type { SolverName } from './types';
+import { classifyPoles } from '../poles';
+import { explicitStabilitySteps } from '../step-limits';
 
 export const EXACT_ALWAYS = 500;
 export const EXACT_MAX = 2000;
 const EIGEN_MAX = 200;
-const STIFF_RATIO = 1e3;
+/** Stiffness ratio from which a linear model counts as stiff (common practice); the reduction report uses it too. */
+export const STIFF_RATIO = 1e3;
 const EXPLICIT_STEP_LIMIT = 1e5;
 const MAX_EXPONENTIALS = 4;
 
@@ -68,16 +72,14 @@ export function estimateStiffness(A: Matrix): StiffnessEstimate {
   const n = A.rows;
   if (n <= EIGEN_MAX) {
     const ev = eigenvalues(A);
+    const { stability } = classifyPoles(ev);
     let fastest = 0;
     let slowest = Infinity;
-    let scale = 0;
-    for (let k = 0; k < n; k++) scale = Math.max(scale, Math.hypot(ev.re[k], ev.im[k]));
     for (let k = 0; k < n; k++) {
+      if (stability[k] !== 'stable') continue;
       const rate = -ev.re[k];
-      if (rate > 1e-10 * Math.max(scale, 1e-300)) {
-        fastest = Math.max(fastest, rate);
-        slowest = Math.min(slowest, rate);
-      }
+      fastest = Math.max(fastest, rate);
+      slowest = Math.min(slowest, rate);
     }
     if (!Number.isFinite(slowest)) slowest = 0;
     return { fastest, slowest, ratio: slowest > 0 ? fastest / slowest : 1, method: 'eigenvalues' };
@@ -126,7 +128,7 @@ export function chooseSolver(A: Matrix, input: InputSignal, opts: CheckedOptions
     };
   }
   const s = estimateStiffness(A);
-  const stabilitySteps = (s.fastest * opts.tEnd) / 3.3;
+  const stabilitySteps = explicitStabilitySteps(s.fastest, opts.tEnd);
   const stiff = s.ratio >= STIFF_RATIO || stabilitySteps > EXPLICIT_STEP_LIMIT;
   const stiffText =
     `stiffness ratio ≈ ${fmt(s.ratio)} (${s.method}; fastest rate ${fmt(s.fastest)}, slowest ${fmt(s.slowest)}), ` +

@@ -8,6 +8,6 @@
 export * from './types';
 export { simulate } from './simulate';
 export { stepInput, impulseInput, parseSampledInput, type InputSignal } from './inputs';
-export { chooseSolver, estimateStiffness } from './auto';
+export { chooseSolver, estimateStiffness, STIFF_RATIO } from './auto';
 export { SharedExponentials } from './exact';
 export { simulationCostReport, type SimulationCostReport, type SolverCostRow } from './cost-report';

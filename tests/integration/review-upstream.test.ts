@@ -178,8 +178,8 @@ describe('lineage', () => {
       ['project', project.id],
     ]);
     expect(lineage.edges).toEqual([
-      { from: shelf.sourceVersion.id, to: shelf.version.id, kind: 'reduced_from', label: 'balanced, r = 1' },
-      { from: v2.id, to: rerun.id, kind: 'reduced_from', label: 'balanced, r = 1' },
+      { from: shelf.sourceVersion.id, to: shelf.version.id, kind: 'reduced_from', label: 'balanced truncation, r = 1' },
+      { from: v2.id, to: rerun.id, kind: 'reduced_from', label: 'balanced truncation, r = 1' },
       { from: shelf.version.id, to: rerun.id, kind: 'predecessor', label: 'made from' },
       { from: shelf.version.id, to: project.id, kind: 'pinned_by', label: 'exact pin' },
     ]);
@@ -210,15 +210,15 @@ describe('the Dashboard feed', () => {
     // Other files add events at the same time, so the feed is read deeper than the Dashboard's fifteen.
     const recent = await recentActivity(500);
     expect(forReviewer.recent.length).toBeLessThanOrEqual(15);
-    expect(recent.some((i) => i.kind === 'revise' && i.versionId === sentBack.version.id)).toBe(true);
-    expect(recent.some((i) => i.kind === 'source_version' && i.sourceModelSlug === sentBack.sourceModel.slug && i.number === v2.number)).toBe(true);
+    expect(recent.some((i) => i.action === 'reduced_version.sent_back_for_revision' && i.subjectId === sentBack.version.id && i.tone === 'revise' && i.detail === 'Keep the fast mode.')).toBe(true);
+    expect(recent.some((i) => i.action === 'source_version.uploaded' && i.subjectId === v2.id && i.subject?.label === `${sentBack.sourceModel.name} v${v2.number}`)).toBe(true);
 
     const forAuthor = await dashboardActivity(actor(author));
     expect(forAuthor.awaitingYourReview).toEqual([]);
     expect(forAuthor.yoursInReview.map((q) => q.versionId)).toEqual([waiting.version.id]);
     expect(forAuthor.sentBackToYou).toMatchObject([{ versionId: sentBack.version.id, comment: 'Keep the fast mode.', reviewerName: reviewer.name }]);
     expect(forAuthor.yourUpstreamChanged.map((u) => u.reducedVersionId)).toEqual([stillLive.version.id]);
-    const upstreamItem = (await recentActivity(500)).find((i) => i.kind === 'source_version' && i.sourceModelSlug === stillLive.sourceModel.slug);
+    const upstreamItem = (await recentActivity(500)).find((i) => i.action === 'source_version.uploaded' && i.subject?.label.startsWith(stillLive.sourceModel.name));
     expect(upstreamItem).toMatchObject({ upstreamChangedCount: 1 });
   });
 });

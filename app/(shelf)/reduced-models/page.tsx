@@ -7,17 +7,12 @@ import { PageHeader } from '@/components/shell/PageHeader';
 import { EmptyState } from '@/components/shell/EmptyState';
 import { StatusBadge, UpstreamChangedBadge } from '@/components/review/StatusBadge';
 import { reducedModelsUpstream } from '@/lib/upstream';
-import { formatPercent } from '@/components/charts/format';
+import { formatPercent } from '@/lib/format';
+import { methodName } from '@/lib/recipe-words';
+import { acceptanceWord } from '@/lib/acceptance';
 
 export const metadata: Metadata = { title: 'Reduced models' };
 export const dynamic = 'force-dynamic';
-
-const METHOD_WORDS: Record<string, string> = {
-  balanced: 'balanced truncation',
-  residualization: 'balanced residualization',
-  modal: 'modal truncation',
-  'frequency-limited': 'frequency-limited balanced truncation',
-};
 
 export default async function ReducedModelsPage() {
   await requirePageRole();
@@ -66,9 +61,9 @@ export default async function ReducedModelsPage() {
                     {upstream.get(m.id)?.upstreamChanged ? <UpstreamChangedBadge sourceNumber={upstream.get(m.id)!.latestSourceNumber} newestSourceNumber={upstream.get(m.id)!.newestSourceNumber} /> : null}
                   </td>
                   <td className="num px-4 py-2">{m.order}</td>
-                  <td className="px-4 py-2">{METHOD_WORDS[m.method] ?? m.method}</td>
+                  <td className="px-4 py-2">{methodName(m.method)}</td>
                   <td className="num px-4 py-2">{m.hInfinityErrorRelative === null ? '—' : formatPercent(m.hInfinityErrorRelative)}</td>
-                  <td className="px-4 py-2">{m.acceptancePassed === null ? '—' : m.acceptancePassed ? 'PASS' : 'FAIL'}</td>
+                  <td className="px-4 py-2">{acceptanceWord(m.acceptance)}</td>
                   <td className="px-4 py-2">{m.author}</td>
                   <td className="num px-4 py-2 text-xs">{m.updatedAt.replace('T', ' ').slice(0, 16)}</td>
                 </tr>

@@ -82,15 +82,16 @@ describe('charts drawn by ECharts', () => {
     expect(curves(svg, INK.teal).filter((p) => p.dashed)).toHaveLength(1);
   });
 
-  it('error against bound: the admissible band is filled and the verdict written', () => {
+  it('error against bound: the admissible band is filled, the acceptance band drawn, and no verdict text on the canvas', () => {
     const full = lag(1);
     const red = lag(1.1);
     const err = W.map((_, i) => Math.hypot(full.re[i] - red.re[i], full.im[i] - red.im[i]));
-    const svg = renderSvg(
-      buildErrorBoundOption({ frequencies: W, error: err, bound: 0.2, acceptance: { minFrequency: 0.1, maxFrequency: 10, maxError: 0.01 } }),
-    );
+    const acceptance = { status: 'fail' as const, minFrequency: 0.1, maxFrequency: 10, maxError: 0.01, worstError: 0.05, worstFrequency: 1, pointsChecked: 40, computedRange: [W[0], W[W.length - 1]] as [number, number] };
+    const svg = renderSvg(buildErrorBoundOption({ frequencies: W, error: err, bound: 0.2, acceptance }));
     expect(paths(svg).some((p) => p.fill === 'rgb(12,91,95)')).toBe(true);
-    expect(texts(svg).some((t) => t.startsWith('FAIL: error'))).toBe(true);
+    expect(texts(svg).some((t) => t.startsWith('acceptance band ≤ 0.01'))).toBe(true);
+    // The verdict's sentence is page text written once by ErrorBoundChart; drawing it here too was the duplicate.
+    expect(texts(svg).some((t) => /^(PASS|FAIL|NOT CHECKED)/.test(t))).toBe(false);
     expect(texts(svg)).toEqual(expect.arrayContaining(['1e-3', '0.1']));
   });
 

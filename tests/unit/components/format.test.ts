@@ -11,7 +11,7 @@ import {
   formatPercent,
   formatTime,
   formatWallTime,
-} from '@/components/charts/format';
+} from '@/lib/format';
 
 // Expected strings are worked out by hand from the rules in format.ts (3 significant figures by default,
 // exponent form outside [0.01, 10 000), unit after a no-break space).

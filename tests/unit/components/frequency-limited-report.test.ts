@@ -97,12 +97,15 @@ describe('exports: recipe and accuracy lines', () => {
   const source = (figures: AccuracyFiguresRecord) =>
     ({
       timeUnit: 's',
+      version: { order: 4 },
       recipe: { method: 'frequency-limited', order: 4, tolerance: null, options: { band: { minFrequency: 10, maxFrequency: 60 } }, acceptance: null },
       accuracyReport: { figures: figures as unknown as Record<string, unknown>, acceptancePassed: null },
     }) as unknown as ExportSource;
 
   it('names the band and says that no bound applies, with the measured errors and stability', () => {
-    expect(recipeLine(source(flFigures(true)))).toBe('Recipe: frequency-limited balanced truncation, order 4, band 10 to 60 rad/s');
+    expect(recipeLine(source(flFigures(true)))).toBe(
+      'Recipe: frequency-limited balanced truncation on the band 10 to 60 rad/s, order 4, no a-priori error bound for this method',
+    );
     expect(accuracyLine(source(flFigures(false)))).toBe(
       'Accuracy: no a-priori error bound for this method; measured error inside the band 0.0125, outside the band 2.5, H-infinity error not reported; reduced model stable: NO',
     );
@@ -111,7 +114,7 @@ describe('exports: recipe and accuracy lines', () => {
   it('keeps the bound line for a balanced recipe', () => {
     const s = source({ ...flFigures(true), method: 'balanced', errorBound: 3, errorBoundNote: null, frequencyLimited: null });
     (s.recipe as { method: string }).method = 'balanced';
-    expect(recipeLine(s)).toBe('Recipe: balanced, order 4');
+    expect(recipeLine(s)).toBe('Recipe: balanced truncation, order 4');
     expect(accuracyLine(s)).toBe('Accuracy: H-infinity error 2.5, relative not reported, bound 3');
   });
 });

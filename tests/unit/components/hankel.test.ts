@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { balancedTruncationBound, cumulativeEnergy } from '@/components/charts/hankel-data';
-import { BOUND_SERIES, buildHankelOption, ENERGY_SERIES, hankelTooltipLines, HSV_SERIES } from '@/components/charts/hankel-option';
+import { BOUND_SERIES, buildHankelOption, ENERGY_SERIES, FLOOR_LABEL, hankelTooltipLines, HSV_SERIES, OPENING_MAX_VALUES, openingView } from '@/components/charts/hankel-option';
 import { BOUND_LINE } from '@/components/charts/theme';
 
 type Series = { name: string; yAxisIndex: number; data: [number, number | null][]; lineStyle: { color: string; type: string }; markLine?: { data: { xAxis: number }[]; label: { formatter: string } } };
@@ -96,3 +96,45 @@ describe('buildHankelOption', () => {
     expect(hankelTooltipLines(2, HSV, [15, 7, 3, 1, 0], energy)).toEqual(['r = 2', 'σ2 = 2', 'bound = 3', 'energy kept = 80\u00a0%']);
   });
 });
+
+describe('the opening view of a large model', () => {
+  // 1000 values falling geometrically from 1 to 1e-17: σi = 10^(-17(i-1)/999). Above σ1·1e-12 are those with
+  // 17(i-1)/999 < 12, i.e. i − 1 < 705.2: 706 values; the opening view keeps the first 100 of them.
+  const n = 1000;
+  const hsv = Array.from({ length: n }, (_, i) => 10 ** ((-17 * i) / (n - 1)));
+  type Zoom = { type: string; startValue: number; endValue: number };
+  type Area = { data: [{ yAxis: number }, { yAxis: number }][]; label: { formatter: string } };
+
+  it('opens on the meaningful values, at most the first hundred, always showing the chosen order', () => {
+    expect(openingView(hsv)).toBe(OPENING_MAX_VALUES);
+    expect(openingView(hsv, 150)).toBe(151);
+    // a small model whose values all matter: all of them
+    expect(openingView([4, 2, 1, 0.5])).toBe(4);
+    // values falling fast: σ3 = 1e-13 is under σ1·1e-12, so the view stops at 2
+    expect(openingView([1, 1e-3, 1e-13, 1e-16])).toBe(2);
+  });
+
+  it('sets the zoom window and the log axis to that view, with a slider for the rest', () => {
+    const option = buildHankelOption({ hankelSingularValues: hsv, order: 20 });
+    const zoom = option.dataZoom as unknown as Zoom[];
+    expect(zoom.map((z) => z.type)).toEqual(['inside', 'slider']);
+    expect(zoom.every((z) => z.startValue === 0 && z.endValue === 100)).toBe(true);
+    // σ100 = 10^(-17·99/999) = 10^-1.685, the bound near it is larger: the axis stops at the decade 1e-2, not 1e-17
+    expect((option.yAxis as unknown as { min: number }[])[0].min).toBe(0.01);
+    expect((option.xAxis as unknown as { max: number }).max).toBe(n);
+  });
+
+  it('shades the rounding floor σ1·n·ε and names it', () => {
+    // values reaching below the floor in the opening view: σ1·n·ε = 1·4·2.2e-16 = 8.9e-16
+    const deep = [1, 1e-5, 1e-11, 1e-17];
+    const option = buildHankelOption({ hankelSingularValues: deep, order: 3 });
+    const area = (option.series as unknown as (Series & { markArea?: Area })[])[0].markArea!;
+    const floor = 4 * Number.EPSILON;
+    expect(area.data[0][1].yAxis).toBe(floor);
+    // the axis goes down to the floor's decade (1e-16), not to 1e-17
+    expect((option.yAxis as unknown as { min: number }[])[0].min).toBe(1e-16);
+    expect(area.data[0][0].yAxis).toBe(1e-16);
+    expect(area.label.formatter).toBe(`${FLOOR_LABEL} = 8.88e-16`);
+  });
+});
+

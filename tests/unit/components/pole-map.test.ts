@@ -5,7 +5,7 @@ import {
   poleTooltipLines,
   type PoleMapData,
 } from '@/components/charts/pole-map-option';
-import { classifyPoles, modalFigures, symlog, symlogInverse, symlogThreshold } from '@/components/charts/pole-data';
+import { symlog, symlogInverse, symlogThreshold } from '@/components/charts/pole-data';
 import { INK } from '@/components/charts/theme';
 
 type AnySeries = { name: string; symbol: string; data: [number, number, number][]; itemStyle: { color: string; borderColor: string }; markLine?: { data: { xAxis: number }[] } };
@@ -14,43 +14,6 @@ type AnyAxis = { type: string; min?: number; max?: number; interval?: number; na
 function seriesOf(data: PoleMapData): AnySeries[] {
   return buildPoleMapOption(data).series as unknown as AnySeries[];
 }
-
-describe('modal figures of a pole', () => {
-  // λ = -3 + 4j: |λ| = 5 (3-4-5 triangle), ζ = 3/5, τ = 1/3, computed by hand from
-  // λ = -ζωn ± jωn√(1-ζ²) (Franklin, Powell & Emami-Naeini, Feedback Control of Dynamic Systems, §3.3).
-  it('gives ωn = |λ|, ζ = -Re λ/|λ| and τ = 1/|Re λ|', () => {
-    const m = modalFigures(-3, 4);
-    expect(m.naturalFrequency).toBeCloseTo(5, 14);
-    expect(m.dampingRatio).toBeCloseTo(0.6, 14);
-    expect(m.timeConstant).toBeCloseTo(1 / 3, 14);
-    expect(m.growing).toBe(false);
-  });
-
-  it('marks a growing pole and leaves damping undefined at the origin', () => {
-    expect(modalFigures(0.5, 0)).toMatchObject({ timeConstant: 2, growing: true, dampingRatio: -1 });
-    const origin = modalFigures(0, 0);
-    expect(origin.dampingRatio).toBeNaN();
-    expect(origin.timeConstant).toBe(Infinity);
-  });
-});
-
-describe('stability split (fallback when the engine gave none)', () => {
-  it('calls a pole marginal within the relative tolerance of the spectral radius', () => {
-    // spectral radius 2, tolerance 1e-9 → |Re λ| ≤ 2e-9 is marginal
-    expect(classifyPoles([-1, 0, 1e-12, 3e-9, 2], [0, 0, 0, 0, 0])).toEqual([
-      'stable',
-      'marginal',
-      'marginal',
-      'unstable',
-      'unstable',
-    ]);
-  });
-
-  it('names the field that is wrong', () => {
-    expect(() => classifyPoles([1, 2], [0])).toThrow(/im must have as many entries as re/);
-    expect(() => classifyPoles([NaN], [0])).toThrow(/re must hold finite numbers \(entry 0 is NaN\)/);
-  });
-});
 
 describe('symmetric-log transform', () => {
   it('is linear inside the threshold and one unit per decade outside', () => {

@@ -8,7 +8,7 @@ import { listProjectPins, pinCandidates } from '@/lib/pins';
 import { listProjectTokens } from '@/lib/project-tokens';
 import { PageHeader } from '@/components/shell/PageHeader';
 import { Caution } from '@/components/workspace/Caution';
-import { formatFrequency, formatNumber, formatTime } from '@/components/charts/format';
+import { formatFrequency, formatNumber, formatTime } from '@/lib/format';
 import { PinsPanel } from '@/components/projects/PinsPanel';
 import { TokensPanel } from '@/components/projects/TokensPanel';
 import { MembersPanel, SampleTimeForm } from '@/components/projects/MembersPanel';

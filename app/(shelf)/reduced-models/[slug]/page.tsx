@@ -8,7 +8,9 @@ import { PageHeader } from '@/components/shell/PageHeader';
 import { StatusBadge } from '@/components/review/StatusBadge';
 import { Caution } from '@/components/workspace/Caution';
 import { ReducedModelUpstreamNotice } from '@/components/lineage/ReducedModelUpstreamNotice';
-import { formatNumber, formatPercent } from '@/components/charts/format';
+import { formatNumber, formatPercent } from '@/lib/format';
+import { methodName, NO_BOUND_NOTE } from '@/lib/recipe-words';
+import { acceptanceWord } from '@/lib/acceptance';
 
 export const metadata: Metadata = { title: 'Reduced model' };
 export const dynamic = 'force-dynamic';
@@ -64,19 +66,19 @@ export default async function ReducedModelPage({ params }: { params: Promise<{ s
                     v{v.sourceVersionNumber}
                   </Link>
                 </td>
-                <td className="px-4 py-2">{v.method}</td>
+                <td className="px-4 py-2">{methodName(v.method)}</td>
                 <td className="num px-4 py-2">{v.order}</td>
                 <td className="num px-4 py-2">{v.hInfinityErrorRelative === null ? '—' : formatPercent(v.hInfinityErrorRelative)}</td>
                 <td className="num px-4 py-2">
                   {v.errorBound !== null ? (
                     formatNumber(v.errorBound)
                   ) : v.method === 'frequency-limited' ? (
-                    <span title="no a-priori error bound for this method">none</span>
+                    <span title={NO_BOUND_NOTE}>none</span>
                   ) : (
                     '—'
                   )}
                 </td>
-                <td className="px-4 py-2">{v.acceptancePassed === null ? '—' : v.acceptancePassed ? 'PASS' : 'FAIL'}</td>
+                <td className="px-4 py-2">{acceptanceWord(v.acceptance)}</td>
                 <td className="num px-4 py-2 text-xs" title={v.matricesSha256}>
                   {v.matricesSha256.slice(0, 12)}…
                 </td>

@@ -13,18 +13,9 @@ import { FigureComparison } from '@/components/review/FigureComparison';
 import { StatusBadge, UpstreamChangedBadge } from '@/components/review/StatusBadge';
 import { UpstreamNotice } from '@/components/lineage/UpstreamNotice';
 import { formatWhen } from '@/components/review/when';
-import { formatNumber } from '@/components/charts/format';
+import { describeRecipe } from '@/lib/recipe-words';
 
 export const metadata: Metadata = { title: 'Review sheet' };
-
-function recipeText(recipe: { method: string; order: number | null; tolerance: number | null; options: Record<string, unknown> }): string {
-  const text = recipe.order !== null ? `${recipe.method}, fixed order ${recipe.order}` : `${recipe.method}, smallest order whose bound meets ${recipe.tolerance}`;
-  const band = recipe.options.band as { minFrequency?: unknown; maxFrequency?: unknown } | undefined;
-  if (recipe.method === 'frequency-limited' && band && typeof band.minFrequency === 'number' && typeof band.maxFrequency === 'number') {
-    return `${text}, band ${formatNumber(band.minFrequency)}–${formatNumber(band.maxFrequency)} rad per time unit; no a-priori error bound for this method`;
-  }
-  return text;
-}
 
 export default async function ReviewSheetPage({ params }: { params: Promise<{ versionId: string }> }) {
   const user = await requirePageRole();
@@ -74,7 +65,7 @@ export default async function ReviewSheetPage({ params }: { params: Promise<{ ve
                 <span className="num text-xs text-graphite-soft">checksum {v.source.checksum.slice(0, 16)}</span>
               </dd>
               <dt className="field-label">Recipe</dt>
-              <dd>{recipeText(v.recipe)}</dd>
+              <dd>{describeRecipe(v.recipe, { timeUnit: v.source.timeUnit, resultOrder: v.order })}</dd>
               <dt className="field-label">Order</dt>
               <dd className="num">
                 {v.order}

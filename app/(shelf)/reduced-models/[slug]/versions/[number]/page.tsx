@@ -9,17 +9,10 @@ import { StatusBadge } from '@/components/review/StatusBadge';
 import { Caution } from '@/components/workspace/Caution';
 import { ComparisonView } from '@/components/reduced-models/ComparisonView';
 import { VersionReviewSection } from '@/components/review/VersionReviewSection';
-import { formatFrequency, formatNumber } from '@/components/charts/format';
+import { describeRecipe } from '@/lib/recipe-words';
 
 export const metadata: Metadata = { title: 'Full and reduced compared' };
 export const dynamic = 'force-dynamic';
-
-const METHOD_WORDS: Record<string, string> = {
-  balanced: 'balanced truncation',
-  residualization: 'balanced residualization',
-  modal: 'modal truncation',
-  'frequency-limited': 'frequency-limited balanced truncation',
-};
 
 export default async function ComparisonPage({ params }: { params: Promise<{ slug: string; number: string }> }) {
   const user = await requirePageRole();
@@ -30,18 +23,6 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
   if (!data) notFound();
   const { model, version, recipe, source, figures, curves } = data;
   const timeUnit = source.timeUnit || 's';
-  const rule =
-    recipe.order !== null ? `order ${recipe.order}` : `smallest order whose bound is at most ${formatNumber(recipe.tolerance!)} × ‖G‖∞ (gave ${version.order})`;
-  const selection = recipe.method === 'modal' ? `, modes kept first by ${recipe.options.selection ?? 'dominance'}` : '';
-  const entered = recipe.options.enteredBand;
-  const band =
-    recipe.method === 'frequency-limited' && recipe.options.band
-      ? ` on the band ${formatNumber(recipe.options.band.minFrequency)}–${formatFrequency(recipe.options.band.maxFrequency, timeUnit)}${
-          entered?.unit === 'hz' ? ` (given as ${formatNumber(entered.minFrequency)}–${formatNumber(entered.maxFrequency)} Hz)` : ''
-        }`
-      : recipe.options.band
-        ? ` in ${formatNumber(recipe.options.band.minFrequency)}–${formatFrequency(recipe.options.band.maxFrequency, timeUnit)}`
-        : '';
   return (
     <>
       <PageHeader
@@ -52,9 +33,7 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
             <Link href={source.url}>
               {source.modelName} v{source.versionNumber}
             </Link>{' '}
-            (<span className="num">{figures.fullOrder}</span> states) by {METHOD_WORDS[recipe.method] ?? recipe.method}
-            {selection}
-            {band}, {rule}.
+            (<span className="num">{figures.fullOrder}</span> states) by {describeRecipe(recipe, { timeUnit, resultOrder: version.order })}.
           </>
         }
         actions={
@@ -80,7 +59,7 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
         reducedVersionId={version.id}
         figures={figures}
         curves={curves}
-        acceptance={recipe.acceptance}
+        acceptance={version.acceptance}
         timeUnit={timeUnit}
         inputNames={source.inputNames}
         outputNames={source.outputNames}
