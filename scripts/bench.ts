@@ -59,7 +59,11 @@ function lastJsonLine(text: string, what: string): Record<string, unknown> {
 }
 
 function referenceCommand(c: BenchCase, n: number, dir: string, timed = true): { command: string; args: string[] } {
-  if (c.reference) return c.reference(n, dir);
+  if (c.reference) {
+    // Every reference script takes --no-time (the warm-up only needs its input files).
+    const r = c.reference(n, dir);
+    return timed ? r : { ...r, args: [...r.args, '--no-time'] };
+  }
   const args = [path.join(ROOT, 'tests', 'reference', 'bench_reference.py'), c.id, String(n), dir];
   if (!timed) args.push('--no-time');
   return { command: PYTHON, args };
