@@ -53,8 +53,9 @@ log "building the app (next build)"
 node_modules/.bin/next build >"$RUN_DIR/build.log" 2>&1 || { tail -40 "$RUN_DIR/build.log" >&2; die "next build failed (log: .run/build.log)"; }
 
 if [ -f scripts/worker.ts ]; then
-  log "starting one worker (log: .run/worker.log)"
-  setsid bash scripts/worker.sh >"$RUN_DIR/worker.log" 2>&1 &
+  # One worker serves both classes, with a slot for each, so a large job never holds back small ones.
+  log "starting one worker for small and large jobs (log: .run/worker.log)"
+  setsid bash scripts/worker.sh --classes small,large >"$RUN_DIR/worker.log" 2>&1 &
   echo $! >"$RUN_DIR/worker.pid"
 fi
 

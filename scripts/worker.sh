@@ -1,6 +1,8 @@
 #!/usr/bin/env bash
 # Runs one background worker (`npm run worker`; run it again, in another terminal or on another machine
-# with the same DATABASE_URL, for more). The worker's entry is scripts/worker.ts (lib/jobs); without it
+# with the same DATABASE_URL, for more). Arguments go to the worker: `--classes small,large` (the worker
+# classes it serves; default both), `--concurrency N` (engine tasks at once per class), `--memory MiB`.
+# The worker's entry is scripts/worker.ts (lib/jobs); without it
 # there is nothing to run and this says so and exits 0, so start.sh can always call it.
 #
 # One process per worker: this script replaces itself (exec) with the Node process that runs the jobs,

@@ -9,7 +9,12 @@
 // (`npm run worker`, `npm start`), the worker also stops when the npm process above it goes away, however
 // it went, so killing what `npm run worker` started never leaves a worker running on its own.
 //
-//   MODESHELF_WORKER_CONCURRENCY   engine tasks at once in this process (default 1)
+//   MODESHELF_WORKER_CLASSES       worker classes served, e.g. "small" or "small,large" (default both;
+//                                  lib/jobs/worker-class.ts). `npm run worker -- --classes small,large` sets it.
+//   MODESHELF_WORKER_CONCURRENCY   engine tasks at once in this process for each class served (default 1).
+//                                  `npm run worker -- --concurrency N` sets it.
+//   MODESHELF_CANCEL_GRACE_MS      how long a cancelled job's engine may take to reach its next check before
+//                                  its thread is terminated (default 2000)
 //   MODESHELF_JOB_STALE_SECONDS    heartbeat silence after which a running job is handed back (default 60)
 //   MODESHELF_WORKER_WATCH_PARENT  1: stop when the parent process goes; 0: never; unset: when started by npm
 //   MODESHELF_WORKER_MEMORY_MIB    memory budget: a job whose estimated memory exceeds it is refused with both
@@ -18,7 +23,7 @@
 import { readFileSync } from 'node:fs';
 import { closeDb } from '../lib/db';
 import { closeQueue } from '../lib/jobs/queue';
-import { startWorker, type RunningWorker } from '../lib/jobs/worker-loop';
+import { parseWorkerClasses, startWorker, type RunningWorker } from '../lib/jobs/worker-loop';
 import { startNotificationSender } from '../lib/notification-sender';
 import { workerMemoryBudgetMiB } from '../lib/jobs/memory-budget';
 import { objectStore, verifyStore } from '../lib/storage';
@@ -77,17 +82,42 @@ function watchedAncestors(): { pid: number; started: string }[] {
   return byNpm && !chain.some((a) => isNpm(a.pid)) ? chain.slice(0, 1) : chain;
 }
 
-/** `--memory MiB` / `--memory=MiB` on the command line sets the memory budget (checked before starting). */
-function applyMemoryFlag(argv: readonly string[]): void {
-  const i = argv.findIndex((a) => a === '--memory' || a.startsWith('--memory='));
-  if (i < 0) return;
-  const value = argv[i].includes('=') ? argv[i].slice('--memory='.length) : argv[i + 1];
-  if (value === undefined) throw new Error('--memory needs a number of MiB, e.g. --memory 4096');
-  process.env.MODESHELF_WORKER_MEMORY_MIB = value;
+/** The value of `--name value` / `--name=value` on the command line, or undefined when not given. */
+function flagValue(argv: readonly string[], name: string, example: string): string | undefined {
+  const i = argv.findIndex((a) => a === `--${name}` || a.startsWith(`--${name}=`));
+  if (i < 0) return undefined;
+  const value = argv[i].includes('=') ? argv[i].slice(`--${name}=`.length) : argv[i + 1];
+  if (value === undefined || value.startsWith('--')) throw new Error(`--${name} needs a value, e.g. --${name} ${example}`);
+  return value;
+}
+
+/**
+ * `--memory MiB` sets the memory budget, `--classes small,large` the worker classes served, `--concurrency N`
+ * the engine tasks at once per class (each checked before starting, through the variables they set).
+ */
+function applyFlags(argv: readonly string[]): void {
+  const memory = flagValue(argv, 'memory', '4096');
+  if (memory !== undefined) process.env.MODESHELF_WORKER_MEMORY_MIB = memory;
+  const classes = flagValue(argv, 'classes', 'small,large');
+  if (classes !== undefined) process.env.MODESHELF_WORKER_CLASSES = classes;
+  const concurrency = flagValue(argv, 'concurrency', '2');
+  if (concurrency !== undefined) process.env.MODESHELF_WORKER_CONCURRENCY = concurrency;
+}
+
+/** Engine tasks at once per class: MODESHELF_WORKER_CONCURRENCY, a whole number ≥ 1 (default 1). */
+function concurrencySetting(): number {
+  const raw = process.env.MODESHELF_WORKER_CONCURRENCY;
+  if (raw === undefined || raw.trim() === '') return 1;
+  const v = Number(raw);
+  if (!Number.isInteger(v) || v < 1) throw new Error(`MODESHELF_WORKER_CONCURRENCY (or --concurrency) must be a whole number ≥ 1, got "${raw}"`);
+  return v;
 }
 
 async function main(): Promise<void> {
-  applyMemoryFlag(process.argv.slice(2));
+  applyFlags(process.argv.slice(2));
+  const classes = parseWorkerClasses(process.env.MODESHELF_WORKER_CLASSES?.trim() || 'small,large');
+  const concurrency = concurrencySetting();
+  console.log(`[modeshelf worker] classes ${classes.join(', ')}, ${concurrency} engine task(s) at once per class`);
   // A budget that is not a number stops the worker here, with the reason, rather than failing every job.
   console.log(`[modeshelf worker] memory budget ${workerMemoryBudgetMiB()} MiB`);
   // A store this machine cannot write and read back stops the worker here, with the reason, instead of
@@ -129,8 +159,7 @@ async function main(): Promise<void> {
     watch.unref();
   }
 
-  const concurrency = Math.max(1, Number(process.env.MODESHELF_WORKER_CONCURRENCY) || 1);
-  worker = await startWorker({ concurrency });
+  worker = await startWorker({ concurrency, classes });
   // Review and project mail: retries, and notices for source versions registered by any process.
   stopNotifications = startNotificationSender();
 }

@@ -2,6 +2,12 @@
 // thread per task keeps memory bounded: everything the engine allocated goes when the thread ends, and
 // the thread's JavaScript heap is capped (typed-array matrices live outside it and are freed with it).
 //
+// Stopping a task (a cancelled job): `stop` sets a flag in memory shared with the thread (a
+// SharedArrayBuffer). The task looks at it between iterations of its loops and at every progress report
+// (thread.ts) and ends with StoppedError; a thread that has not ended within the grace period (it is inside
+// one long engine call) is terminated. Either way the result rejects with TaskStopped at once, and the
+// worker's next task runs in a fresh thread: a terminated thread is replaced, never reused.
+//
 // The thread loads the TypeScript sources through tsx's require hook, so the worker needs no build step.
 import { createRequire } from 'node:module';
 import os from 'node:os';
@@ -9,7 +15,7 @@ import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { ModelError, type ModelErrorCode } from '../../reduction/index';
 import { repoRoot } from '../uploads/settings';
-import type { ProgressReporter } from './progress';
+import { cleanDetail, type ProgressReporter } from './progress';
 import type { TaskRequest } from './tasks';
 
 /** Heap of one engine thread, MiB (common practice: matrices are off-heap; the heap holds result JSON). */
@@ -23,10 +29,33 @@ export class EngineTaskError extends Error {
   }
 }
 
+/** The result of a task that was stopped on request; `how` says whether the engine stopped at its own check. */
+export class TaskStopped extends Error {
+  constructor(
+    readonly reason: string,
+    readonly how: 'at a check' | 'terminated',
+    readonly afterMs: number,
+  ) {
+    super(`stopped: ${reason}`);
+    this.name = 'TaskStopped';
+  }
+}
+
 export interface RunningTask<T> {
   readonly result: Promise<T>;
-  /** Stops the thread; the result then rejects. */
+  /** Stops the thread at once; the result then rejects. */
   cancel(reason: string): void;
+  /**
+   * Asks the task to stop at its next check; after `graceMs` without an answer the thread is terminated.
+   * The result then rejects with TaskStopped (unless it had already settled).
+   */
+  stop(reason: string, graceMs: number): void;
+}
+
+/** How long a task asked to stop may take to reach its next check before its thread is terminated. */
+export function stopGraceMs(): number {
+  const raw = Number(process.env.MODESHELF_CANCEL_GRACE_MS);
+  return Number.isFinite(raw) && raw >= 0 ? raw : 2000;
 }
 
 function bootstrap(): string {
@@ -49,31 +78,40 @@ export function engineThreadsPerTask(): number {
 }
 
 export function startEngineTask<T>(request: TaskRequest, onProgress: ProgressReporter): RunningTask<T> {
+  // One Int32 shared with the thread: 0 runs, 1 stop (thread.ts reads it with Atomics.load).
+  const stopFlag = new Int32Array(new SharedArrayBuffer(4));
   const worker = new Worker(bootstrap(), {
     eval: true,
-    workerData: request,
+    workerData: { request, stopFlag },
     env: { ...process.env, MODESHELF_LINALG_THREADS: String(engineThreadsPerTask()) },
     resourceLimits: { maxOldGenerationSizeMb: THREAD_HEAP_MB },
   });
   let cancelled: string | null = null;
+  let stopping: { reason: string; at: number; timer: NodeJS.Timeout } | null = null;
+  let settle: (fn: () => void) => void = () => undefined;
+  let rejectWith: (err: Error) => void = () => undefined;
   const result = new Promise<T>((resolve, reject) => {
     let settled = false;
-    const settle = (fn: () => void) => {
+    settle = (fn: () => void) => {
       if (settled) return;
       settled = true;
+      if (stopping) clearTimeout(stopping.timer);
       fn();
       void worker.terminate();
     };
-    worker.on('message', (msg: { type: string; stage?: string; fraction?: number; value?: unknown; error?: { name: string; code?: string; field?: string; message: string; stack?: string } }) => {
-      if (msg.type === 'progress') onProgress(msg.stage ?? '', msg.fraction ?? 0);
+    rejectWith = (err) => settle(() => reject(err));
+    worker.on('message', (msg: { type: string; stage?: string; fraction?: number; detail?: unknown; value?: unknown; error?: { name: string; code?: string; field?: string; message: string; stack?: string } }) => {
+      if (msg.type === 'progress') onProgress(msg.stage ?? '', msg.fraction ?? 0, cleanDetail(msg.detail));
       else if (msg.type === 'result') settle(() => resolve(msg.value as T));
       else if (msg.type === 'error' && msg.error) {
         const e = msg.error;
         settle(() =>
           reject(
-            e.name === 'ModelError' && e.code && e.field !== undefined
-              ? new ModelError(e.code as ModelErrorCode, e.field, e.message)
-              : new EngineTaskError(e.message, e.stack),
+            stopping
+              ? new TaskStopped(stopping.reason, 'at a check', Date.now() - stopping.at)
+              : e.name === 'ModelError' && e.code && e.field !== undefined
+                ? new ModelError(e.code as ModelErrorCode, e.field, e.message)
+                : new EngineTaskError(e.message, e.stack),
           ),
         );
       }
@@ -94,6 +132,19 @@ export function startEngineTask<T>(request: TaskRequest, onProgress: ProgressRep
     cancel(reason: string) {
       cancelled = reason;
       void worker.terminate();
+    },
+    stop(reason: string, graceMs: number) {
+      if (stopping) return;
+      Atomics.store(stopFlag, 0, 1);
+      const at = Date.now();
+      // The thread is not awaited: one stuck inside a native call ends when that call returns, and the
+      // worker goes on with a fresh thread meanwhile.
+      const timer = setTimeout(() => {
+        void worker.terminate();
+        rejectWith(new TaskStopped(reason, 'terminated', Date.now() - at));
+      }, graceMs);
+      timer.unref();
+      stopping = { reason, at, timer };
     },
   };
 }

@@ -1,22 +1,38 @@
 // Entry of the worker thread that runs one engine task (run-task.ts starts it). The engine is synchronous
 // and CPU-bound; running it here keeps the worker's own event loop free for heartbeats and the queue.
+//
+// Stopping: the host sets a flag in shared memory (run-task.ts, stop). Every progress report looks at it
+// and throws StoppedError once it is set, so a task stops at its next report; an engine loop that takes a
+// signal (reduction/stop.ts: the low-rank ADI, the sparse frequency sweep) is to be given `stopSignal`,
+// which reads the same flag, and then stops between its iterations.
 import { parentPort, workerData } from 'node:worker_threads';
+import { StoppedError, type StopSignal } from '../../reduction/index';
 import { runAnalysis } from './analysis-task';
 import { runReduction } from './reduction-task';
 import { runInputResponse } from './response-task';
 import { fetchFile, fetchModelFiles } from './model-files';
+import type { ProgressDetail } from './progress';
 import type { TaskRequest } from './tasks';
 
 const port = parentPort;
 if (!port) throw new Error('lib/engine-tasks/thread.ts must run in a worker thread');
 
-const request = workerData as TaskRequest;
-const report = (stage: string, fraction: number) => port.postMessage({ type: 'progress', stage, fraction });
+const { request, stopFlag } = workerData as { request: TaskRequest; stopFlag: Int32Array };
+const stopSignal: StopSignal = {
+  get aborted() {
+    return Atomics.load(stopFlag, 0) === 1;
+  },
+};
+const report = (stage: string, fraction: number, detail?: ProgressDetail | null) => {
+  if (stopSignal.aborted) throw new StoppedError(stage || 'the engine task');
+  port.postMessage({ type: 'progress', stage, fraction, detail: detail ?? null });
+};
 
 async function run(): Promise<unknown> {
   // Stored files are fetched into this worker's scratch folder first (lib/storage/scratch.ts): the engine
   // reads from this machine's disk, never from the web server's.
   const files = await fetchModelFiles(request.files);
+  if (stopSignal.aborted) throw new StoppedError('fetching the model files');
   switch (request.task) {
     case 'analysis':
       return runAnalysis(files, request.engineVersion, report);

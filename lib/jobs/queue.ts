@@ -6,12 +6,19 @@
 // Delivery rules (per queue): a failed attempt is retried after RETRY_DELAY_SECONDS, at most RETRY_LIMIT
 // times; an attempt whose worker vanished is handed back by the heartbeat reaper (reaper.ts) long before
 // pg-boss's own expiry (EXPIRE_SECONDS, the backstop for a reaper that is not running).
+//
+// Worker classes: every kind of job has one queue per class, 'small' and 'large' (worker-class.ts decides
+// a job's class from its model's size when it is queued), so a worker serving only small jobs never waits
+// behind a large one, and a worker serving both keeps separate slots for each (worker-loop.ts).
 import PgBoss from 'pg-boss';
 import type { Knex } from 'knex';
 import { databaseUrl } from '@/lib/config';
 
 export type JobKind = 'analysis' | 'reduction' | 'response';
 export const JOB_KINDS: readonly JobKind[] = ['analysis', 'reduction', 'response'];
+
+export type WorkerClass = 'small' | 'large';
+export const WORKER_CLASSES: readonly WorkerClass[] = ['small', 'large'];
 
 /**
  * MODESHELF_QUEUE_PREFIX namespaces the queues, so a test's workers take only that test's jobs while other
@@ -29,10 +36,20 @@ const BASE_QUEUE_NAMES: Record<JobKind, string> = {
   response: 'modeshelf-response',
 };
 
-/** The queue of each kind of job (read at each use, so a test can set its prefix first). */
+/** The queue of each kind of small job (read at each use, so a test can set its prefix first). */
 export const QUEUE_NAMES: Readonly<Record<JobKind, string>> = new Proxy(BASE_QUEUE_NAMES, {
   get: (base, kind: string) => `${queuePrefix()}${base[kind as JobKind]}`,
 });
+
+/** The queue of a kind of job in a worker class: the small class keeps the original names, large ones end in "-large". */
+export function queueNameOf(kind: JobKind, workerClass: WorkerClass): string {
+  return workerClass === 'small' ? QUEUE_NAMES[kind] : `${QUEUE_NAMES[kind]}-large`;
+}
+
+/** Every queue: each kind in each class. */
+export function allQueues(): { kind: JobKind; workerClass: WorkerClass; name: string }[] {
+  return WORKER_CLASSES.flatMap((workerClass) => JOB_KINDS.map((kind) => ({ kind, workerClass, name: queueNameOf(kind, workerClass) })));
+}
 
 export const RETRY_LIMIT = 2;
 export const RETRY_DELAY_SECONDS = 2;
@@ -60,10 +77,19 @@ export function queueDb(trx: Knex.Transaction): PgBoss.Db {
   };
 }
 
-/** Sends the delivery `queueId` of job `jobId` inside `trx`; sending an id that already exists does nothing. */
-export async function sendDelivery(boss: PgBoss, trx: Knex.Transaction, kind: JobKind, jobId: string, queueId: string): Promise<void> {
+/**
+ * Sends the delivery `queueId` of job `jobId` to its kind's queue in its class, inside `trx`; sending an id
+ * that already exists does nothing.
+ */
+export async function sendDelivery(
+  boss: PgBoss,
+  trx: Knex.Transaction,
+  job: { kind: JobKind; workerClass: WorkerClass },
+  jobId: string,
+  queueId: string,
+): Promise<void> {
   const message: QueueMessage = { jobId };
-  await boss.send(QUEUE_NAMES[kind], message, {
+  await boss.send(queueNameOf(job.kind, job.workerClass), message, {
     id: queueId,
     retryLimit: RETRY_LIMIT,
     retryDelay: retryDelaySeconds(),
@@ -81,8 +107,7 @@ type Role = 'web' | 'worker';
 const globalForBoss = globalThis as unknown as { modeshelfBoss?: { role: Role; url: string; started: Promise<PgBoss> } };
 
 async function ensureQueues(boss: PgBoss): Promise<void> {
-  for (const kind of JOB_KINDS) {
-    const name = QUEUE_NAMES[kind];
+  for (const { name } of allQueues()) {
     if (await boss.getQueue(name)) continue;
     try {
       await boss.createQueue(name, {

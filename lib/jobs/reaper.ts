@@ -5,14 +5,15 @@
 //   row running, heartbeat silent for the stale limit      the worker is gone (killed, out of memory, machine
 //                                                          gone): its active delivery is failed, and the row
 //                                                          follows the delivery: queued for the retry, or
-//                                                          failed when no retry is left
+//                                                          failed when no retry is left; a job someone asked
+//                                                          to cancel ends cancelled instead, with its delivery
 //   row queued, delivery active for the stale limit        taken and never claimed (a worker of an earlier
 //                                                          release that died between the two): as above
 //   row queued, delivery completed, failed, cancelled or   no delivery will come: failed → the row fails;
 //   missing (for the grace period)                         otherwise a fresh delivery, unless the job already
 //                                                          had all its attempts
-//   row succeeded or failed, delivery still active         the worker died between the two writes (an earlier
-//   (for the grace period)                                 release): the delivery is completed
+//   row succeeded, failed or cancelled, delivery still     the worker died between the two writes (an earlier
+//   active (for the grace period)                          release): the delivery is completed
 //
 // So a worker that dies at any instant costs its job at most one stale limit plus one reaper period. The
 // reaper's clock can be driven (`now`), so a test checks all this without waiting. Several workers may
@@ -22,7 +23,7 @@ import type { Knex } from 'knex';
 import { randomUUID } from 'node:crypto';
 import { db } from '@/lib/db';
 import type { JobRow } from './jobs';
-import { EXPIRE_SECONDS, JOB_KINDS, QUEUE_NAMES, queueDb, queuePrefix, RETRY_LIMIT, sendDelivery, type JobKind } from './queue';
+import { allQueues, EXPIRE_SECONDS, queueDb, queueNameOf, queuePrefix, RETRY_LIMIT, sendDelivery, type JobKind, type WorkerClass } from './queue';
 import { crashPoint, type CrashHook } from './crash';
 
 /** Heartbeats come every few seconds (runner.ts); a minute of silence means the worker is gone. */
@@ -48,6 +49,7 @@ export interface RepairOptions {
 
 export type Repair =
   | 'handed back' // queued again for the next retry of its delivery
+  | 'cancelled' // someone asked to stop it and its worker is gone
   | 'failed' // no retries left
   | 'redelivered' // a fresh delivery
   | 'delivery completed'; // a final row's open delivery closed
@@ -65,12 +67,14 @@ type DeliveryState = 'created' | 'retry' | 'active' | 'completed' | 'cancelled' 
 interface Candidate {
   id: string;
   kind: JobKind;
+  worker_class: WorkerClass;
 }
 
 function queueNameSql(): { sql: string; bindings: string[] } {
+  const queues = allQueues();
   return {
-    sql: `CASE j.kind ${JOB_KINDS.map(() => 'WHEN ? THEN ?').join(' ')} END`,
-    bindings: JOB_KINDS.flatMap((k) => [k, QUEUE_NAMES[k]]),
+    sql: `CASE j.kind || ':' || j.worker_class ${queues.map(() => 'WHEN ? THEN ?').join(' ')} END`,
+    bindings: queues.flatMap((q) => [`${q.kind}:${q.workerClass}`, q.name]),
   };
 }
 
@@ -82,7 +86,7 @@ async function findCandidates(options: Required<Pick<RepairOptions, 'staleSecond
   // never one of another namespace's queues. A namespaced worker takes jobs without any only when named them.
   const ours = `(q.id IS NOT NULL OR (${queuePrefix() && !options.jobIds ? 'FALSE' : 'NOT EXISTS (SELECT 1 FROM pgboss.job x WHERE x.id::text = j.queue_job_id)'}))`;
   const rows = await db().raw(
-    `SELECT j.id, j.kind
+    `SELECT j.id, j.kind, j.worker_class
        FROM jobs j
        LEFT JOIN pgboss.job q ON q.name = (${queueName.sql}) AND q.id::text = j.queue_job_id
       WHERE (${options.jobIds ? 'j.id = ANY(?::uuid[])' : 'TRUE'})
@@ -92,7 +96,7 @@ async function findCandidates(options: Required<Pick<RepairOptions, 'staleSecond
           OR (j.status = 'queued' AND q.state = 'active' AND q.started_on < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
           OR (j.status = 'queued' AND (q.id IS NULL OR q.state IN ('completed', 'failed', 'cancelled'))
               AND j.updated_at < COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
-          OR (j.status IN ('succeeded', 'failed') AND q.state = 'active'
+          OR (j.status IN ('succeeded', 'failed', 'cancelled') AND q.state = 'active'
               AND j.updated_at < COALESCE(?::timestamptz, now()) - make_interval(secs => ?)
               -- pg-boss itself fails an active delivery after its expiry, so older final rows need no look
               AND j.updated_at > COALESCE(?::timestamptz, now()) - make_interval(secs => ?))
@@ -121,7 +125,7 @@ interface DeliveryFacts {
 /** The delivery a row names, in our queue (or its archive); 'elsewhere' when that id is another namespace's. */
 async function deliveryOf(boss: PgBoss, trx: Knex.Transaction, row: JobRow): Promise<DeliveryFacts | null | 'elsewhere'> {
   if (!row.queue_job_id) return null;
-  const found = await boss.getJobById(QUEUE_NAMES[row.kind], row.queue_job_id, { db: queueDb(trx), includeArchive: true });
+  const found = await boss.getJobById(queueNameOf(row.kind, row.worker_class), row.queue_job_id, { db: queueDb(trx), includeArchive: true });
   if (found) return { state: found.state as DeliveryState, startedOn: found.startedOn ?? null };
   const other = await trx.raw(
     `SELECT 1 FROM pgboss.job WHERE id::text = ? UNION ALL SELECT 1 FROM pgboss.archive WHERE id::text = ? LIMIT 1`,
@@ -144,7 +148,7 @@ function diagnose(row: JobRow, delivery: DeliveryFacts | null, now: Date, stale:
 }
 
 async function repairOne(boss: PgBoss, candidate: Candidate, options: Required<Pick<RepairOptions, 'staleSeconds' | 'graceSeconds'>> & RepairOptions): Promise<RepairResult | null> {
-  const name = QUEUE_NAMES[candidate.kind];
+  const name = queueNameOf(candidate.kind, candidate.worker_class);
   return db().transaction(async (trx) => {
     const row = await trx<JobRow>('jobs').where({ id: candidate.id }).forUpdate().skipLocked().first();
     if (!row) return null; // a worker or another reaper holds it now
@@ -162,6 +166,23 @@ async function repairOne(boss: PgBoss, candidate: Candidate, options: Required<P
     if (problem === 'final row, open delivery') {
       await boss.complete(name, row.queue_job_id!, { repaired: `the job was already ${row.status}` }, { db: q });
       return { jobId: row.id, problem, repair: 'delivery completed' as Repair };
+    }
+
+    if (row.status === 'running' && row.cancel_requested_at) {
+      // Someone asked to stop it and its worker is gone: it ends as asked, not handed back for a retry.
+      await trx('jobs').where({ id: row.id }).update({
+        status: 'cancelled',
+        stage: 'Cancelled (its worker stopped responding)',
+        heartbeat_at: null,
+        worker: null,
+        progress_detail: null,
+        finished_at: trx.fn.now(),
+        updated_at: trx.fn.now(),
+      });
+      if (row.queue_job_id && delivery && delivery.state !== 'completed' && delivery.state !== 'failed' && delivery.state !== 'cancelled') {
+        await boss.cancel(name, row.queue_job_id, { db: q });
+      }
+      return { jobId: row.id, problem, repair: 'cancelled' as Repair };
     }
 
     if (delivery?.state === 'active') {
@@ -192,7 +213,7 @@ async function repairOne(boss: PgBoss, candidate: Candidate, options: Required<P
     } else {
       // Completed by an attempt that no longer owned the row, cancelled, or never sent: deliver afresh.
       const queueId = randomUUID();
-      await sendDelivery(boss, trx, row.kind, row.id, queueId);
+      await sendDelivery(boss, trx, { kind: row.kind, workerClass: row.worker_class }, row.id, queueId);
       await crashPoint(options.crash, 'repair:redispatched-in-transaction', row.id);
       await trx('jobs').where({ id: row.id }).update({
         status: 'queued',

@@ -51,6 +51,9 @@ export const GUARDED_ROUTES: readonly GuardedRoute[] = [
   { method: 'POST', file: 'api/uploads/input-signals/route.ts', path: '/api/uploads/input-signals', allowed: ['engineer', 'reviewer'], invalidBody: {} },
   { method: 'POST', file: 'api/reductions/route.ts', path: '/api/reductions', allowed: ['engineer'], invalidBody: { sourceVersionId: 'not-a-uuid' } },
   { method: 'POST', file: 'api/jobs/[id]/retry/route.ts', path: '/api/jobs/not-a-uuid/retry', allowed: ['engineer'] },
+  // Cancel (issue 14): the role check admits whoever can queue a job; only its owner or an admin then
+  // passes (lib/jobs/jobs.ts, tests/integration/jobs-cancel.test.ts: another engineer 403).
+  { method: 'POST', file: 'api/jobs/[id]/cancel/route.ts', path: '/api/jobs/not-a-uuid/cancel', allowed: ['engineer', 'reviewer', 'admin'] },
   // Everyone's own notification settings: nobody is refused by role, a visitor is (401).
   { method: 'PATCH', file: 'api/profile/notifications/route.ts', path: '/api/profile/notifications', allowed: ['viewer', 'engineer', 'reviewer', 'admin'], invalidBody: { reviewDecided: 'yes' } },
 ];

@@ -75,7 +75,7 @@ describe('sparse frequency sweep hooks', () => {
     const g = sparseFrequencyResponse(model, w, Infinity, { onStep: (s) => seen.push(s) });
     expect(seen).toEqual(w.map((_, k) => ({ done: k + 1, total: w.length })));
     const plain = sparseFrequencyResponse(model, w);
-    expect(g.H.map((h) => Array.from(h.re.data))).toEqual(plain.H.map((h) => Array.from(h.re.data)));
+    expect(g.response.map((h) => Array.from(h.re.data))).toEqual(plain.response.map((h) => Array.from(h.re.data)));
   });
 
   it('stops at the flag', () => {

@@ -1,4 +1,4 @@
-// Sends a failed job round again. Engineers run analyses and reductions, so they retry them.
+// Sends a failed or cancelled job round again. Engineers run analyses and reductions, so they retry them.
 import { requireRole } from '@/lib/auth';
 import { parseParams, route } from '@/lib/http';
 import { jobIdSchema, retryJob } from '@/lib/jobs/jobs';
