@@ -2,7 +2,10 @@
 // A background job's progress bar, polled with TanStack Query (GET /api/jobs/{id}) about once a second
 // while the job is queued or running. When it succeeds the page is refreshed (its server components then
 // read the result) or the caller's onSucceeded takes over; when it fails, its error and, for those who
-// may, a Retry button (POST /api/jobs/{id}/retry).
+// may, a Retry button (POST /api/jobs/{id}/retry). While queued or running, its owner or an admin may
+// cancel it (POST /api/jobs/{id}/cancel); a cancelled job may be queued again like a failed one. The
+// stage's counts and the time left come from the job route (lib/jobs/jobs.ts, JobView).
+import Link from 'next/link';
 import { useRouter } from 'next/navigation';
 import { useEffect, useRef } from 'react';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
@@ -16,11 +19,17 @@ export function JobProgress({
   initial,
   label,
   canRetry,
+  canCancel = false,
+  showDetailsLink = true,
   onSucceeded,
 }: {
   initial: JobView;
   label: string;
   canRetry: boolean;
+  /** the job's owner or an admin: show the cancel button (the server decides again) */
+  canCancel?: boolean;
+  /** a link to the job's own page (/jobs/{id}) */
+  showDetailsLink?: boolean;
   /** what to do once the job has succeeded; default: refresh the page's server data */
   onSucceeded?: (job: JobView) => void;
 }) {
@@ -34,12 +43,16 @@ export function JobProgress({
     staleTime: 0,
     refetchInterval: (q) => {
       const status = q.state.data?.status;
-      return status === 'succeeded' || status === 'failed' ? false : POLL_MS;
+      return status === 'succeeded' || status === 'failed' || status === 'cancelled' ? false : POLL_MS;
     },
     refetchIntervalInBackground: true,
   });
   const retry = useMutation({
     mutationFn: async () => (await apiFetch<{ job: JobView }>(`/api/jobs/${initial.id}/retry`, { method: 'POST' })).job,
+    onSuccess: (next) => queryClient.setQueryData(key, next),
+  });
+  const cancel = useMutation({
+    mutationFn: async () => (await apiFetch<{ job: JobView }>(`/api/jobs/${initial.id}/cancel`, { method: 'POST' })).job,
     onSuccess: (next) => queryClient.setQueryData(key, next),
   });
 
@@ -62,10 +75,21 @@ export function JobProgress({
         error={job.error ?? undefined}
         onRetry={canRetry ? () => retry.mutate() : undefined}
         retrying={retry.isPending}
+        counts={job.detail}
+        timeLeft={job.timeLeft}
+        onCancel={canCancel ? () => cancel.mutate() : undefined}
+        cancelling={cancel.isPending}
+        cancelRequested={job.cancelRequestedAt !== null}
+        cancelledBy={job.cancelledBy?.name ?? null}
       />
-      {retry.error ? (
+      {retry.error || cancel.error ? (
         <p role="alert" className="mt-2 text-sm text-okabe-vermillion">
-          {retry.error.message}
+          {(retry.error ?? cancel.error)!.message}
+        </p>
+      ) : null}
+      {showDetailsLink ? (
+        <p className="mt-1 text-xs">
+          <Link href={`/jobs/${job.id}`}>Job details</Link> <span className="text-graphite-soft">({job.workerClass} job)</span>
         </p>
       ) : null}
     </div>

@@ -7,6 +7,7 @@ import { projectBandSeed, reducedModelsOfSource, timeUnitSeconds } from '@/lib/r
 import { PageHeader } from '@/components/shell/PageHeader';
 import { AnalysisFigures } from '@/components/source-models/AnalysisFigures';
 import { JobProgress } from '@/components/source-models/JobProgress';
+import { mayCancel } from '@/lib/jobs/jobs';
 import { VersionWorkspace } from '@/components/source-models/VersionWorkspace';
 
 export const metadata: Metadata = { title: 'Source version' };
@@ -75,7 +76,12 @@ export default async function SourceVersionPage({
           />
         </div>
       ) : version.job ? (
-        <JobProgress initial={version.job} label={`Analysis of v${version.number}`} canRetry={user.role === 'engineer'} />
+        <JobProgress
+          initial={version.job}
+          label={`Analysis of v${version.number}`}
+          canRetry={user.role === 'engineer'}
+          canCancel={mayCancel(user, version.job)}
+        />
       ) : (
         <p className="panel p-4 text-sm">This version has no analysis and no analysis job.</p>
       )}
