@@ -5,9 +5,8 @@
  *
  * Modal data of a pole λ (natural frequency, damping ratio, time constant) and the stable / marginal /
  * unstable classification: `poles.ts`, one rule shared with the pages.
- * Stiffness ratio: the fastest over the slowest decay rate among the stable poles,
- * max|Re λ| / min|Re λ| (Lambert, "Numerical Methods for Ordinary Differential Systems", Wiley 1991,
- * ch. 6). DC gain G(0) = D − C A⁻¹ B, not defined with a pole at s = 0 (integrator or rigid-body mode).
+ * Stiffness ratio: the fastest over the slowest decay rate among the stable poles (poles.ts). DC gain
+ * G(0) = D − C A⁻¹ B, not defined with a pole at s = 0 (integrator or rigid-body mode).
  * Norms: `norms.ts`; Hankel singular values: `balanced.ts`; dominance: `modal.ts`; the stable part:
  * `spectral-split.ts`; fixed-step limits: `step-limits.ts`; each cites its method.
  */
@@ -27,7 +26,7 @@ import { balancedCertificate, DEFAULT_RANK_TOLERANCE, type BalancedRealization }
 import { PreparationCache } from './preparation';
 import { rankedModalForm, isReliableModalForm, type Mode } from './modal';
 import { stepLimitsFromPoles, type StepLimits } from './step-limits';
-import { modalFigures } from './poles';
+import { modalFigures, stiffnessFromRates, type Stiffness } from './poles';
 
 export interface PoleData {
   readonly re: number;
@@ -98,22 +97,10 @@ export function poleData(classification: PoleClassification): PoleData[] {
   });
 }
 
-/** max|Re λ| / min|Re λ| over the stable poles, with both rates; nulls without stable poles. */
-export function stiffnessOf(classification: PoleClassification): {
-  stiffnessRatio: number | null;
-  slowestDecayRate: number | null;
-  fastestDecayRate: number | null;
-} {
-  let slow = Infinity;
-  let fast = 0;
-  classification.stability.forEach((s, i) => {
-    if (s !== 'stable') return;
-    const rate = -classification.poles.re[i];
-    slow = Math.min(slow, rate);
-    fast = Math.max(fast, rate);
-  });
-  if (fast === 0) return { stiffnessRatio: null, slowestDecayRate: null, fastestDecayRate: null };
-  return { stiffnessRatio: fast / slow, slowestDecayRate: slow, fastestDecayRate: fast };
+/** max|Re λ| / min|Re λ| over the stable poles, with both rates; nulls without stable poles (poles.ts). */
+export function stiffnessOf(classification: PoleClassification): Stiffness {
+  const { poles, stability } = classification;
+  return stiffnessFromRates(stability.flatMap((s, i) => (s === 'stable' ? [-poles.re[i]] : [])));
 }
 
 export function stiffnessRatio(poles: ComplexVector, tolerance = DEFAULT_STABILITY_TOLERANCE): number | null {

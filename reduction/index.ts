@@ -30,6 +30,7 @@ export {
   type ZeroFrequencyGain,
   type ModalDominance,
 } from './analysis';
+export { stiffnessFromRates } from './poles';
 export {
   splitStableUnstable,
   classifyPoles,

@@ -16,6 +16,9 @@
  * (K. Ogata, "Modern Control Engineering", 5th ed. 2010, ch. 5): natural frequency ωn = |λ|, damping
  * ratio ζ = −σ/|λ| (undefined at λ = 0), time constant τ = 1/|σ|: the decay time of a stable pole, the
  * e-folding growth time of an unstable one (`growing`), none for a marginal pole (its |σ| is rounding).
+ *
+ * Stiffness ratio: the fastest over the slowest decay rate −Re λ of the stable poles (J. D. Lambert,
+ * "Numerical Methods for Ordinary Differential Systems", Wiley 1991, ch. 6).
  */
 
 export type PoleStability = 'stable' | 'marginal' | 'unstable';
@@ -37,10 +40,16 @@ export interface PoleClassification<P extends PoleSet = PoleSet> {
   readonly tolerance: number;
 }
 
-/** max|λ|, or 1 when there is no pole away from 0: the scale the stability tolerance is relative to. */
-export function spectralScale(poles: PoleSet): number {
+/** The spectral radius max|λ| (0 without poles). */
+export function spectralRadius(poles: PoleSet): number {
   let radius = 0;
   for (let i = 0; i < poles.re.length; i++) radius = Math.max(radius, Math.hypot(poles.re[i], poles.im[i]));
+  return radius;
+}
+
+/** max|λ|, or 1 when there is no pole away from 0: the scale the stability tolerance is relative to. */
+export function spectralScale(poles: PoleSet): number {
+  const radius = spectralRadius(poles);
   return radius > 0 ? radius : 1;
 }
 
@@ -82,4 +91,24 @@ export function modalFigures(re: number, im: number, stability: PoleStability): 
     timeConstant: stability === 'marginal' || re === 0 ? null : 1 / Math.abs(re),
     growing: stability === 'unstable',
   };
+}
+
+export interface Stiffness {
+  /** fastest over slowest decay rate; null without a decaying pole */
+  readonly stiffnessRatio: number | null;
+  readonly slowestDecayRate: number | null;
+  readonly fastestDecayRate: number | null;
+}
+
+/** The stiffness ratio of a set of decay rates −Re λ (those ≤ 0 are left out: they do not decay). */
+export function stiffnessFromRates(rates: Iterable<number>): Stiffness {
+  let slow = Infinity;
+  let fast = 0;
+  for (const rate of rates) {
+    if (!(rate > 0)) continue;
+    slow = Math.min(slow, rate);
+    fast = Math.max(fast, rate);
+  }
+  if (fast === 0) return { stiffnessRatio: null, slowestDecayRate: null, fastestDecayRate: null };
+  return { stiffnessRatio: fast / slow, slowestDecayRate: slow, fastestDecayRate: fast };
 }

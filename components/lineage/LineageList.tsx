@@ -2,6 +2,7 @@ import Link from 'next/link';
 import type { Lineage, LineageNode } from '@/lib/lineage';
 import { StatusBadge, UpstreamChangedBadge } from '@/components/review/StatusBadge';
 import { PROJECT_STYLE, SOURCE_VERSION_STYLE } from '@/components/review/status-style';
+import { methodOrderLabel } from '@/lib/recipe-words';
 
 const short = (sha: string) => sha.slice(0, 12);
 
@@ -28,7 +29,7 @@ function NodeText({ node }: { node: LineageNode }) {
       <Link href={`/reviews/${node.id}`}>
         {node.reducedModelName} v{node.number}
       </Link>{' '}
-      <StatusBadge status={node.status} /> · {node.method}, r = {node.order} · engine {node.engineVersion} · input{' '}
+      <StatusBadge status={node.status} /> · {methodOrderLabel(node.method, node.order)} · engine {node.engineVersion} · input{' '}
       <span className="num text-xs">{short(node.inputChecksum)}</span> · matrices <span className="num text-xs">{short(node.matricesSha256)}</span>
       {node.upstreamChanged ? (
         <>

@@ -16,6 +16,7 @@
 import {
   modelPoles,
   rankStoredModes,
+  stiffnessFromRates,
   prepareReduction,
   snapMarginalPoles,
   stepLimitsFromPoles,
@@ -89,20 +90,12 @@ export function figuresFromPoles(
   // as marginal. Frequency-limited balanced truncation gives no such guarantee: a pole in the right
   // half-plane is left out of the stiffness ratio, holds both step limits at 0 (step-limits.ts), and the
   // reduction task reports the model as not stable (AccuracyFiguresRecord.reducedStable).
-  let fast = 0;
-  let slow = Infinity;
-  for (let k = 0; k < stableRe.length; k++) {
-    const rate = -stableRe[k];
-    if (rate > 0) {
-      fast = Math.max(fast, rate);
-      slow = Math.min(slow, rate);
-    }
-  }
+  const { stiffnessRatio } = stiffnessFromRates(Array.from(stableRe, (re) => -re));
   return {
     errorBound: errorBound === null ? null : finiteOrNull(errorBound),
     keptUnstable: kept.unstable,
     keptMarginal: kept.marginal,
-    stiffnessRatio: fast > 0 ? fast / slow : null,
+    stiffnessRatio,
     maxStableStepEuler: finiteOrNull(limits.forwardEuler.maxStep),
     maxStableStepRk4: finiteOrNull(limits.rk4.maxStep),
   };

@@ -42,6 +42,7 @@ import {
 } from '../../reduction/index';
 import { frequencyLimitedReduction } from '../../reduction/frequency-limited';
 import { loadModel, type ModelFile } from './model-files';
+import { spectralRadius } from '../../reduction/poles';
 import { acceptancePassedColumn } from '../acceptance';
 import { METHOD_NAMES, NO_BOUND_NOTE, type RecipeMethod } from '../recipe-words';
 import { figuresFromPoles, keptPolesOf } from './order-figures';
@@ -297,16 +298,10 @@ function costOf(solver: string, s: SolverStats): SolverCostRecord {
 }
 
 /** Steps and flops of an explicit run, its steps held by stability (reduction/step-limits.ts, explicitStabilitySteps). */
-function explicitEstimate(model: StateSpaceModel, spectralRadius: number, tEnd: number): { steps: number; flops: number } {
-  const steps = explicitStabilitySteps(spectralRadius, tEnd);
+function explicitEstimate(model: StateSpaceModel, radius: number, tEnd: number): { steps: number; flops: number } {
+  const steps = explicitStabilitySteps(radius, tEnd);
   const n = model.A.rows;
   return { steps, flops: steps * 6 * 2 * n * (n + model.B.cols) };
-}
-
-function spectralRadiusOf(re: ArrayLike<number>, im: ArrayLike<number>): number {
-  let rho = 0;
-  for (let k = 0; k < re.length; k++) rho = Math.max(rho, Math.hypot(re[k], im[k]));
-  return rho;
 }
 
 function costRows(full: StateSpaceModel, reduced: StateSpaceModel, fullRadius: number, reducedRadius: number, tEnd: number) {
@@ -420,9 +415,9 @@ export function runReduction(
   report('Simulation cost: full and reduced model with the same solvers', 0.86);
   const stablePartPoles = r.stablePart.A.rows > 0 ? modelPoles(r.stablePart.A) : { re: new Float64Array(0), im: new Float64Array(0) };
   const reducedOrderFigures = figuresFromPoles(stablePartPoles.re, stablePartPoles.im, keptPolesOf(summary.poles, summary.stabilityTolerance), r.errorBound);
-  const fullRadius = spectralRadiusOf(summary.poles.re, summary.poles.im);
+  const fullRadius = spectralRadius(summary.poles);
   const reducedPoles = modelPoles(reduced.A);
-  const cost = costRows(model, reduced, fullRadius, spectralRadiusOf(reducedPoles.re, reducedPoles.im), tEnd);
+  const cost = costRows(model, reduced, fullRadius, spectralRadius(reducedPoles), tEnd);
   const needs = (ratio: number | null) => (ratio !== null && ratio >= STIFF_RATIO ? 'stiff' : 'explicit');
   const fullRow = cost.rows.find((row) => row.solver === needs(summary.stiffnessRatio) && row.full) ?? cost.rows.find((row) => row.solver === 'stiff');
   const reducedRow = cost.rows.find((row) => row.solver === needs(reducedOrderFigures.stiffnessRatio)) ?? cost.rows.find((row) => row.solver === 'stiff');

@@ -11,6 +11,7 @@
 // Sample times travel in seconds; a model whose time unit is not seconds is discretised at ts converted
 // into its own unit.
 import { discretePoles, discretizeZoh, fromRows, modelPoles, ModelError, toRows, type StateSpaceModel } from '@/reduction/index';
+import { DEFAULT_STABILITY_TOLERANCE } from '@/reduction/poles';
 import { ApiError } from '@/lib/http';
 import { matricesSha256, type StateSpaceRows } from '@/lib/checksums';
 import type { ExportSource, RegisteredMatrices } from './source';
@@ -98,7 +99,8 @@ export function checkSampleTime(
   unitToSeconds: number,
   scale: number,
 ): SampleTimeCheck {
-  const origin = 1e-10 * scale;
+  // At the origin: within the stability tolerance of 0, the engine's rule for a pole at s = 0 (reduction/poles.ts).
+  const origin = DEFAULT_STABILITY_TOLERANCE * scale;
   let fastestRate = 0;
   for (let i = 0; i < poles.re.length; i++) {
     const modulus = Math.hypot(poles.re[i], poles.im[i]);

@@ -23,7 +23,7 @@ import { matVec } from './linear-system';
 import type { CheckedOptions } from './output-grid';
 import { IntervalLengths } from './exact';
 import type { SolverName } from './types';
-import { classifyPoles } from '../poles';
+import { classifyPoles, stiffnessFromRates } from '../poles';
 import { explicitStabilitySteps } from '../step-limits';
 
 export const EXACT_ALWAYS = 500;
@@ -73,16 +73,8 @@ export function estimateStiffness(A: Matrix): StiffnessEstimate {
   if (n <= EIGEN_MAX) {
     const ev = eigenvalues(A);
     const { stability } = classifyPoles(ev);
-    let fastest = 0;
-    let slowest = Infinity;
-    for (let k = 0; k < n; k++) {
-      if (stability[k] !== 'stable') continue;
-      const rate = -ev.re[k];
-      fastest = Math.max(fastest, rate);
-      slowest = Math.min(slowest, rate);
-    }
-    if (!Number.isFinite(slowest)) slowest = 0;
-    return { fastest, slowest, ratio: slowest > 0 ? fastest / slowest : 1, method: 'eigenvalues' };
+    const s = stiffnessFromRates(stability.flatMap((c, k) => (c === 'stable' ? [-ev.re[k]] : [])));
+    return { fastest: s.fastestDecayRate ?? 0, slowest: s.slowestDecayRate ?? 0, ratio: s.stiffnessRatio ?? 1, method: 'eigenvalues' };
   }
   const fastest = powerIteration((x, out) => matVec(A, x, out), n);
   const lu = luFactor(A);

@@ -1,7 +1,8 @@
 // Pole classification and modal figures (reduction/poles.ts): the one rule the engine, the worker, the
 // pole map and the modes table share. Expected values are closed forms worked out beside each check.
 import { describe, expect, it } from 'vitest';
-import { classifyPoles, DEFAULT_STABILITY_TOLERANCE, modalFigures } from '@/reduction/poles';
+import { classifyPoles, DEFAULT_STABILITY_TOLERANCE, modalFigures, stiffnessFromRates } from '@/reduction/poles';
+import { explicitStabilitySteps } from '@/reduction/step-limits';
 import { classifyPoles as engineClassify } from '@/reduction/spectral-split';
 import { eigenvalues, fromRows } from '@/reduction/linalg/index';
 
@@ -59,5 +60,18 @@ describe('pole classification', () => {
   it('names what is wrong', () => {
     expect(() => classifyPoles({ re: [1, 2], im: [0] })).toThrow(/im must have as many entries as re/);
     expect(() => classifyPoles({ re: [1], im: [0] }, -1)).toThrow(/tolerance must be in \[0, 1\)/);
+  });
+});
+
+describe('stiffness and the explicit solver\'s stability limit', () => {
+  it('divides the fastest by the slowest decay rate, leaving out rates that do not decay', () => {
+    // rates 0.5, 2, 1000 (and a marginal 0, a growing −3): 1000 / 0.5 = 2000
+    expect(stiffnessFromRates([2, 0.5, 0, -3, 1000])).toEqual({ stiffnessRatio: 2000, slowestDecayRate: 0.5, fastestDecayRate: 1000 });
+    expect(stiffnessFromRates([0, -1])).toEqual({ stiffnessRatio: null, slowestDecayRate: null, fastestDecayRate: null });
+  });
+
+  it('counts the steps stability alone asks of Dormand–Prince: rate·T/3.3 (Hairer & Wanner 1996, §IV.2)', () => {
+    // a pole at −1000 over 10 time units: 1000·10/3.3 = 3030.3 steps
+    expect(explicitStabilitySteps(1000, 10)).toBeCloseTo(3030.303, 3);
   });
 });
