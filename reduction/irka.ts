@@ -43,9 +43,14 @@
  * half-plane, where it could meet a pole of the model; it is reflected to λ̂̄ (common practice) and counted.
  * There is no a-priori error bound; the H2 and H∞ errors are measured (`reduce.ts`).
  *
- * Initial shifts, unless given: r real shifts logarithmically spaced over the model's pole magnitudes
- * [min |λ|, max |λ|] (centres of r equal logarithmic intervals; common practice), with fixed (not random)
- * tangential directions, so that a run is reproducible and the dense and sparse paths start alike.
+ * Initial shifts, unless given: the mirror images −λ of the r slowest poles (smallest |λ|; a conjugate pair
+ * gives the pair of shifts, and when one place is left for a pair it gets the real shift |λ|), one of the
+ * initialisations Gugercin, Antoulas & Beattie 2008 discuss (mirror images of poles of the model); near
+ * duplicates are skipped and, when too few poles remain, the rest are logarithmically spaced real shifts
+ * above them (common practice). The dense path uses the exact poles, the sparse path Ritz estimates of the
+ * slowest ones. Shifts spread up to the fastest pole of a stiff model are a poor start: there the transfer
+ * function is negligible and the bases V and W can be nearly orthogonal. The tangential directions start
+ * fixed (not random), so that a run is reproducible and both paths start alike.
  */
 import { ModelError } from './errors';
 import {
@@ -85,7 +90,7 @@ export interface IrkaOptions {
   readonly tolerance?: number;
   /** Most shift updates (default 100). */
   readonly maxIterations?: number;
-  /** Initial shifts (Re > 0, Im ≥ 0, a pair as one entry with Im > 0), r in all; default log-spaced real shifts. */
+  /** Initial shifts (Re > 0, Im ≥ 0, a pair as one entry with Im > 0), r in all; default: mirrors of the slowest poles. */
   readonly initialShifts?: readonly Shift[];
   /** Looked at before each projection; when set, the run throws StoppedError (stop.ts) and returns nothing. */
   readonly signal?: StopSignal;
@@ -105,6 +110,9 @@ export interface IrkaStep {
 }
 
 export const DEFAULT_IRKA_TOLERANCE = 1e-6;
+
+/** Where the initial shifts came from: given, or the mirror images of the slowest poles (exact, or Ritz estimates). */
+export type InitialShiftRule = 'given' | 'slowest-poles' | 'slowest-pole-estimates';
 export const DEFAULT_IRKA_MAX_ITERATIONS = 100;
 
 export interface IrkaReport {
@@ -116,7 +124,7 @@ export interface IrkaReport {
   readonly shiftChangeHistory: readonly number[];
   readonly tolerance: number;
   readonly maxIterations: number;
-  readonly initialShiftRule: 'given' | 'log-spaced';
+  readonly initialShiftRule: InitialShiftRule;
   readonly initialShifts: readonly Shift[];
   /** The shifts and directions the reduced model interpolates at (Algorithm 4.1, step 4). */
   readonly interpolationPoints: readonly InterpolationPoint[];
@@ -180,6 +188,44 @@ export function logSpacedShifts(lo: number, hi: number, r: number): Shift[] {
   }
   const a = Math.log(lo), b = Math.log(hi);
   return Array.from({ length: r }, (_, k) => ({ re: Math.exp(a + ((k + 0.5) / r) * (b - a)), im: 0 }));
+}
+
+/**
+ * Relative distance below which two candidate initial shifts count as one (common practice: nearly equal
+ * shifts, such as the Ritz estimates of a double pole, give nearly dependent basis columns; 1 % keeps them
+ * apart by far more than rounding and costs IRKA nothing, which moves the shifts anyway).
+ */
+const DUPLICATE_SHIFT_TOLERANCE = 1e-2;
+
+/**
+ * r initial shifts from candidate poles (stable, with Re λ < 0): the mirror images of the slowest ones (see
+ * the header), filled with log-spaced real shifts from the last one used up to `hi` when too few remain.
+ */
+export function slowestPoleShifts(poles: ComplexVector, r: number, hi: number): Shift[] {
+  const cands: { re: number; im: number; mag: number }[] = [];
+  for (let i = 0; i < poles.re.length; i++) {
+    const re = poles.re[i], im = poles.im[i];
+    if (!(re < 0) || im < 0 || !Number.isFinite(re) || !Number.isFinite(im)) continue; // one member per pair
+    cands.push({ re: -re, im, mag: Math.hypot(re, im) });
+  }
+  cands.sort((a, b) => a.mag - b.mag);
+  const chosen: Shift[] = [];
+  let count = 0;
+  const near = (s: Shift) => chosen.some((c) => Math.hypot(c.re - s.re, c.im - s.im) <= DUPLICATE_SHIFT_TOLERANCE * Math.hypot(s.re, s.im));
+  for (const c of cands) {
+    if (count >= r) break;
+    const pair = c.im > 1e-10 * c.mag;
+    const s: Shift = pair && count + 2 <= r ? { re: c.re, im: c.im } : { re: pair ? c.mag : c.re, im: 0 };
+    if (near(s)) continue;
+    chosen.push(s);
+    count += s.im > 0 ? 2 : 1;
+  }
+  if (count < r) {
+    const last = chosen.reduce((m, s) => Math.max(m, Math.hypot(s.re, s.im)), 0);
+    const lo = last > 0 ? last * 1.5 : hi / 10;
+    for (const s of logSpacedShifts(lo, Math.max(hi, 2 * lo), r - count)) chosen.push(s);
+  }
+  return chosen;
 }
 
 /** A fixed unit direction of length `dim` for the k-th initial shift (not random: runs are reproducible). */
@@ -341,12 +387,21 @@ export function iterateIrka(
       break;
     }
     const change = shiftChange(points, next.points);
+    throwIfStopped(settings.signal, 'IRKA');
+    let projected: ProjectedModel;
+    try {
+      projected = projector.project(next.points);
+    } catch (e) {
+      // A breakdown after the first projection ends the run with the last model formed (not converged).
+      if (!(e instanceof ModelError && e.code === 'order_too_large')) throw e;
+      notes.push(`IRKA stopped after ${iterations} iteration(s): ${e.message}; the reduced model is the last one formed, at the previous shifts`);
+      break;
+    }
     iterations++;
     history.push(change);
     reflected += next.reflected;
     points = next.points;
-    throwIfStopped(settings.signal, 'IRKA');
-    reduced = projector.project(points);
+    reduced = projected;
     settings.onStep?.({ iteration: iterations, maxIterations: settings.maxIterations, shiftChange: change, tolerance: settings.tolerance });
     if (change <= settings.tolerance) {
       converged = true;
@@ -369,7 +424,7 @@ export function irkaReport(
   run: ReturnType<typeof iterateIrka>,
   settings: { tolerance: number; maxIterations: number },
   initialShifts: readonly Shift[],
-  rule: 'given' | 'log-spaced',
+  rule: InitialShiftRule,
 ): IrkaReport {
   const poles = modelPoles(run.reduced.A);
   const reducedStable = Array.from(poles.re).every((x) => x < 0);
@@ -497,23 +552,17 @@ export function irka(stable: StateSpaceModel, order: number, options: IrkaOption
   }
   const settings = irkaSettings(options, order);
   let shifts: Shift[];
-  let rule: 'given' | 'log-spaced';
+  let rule: InitialShiftRule;
   if (options.initialShifts) {
     shifts = [...options.initialShifts];
     rule = 'given';
   } else {
     const lambda = poles ?? modelPoles(stable.A);
-    let lo = Infinity, hi = 0;
-    for (let i = 0; i < lambda.re.length; i++) {
-      const mag = Math.hypot(lambda.re[i], lambda.im[i]);
-      if (mag > 0) {
-        lo = Math.min(lo, mag);
-        hi = Math.max(hi, mag);
-      }
-    }
-    if (!(hi > 0)) throw new ModelError('unstable', 'A', 'IRKA needs a stable model: every pole of this one is at 0');
-    shifts = logSpacedShifts(lo, hi, order);
-    rule = 'log-spaced';
+    let hi = 0;
+    for (let i = 0; i < lambda.re.length; i++) hi = Math.max(hi, Math.hypot(lambda.re[i], lambda.im[i]));
+    if (!Array.from(lambda.re).some((x) => x < 0)) throw new ModelError('unstable', 'A', 'IRKA needs a stable model: this one has no stable pole');
+    shifts = slowestPoleShifts(lambda, order, hi);
+    rule = 'slowest-poles';
   }
   const projector = new HessenbergProjector(stable);
   const run = iterateIrka(projector, initialPoints(shifts, projector.inputs, projector.outputs), { ...settings, signal: options.signal, onStep: options.onStep });

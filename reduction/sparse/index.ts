@@ -15,4 +15,4 @@ export { lowRankGramians, heuristicShifts, penzlShifts, arnoldiRitzValues, type 
 export { sparseBalancedReduction, lowRankBalancedRealization, type SparseBalancedOptions, type SparseBalancedResult } from './balanced';
 export { sparseFrequencyResponse, sampledErrorPeak, type SparseFrequencyResponse } from './frequency';
 export { memoryBudgetBytes, checkFactorBudget, MEMORY_BUDGET_ENV } from './budget';
-export { sparseIrka, sparseSpectralRange, type SparseIrkaOptions, type SparseIrkaResult } from './irka';
+export { sparseIrka, sparseSpectrumEstimate, type SparseIrkaOptions, type SparseIrkaResult, type SpectrumEstimate } from './irka';

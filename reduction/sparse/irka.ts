@@ -12,9 +12,10 @@
  * transpose). The bases V, W are n×r and the projections Wᵀ A V, Wᵀ E V are sparse products with them:
  * nothing forms E⁻¹A or an n×n dense matrix.
  *
- * Initial shifts, unless given: r real shifts log-spaced over an estimate of the pole magnitudes,
- * [1/max|μ(A⁻¹E)|, max|μ(E⁻¹A)|] from Arnoldi Ritz values μ (20 steps each, every operator applied through
- * sparse solves), the same rule the dense path applies to the exact poles.
+ * Initial shifts, unless given: the dense path's rule (`slowestPoleShifts`: mirror images of the slowest
+ * poles) on estimates of the slowest poles, 1/μ for the Ritz values μ of A⁻¹E after max(20, 2r + 5) Arnoldi
+ * steps (the operator applied through sparse solves); the largest pole magnitude, which bounds the
+ * log-spaced fill when too few estimates remain, is estimated from the Ritz values of E⁻¹A (20 steps).
  *
  * Stability: the sparse path reduces stable models only (IRKA's H2 setting needs them, and nothing here
  * separates unstable modes). A singular A (a pole at 0: rigid-body modes, integrators) or a slowest Ritz
@@ -39,7 +40,7 @@ import {
   irkaReport,
   irkaSettings,
   iterateIrka,
-  logSpacedShifts,
+  slowestPoleShifts,
   orthonormalBasisOf,
   petrovGalerkin,
   setColumn,
@@ -62,7 +63,7 @@ export interface SparseIrkaResult {
   /** The reduced model, E_r = I, D of the model. */
   readonly model: StateSpaceModel;
   readonly report: IrkaReport;
-  /** Estimated [min |λ|, max |λ|] of the model's poles (Arnoldi Ritz values). */
+  /** Estimated smallest and largest pole magnitudes of the model (Arnoldi Ritz values). */
   readonly spectralRange: { readonly lo: number; readonly hi: number };
   /** Numeric sparse factorizations and symbolic analyses made by the iteration. */
   readonly factorizations: number;
@@ -74,6 +75,14 @@ export interface SparseIrkaResult {
 /** Relative tolerance of the marginal-pole check (as the dense path's DEFAULT_STABILITY_TOLERANCE). */
 const MARGINAL_TOLERANCE = 1e-7;
 const ARNOLDI_STEPS = 20;
+
+export interface SpectrumEstimate {
+  /** Estimated smallest and largest pole magnitudes. */
+  readonly lo: number;
+  readonly hi: number;
+  /** Estimates 1/μ of the slowest poles from the Ritz values μ of A⁻¹E. */
+  readonly slowest: { readonly re: Float64Array; readonly im: Float64Array };
+}
 
 /** A deterministic start vector: the inputs' sum plus a fixed pseudo-random sequence. */
 function startVector(model: SparseStateSpaceModel): Float64Array {
@@ -105,10 +114,11 @@ function refuseUnstable(detail: string): never {
 }
 
 /**
- * Estimated [min |λ|, max |λ|] of the poles of E⁻¹A from Arnoldi Ritz values of A⁻¹E and E⁻¹A (through sparse
- * solves), refusing a model whose A is singular or whose slowest Ritz value is marginal or unstable.
+ * Estimates of the slowest poles of E⁻¹A and of its smallest and largest pole magnitudes, from Arnoldi Ritz
+ * values of A⁻¹E (`slowSteps` steps) and E⁻¹A (20 steps) through sparse solves; refuses a model whose A is
+ * singular or whose slowest Ritz value is marginal or unstable.
  */
-export function sparseSpectralRange(model: SparseStateSpaceModel, memoryBudgetBytes = Infinity): { lo: number; hi: number } {
+export function sparseSpectrumEstimate(model: SparseStateSpaceModel, memoryBudgetBytes = Infinity, slowSteps = ARNOLDI_STEPS): SpectrumEstimate {
   const { A, E } = model;
   const aLu = SparseLu.analyze(A, 'A');
   checkFactorBudget(aLu, memoryBudgetBytes, 'A');
@@ -131,7 +141,7 @@ export function sparseSpectralRange(model: SparseStateSpaceModel, memoryBudgetBy
       }
     }
     const start = startVector(model);
-    const slow = arnoldiRitzValues((x) => aLu.solve(E ? cscTimesVector(E, x) : x), start, ARNOLDI_STEPS);
+    const slow = arnoldiRitzValues((x) => aLu.solve(E ? cscTimesVector(E, x) : x), start, slowSteps);
     const fast = arnoldiRitzValues((x) => {
       const ax = cscTimesVector(A, x);
       return eLu ? eLu.solve(ax) : ax;
@@ -154,7 +164,13 @@ export function sparseSpectralRange(model: SparseStateSpaceModel, memoryBudgetBy
     if (slowRe >= -MARGINAL_TOLERANCE * hi) {
       refuseUnstable(`the slowest pole is estimated at ${slowRe.toPrecision(4)} ${slow.im[k] === 0 ? '' : `± ${Math.abs(slow.im[k] / d).toPrecision(4)}i `}(an Arnoldi Ritz value), on or right of the imaginary axis`);
     }
-    return { lo: 1 / top, hi };
+    const re = new Float64Array(slow.re.length), im = new Float64Array(slow.re.length);
+    for (let i = 0; i < slow.re.length; i++) {
+      const m2 = slow.re[i] * slow.re[i] + slow.im[i] * slow.im[i];
+      re[i] = m2 > 0 ? slow.re[i] / m2 : NaN; // 1/μ = μ̄/|μ|²
+      im[i] = m2 > 0 ? -slow.im[i] / m2 : NaN;
+    }
+    return { lo: 1 / top, hi, slowest: { re, im } };
   } finally {
     aLu.dispose();
     eLu?.dispose();
@@ -255,8 +271,8 @@ export function sparseIrka(model: SparseStateSpaceModel, options: SparseIrkaOpti
   const settings = irkaSettings(options, r);
   const budget = options.memoryBudgetBytes ?? Infinity;
   throwIfStopped(options.signal, 'IRKA');
-  const spectralRange = sparseSpectralRange(model, budget);
-  const shifts: Shift[] = options.initialShifts ? [...options.initialShifts] : logSpacedShifts(spectralRange.lo, spectralRange.hi, r);
+  const spectrum = sparseSpectrumEstimate(model, budget, Math.max(ARNOLDI_STEPS, 2 * r + 5));
+  const shifts: Shift[] = options.initialShifts ? [...options.initialShifts] : slowestPoleShifts(spectrum.slowest, r, spectrum.hi);
   const projector = new SparseProjector(model, budget);
   let run: ReturnType<typeof iterateIrka>;
   try {
@@ -264,7 +280,7 @@ export function sparseIrka(model: SparseStateSpaceModel, options: SparseIrkaOpti
   } finally {
     projector.dispose();
   }
-  const report = irkaReport(run, settings, shifts, options.initialShifts ? 'given' : 'log-spaced');
+  const report = irkaReport(run, settings, shifts, options.initialShifts ? 'given' : 'slowest-pole-estimates');
   const notes = [...run.notes];
   if (!report.reducedStable) {
     notes.push('the reduced model has poles in the closed right half-plane (IRKA does not guarantee stability); try another order or initial shifts');
@@ -273,7 +289,7 @@ export function sparseIrka(model: SparseStateSpaceModel, options: SparseIrkaOpti
   return {
     model: { A: run.reduced.A, B: run.reduced.B, C: run.reduced.C, D: model.D },
     report,
-    spectralRange,
+    spectralRange: { lo: spectrum.lo, hi: spectrum.hi },
     factorizations: projector.factorizations,
     analyses: projector.analyses,
     seconds: (performance.now() - started) / 1000,

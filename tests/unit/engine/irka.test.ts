@@ -17,7 +17,8 @@
  *    here stated as ‖G − G_irka‖₂ ≤ 1.01·‖G − G_bt‖₂ on the models below, both measured by norms.ts).
  */
 import { describe, expect, it } from 'vitest';
-import { irka, logSpacedShifts, shiftChange } from '../../../reduction/irka';
+import { irka, initialPoints, iterateIrka, logSpacedShifts, shiftChange, slowestPoleShifts, type TangentialProjector } from '../../../reduction/irka';
+import { fromRows } from '../../../reduction/linalg/matrix';
 import { ShiftedHessenbergLu } from '../../../reduction/linalg/shifted-hessenberg';
 import { hessenberg } from '../../../reduction/linalg/index';
 import { reduceModel, prepareReduction, IRKA_NO_BOUND_NOTE } from '../../../reduction/reduce';
@@ -54,7 +55,7 @@ describe('IRKA on a stable model: convergence and the H2-optimality conditions',
       expect(r.report.shiftChange).toBeLessThanOrEqual(1e-10);
       expect(r.report.shiftChangeHistory[0]).toBeGreaterThan(1e-3);
       expect(r.report.reducedStable).toBe(true);
-      expect(r.report.initialShiftRule).toBe('log-spaced');
+      expect(r.report.initialShiftRule).toBe('slowest-poles');
     }
     expect(siso.model.A.rows).toBe(6);
     expect(tangential.model.A.rows).toBe(8);
@@ -213,6 +214,26 @@ describe('IRKA options and reports', () => {
     expect(r.notes.some((n) => n.startsWith('IRKA did not converge'))).toBe(true);
   });
 
+  it('a breakdown after the first projection ends the run with the last model formed, reported as not converged', () => {
+    // A stand-in projection: always the model 1/(s + 1) + 1/(s + 2), breaking down on its third call.
+    let calls = 0;
+    const projector: TangentialProjector = {
+      states: 10,
+      inputs: 1,
+      outputs: 1,
+      project() {
+        calls++;
+        if (calls === 3) throw new ModelError('order_too_large', 'order', 'IRKA broke down: test');
+        return { A: fromRows([[-1, 0], [0, -2]]), B: fromRows([[1], [1]]), C: fromRows([[1, 1]]) };
+      },
+    };
+    const run = iterateIrka(projector, initialPoints([{ re: 5, im: 0 }, { re: 7, im: 0 }], 1, 1), { tolerance: 1e-12, maxIterations: 10 });
+    expect(run.iterations).toBe(1);
+    expect(run.converged).toBe(false);
+    expect(run.points.map((p) => p.re).sort()).toEqual([1, 2]);
+    expect(run.notes[0]).toMatch(/^IRKA stopped after 1 iteration\(s\): IRKA broke down: test/);
+  });
+
   it('uses given initial shifts (a pair as one entry) and checks them', () => {
     const r = irka(heat, 4, { initialShifts: [{ re: 10, im: 5 }, { re: 100, im: 0 }, { re: 1000, im: 0 }] });
     expect(r.report.initialShiftRule).toBe('given');
@@ -228,6 +249,20 @@ describe('IRKA options and reports', () => {
     const r = irka(heat, 4, { onStep: (s) => steps.push(s.shiftChange) });
     expect(steps).toEqual(r.report.shiftChangeHistory);
     expect(() => irka(heat, 4, { signal: { aborted: true } })).toThrow(StoppedError);
+  });
+
+  it('default initial shifts: mirror images of the slowest poles, a pair kept together or replaced by |λ| when one place is left', () => {
+    const poles = { re: Float64Array.from([-1, -2, -2, -50]), im: Float64Array.from([0, 3, -3, 0]) };
+    expect(slowestPoleShifts(poles, 3, 50)).toEqual([{ re: 1, im: 0 }, { re: 2, im: 3 }]);
+    expect(slowestPoleShifts(poles, 2, 50)).toEqual([{ re: 1, im: 0 }, { re: Math.hypot(2, 3), im: 0 }]);
+    // Too few distinct poles (a repeated one counts once): the rest log-spaced above them, up to the largest |λ|.
+    const repeated = { re: Float64Array.from([-1, -1]), im: Float64Array.from([0, 0]) };
+    const s = slowestPoleShifts(repeated, 3, 100);
+    expect(s[0]).toEqual({ re: 1, im: 0 });
+    expect(s).toHaveLength(3);
+    expect(s[1].re).toBeGreaterThan(1);
+    expect(s[2].re).toBeGreaterThan(s[1].re);
+    expect(s[2].re).toBeLessThan(100);
   });
 
   it('log-spaced initial shifts sit inside the spectral range, distinct even for a narrow range', () => {
