@@ -204,7 +204,15 @@ function describe(row: AuditRow, subjects: Awaited<ReturnType<typeof subjectsOf>
   } else if (row.subject_type === 'job') {
     const job = subjects.job.get(id) as { kind: string } | undefined;
     const kind = job?.kind ?? str(d.kind) ?? '';
-    verb = row.action === 'job.retried' ? `retried a failed ${kind ? `${kind} ` : ''}job` : `recorded ${row.action} on a job`;
+    const what = `${kind ? `${kind} ` : ''}job`;
+    verb =
+      row.action === 'job.retried'
+        ? `retried a failed ${what}`
+        : row.action === 'job.cancelled'
+          ? `cancelled ${d.status === 'running' ? 'a running' : 'a queued'} ${what}`
+          : row.action === 'job.requeued'
+            ? `queued a cancelled ${what} again`
+            : `recorded ${row.action} on a job`;
   }
   return { ...base, tone, actorName, verb, subject, suffix, detail, ...(upstreamChangedCount !== undefined ? { upstreamChangedCount } : {}) };
 }

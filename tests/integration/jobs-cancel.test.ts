@@ -23,6 +23,7 @@ import { closeDb, db } from '@/lib/db';
 import { closeQueue, queueNameOf } from '@/lib/jobs/queue';
 import { cancelJob, getJob, retryJob, type JobView } from '@/lib/jobs/jobs';
 import { registerUpload } from '@/lib/source-models';
+import { recentActivity } from '@/lib/activity';
 import type { SessionUser } from '@/lib/auth';
 import { POST as cancelRoute } from '@/app/api/jobs/[id]/cancel/route';
 import { makeUser, migrateTestDatabase } from './helpers';
@@ -162,6 +163,12 @@ describe('cancelling jobs', () => {
     expect((await auditOf(upload.job.id)).map((e) => [e.action, e.actor_id])).toEqual([
       ['job.cancelled', owner.id],
       ['job.requeued', otherEngineer.id],
+    ]);
+    // The activity feed says it in words.
+    const items = (await recentActivity(500)).filter((i) => i.subjectId === upload.job.id);
+    expect(items.map((i) => [i.actorName, i.verb])).toEqual([
+      [otherEngineer.name, 'queued a cancelled analysis job again'],
+      [owner.name, 'cancelled a queued analysis job'],
     ]);
     // Succeeded: neither cancelled nor sent round again.
     await expect(cancelJob(upload.job.id, owner)).rejects.toMatchObject({ status: 409 });
