@@ -17,7 +17,7 @@
  *    here stated as ‖G − G_irka‖₂ ≤ 1.01·‖G − G_bt‖₂ on the models below, both measured by norms.ts).
  */
 import { describe, expect, it } from 'vitest';
-import { irka, initialPoints, iterateIrka, logSpacedShifts, shiftChange, slowestPoleShifts, type TangentialProjector } from '../../../reduction/irka';
+import { irka, initialPoints, irkaReport, iterateIrka, logSpacedShifts, mirrorPoints, shiftChange, slowestPoleShifts, type TangentialProjector } from '../../../reduction/irka';
 import { fromRows } from '../../../reduction/linalg/matrix';
 import { ShiftedHessenbergLu } from '../../../reduction/linalg/shifted-hessenberg';
 import { hessenberg } from '../../../reduction/linalg/index';
@@ -232,6 +232,24 @@ describe('IRKA options and reports', () => {
     expect(run.converged).toBe(false);
     expect(run.points.map((p) => p.re).sort()).toEqual([1, 2]);
     expect(run.notes[0]).toMatch(/^IRKA stopped after 1 iteration\(s\): IRKA broke down: test/);
+  });
+
+  it('an unstable reduced pole gives a reflected shift, counted; an unstable final model is reported as such', () => {
+    // Reduced poles +1 (unstable) and −2 ± 3i: shifts |1| = 1 (reflected) and the pair 2 ± 3i.
+    const unstable = { A: fromRows([[1, 0, 0], [0, -2, 3], [0, -3, -2]]), B: fromRows([[1], [1], [0]]), C: fromRows([[1, 1, 1]]) };
+    const next = mirrorPoints(unstable)!;
+    expect(next.reflected).toBe(1);
+    const shifts = next.points.map((p) => [p.re, p.im]).sort((a, b) => a[0] - b[0]);
+    expect(shifts[0]).toEqual([1, 0]);
+    expect(shifts[1][0]).toBeCloseTo(2, 12);
+    expect(shifts[1][1]).toBeCloseTo(3, 12);
+    const projector: TangentialProjector = { states: 10, inputs: 1, outputs: 1, project: () => unstable };
+    const run = iterateIrka(projector, initialPoints([{ re: 5, im: 0 }, { re: 7, im: 1 }], 1, 1), { tolerance: 1e-6, maxIterations: 5 });
+    expect(run.converged).toBe(true);
+    expect(run.reflected).toBeGreaterThanOrEqual(1);
+    expect(run.notes.some((n) => /reflected into the right half-plane/.test(n))).toBe(true);
+    const report = irkaReport(run, { tolerance: 1e-6, maxIterations: 5 }, [{ re: 5, im: 0 }, { re: 7, im: 1 }], 'given');
+    expect(report.reducedStable).toBe(false);
   });
 
   it('uses given initial shifts (a pair as one entry) and checks them', () => {
