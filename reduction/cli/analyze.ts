@@ -8,6 +8,7 @@ import { finiteOrNull, matrixRows, numberList, hInfinityCertificate } from './ou
 import { registerVerb } from './registry';
 import { ModelError } from '../errors';
 import { runSparseAnalyze, sparseModelArgument, SPARSE_PATH_OPTIONS } from './sparse';
+import { SPARSE_ANALYSIS_OPTIONS, SPARSE_ANALYSIS_OPTION_NAMES } from './sparse-modes';
 
 registerVerb({
   name: 'analyze',
@@ -19,11 +20,12 @@ registerVerb({
       description: 'relative tolerance for marginal poles: Re λ ≥ −T·max|λ| (default 1e-7)',
     },
     ...SPARSE_PATH_OPTIONS,
+    ...SPARSE_ANALYSIS_OPTIONS,
   },
   run(args) {
     const sparse = sparseModelArgument(args);
     if (sparse) return runSparseAnalyze(sparse, args);
-    for (const o of ['adi-tolerance', 'adi-max-iterations', 'memory-budget']) {
+    for (const o of ['adi-tolerance', 'adi-max-iterations', 'memory-budget', ...SPARSE_ANALYSIS_OPTION_NAMES]) {
       if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to the sparse path only`);
     }
     const model = loadModelArgument(args.positionals);

@@ -24,6 +24,7 @@ import { balancedErrorBound } from '../balanced';
 import { checkFactorBudget, memoryBudgetBytes, MEMORY_BUDGET_ENV } from '../sparse/budget';
 import { finiteOrNull, matrixRows, numberList } from './output';
 import { ENGINE_PATH } from './registry';
+import { sparseModalFigures } from './sparse-modes';
 
 /**
  * Default state count above which `--path auto` takes the sparse path. Measured (2-core machine shared with
@@ -148,7 +149,7 @@ export const SPARSE_REDUCE_OPTIONS: Readonly<Record<string, OptionSpec>> = {
  */
 export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, method: string): Record<string, unknown> {
   if (method !== 'balanced' && method !== 'residualization') {
-    throw new ModelError('invalid_option', 'method', `the sparse path offers --method balanced or residualization, not "${method}"`);
+    throw new ModelError('invalid_option', 'method', `the sparse path offers --method balanced, residualization, modal or irka, not "${method}"`);
   }
   for (const o of ['keep', 'band']) if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to --method modal only`);
   const requested = integerOption(args, 'order');
@@ -219,7 +220,7 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
   };
 }
 
-/** `analyze` on the sparse path: what this slice computes at scale, each figure exact or listed in `estimated`. */
+/** `analyze` on the sparse path: the dense path's keys at scale, each figure exact or listed in `estimated`. */
 export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs): Record<string, unknown> {
   const adi = adiOptionsOf(args);
   const g = lowRankGramians(model, adi);
@@ -252,19 +253,16 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
   } finally {
     lu.dispose();
   }
+  // Poles and the figures made from them, and ‖G‖∞ from below (sparse-modes.ts).
+  const stableByGramians = Boolean(g.controllability?.converged && g.observability?.converged);
+  const modes = sparseModalFigures(model, args, { memoryBudgetBytes: adi.memoryBudgetBytes, stableByGramians });
   return {
     [ENGINE_PATH]: 'sparse',
     states: model.A.n,
     inputs: model.B.cols,
     outputs: model.C.rows,
     descriptor: model.E !== undefined,
-    poles: null,
-    polesComplete: false,
-    polesNote: 'the sparse path does not compute poles yet',
-    slowestDecayRate: g.ritzDecayRates ? g.ritzDecayRates.slowest : null,
-    fastestDecayRate: g.ritzDecayRates ? g.ritzDecayRates.fastest : null,
-    stiffnessRatio: g.ritzDecayRates ? g.ritzDecayRates.fastest / g.ritzDecayRates.slowest : null,
-    decayRatesNote: 'from the Ritz values behind the ADI shifts (Arnoldi on A⁻¹E and E⁻¹A through sparse solves): the slowest to high accuracy, the fastest usually slightly low',
+    ...modes.figures,
     hankelSingularValues: numberList(realization.hankelSingularValues),
     hsvComplete: false,
     h2Norm: h2,
@@ -272,6 +270,6 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
     zeroFrequencyGain,
     ...(zeroFrequencyGainNote ? { zeroFrequencyGainNote } : {}),
     gramianResidual: gramianReport(g, adi.tolerance ?? 1e-10),
-    estimated: ['slowestDecayRate', 'fastestDecayRate', 'stiffnessRatio', 'hankelSingularValues', 'h2Norm'],
+    estimated: [...modes.estimated, 'hankelSingularValues', 'h2Norm'],
   };
 }

@@ -13,6 +13,7 @@ import { lyapunov as signLyapunov } from './lyapunov';
 
 export * from './matrix';
 export { luLogDeterminant, type LuFactorization } from './lu';
+export { sortSchur, schurBlocks, blockEigenvalue } from './schur-reorder';
 export { lyapunovFactor, lowRankGramianFactors } from './lyapunov';
 export { linalgThreads } from './parallel';
 export { kernels, linalgBackendReport, useLinalgBackend } from './kernels';

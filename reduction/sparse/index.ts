@@ -8,6 +8,10 @@
  *   frequency.ts        the full model's frequency response by sparse solves, the sampled error of a reduction
  *   irka.ts             IRKA (H2-optimal tangential interpolation) with UMFPACK solves of σE − A
  *   budget.ts           the memory budget checked before each sparse factorization
+ *   eigs.ts             shift-invert Krylov–Schur (eigenvalues nearest a shift, left and right), the fastest pole
+ *   dominant.ts         dominant poles by the subspace-accelerated dominant pole algorithm (SISO and MIMO)
+ *   modal.ts            modal truncation of the computed modes (E-biorthogonal projection)
+ *   norms.ts            ‖G‖∞ from below: a sweep with local refinement
  */
 export * from './model';
 export { parseSparseMatrixMarket, writeSparseMatrixMarket, isMatrixMarketCoordinate, coordinateRowCount } from './matrix-market';
@@ -16,3 +20,7 @@ export { sparseBalancedReduction, lowRankBalancedRealization, type SparseBalance
 export { sparseFrequencyResponse, sampledErrorPeak, type SparseFrequencyResponse } from './frequency';
 export { memoryBudgetBytes, checkFactorBudget, MEMORY_BUDGET_ENV } from './budget';
 export { sparseIrka, sparseSpectrumEstimate, type SparseIrkaOptions, type SparseIrkaResult, type SpectrumEstimate } from './irka';
+export { krylovSchur, sparseEigs, fastestPole, ShiftInvert, eigenResidual, type SparseEigsOptions, type SparseEigsResult, type FastestPoleResult } from './eigs';
+export { dominantPoles, sweepPeakShifts, type DominantPole, type DominantPoleOptions, type DominantPoleResult } from './dominant';
+export { sparseModalReduction, projectOnModes, type SparseModalOptions, type SparseModalResult } from './modal';
+export { hInfinityLowerBound, sweepGridFromPoles, SparseFrequencyEvaluator, type HInfinityLowerBound } from './norms';
