@@ -44,13 +44,13 @@
  * There is no a-priori error bound; the H2 and H∞ errors are measured (`reduce.ts`).
  *
  * Initial shifts, unless given: the mirror images −λ of the r slowest poles (smallest |λ|; a conjugate pair
- * gives the pair of shifts, and when one place is left for a pair it gets the real shift |λ|), one of the
- * initialisations Gugercin, Antoulas & Beattie 2008 discuss (mirror images of poles of the model); near
- * duplicates are skipped and, when too few poles remain, the rest are logarithmically spaced real shifts
- * above them (common practice). The dense path uses the exact poles, the sparse path Ritz estimates of the
- * slowest ones. Shifts spread up to the fastest pole of a stiff model are a poor start: there the transfer
- * function is negligible and the bases V and W can be nearly orthogonal. The tangential directions start
- * fixed (not random), so that a run is reproducible and both paths start alike.
+ * gives the pair of shifts, and when one place is left for a pair it gets the real shift |λ|; common
+ * practice: mirror images of poles of the model are a usual IRKA start); near duplicates are skipped and,
+ * when too few poles remain, the rest are logarithmically spaced real shifts above them. The dense path
+ * uses the exact poles, the sparse path Ritz estimates of the slowest ones. Shifts spread up to the fastest
+ * pole of a stiff model are a poor start: there the transfer function is negligible and the bases V and W
+ * can be nearly orthogonal. The tangential directions start fixed (not random), so that a run is
+ * reproducible and both paths start alike.
  */
 import { ModelError } from './errors';
 import {
