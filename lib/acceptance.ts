@@ -84,10 +84,10 @@ export function acceptanceWord(v: StoredAcceptance | null): string {
  * The verdict in one sentence, as the chart writes it and the review sheet and exports repeat it, in the
  * model's time unit. `plain` (the exports' text files) writes every digit and ASCII only.
  */
-export function acceptanceSentence(v: StoredAcceptance, timeUnit = 's', plain = false): string {
+export function acceptanceSentence(v: StoredAcceptance, timeBase = 's', plain = false): string {
   const word = ACCEPTANCE_WORD[v.status];
   const num = plain ? (x: number) => String(x) : (x: number) => formatNumber(x);
-  const freq = plain ? (w: number) => `${w} ${frequencyUnit(timeUnit)}` : (w: number) => formatFrequency(w, timeUnit);
+  const freq = plain ? (w: number) => `${w} ${frequencyUnit(timeBase)}` : (w: number) => formatFrequency(w, timeBase);
   const dash = plain ? ' to ' : '–';
   const range = v.minFrequency !== null && v.maxFrequency !== null ? `${num(v.minFrequency)}${dash}${freq(v.maxFrequency)}` : null;
   const at = v.worstError !== null && v.worstFrequency !== null ? `${num(v.worstError)} at ${freq(v.worstFrequency)}` : null;

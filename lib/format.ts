@@ -53,16 +53,16 @@ export function withUnit(value: string, unit: string): string {
 }
 
 /** Angular frequency in rad per model time unit (rad/s for models in seconds). */
-export function frequencyUnit(timeUnit = 's'): string {
-  return `rad/${timeUnit}`;
+export function frequencyUnit(timeBase = 's'): string {
+  return `rad/${timeBase}`;
 }
 
-export function formatFrequency(w: number, timeUnit = 's', opts?: NumberFormat): string {
-  return withUnit(formatNumber(w, opts), frequencyUnit(timeUnit));
+export function formatFrequency(w: number, timeBase = 's', opts?: NumberFormat): string {
+  return withUnit(formatNumber(w, opts), frequencyUnit(timeBase));
 }
 
-export function formatTime(t: number, timeUnit = 's', opts?: NumberFormat): string {
-  return withUnit(formatNumber(t, opts), timeUnit);
+export function formatTime(t: number, timeBase = 's', opts?: NumberFormat): string {
+  return withUnit(formatNumber(t, opts), timeBase);
 }
 
 /** `fraction` is a ratio (0.008), shown as a percentage (`0.8 %`). */

@@ -65,11 +65,11 @@ const bandOf = (v: unknown): { lo: number; hi: number; unit: unknown } | null =>
  * 0.01 × ‖G‖∞ (gave 8)". `resultOrder` adds the order the tolerance rule gave; `plain` (the exports' text
  * files) writes every digit and ASCII only.
  */
-export function describeRecipe(recipe: RecipeInWords, options: { timeUnit?: string; resultOrder?: number; plain?: boolean } = {}): string {
-  const timeUnit = options.timeUnit || 's';
+export function describeRecipe(recipe: RecipeInWords, options: { timeBase?: string; resultOrder?: number; plain?: boolean } = {}): string {
+  const timeBase = options.timeBase || 's';
   const plain = options.plain ?? false;
   const num = plain ? (x: number) => String(x) : (x: number) => formatNumber(x);
-  const freq = plain ? (w: number) => `${w} ${frequencyUnit(timeUnit)}` : (w: number) => formatFrequency(w, timeUnit);
+  const freq = plain ? (w: number) => `${w} ${frequencyUnit(timeBase)}` : (w: number) => formatFrequency(w, timeBase);
   const dash = plain ? ' to ' : '–';
   const opts = recipe.options as Record<string, unknown>;
   const parts = [methodName(recipe.method)];

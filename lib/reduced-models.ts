@@ -14,7 +14,7 @@ import { storedAcceptance, type StoredAcceptance } from '@/lib/acceptance';
 import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
 import { matricesSha256 } from '@/lib/checksums';
-import { TIME_UNIT_SECONDS } from '@/lib/exports/discrete';
+import { TIME_BASE_SECONDS } from '@/lib/exports/discrete';
 import { receiveUpload } from '@/lib/uploads/receive';
 import { releaseFiles, storeFile, type StoredFile } from '@/lib/uploads/store';
 import { validateSignalInChildProcess } from '@/lib/engine-tasks/validate-process';
@@ -102,14 +102,14 @@ export const recipeSchema = z
  * seconds in one time unit. Throws a 400 ApiError naming the field when Hz cannot be converted (a time unit
  * of unknown length) or the converted band is not finite.
  */
-export function limitedBandInRadians(band: LimitedBandInput, timeUnit: string): { minFrequency: number; maxFrequency: number } {
+export function limitedBandInRadians(band: LimitedBandInput, timeBase: string): { minFrequency: number; maxFrequency: number } {
   if (band.unit === 'rad') return { minFrequency: band.minFrequency, maxFrequency: band.maxFrequency };
-  const seconds = TIME_UNIT_SECONDS[timeUnit.trim()];
+  const seconds = TIME_BASE_SECONDS[timeBase.trim()];
   if (seconds === undefined) {
     throw new ApiError(
       400,
       'invalid_request',
-      `Hz cannot be converted for a model whose time unit is “${timeUnit}” (not one of ${Object.keys(TIME_UNIT_SECONDS).join(', ')}); give the band in rad/${timeUnit}.`,
+      `Hz cannot be converted for a model whose time unit is “${timeBase}” (not one of ${Object.keys(TIME_BASE_SECONDS).join(', ')}); give the band in rad/${timeBase}.`,
       'recipe.limitedBand.unit',
     );
   }
@@ -171,8 +171,8 @@ export function recipeInputOf(row: RecipeRow): RecipeInput {
 // A controller project's acceptance band as the reduce page's starting band
 
 /** Seconds in one model time unit when its length is known (lib/exports/discrete.ts), else null. */
-export function timeUnitSeconds(timeUnit: string): number | null {
-  return TIME_UNIT_SECONDS[timeUnit.trim()] ?? null;
+export function timeBaseSeconds(timeBase: string): number | null {
+  return TIME_BASE_SECONDS[timeBase.trim()] ?? null;
 }
 
 export interface ProjectBandSeed {
@@ -189,13 +189,13 @@ export interface ProjectBandSeed {
  * (the project keeps rad/s): null when there is no such project, it has no band, or the model's time unit
  * has no known length (the band cannot be converted then). Any signed-in person reads projects.
  */
-export async function projectBandSeed(projectSlug: string | undefined, timeUnit: string): Promise<ProjectBandSeed | null> {
+export async function projectBandSeed(projectSlug: string | undefined, timeBase: string): Promise<ProjectBandSeed | null> {
   if (!projectSlug || !/^[a-z0-9]+(-[a-z0-9]+)*$/.test(projectSlug) || projectSlug.length > 60) return null;
   const row = await db()('controller_projects')
     .where({ slug: projectSlug })
     .first('name', 'slug', 'acceptance_min_frequency', 'acceptance_max_frequency', 'acceptance_max_error');
   if (!row || row.acceptance_min_frequency === null || row.acceptance_max_frequency === null) return null;
-  const seconds = timeUnitSeconds(timeUnit);
+  const seconds = timeBaseSeconds(timeBase);
   if (seconds === null) return null;
   return {
     projectName: row.name,
@@ -241,8 +241,8 @@ export async function requestReduction(input: ReductionRequest, user: SessionUse
   let options: RecipeRow['options'] = {};
   if (recipe.method === 'modal') options = { selection: recipe.modalSelection, ...(recipe.band ? { band: recipe.band } : {}) };
   if (recipe.method === 'frequency-limited') {
-    const timeUnit = (await db()('source_models').where({ id: version.source_model_id }).first('time_unit'))?.time_unit ?? 's';
-    options = { band: limitedBandInRadians(recipe.limitedBand!, timeUnit), enteredBand: recipe.limitedBand! };
+    const timeBase = (await db()('source_models').where({ id: version.source_model_id }).first('time_base'))?.time_base ?? 's';
+    options = { band: limitedBandInRadians(recipe.limitedBand!, timeBase), enteredBand: recipe.limitedBand! };
   }
   if (input.target.kind === 'existing') {
     const target = await db()('reduced_models').where({ id: input.target.reducedModelId }).first();
@@ -533,7 +533,7 @@ export interface ComparisonPageData {
   model: ReducedModelView;
   version: ReducedVersionSummary & { engineVersion: string; inputChecksum: string; matrices: ReducedMatricesRecord };
   recipe: RecipeRow;
-  source: { modelName: string; modelSlug: string; versionNumber: number; versionId: string; checksum: string; timeUnit: string; inputNames: string[] | null; outputNames: string[] | null; url: string };
+  source: { modelName: string; modelSlug: string; versionNumber: number; versionId: string; checksum: string; timeBase: string; inputLabels: string[] | null; outputLabels: string[] | null; url: string };
   figures: AccuracyFiguresRecord;
   curves: ReductionCurves;
   responseJob: JobView | null;
@@ -560,9 +560,9 @@ export async function getComparisonPage(slug: string, number: number): Promise<C
       versionNumber: sourceVersion.number,
       versionId: sourceVersion.id,
       checksum: sourceVersion.checksum,
-      timeUnit: sourceModel.time_unit,
-      inputNames: analysis?.inputNames ?? null,
-      outputNames: analysis?.outputNames ?? null,
+      timeBase: sourceModel.time_base,
+      inputLabels: analysis?.labels?.inputs ?? null,
+      outputLabels: analysis?.labels?.outputs ?? null,
       url: versionPath(sourceModel.slug, sourceVersion.number),
     },
     figures: report.figures as AccuracyFiguresRecord,

@@ -95,7 +95,7 @@ export interface VersionSummary {
   matricesSha256: string;
   inputChecksum: string;
   engineVersion: string;
-  source: { modelId: string; modelName: string; modelSlug: string; versionId: string; number: number; checksum: string; timeUnit: string };
+  source: { modelId: string; modelName: string; modelSlug: string; versionId: string; number: number; checksum: string; timeBase: string };
   newestSourceNumber: number;
   newestSourceVersionId: string;
   /** A newer version of the source model exists than the one this was reduced from. */
@@ -155,7 +155,7 @@ function summaryQuery(trx: Knex | Knex.Transaction) {
       'sm.id as sm_id',
       'sm.name as sm_name',
       'sm.slug as sm_slug',
-      'sm.time_unit as sm_time_unit',
+      'sm.time_base as sm_time_base',
       'sv.id as sv_id',
       'sv.number as sv_number',
       'sv.checksum as sv_checksum',
@@ -202,7 +202,7 @@ function toSummary(r: SummaryRow): VersionSummary {
       versionId: r.sv_id,
       number: r.sv_number,
       checksum: r.sv_checksum,
-      timeUnit: r.sm_time_unit || 's',
+      timeBase: r.sm_time_base || 's',
     },
     newestSourceNumber: r.newest_source_number,
     newestSourceVersionId: r.newest_source_version_id,

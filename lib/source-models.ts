@@ -43,7 +43,7 @@ const tagList = z
 const sourceModelBase = z.object({
   name: z.string({ error: 'Name is required.' }).trim().min(1, 'Name is required.').max(120, 'Name must be at most 120 characters.'),
   description: z.string().trim().max(4000, 'Description must be at most 4000 characters.').default(''),
-  timeUnit: z
+  timeBase: z
     .string()
     .trim()
     .max(16, 'Time unit must be at most 16 characters.')
@@ -67,7 +67,7 @@ export interface SourceModelRow {
   name: string;
   slug: string;
   description: string;
-  time_unit: string;
+  time_base: string;
   tags: string[];
   created_by: string;
   created_at: Date;
@@ -119,7 +119,7 @@ export interface SourceModelView {
   name: string;
   slug: string;
   description: string;
-  timeUnit: string;
+  timeBase: string;
   tags: string[];
   createdAt: string;
 }
@@ -134,7 +134,7 @@ function toModelView(row: SourceModelRow): SourceModelView {
     name: row.name,
     slug: row.slug,
     description: row.description,
-    timeUnit: row.time_unit,
+    timeBase: row.time_base,
     tags: row.tags,
     createdAt: new Date(row.created_at).toISOString(),
   };
@@ -263,7 +263,7 @@ export async function registerUpload(request: Request, user: SessionUser): Promi
             name: input.name,
             slug: await uniqueSlug(trx, 'source_models', input.name),
             description: input.description,
-            time_unit: input.timeUnit || check.model.timeUnit || 's',
+            time_base: input.timeBase || check.model.timeBase || 's',
             tags: input.tags,
             created_by: user.id,
           })

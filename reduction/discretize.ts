@@ -16,7 +16,7 @@
 import { ModelError } from './errors';
 import { type Matrix, type ComplexVector, zeros, eigenvalues } from './linalg/index';
 import { expmWithInfo } from './linalg/expm';
-import type { StateSpaceModel } from './model';
+import type { ModelLabels, StateSpaceModel } from './model';
 
 export interface ZohMatrices {
   /** Φ = e^{A ts}, n×n. */
@@ -57,10 +57,8 @@ export interface DiscreteModel {
   readonly Cd: Matrix;
   readonly Dd: Matrix;
   readonly ts: number;
-  readonly inputNames?: readonly string[];
-  readonly outputNames?: readonly string[];
-  readonly stateNames?: readonly string[];
-  readonly timeUnit?: string;
+  readonly labels?: ModelLabels;
+  readonly timeBase?: string;
 }
 
 /** Throws invalid_option on a sample time that is not a positive finite number. */
@@ -80,10 +78,8 @@ export function discretizeZoh(model: StateSpaceModel, ts: number): DiscreteModel
     Cd: model.C,
     Dd: model.D,
     ts,
-    ...(model.inputNames ? { inputNames: model.inputNames } : {}),
-    ...(model.outputNames ? { outputNames: model.outputNames } : {}),
-    ...(model.stateNames ? { stateNames: model.stateNames } : {}),
-    ...(model.timeUnit ? { timeUnit: model.timeUnit } : {}),
+    ...(model.labels ? { labels: model.labels } : {}),
+    ...(model.timeBase ? { timeBase: model.timeBase } : {}),
   };
 }
 

@@ -20,6 +20,7 @@ export type ModelErrorCode =
   | 'unsorted_times'
   | 'unreadable_file'
   | 'missing_field'
+  | 'unknown_field'
   | 'too_large';
 
 export class ModelError extends Error {

@@ -9,10 +9,16 @@ export interface StateSpaceModel {
   readonly B: Matrix; // n×m
   readonly C: Matrix; // p×n
   readonly D: Matrix; // p×m (zeros when the input gave none)
-  readonly inputNames?: readonly string[];
-  readonly outputNames?: readonly string[];
-  readonly stateNames?: readonly string[];
-  readonly timeUnit?: string;
+  /** Names of the inputs (m), outputs (p) and states (n), each optional. */
+  readonly labels?: ModelLabels;
+  /** The unit of time the matrices are written in, e.g. "s" (frequencies are in rad per this unit). */
+  readonly timeBase?: string;
+}
+
+export interface ModelLabels {
+  readonly inputs?: readonly string[];
+  readonly outputs?: readonly string[];
+  readonly states?: readonly string[];
 }
 
 export function stateCount(m: StateSpaceModel): number {

@@ -16,7 +16,7 @@
  */
 import { ModelError } from './errors';
 import { type Matrix, zeros, norm1, inverse, matmul } from './linalg/index';
-import { assembleModel, requireFinite, requireNonEmpty, type ModelNames } from './io/assemble';
+import { assembleModel, requireFinite, requireNonEmpty, type ModelDescription } from './io/assemble';
 import type { StateSpaceModel } from './model';
 
 export interface SecondOrderMatrices {
@@ -55,7 +55,7 @@ export function massReciprocalCondition(mass: Matrix): { rcond: number; inverse:
  * Throws ModelError: not_square, dimension_mismatch, empty_matrix, non_finite (naming mass, damping, …),
  * missing_field (neither output map), singular_mass.
  */
-export function secondOrderToFirstOrder(so: SecondOrderMatrices, names: ModelNames = {}): StateSpaceModel {
+export function secondOrderToFirstOrder(so: SecondOrderMatrices, description: ModelDescription = {}): StateSpaceModel {
   const M = so.mass;
   requireNonEmpty(M, 'mass');
   if (M.rows !== M.cols) throw new ModelError('not_square', 'mass', `mass must be square but is ${M.rows}×${M.cols}`);
@@ -133,5 +133,5 @@ export function secondOrderToFirstOrder(so: SecondOrderMatrices, names: ModelNam
       if (Cv) C.data[i * N + n + j] = Cv.data[i * n + j];
     }
   }
-  return assembleModel({ A, B, C }, names);
+  return assembleModel({ A, B, C }, description);
 }

@@ -243,7 +243,7 @@ function denseModel(n: number): DenseModel {
   const A = Xt[0].map((_, j) => Xt.map((row) => row[j]));
   const B = Array.from({ length: n }, () => [rand() - 0.5, rand() - 0.5]);
   const C = Array.from({ length: 2 }, () => Array.from({ length: n }, () => rand() - 0.5));
-  return { A, B, C, D: [[0, 0], [0, 0]], inputNames: ['u1', 'u2'], outputNames: ['y1', 'y2'] };
+  return { A, B, C, D: [[0, 0], [0, 0]], labels: { inputs: ['u1', 'u2'], outputs: ['y1', 'y2'] } };
 }
 
 const csvOf = (m: number[][]) => m.map((r) => r.map((v) => v.toPrecision(17)).join(',')).join('\n') + '\n';

@@ -15,7 +15,7 @@ export function BodeChart({
   frequencies,
   full,
   reduced,
-  timeUnit,
+  timeBase,
   channelLabel,
   initialMagnitudeScale = 'dB',
   height = 460,
@@ -24,8 +24,8 @@ export function BodeChart({
   const [magnitudeScale, setMagnitudeScale] = useState<MagnitudeScale>(initialMagnitudeScale);
   const theme = useChartTheme();
   const built = useBuiltOption(
-    () => buildBodeOption({ frequencies, full, reduced, timeUnit, channelLabel, magnitudeScale }, theme),
-    [frequencies, full, reduced, timeUnit, channelLabel, magnitudeScale, theme],
+    () => buildBodeOption({ frequencies, full, reduced, timeBase, channelLabel, magnitudeScale }, theme),
+    [frequencies, full, reduced, timeBase, channelLabel, magnitudeScale, theme],
   );
   return (
     <figure className="panel p-4">

@@ -10,16 +10,16 @@ export interface ChannelPickerProps {
   readonly inputCount: number;
   readonly outputCount: number;
   /** names from the uploaded model, by index; missing ones become u1…, y1… */
-  readonly inputNames?: readonly string[];
-  readonly outputNames?: readonly string[];
+  readonly inputLabels?: readonly string[];
+  readonly outputLabels?: readonly string[];
   readonly value: Channel;
   readonly onChange: (channel: Channel) => void;
   readonly disabled?: boolean;
 }
 
-export function ChannelPicker({ inputCount, outputCount, inputNames, outputNames, value, onChange, disabled }: ChannelPickerProps) {
-  const inputs = signalNames(inputNames, inputCount, 'u');
-  const outputs = signalNames(outputNames, outputCount, 'y');
+export function ChannelPicker({ inputCount, outputCount, inputLabels, outputLabels, value, onChange, disabled }: ChannelPickerProps) {
+  const inputs = signalNames(inputLabels, inputCount, 'u');
+  const outputs = signalNames(outputLabels, outputCount, 'y');
   const current = clampChannel(value, inputCount, outputCount);
   const inputId = useId();
   const outputId = useId();

@@ -27,14 +27,14 @@ export function ErrorBoundChart({
   boundLabel,
   errorLabel,
   acceptance,
-  timeUnit,
+  timeBase,
   height = 340,
   title = 'Error against bound',
 }: ErrorBoundChartProps) {
   const theme = useChartTheme();
   const built = useBuiltOption(
-    () => buildErrorBoundOption({ frequencies, error, bound, boundLabel, errorLabel, acceptance, timeUnit }, theme),
-    [frequencies, error, bound, boundLabel, errorLabel, acceptance, timeUnit, theme],
+    () => buildErrorBoundOption({ frequencies, error, bound, boundLabel, errorLabel, acceptance, timeBase }, theme),
+    [frequencies, error, bound, boundLabel, errorLabel, acceptance, timeBase, theme],
   );
   const verdict = acceptance && built.problem === null ? acceptance : null;
   return (
@@ -50,7 +50,7 @@ export function ErrorBoundChart({
             className="num absolute text-xs font-semibold leading-4"
             style={{ color: VERDICT_COLORS[verdict.status], left: MARGINS.left, right: MARGINS.right, top: 24 }}
           >
-            {acceptanceSentence(verdict, timeUnit)}
+            {acceptanceSentence(verdict, timeBase)}
           </p>
         ) : null}
       </div>

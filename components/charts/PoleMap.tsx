@@ -20,12 +20,12 @@ const STABILITY_LEGEND = (['stable', 'marginal', 'unstable'] as const).map((s) =
 
 const SCALE_WORDS: Record<PoleMapScale, string> = { linear: 'Linear', symlog: 'Symmetric log' };
 
-export function PoleMap({ re, im, stability, kept, timeUnit, initialScale = 'symlog', height = 380, title = 'Poles' }: PoleMapProps) {
+export function PoleMap({ re, im, stability, kept, timeBase, initialScale = 'symlog', height = 380, title = 'Poles' }: PoleMapProps) {
   const [scale, setScale] = useState<PoleMapScale>(initialScale);
   const theme = useChartTheme();
   const built = useBuiltOption(
-    () => buildPoleMapOption({ re, im, stability, kept, timeUnit, scale }, theme),
-    [re, im, stability, kept, timeUnit, scale, theme],
+    () => buildPoleMapOption({ re, im, stability, kept, timeBase, scale }, theme),
+    [re, im, stability, kept, timeBase, scale, theme],
   );
   const headingId = useId();
   return (

@@ -12,12 +12,12 @@ export interface SingularValueChartProps extends Omit<SingularValueChartData, 'm
   readonly title?: string;
 }
 
-export function SingularValueChart({ frequencies, full, reduced, timeUnit, initialMagnitudeScale = 'dB', height = 320, title = 'Largest singular value' }: SingularValueChartProps) {
+export function SingularValueChart({ frequencies, full, reduced, timeBase, initialMagnitudeScale = 'dB', height = 320, title = 'Largest singular value' }: SingularValueChartProps) {
   const [magnitudeScale, setMagnitudeScale] = useState<MagnitudeScale>(initialMagnitudeScale);
   const theme = useChartTheme();
   const built = useBuiltOption(
-    () => buildSingularValueOption({ frequencies, full, reduced, timeUnit, magnitudeScale }, theme),
-    [frequencies, full, reduced, timeUnit, magnitudeScale, theme],
+    () => buildSingularValueOption({ frequencies, full, reduced, timeBase, magnitudeScale }, theme),
+    [frequencies, full, reduced, timeBase, magnitudeScale, theme],
   );
   return (
     <figure className="panel p-4">

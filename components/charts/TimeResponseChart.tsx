@@ -11,11 +11,11 @@ export interface TimeResponseChartProps extends TimeResponseChartData {
 
 const DEFAULT_TITLES = { step: 'Step response', impulse: 'Impulse response', input: 'Response to the uploaded input' } as const;
 
-export function TimeResponseChart({ kind, full, reduced, timeUnit, channelLabel, errorScale, height = 460, title }: TimeResponseChartProps) {
+export function TimeResponseChart({ kind, full, reduced, timeBase, channelLabel, errorScale, height = 460, title }: TimeResponseChartProps) {
   const theme = useChartTheme();
   const built = useBuiltOption(
-    () => buildTimeResponseOption({ kind, full, reduced, timeUnit, channelLabel, errorScale }, theme),
-    [kind, full, reduced, timeUnit, channelLabel, errorScale, theme],
+    () => buildTimeResponseOption({ kind, full, reduced, timeBase, channelLabel, errorScale }, theme),
+    [kind, full, reduced, timeBase, channelLabel, errorScale, theme],
   );
   return (
     <figure className="panel p-4">

@@ -24,7 +24,7 @@ export interface BodeChartData {
   readonly full: ComplexSamples;
   readonly reduced?: ComplexSamples;
   readonly magnitudeScale?: MagnitudeScale;
-  readonly timeUnit?: string;
+  readonly timeBase?: string;
   /** e.g. "force F1 → displacement x3"; shown in the accessible description */
   readonly channelLabel?: string;
 }
@@ -35,7 +35,7 @@ export interface SingularValueChartData {
   readonly full: readonly number[];
   readonly reduced?: readonly number[];
   readonly magnitudeScale?: MagnitudeScale;
-  readonly timeUnit?: string;
+  readonly timeBase?: string;
 }
 
 function modelLine(which: 'full' | 'reduced', xAxisIndex: number, yAxisIndex: number, data: [number, number | null][]): LineSeriesOption {
@@ -56,7 +56,7 @@ function modelLine(which: 'full' | 'reduced', xAxisIndex: number, yAxisIndex: nu
   };
 }
 
-function frequencyAxis(theme: ChartTheme, w: readonly number[], gridIndex: number, timeUnit: string, showName: boolean) {
+function frequencyAxis(theme: ChartTheme, w: readonly number[], gridIndex: number, timeBase: string, showName: boolean) {
   const ink = axisInk(theme);
   const range = decadeRange(w) ?? { min: 0.1, max: 10 };
   return {
@@ -66,7 +66,7 @@ function frequencyAxis(theme: ChartTheme, w: readonly number[], gridIndex: numbe
     gridIndex,
     min: range.min,
     max: range.max,
-    name: showName ? `frequency ω (${frequencyUnit(timeUnit)})` : '',
+    name: showName ? `frequency ω (${frequencyUnit(timeBase)})` : '',
     nameGap: 28,
     axisLabel: { ...ink.axisLabel, show: showName, formatter: (v: number) => formatNumber(v, { significant: 2 }) },
   };
@@ -125,7 +125,7 @@ export function buildBodeOption(data: BodeChartData, theme: ChartTheme = DEFAULT
   checkComplexSamples(chart, 'full', data.full, w.length);
   if (data.reduced) checkComplexSamples(chart, 'reduced', data.reduced, w.length);
   const scale = data.magnitudeScale ?? 'dB';
-  const timeUnit = data.timeUnit ?? 's';
+  const timeBase = data.timeBase ?? 's';
 
   const fullMag = toMagnitude(scale, data.full);
   const fullPhase = phaseDegrees(data.full);
@@ -154,7 +154,7 @@ export function buildBodeOption(data: BodeChartData, theme: ChartTheme = DEFAULT
       formatter: (params: unknown) => {
         const list = params as { seriesName: string; axisIndex?: number; value: [number, number | null]; seriesIndex: number }[];
         if (list.length === 0) return '';
-        const lines = [formatFrequency(list[0].value[0], timeUnit)];
+        const lines = [formatFrequency(list[0].value[0], timeBase)];
         for (const p of list) {
           const isPhase = (series[p.seriesIndex]?.yAxisIndex ?? 0) === 1;
           const y = p.value[1];
@@ -167,7 +167,7 @@ export function buildBodeOption(data: BodeChartData, theme: ChartTheme = DEFAULT
       plotGrid({ top: 40, height: '40%' }),
       plotGrid({ top: '60%', bottom: 52 }),
     ],
-    xAxis: [frequencyAxis(theme, w, 0, timeUnit, false), frequencyAxis(theme, w, 1, timeUnit, true)],
+    xAxis: [frequencyAxis(theme, w, 0, timeBase, false), frequencyAxis(theme, w, 1, timeBase, true)],
     yAxis: [
       magnitudeAxis(theme, scale, [...fullMag, ...(reducedMag ?? [])], 0, 'magnitude |G|'),
       {
@@ -197,7 +197,7 @@ export function buildSingularValueOption(data: SingularValueChartData, theme: Ch
     requireNonNegative(chart, 'reduced', data.reduced);
   }
   const scale = data.magnitudeScale ?? 'dB';
-  const timeUnit = data.timeUnit ?? 's';
+  const timeBase = data.timeBase ?? 's';
   const convert = (s: readonly number[]) =>
     s.map((v) => (v > 0 ? (scale === 'dB' ? 20 * Math.log10(v) : v) : null));
   const full = convert(data.full);
@@ -215,7 +215,7 @@ export function buildSingularValueOption(data: SingularValueChartData, theme: Ch
       formatter: (params: unknown) => {
         const list = params as { seriesName: string; value: [number, number | null] }[];
         if (list.length === 0) return '';
-        const lines = [formatFrequency(list[0].value[0], timeUnit)];
+        const lines = [formatFrequency(list[0].value[0], timeBase)];
         for (const p of list) {
           const y = p.value[1];
           lines.push(`${escapeHtml(p.seriesName)} σmax ${y === null ? '—' : scale === 'dB' ? formatDecibel(y) : formatNumber(y)}`);
@@ -224,7 +224,7 @@ export function buildSingularValueOption(data: SingularValueChartData, theme: Ch
       },
     },
     grid: plotGrid({ top: 40, bottom: 52 }),
-    xAxis: frequencyAxis(theme, w, 0, timeUnit, true),
+    xAxis: frequencyAxis(theme, w, 0, timeBase, true),
     yAxis: magnitudeAxis(theme, scale, [...full, ...(reduced ?? [])], 0, 'largest singular value σmax'),
     dataZoom: [{ type: 'inside', xAxisIndex: 0, filterMode: 'none' }],
     series,

@@ -24,7 +24,7 @@ export interface ErrorBoundChartData {
   readonly errorLabel?: string;
   /** the stored verdict of the recipe's acceptance band, with the band itself */
   readonly acceptance?: StoredAcceptance;
-  readonly timeUnit?: string;
+  readonly timeBase?: string;
 }
 
 const CHART = 'ErrorBoundChart';
@@ -51,7 +51,7 @@ export function buildErrorBoundOption(
   if (w.length === 0) throw new ChartDataError(CHART, 'frequencies', 'must hold at least one frequency');
   requireSameLength(CHART, 'frequencies', w, 'error', data.error);
   requireNonNegative(CHART, 'error', data.error);
-  const timeUnit = data.timeUnit ?? 's';
+  const timeBase = data.timeBase ?? 's';
   const errorLabel = data.errorLabel ?? DEFAULT_ERROR_LABEL;
   const boundLabel = data.boundLabel ?? DEFAULT_BOUND_LABEL;
 
@@ -140,7 +140,7 @@ export function buildErrorBoundOption(
       formatter: (params: unknown) => {
         const list = params as { seriesName: string; value: [number, number | null] }[];
         if (list.length === 0) return '';
-        const lines = [formatFrequency(list[0].value[0], timeUnit)];
+        const lines = [formatFrequency(list[0].value[0], timeBase)];
         for (const p of list) lines.push(`${escapeHtml(p.seriesName)} ${p.value[1] === null ? '—' : formatNumber(p.value[1])}`);
         return lines.join('<br/>');
       },
@@ -150,7 +150,7 @@ export function buildErrorBoundOption(
       type: 'log',
       min: xRange.min,
       max: xRange.max,
-      name: `frequency ω (${frequencyUnit(timeUnit)})`,
+      name: `frequency ω (${frequencyUnit(timeBase)})`,
       nameGap: 28,
       axisLabel: { ...ink.axisLabel, formatter: (v: number) => formatNumber(v, { significant: 2 }) },
     },

@@ -28,7 +28,7 @@ export interface PoleMapData {
   readonly kept?: readonly boolean[];
   readonly scale?: PoleMapScale;
   /** model time unit; frequencies are then rad per that unit */
-  readonly timeUnit?: string;
+  readonly timeBase?: string;
 }
 
 export const POLE_SYMBOL: Record<PoleStability, 'circle' | 'diamond' | 'triangle'> = {
@@ -56,13 +56,13 @@ export function poleTooltipLines(
   im: number,
   stability: PoleStability,
   kept: boolean | undefined,
-  timeUnit = 's',
+  timeBase = 's',
 ): string[] {
   const m = modalFigures(re, im, stability);
-  const tau = m.timeConstant === null ? '∞' : `${formatTime(m.timeConstant, timeUnit)}${m.growing ? ' (growth)' : ''}`;
+  const tau = m.timeConstant === null ? '∞' : `${formatTime(m.timeConstant, timeBase)}${m.growing ? ' (growth)' : ''}`;
   return [
     `λ = ${formatComplex(re, im)}`,
-    `ωn = ${formatFrequency(m.naturalFrequency, timeUnit)}`,
+    `ωn = ${formatFrequency(m.naturalFrequency, timeBase)}`,
     `ζ = ${m.dampingRatio === null ? '—' : formatNumber(m.dampingRatio)}`,
     `τ = ${tau}`,
     poleSeriesName(stability, kept),
@@ -111,7 +111,7 @@ function tickLabel(scale: PoleMapScale, c: number) {
 export function buildPoleMapOption(data: PoleMapData, theme: ChartTheme = DEFAULT_CHART_THEME): ChartOption {
   const stability = checkData(data);
   const scale = data.scale ?? 'linear';
-  const timeUnit = data.timeUnit ?? 's';
+  const timeBase = data.timeBase ?? 's';
   const n = data.re.length;
   const cRe = symlogThreshold(data.re);
   const cIm = symlogThreshold(data.im);
@@ -145,8 +145,8 @@ export function buildPoleMapOption(data: PoleMapData, theme: ChartTheme = DEFAUL
 
   const base = baseOption(theme, `Pole map of ${n} poles, ${scale === 'symlog' ? 'symmetric-log' : 'linear'} axes.`);
   const ink = axisInk(theme, true);
-  const reUnit = `1/${timeUnit}`;
-  const imUnit = `rad/${timeUnit}`;
+  const reUnit = `1/${timeBase}`;
+  const imUnit = `rad/${timeBase}`;
   const xAxis = {
     ...ink,
     ...(scale === 'symlog' ? symlogAxis(data.re, cRe) : { type: 'value' as const, scale: false }),
@@ -188,7 +188,7 @@ export function buildPoleMapOption(data: PoleMapData, theme: ChartTheme = DEFAUL
         const value = (params as { value?: unknown }).value;
         if (!Array.isArray(value)) return '';
         const i = value[2] as number;
-        return poleTooltipLines(data.re[i], data.im[i], stability[i], data.kept?.[i], timeUnit)
+        return poleTooltipLines(data.re[i], data.im[i], stability[i], data.kept?.[i], timeBase)
           .map(escapeHtml)
           .join('<br/>');
       },

@@ -16,7 +16,7 @@ export interface TimeResponseChartData {
   readonly kind: ResponseKind;
   readonly full: TimeSeries;
   readonly reduced?: TimeSeries;
-  readonly timeUnit?: string;
+  readonly timeBase?: string;
   /** e.g. "u1 → y2"; shown in the description */
   readonly channelLabel?: string;
   readonly errorScale?: 'linear' | 'log';
@@ -52,7 +52,7 @@ function responseLine(which: 'full' | 'reduced', s: TimeSeries): LineSeriesOptio
 export function buildTimeResponseOption(data: TimeResponseChartData, theme: ChartTheme = DEFAULT_CHART_THEME): ChartOption {
   checkTimeSeries(CHART, 'full', data.full);
   if (data.reduced) checkTimeSeries(CHART, 'reduced', data.reduced);
-  const timeUnit = data.timeUnit ?? 's';
+  const timeBase = data.timeBase ?? 's';
   const errorScale = data.errorScale ?? 'linear';
   const error = data.reduced ? absoluteErrorOnGrid(data.full, data.reduced) : null;
   const peak = error ? peakError(data.full.t, error) : null;
@@ -88,7 +88,7 @@ export function buildTimeResponseOption(data: TimeResponseChartData, theme: Char
               symbol: 'none',
               lineStyle: { color: OKABE_ITO.blue, type: 'dotted', width: 1 },
               label: {
-                formatter: `peak ${formatNumber(peak.error)} at ${formatTime(peak.t, timeUnit)}`,
+                formatter: `peak ${formatNumber(peak.error)} at ${formatTime(peak.t, timeBase)}`,
                 fontFamily: theme.fontMono,
                 color: OKABE_ITO.blue,
                 position: 'insideEndTop',
@@ -106,12 +106,12 @@ export function buildTimeResponseOption(data: TimeResponseChartData, theme: Char
     gridIndex,
     min: tStart,
     max: tEnd,
-    name: showName ? `time t (${timeUnit})` : '',
+    name: showName ? `time t (${timeBase})` : '',
     nameGap: 28,
     axisLabel: { ...ink.axisLabel, show: showName, formatter: (v: number) => formatNumber(v, { significant: 3 }) },
   });
   const channel = data.channelLabel ? ` for ${data.channelLabel}` : '';
-  const peakText = peak ? ` Peak absolute error ${formatNumber(peak.error)} at ${formatTime(peak.t, timeUnit)}.` : '';
+  const peakText = peak ? ` Peak absolute error ${formatNumber(peak.error)} at ${formatTime(peak.t, timeBase)}.` : '';
 
   return {
     ...baseOption(theme, `${KIND_WORDS[data.kind]}${channel} of the full${data.reduced ? ' and reduced' : ''} model.${peakText}`),
@@ -123,7 +123,7 @@ export function buildTimeResponseOption(data: TimeResponseChartData, theme: Char
       formatter: (params: unknown) => {
         const list = params as { seriesName: string; value: [number, number | null] }[];
         if (list.length === 0) return '';
-        const lines = [`t = ${formatTime(list[0].value[0], timeUnit)}`];
+        const lines = [`t = ${formatTime(list[0].value[0], timeBase)}`];
         for (const p of list) lines.push(`${escapeHtml(p.seriesName)} ${p.value[1] === null ? '—' : formatNumber(p.value[1], { significant: 4 })}`);
         return lines.join('<br/>');
       },

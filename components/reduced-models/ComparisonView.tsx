@@ -25,14 +25,14 @@ export interface ComparisonViewProps {
   curves: ReductionCurves;
   /** the stored acceptance verdict with its band (lib/acceptance.ts); null when the recipe set none */
   acceptance: StoredAcceptance | null;
-  timeUnit: string;
-  inputNames: string[] | null;
-  outputNames: string[] | null;
+  timeBase: string;
+  inputLabels: string[] | null;
+  outputLabels: string[] | null;
   responseJob: JobView | null;
   canUploadSignal: boolean;
 }
 
-export function toFiguresTable(f: AccuracyFiguresRecord, timeUnit = 's'): AccuracyFigures {
+export function toFiguresTable(f: AccuracyFiguresRecord, timeBase = 's'): AccuracyFigures {
   const fl = f.frequencyLimited ?? null;
   return {
     fullOrder: f.fullOrder,
@@ -58,19 +58,19 @@ export function toFiguresTable(f: AccuracyFiguresRecord, timeUnit = 's'): Accura
             inBandAt: fl.inBandErrorFrequency,
             outOfBand: fl.outOfBandError,
             outOfBandAt: fl.outOfBandErrorFrequency,
-            timeUnit,
+            timeBase,
           },
         }
       : {}),
   };
 }
 
-function CostRows({ rows, input, tEnd, timeUnit }: { rows: CostRowRecord[]; input: string; tEnd: number; timeUnit: string }) {
+function CostRows({ rows, input, tEnd, timeBase }: { rows: CostRowRecord[]; input: string; tEnd: number; timeBase: string }) {
   return (
     <div className="panel p-4" data-testid="cost-rows">
       <table className="w-full border-collapse text-sm">
         <caption className="pb-2 text-left text-sm font-medium">
-          Each solver on both models: {input}, 0 to {formatTime(tEnd, timeUnit)}
+          Each solver on both models: {input}, 0 to {formatTime(tEnd, timeBase)}
         </caption>
         <thead>
           <tr className="border-b border-rule-strong">
@@ -109,16 +109,16 @@ function CostRows({ rows, input, tEnd, timeUnit }: { rows: CostRowRecord[]; inpu
 }
 
 /** Frequency-limited balanced truncation: the measured errors in and out of its band, no bound, and stability. */
-function BandErrorSummary({ figures, timeUnit }: { figures: AccuracyFiguresRecord; timeUnit: string }) {
+function BandErrorSummary({ figures, timeBase }: { figures: AccuracyFiguresRecord; timeBase: string }) {
   const fl = figures.frequencyLimited!;
   return (
     <div className="panel p-4 text-sm" data-testid="band-errors">
       <p>
-        Balanced on the band {formatNumber(fl.band.minFrequency)}–{formatFrequency(fl.band.maxFrequency, timeUnit)}. Measured σmax(G − Gr): inside the band{' '}
+        Balanced on the band {formatNumber(fl.band.minFrequency)}–{formatFrequency(fl.band.maxFrequency, timeBase)}. Measured σmax(G − Gr): inside the band{' '}
         <span className="num">{formatNumber(fl.inBandError)}</span>
-        {fl.inBandErrorFrequency !== null ? <> (largest at {formatFrequency(fl.inBandErrorFrequency, timeUnit)})</> : null}, outside it{' '}
+        {fl.inBandErrorFrequency !== null ? <> (largest at {formatFrequency(fl.inBandErrorFrequency, timeBase)})</> : null}, outside it{' '}
         <span className="num">{formatNumber(fl.outOfBandError)}</span>
-        {fl.outOfBandErrorFrequency !== null ? <> (largest at {formatFrequency(fl.outOfBandErrorFrequency, timeUnit)})</> : null}.
+        {fl.outOfBandErrorFrequency !== null ? <> (largest at {formatFrequency(fl.outOfBandErrorFrequency, timeBase)})</> : null}.
       </p>
       <p className="mt-1">
         No a-priori error bound for this method: these errors are measured on frequency grids, not guaranteed between their points.
@@ -131,13 +131,13 @@ function BandErrorSummary({ figures, timeUnit }: { figures: AccuracyFiguresRecor
 }
 
 export function ComparisonView(p: ComparisonViewProps) {
-  const { curves, figures, timeUnit } = p;
+  const { curves, figures, timeBase } = p;
   const inputs = curves.frequency.full.re[0]?.length ?? 0;
   const outputs = curves.frequency.full.re.length;
   const [channel, setChannel] = useState<Channel>({ input: 0, output: 0 });
-  const inputNames = signalNames(p.inputNames ?? undefined, inputs, 'u');
-  const outputNames = signalNames(p.outputNames ?? undefined, outputs, 'y');
-  const label = channelLabel(inputNames, outputNames, channel);
+  const inputLabels = signalNames(p.inputLabels ?? undefined, inputs, 'u');
+  const outputLabels = signalNames(p.outputLabels ?? undefined, outputs, 'y');
+  const label = channelLabel(inputLabels, outputLabels, channel);
   const { input: j, output: i } = channel;
   const f = curves.frequency;
   const bode = useMemo(
@@ -152,13 +152,13 @@ export function ComparisonView(p: ComparisonViewProps) {
   return (
     <div className="space-y-6">
       <div className="flex flex-wrap items-end justify-between gap-4">
-        <ChannelPicker inputCount={inputs} outputCount={outputs} inputNames={p.inputNames ?? undefined} outputNames={p.outputNames ?? undefined} value={channel} onChange={setChannel} />
+        <ChannelPicker inputCount={inputs} outputCount={outputs} inputLabels={p.inputLabels ?? undefined} outputLabels={p.outputLabels ?? undefined} value={channel} onChange={setChannel} />
         <p className="text-xs text-graphite-soft">Full model solid graphite, reduced model dashed teal.</p>
       </div>
       <div className="grid gap-6 xl:grid-cols-2">
-        <BodeChart frequencies={f.frequencies} full={bode.full} reduced={bode.reduced} timeUnit={timeUnit} channelLabel={label} title="Bode plot" />
+        <BodeChart frequencies={f.frequencies} full={bode.full} reduced={bode.reduced} timeBase={timeBase} channelLabel={label} title="Bode plot" />
         <div className="space-y-6">
-          <SingularValueChart frequencies={f.frequencies} full={f.sigmaFull} reduced={f.sigmaReduced} timeUnit={timeUnit} title="Largest singular value σmax(G(jω))" />
+          <SingularValueChart frequencies={f.frequencies} full={f.sigmaFull} reduced={f.sigmaReduced} timeBase={timeBase} title="Largest singular value σmax(G(jω))" />
           <ErrorBoundChart
             frequencies={f.frequencies}
             error={f.error}
@@ -166,18 +166,18 @@ export function ComparisonView(p: ComparisonViewProps) {
             errorLabel="σmax(G − Gr)"
             boundLabel={figures.method === 'modal' ? 'modal bound Σ‖cᵢbᵢᵀ‖/|Re λᵢ|' : 'bound 2Σσ(r+1..n)'}
             acceptance={p.acceptance ?? undefined}
-            timeUnit={timeUnit}
+            timeBase={timeBase}
             title={figures.errorBoundNote ? `Error |G − Gr| (${figures.errorBoundNote})` : 'Error |G − Gr| against its bound'}
           />
-          {figures.frequencyLimited ? <BandErrorSummary figures={figures} timeUnit={timeUnit} /> : null}
+          {figures.frequencyLimited ? <BandErrorSummary figures={figures} timeBase={timeBase} /> : null}
         </div>
       </div>
       <div className="grid gap-6 xl:grid-cols-2">
-        <TimeResponseChart kind="step" full={series(curves.step, 'full')} reduced={series(curves.step, 'reduced')} timeUnit={timeUnit} channelLabel={label} />
-        <TimeResponseChart kind="impulse" full={series(curves.impulse, 'full')} reduced={series(curves.impulse, 'reduced')} timeUnit={timeUnit} channelLabel={label} />
+        <TimeResponseChart kind="step" full={series(curves.step, 'full')} reduced={series(curves.step, 'reduced')} timeBase={timeBase} channelLabel={label} />
+        <TimeResponseChart kind="impulse" full={series(curves.impulse, 'full')} reduced={series(curves.impulse, 'reduced')} timeBase={timeBase} channelLabel={label} />
       </div>
       <p className="text-xs text-graphite-soft">
-        Responses from rest to a unit step and a unit impulse on input {inputNames[j]}, over {formatTime(figures.simulationEnd, timeUnit)}; solvers: full {curves.step.solverFull},
+        Responses from rest to a unit step and a unit impulse on input {inputLabels[j]}, over {formatTime(figures.simulationEnd, timeBase)}; solvers: full {curves.step.solverFull},
         reduced {curves.step.solverReduced}.
       </p>
       <InputSignalPanel
@@ -187,11 +187,11 @@ export function ComparisonView(p: ComparisonViewProps) {
         channel={channel}
         channelLabel={label}
         inputCount={inputs}
-        timeUnit={timeUnit}
+        timeBase={timeBase}
       />
       <div className="grid gap-6 xl:grid-cols-2">
-        <FiguresTable figures={toFiguresTable(figures, timeUnit)} caption="Accuracy report" />
-        <CostRows rows={figures.costRows} input={figures.simulationInput} tEnd={figures.simulationEnd} timeUnit={timeUnit} />
+        <FiguresTable figures={toFiguresTable(figures, timeBase)} caption="Accuracy report" />
+        <CostRows rows={figures.costRows} input={figures.simulationInput} tEnd={figures.simulationEnd} timeBase={timeBase} />
       </div>
       {figures.notes.length ? (
         <ul className="list-disc pl-5 text-sm" aria-label="Notes from the reduction">

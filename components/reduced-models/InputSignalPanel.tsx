@@ -17,7 +17,7 @@ export function InputSignalPanel({
   channel,
   channelLabel,
   inputCount,
-  timeUnit,
+  timeBase,
 }: {
   reducedVersionId: string;
   initialJob: JobView | null;
@@ -25,7 +25,7 @@ export function InputSignalPanel({
   channel: Channel;
   channelLabel: string;
   inputCount: number;
-  timeUnit: string;
+  timeBase: string;
 }) {
   const id = useId();
   const [job, setJob] = useState<JobView | null>(initialJob);
@@ -94,7 +94,7 @@ export function InputSignalPanel({
             kind="input"
             full={{ t: result.t, y: result.full[channel.output] }}
             reduced={{ t: result.t, y: result.reduced[channel.output] }}
-            timeUnit={timeUnit}
+            timeBase={timeBase}
             channelLabel={channelLabel.split(' → ')[1]}
           />
           <p className="text-xs text-graphite-soft">

@@ -45,7 +45,7 @@ const LINES: readonly LineSpec[] = [
   {
     key: 'hInfinityErrorFrequency',
     label: 'Frequency of the largest error',
-    format: (v, f) => formatFrequency(v, typeof f.timeUnit === 'string' ? f.timeUnit : 's'),
+    format: (v, f) => formatFrequency(v, typeof f.timeBase === 'string' ? f.timeBase : 's'),
     lowerIsBetter: false,
   },
   { key: 'errorBound', label: 'A-priori error bound', format: (v) => formatNumber(v), lowerIsBetter: true },

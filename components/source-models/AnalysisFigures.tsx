@@ -19,25 +19,25 @@ function Row({ label, value, note, testId }: { label: string; value: string; not
   );
 }
 
-function stepText(limit: StepLimitRecord, timeUnit: string): { value: string; note?: string } {
+function stepText(limit: StepLimitRecord, timeBase: string): { value: string; note?: string } {
   if (limit.maxStep === null) return { value: 'no limit', note: 'no pole limits a fixed step' };
   if (limit.maxStep === 0) {
     return { value: '0', note: limit.limitingPole ? `no stable step: pole ${formatComplex(limit.limitingPole[0], limit.limitingPole[1])}` : undefined };
   }
   return {
-    value: formatTime(limit.maxStep, timeUnit),
+    value: formatTime(limit.maxStep, timeBase),
     note: limit.limitingPole ? `set by the pole ${formatComplex(limit.limitingPole[0], limit.limitingPole[1])}` : undefined,
   };
 }
 
 const MAX_DC_ENTRIES = 24;
 
-export function AnalysisFigures({ analysis: a, timeUnit }: { analysis: AnalysisRecord; timeUnit: string }) {
+export function AnalysisFigures({ analysis: a, timeBase }: { analysis: AnalysisRecord; timeBase: string }) {
   const density = a.nonzerosA / (a.states * a.states);
-  const euler = stepText(a.stepLimits.forwardEuler, timeUnit);
-  const rk4 = stepText(a.stepLimits.rk4, timeUnit);
-  const slowest = a.slowestDecayRate ? formatTime(1 / a.slowestDecayRate, timeUnit) : '—';
-  const fastest = a.fastestDecayRate ? formatTime(1 / a.fastestDecayRate, timeUnit) : '—';
+  const euler = stepText(a.stepLimits.forwardEuler, timeBase);
+  const rk4 = stepText(a.stepLimits.rk4, timeBase);
+  const slowest = a.slowestDecayRate ? formatTime(1 / a.slowestDecayRate, timeBase) : '—';
+  const fastest = a.fastestDecayRate ? formatTime(1 / a.fastestDecayRate, timeBase) : '—';
   return (
     <div className="grid gap-4 lg:grid-cols-2" data-testid="analysis-figures">
       <div className="panel p-4">
@@ -69,7 +69,7 @@ export function AnalysisFigures({ analysis: a, timeUnit }: { analysis: AnalysisR
                 a.hInfinityNorm.finite
                   ? a.hInfinityNorm.peakFrequency === null
                     ? 'peak as ω → ∞'
-                    : `peak at ${formatFrequency(a.hInfinityNorm.peakFrequency, timeUnit)}`
+                    : `peak at ${formatFrequency(a.hInfinityNorm.peakFrequency, timeBase)}`
                   : a.hInfinityNorm.reason
               }
             />

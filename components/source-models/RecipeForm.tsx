@@ -39,13 +39,13 @@ export interface ProjectBandSeed {
 export interface RecipeFormProps {
   analysis: AnalysisRecord;
   /** seconds in one model time unit, when known (Hz can then be converted); null otherwise */
-  timeUnitSeconds: number | null;
+  timeBaseSeconds: number | null;
   /** the controller project the person came from, when it has an acceptance band */
   seed?: ProjectBandSeed | null;
   sourceVersionId: string;
   sourceName: string;
   versionNumber: number;
-  timeUnit: string;
+  timeBase: string;
   canRun: boolean;
   reducedModels: ReducedModelChoice[];
   method: Method;
@@ -72,7 +72,7 @@ function num(text: string): number | undefined {
 }
 
 export function RecipeForm(p: RecipeFormProps) {
-  const { analysis, method, selection, order, timeUnit } = p;
+  const { analysis, method, selection, order, timeBase } = p;
   const router = useRouter();
   const id = useId();
   const [orderRule, setOrderRule] = useState<'order' | 'tolerance'>('order');
@@ -143,7 +143,7 @@ export function RecipeForm(p: RecipeFormProps) {
     const rule = limited ? 'order' : orderRule;
     const recipe: Record<string, unknown> = { method, orderRule: rule, modalSelection: selection };
     if (limited) {
-      const checked = checkLimitedBand(flLo, flHi, flUnit, p.timeUnitSeconds !== null);
+      const checked = checkLimitedBand(flLo, flHi, flUnit, p.timeBaseSeconds !== null);
       if (!checked.ok) found[checked.field] = checked.message;
       else recipe.limitedBand = checked.band;
     }
@@ -179,14 +179,14 @@ export function RecipeForm(p: RecipeFormProps) {
       </p>
     ) : null;
 
-  const unit = frequencyUnit(timeUnit);
+  const unit = frequencyUnit(timeBase);
   /** A message beside a band field stays until that band is edited. */
   const clearBandErrors = () =>
     setErrors((e) => Object.fromEntries(Object.entries(e).filter(([k]) => !k.startsWith('recipe.limitedBand'))));
-  const hzLabel = timeUnit === 's' ? 'Hz' : 'Hz (cycles per second)';
+  const hzLabel = timeBase === 's' ? 'Hz' : 'Hz (cycles per second)';
   const switchUnit = (next: BandUnit) => {
     // Keep the band the same when the unit changes: ω = 2π f · (seconds per time unit).
-    const factor = p.timeUnitSeconds === null ? null : 2 * Math.PI * p.timeUnitSeconds;
+    const factor = p.timeBaseSeconds === null ? null : 2 * Math.PI * p.timeBaseSeconds;
     if (factor !== null && next !== flUnit) {
       const convert = (t: string) => {
         const v = Number(t.trim());
@@ -258,8 +258,8 @@ export function RecipeForm(p: RecipeFormProps) {
           {seed ? (
             <p className="mb-2 text-sm" data-testid="limited-band-seed">
               Started from the acceptance band of the controller project{' '}
-              <a href={`/projects/${seed.projectSlug}`}>{seed.projectName}</a>: {formatFrequency(seed.minFrequency, timeUnit)} to{' '}
-              {formatFrequency(seed.maxFrequency, timeUnit)}.
+              <a href={`/projects/${seed.projectSlug}`}>{seed.projectName}</a>: {formatFrequency(seed.minFrequency, timeBase)} to{' '}
+              {formatFrequency(seed.maxFrequency, timeBase)}.
             </p>
           ) : null}
           <div className="grid gap-4 md:grid-cols-3">
@@ -307,7 +307,7 @@ export function RecipeForm(p: RecipeFormProps) {
               </label>
               <select id={`${id}-fl-unit`} className="field-input" value={flUnit} onChange={(e) => switchUnit(e.target.value as BandUnit)} disabled={!p.canRun}>
                 <option value="rad">{unit}</option>
-                {p.timeUnitSeconds !== null ? <option value="hz">{hzLabel}</option> : null}
+                {p.timeBaseSeconds !== null ? <option value="hz">{hzLabel}</option> : null}
               </select>
               {err('recipe.limitedBand.unit')}
             </div>
@@ -315,7 +315,7 @@ export function RecipeForm(p: RecipeFormProps) {
           {err('recipe.limitedBand')}
           <p className="mt-1 text-xs text-graphite-soft">
             0 ≤ from &lt; to. The gramians are restricted to the frequencies inside the band (Gawronski &amp; Juang 1990); the poles&apos; band is{' '}
-            {formatFrequency(analysis.frequencyBand[0], timeUnit)} to {formatFrequency(analysis.frequencyBand[1], timeUnit)}.
+            {formatFrequency(analysis.frequencyBand[0], timeBase)} to {formatFrequency(analysis.frequencyBand[1], timeBase)}.
           </p>
         </fieldset>
       ) : null}
@@ -350,7 +350,7 @@ export function RecipeForm(p: RecipeFormProps) {
               onChange={p.onOrder}
               figures={table.figures}
               fullOrder={analysis.states}
-              timeUnit={timeUnit}
+              timeBase={timeBase}
               disabled={!p.canRun}
               noBoundNote={limited ? `${NO_BOUND_SENTENCE} Stiffness and step limits are shown on the result page, since the reduced poles depend on the band.` : undefined}
             />
@@ -401,7 +401,7 @@ export function RecipeForm(p: RecipeFormProps) {
               {err('recipe.acceptance.maxError')}
             </div>
             <p className="text-xs text-graphite-soft md:col-span-3">
-              The poles&apos; band is {formatFrequency(analysis.frequencyBand[0], timeUnit)} to {formatFrequency(analysis.frequencyBand[1], timeUnit)}; the error is
+              The poles&apos; band is {formatFrequency(analysis.frequencyBand[0], timeBase)} to {formatFrequency(analysis.frequencyBand[1], timeBase)}; the error is
               checked on a dense grid inside the band.
             </p>
           </div>

@@ -41,7 +41,7 @@ function send(form: FormData, onProgress: (fraction: number) => void): Promise<{
   });
 }
 
-export function UploadForm({ sourceModelId, modelName, defaultTimeUnit }: { sourceModelId?: string; modelName?: string; defaultTimeUnit?: string }) {
+export function UploadForm({ sourceModelId, modelName, defaultTimeBase }: { sourceModelId?: string; modelName?: string; defaultTimeBase?: string }) {
   const router = useRouter();
   const formRef = useRef<HTMLFormElement>(null);
   const [mode, setMode] = useState<FileMode>('json');
@@ -69,7 +69,7 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeUnit }: { sour
       }
       const error = (body as { error?: { message?: string; field?: string; link?: string } } | null)?.error;
       const shown: FieldError = { message: error?.message ?? `The server answered ${status}.`, link: error?.link };
-      const known = error?.field && (error.field === 'model' || ['A', 'B', 'C', 'D', 'name', 'description', 'timeUnit', 'tags', 'notes'].includes(error.field));
+      const known = error?.field && (error.field === 'model' || ['A', 'B', 'C', 'D', 'name', 'description', 'timeBase', 'tags', 'notes'].includes(error.field));
       if (known) setErrors({ [error!.field!]: shown });
       else setGeneral(shown);
     } catch (err) {
@@ -140,11 +140,11 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeUnit }: { sour
           </div>
           <div className="grid gap-4 sm:grid-cols-2">
             <div>
-              <label htmlFor={`${id}-timeUnit`} className="field-label">
+              <label htmlFor={`${id}-timeBase`} className="field-label">
                 Time unit
               </label>
-              <input id={`${id}-timeUnit`} name="timeUnit" defaultValue={defaultTimeUnit ?? 's'} maxLength={16} className="field-input num" />
-              {fieldError('timeUnit')}
+              <input id={`${id}-timeBase`} name="timeBase" defaultValue={defaultTimeBase ?? 's'} maxLength={16} className="field-input num" />
+              {fieldError('timeBase')}
             </div>
             <div>
               <label htmlFor={`${id}-tags`} className="field-label">

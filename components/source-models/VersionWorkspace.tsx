@@ -15,17 +15,17 @@ export interface WorkspaceProps {
   sourceVersionId: string;
   sourceName: string;
   versionNumber: number;
-  timeUnit: string;
+  timeBase: string;
   canRun: boolean;
   reducedModels: ReducedModelChoice[];
   /** seconds in one model time unit when known (the band may then be given in Hz) */
-  timeUnitSeconds: number | null;
+  timeBaseSeconds: number | null;
   /** a controller project's acceptance band, when the person came from that project */
   seed?: ProjectBandSeed | null;
 }
 
 export function VersionWorkspace(props: WorkspaceProps) {
-  const { analysis, timeUnit } = props;
+  const { analysis, timeBase } = props;
   // Arriving from a controller project with an acceptance band: reduce for that band.
   const [method, setMethod] = useState<Method>(props.seed ? 'frequency-limited' : 'balanced');
   const [selection, setSelection] = useState<ModalSelection>('dominance');
@@ -43,7 +43,7 @@ export function VersionWorkspace(props: WorkspaceProps) {
   return (
     <div className="space-y-6">
       <div className="grid gap-6 xl:grid-cols-2">
-        <PoleMap re={analysis.poles.re} im={analysis.poles.im} stability={analysis.poles.stability} kept={kept ?? undefined} timeUnit={timeUnit} title="Pole map" />
+        <PoleMap re={analysis.poles.re} im={analysis.poles.im} stability={analysis.poles.stability} kept={kept ?? undefined} timeBase={timeBase} title="Pole map" />
         {analysis.hankelSingularValues.length > 0 ? (
           <div>
             <HankelChart
@@ -71,7 +71,7 @@ export function VersionWorkspace(props: WorkspaceProps) {
         order={order}
         onOrder={setOrder}
       />
-      <ModesTable modes={modes} timeUnit={timeUnit} caption={`Modes (${analysis.modes.length}), most dominant first`} />
+      <ModesTable modes={modes} timeBase={timeBase} caption={`Modes (${analysis.modes.length}), most dominant first`} />
     </div>
   );
 }

@@ -18,7 +18,7 @@ import { SortableHead } from '@/components/table/SortableHead';
 
 export interface ModesTableProps {
   readonly modes: readonly ModeInput[];
-  readonly timeUnit?: string;
+  readonly timeBase?: string;
   /** shown instead of the table when there are no modes */
   readonly emptyText?: string;
   readonly pageSize?: number;
@@ -28,7 +28,7 @@ export interface ModesTableProps {
 
 export function ModesTable({
   modes,
-  timeUnit = 's',
+  timeBase = 's',
   emptyText = 'No modes to show yet. They appear once the analysis has finished.',
   pageSize = 50,
   initialSorting = [{ id: 'dominance', desc: true }],
@@ -42,7 +42,7 @@ export function ModesTable({
     }
   }, [modes]);
   const withKept = built.rows.some((r) => r.kept !== null);
-  const columns = useMemo(() => modeColumns(timeUnit, withKept), [timeUnit, withKept]);
+  const columns = useMemo(() => modeColumns(timeBase, withKept), [timeBase, withKept]);
   const [sorting, setSorting] = useState<SortingState>(initialSorting);
   const table = useReactTable({
     data: built.rows,

@@ -28,7 +28,7 @@ export interface OrderSliderProps {
   readonly figures?: OrderFiguresSource;
   /** full model's number of states, shown for scale */
   readonly fullOrder?: number;
-  readonly timeUnit?: string;
+  readonly timeBase?: string;
   readonly label?: string;
   readonly disabled?: boolean;
   /**
@@ -44,7 +44,7 @@ export function OrderSlider({
   onChange,
   figures,
   fullOrder,
-  timeUnit = 's',
+  timeBase = 's',
   label = 'States to keep (order r)',
   disabled,
   noBoundNote,
@@ -109,7 +109,7 @@ export function OrderSlider({
             step={1}
             value={index}
             disabled={disabled}
-            aria-valuetext={orderValueText(order, current, timeUnit)}
+            aria-valuetext={orderValueText(order, current, timeBase)}
             aria-describedby={figuresId}
             onChange={(e) => onChange(orders[Number(e.target.value)])}
             className="mt-2 w-full accent-teal"
@@ -149,7 +149,7 @@ export function OrderSlider({
           term="Largest stable step: Euler / RK4"
           value={
             current
-              ? `${formatOptional(current.maxStableStepEuler, (v) => formatTime(v, timeUnit))} / ${formatOptional(current.maxStableStepRk4, (v) => formatTime(v, timeUnit))}`
+              ? `${formatOptional(current.maxStableStepEuler, (v) => formatTime(v, timeBase))} / ${formatOptional(current.maxStableStepRk4, (v) => formatTime(v, timeBase))}`
               : '—'
           }
         />

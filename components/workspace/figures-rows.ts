@@ -46,7 +46,7 @@ export interface AccuracyFigures {
     readonly inBandAt: number | null;
     readonly outOfBand: number;
     readonly outOfBandAt: number | null;
-    readonly timeUnit: string;
+    readonly timeBase: string;
   } | null;
 }
 
@@ -86,8 +86,8 @@ export function accuracyRows(f: AccuracyFigures): FigureRow[] {
   ];
   const b = f.bandErrors;
   if (b) {
-    const band = `${formatNumber(b.minFrequency)}–${formatFrequency(b.maxFrequency, b.timeUnit)}`;
-    const at = (w: number | null) => (w === null ? undefined : `measured; largest at ${formatFrequency(w, b.timeUnit)}`);
+    const band = `${formatNumber(b.minFrequency)}–${formatFrequency(b.maxFrequency, b.timeBase)}`;
+    const at = (w: number | null) => (w === null ? undefined : `measured; largest at ${formatFrequency(w, b.timeBase)}`);
     rows.push(
       { label: `Error inside the band ${band}`, value: formatNumber(b.inBand), ...(at(b.inBandAt) ? { note: at(b.inBandAt) } : {}) },
       { label: 'Error outside the band', value: formatNumber(b.outOfBand), ...(at(b.outOfBandAt) ? { note: at(b.outOfBandAt) } : {}) },

@@ -71,7 +71,7 @@ export const byPole: SortingFn<ModeTableRow> = (a, b) =>
 
 const STABILITY_RANK: Record<PoleStability, number> = { unstable: 0, marginal: 1, stable: 2 };
 
-export function modeColumns(timeUnit = 's', withKept = false): ColumnDef<ModeTableRow, unknown>[] {
+export function modeColumns(timeBase = 's', withKept = false): ColumnDef<ModeTableRow, unknown>[] {
   const col = createColumnHelper<ModeTableRow>();
   const columns = [
     col.accessor((r) => r.re, {
@@ -87,7 +87,7 @@ export function modeColumns(timeUnit = 's', withKept = false): ColumnDef<ModeTab
     }),
     col.accessor((r) => sortable(r.naturalFrequency), {
       id: 'naturalFrequency',
-      header: `Natural frequency ωn (${frequencyUnit(timeUnit)})`,
+      header: `Natural frequency ωn (${frequencyUnit(timeBase)})`,
       sortUndefined: 'last',
       cell: (c) => formatNumber(c.row.original.naturalFrequency, { significant: 4 }),
     }),
@@ -100,7 +100,7 @@ export function modeColumns(timeUnit = 's', withKept = false): ColumnDef<ModeTab
     // A marginal pole neither decays nor grows: its τ is infinite, and sorts after every finite one.
     col.accessor((r) => r.timeConstant ?? Infinity, {
       id: 'timeConstant',
-      header: `Time constant τ (${timeUnit})`,
+      header: `Time constant τ (${timeBase})`,
       cell: (c) =>
         c.row.original.timeConstant === null
           ? '∞'

@@ -62,13 +62,13 @@ export function stepAllowedOrder(current: number, orders: readonly number[], dir
 }
 
 /** What assistive technology reads for the slider's position. */
-export function orderValueText(order: number, figures: OrderFigures | undefined, timeUnit = 's'): string {
+export function orderValueText(order: number, figures: OrderFigures | undefined, timeBase = 's'): string {
   const parts = [`order ${order}`];
   if (figures) {
     if (figures.errorBound !== null) parts.push(`error bound ${formatNumber(figures.errorBound)}`);
     const exact = figures.keptUnstable + figures.keptMarginal;
     if (exact > 0) parts.push(`${exact} kept exactly for unstable or marginal poles`);
-    if (figures.maxStableStepRk4 !== null) parts.push(`largest stable RK4 step ${formatTime(figures.maxStableStepRk4, timeUnit)}`);
+    if (figures.maxStableStepRk4 !== null) parts.push(`largest stable RK4 step ${formatTime(figures.maxStableStepRk4, timeBase)}`);
   }
   return parts.join(', ');
 }

@@ -164,7 +164,7 @@ async function seedModel(knex: Knex, demo: DemoModel, engineerId: string): Promi
 
   const version = await knex.transaction(async (trx) => {
     const [sourceModel] = await trx('source_models')
-      .insert({ name: demo.name, slug: demo.slug, description: demo.description, time_unit: 's', tags: demo.tags, created_by: engineerId })
+      .insert({ name: demo.name, slug: demo.slug, description: demo.description, time_base: 's', tags: demo.tags, created_by: engineerId })
       .returning('*');
     const [row] = await trx('source_versions')
       .insert({

@@ -57,9 +57,9 @@ export interface AnalysisRecord {
   inputs: number;
   outputs: number;
   nonzerosA: number;
-  inputNames: string[] | null;
-  outputNames: string[] | null;
-  timeUnit: string | null;
+  /** names of the inputs and outputs, when the model file gave them */
+  labels: { inputs: string[] | null; outputs: string[] | null };
+  timeBase: string | null;
   poles: { re: number[]; im: number[]; stability: PoleStability[] };
   stable: boolean;
   stablePoles: number;
@@ -228,9 +228,8 @@ export interface ReducedMatricesRecord {
   B: number[][];
   C: number[][];
   D: number[][];
-  inputNames?: string[];
-  outputNames?: string[];
-  timeUnit?: string;
+  labels?: { inputs?: string[]; outputs?: string[] };
+  timeBase?: string;
 }
 
 export interface ReductionRecord {

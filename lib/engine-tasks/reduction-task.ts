@@ -468,9 +468,15 @@ export function runReduction(
       B: toRows(reduced.B),
       C: toRows(reduced.C),
       D: toRows(reduced.D),
-      ...(model.inputNames ? { inputNames: [...model.inputNames] } : {}),
-      ...(model.outputNames ? { outputNames: [...model.outputNames] } : {}),
-      ...(model.timeUnit ? { timeUnit: model.timeUnit } : {}),
+      ...(model.labels && (model.labels.inputs || model.labels.outputs)
+        ? {
+            labels: {
+              ...(model.labels.inputs ? { inputs: [...model.labels.inputs] } : {}),
+              ...(model.labels.outputs ? { outputs: [...model.labels.outputs] } : {}),
+            },
+          }
+        : {}),
+      ...(model.timeBase ? { timeBase: model.timeBase } : {}),
     },
     order: r.order,
     unstableStatesKept: r.unstableStatesKept,

@@ -10,7 +10,7 @@ export interface ValidatedModel {
   inputs: number;
   outputs: number;
   nonzerosA: number;
-  timeUnit: string | null;
+  timeBase: string | null;
 }
 
 export type ValidationOutcome =
@@ -28,7 +28,7 @@ export function validateModelFiles(files: readonly ModelFile[]): ValidationOutco
         inputs: model.B.cols,
         outputs: model.C.rows,
         nonzerosA: nonzeros(model.A),
-        timeUnit: model.timeUnit ?? null,
+        timeBase: model.timeBase ?? null,
       },
     };
   } catch (e) {

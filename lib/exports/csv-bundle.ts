@@ -26,7 +26,7 @@ function csvField(value: string): string {
 
 function namesCsv(doc: ExportDocument): string {
   const lines = ['kind,index,name'];
-  const { inputs, outputs, states } = doc.source.names;
+  const { inputs, outputs, states } = doc.source.labels;
   inputs.forEach((n, i) => lines.push(`input,${i + 1},${csvField(n)}`));
   outputs.forEach((n, i) => lines.push(`output,${i + 1},${csvField(n)}`));
   states.forEach((n, i) => lines.push(`state,${i + 1},${csvField(n)}`));
@@ -67,9 +67,9 @@ function readme(doc: ExportDocument, files: Record<'A' | 'B' | 'C' | 'D', string
     'WHAT IS IN THIS BUNDLE',
     d
       ? `Discrete-time model by zero-order hold at ts = ${d.ts} s: x[k+1] = Ad x[k] + Bd u[k], y[k] = Cd x[k] + Dd u[k].`
-      : `Continuous-time model: dx/dt = A x + B u, y = C x + D u (time in ${s.timeUnit}).`,
-    `${files.A}  ${s.version.order} x ${s.version.order}     ${files.B}  ${s.version.order} x ${s.names.inputs.length}`,
-    `${files.C}  ${s.names.outputs.length} x ${s.version.order}     ${files.D}  ${s.names.outputs.length} x ${s.names.inputs.length}`,
+      : `Continuous-time model: dx/dt = A x + B u, y = C x + D u (time in ${s.timeBase}).`,
+    `${files.A}  ${s.version.order} x ${s.version.order}     ${files.B}  ${s.version.order} x ${s.labels.inputs.length}`,
+    `${files.C}  ${s.labels.outputs.length} x ${s.version.order}     ${files.D}  ${s.labels.outputs.length} x ${s.labels.inputs.length}`,
     'names.csv     the input, output and state names, in matrix order',
     ...(d ? ['poles.csv     the discrete poles (eigenvalues of Ad): re, im, magnitude'] : []),
     'manifest.json provenance (recipe, source lineage, accuracy report) and the SHA-256 of every file',

@@ -18,7 +18,7 @@ import type { ExportSource, RegisteredMatrices } from './source';
 
 export const SAMPLE_TIME_FRACTION = 0.2;
 /** Seconds per unit for the time units a model may state; others cannot be discretised at a ts in seconds. */
-export const TIME_UNIT_SECONDS: Readonly<Record<string, number>> = { s: 1, ms: 1e-3, us: 1e-6, 'µs': 1e-6, min: 60, h: 3600 };
+export const TIME_BASE_SECONDS: Readonly<Record<string, number>> = { s: 1, ms: 1e-3, us: 1e-6, 'µs': 1e-6, min: 60, h: 3600 };
 export const MAX_SAMPLE_TIME_SECONDS = 86_400;
 
 export interface DiscretePole {
@@ -75,13 +75,13 @@ export function parseSampleTime(raw: string | undefined | null, projectSampleTim
   return { ts, source: 'query' };
 }
 
-export function unitSeconds(timeUnit: string): number {
-  const factor = TIME_UNIT_SECONDS[timeUnit];
+export function unitSeconds(timeBase: string): number {
+  const factor = TIME_BASE_SECONDS[timeBase];
   if (factor === undefined) {
     throw new ApiError(
       422,
-      'unknown_time_unit',
-      `The model's time unit "${timeUnit}" is not one of ${Object.keys(TIME_UNIT_SECONDS).join(', ')}, so a sample time in seconds cannot be applied to it.`,
+      'unknown_time_base',
+      `The model's time unit "${timeBase}" is not one of ${Object.keys(TIME_BASE_SECONDS).join(', ')}, so a sample time in seconds cannot be applied to it.`,
       'ts',
     );
   }
@@ -138,7 +138,7 @@ export function continuousModel(source: ExportSource): StateSpaceModel {
 }
 
 export function discretise(source: ExportSource, ts: number, tsSource: 'query' | 'project'): Discretisation {
-  const toSeconds = unitSeconds(source.timeUnit);
+  const toSeconds = unitSeconds(source.timeBase);
   const model = continuousModel(source);
   const tsModel = ts / toSeconds;
   let discrete;

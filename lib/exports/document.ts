@@ -73,18 +73,18 @@ export function exportWarnings(doc: ExportDocument): string[] {
 
 /** The recipe in one line of plain text, for the C header and the CSV bundle's README (lib/recipe-words.ts). */
 export function recipeLine(s: ExportSource): string {
-  return `Recipe: ${describeRecipe(s.recipe, { timeUnit: s.timeUnit, resultOrder: s.version.order, plain: true })}`;
+  return `Recipe: ${describeRecipe(s.recipe, { timeBase: s.timeBase, resultOrder: s.version.order, plain: true })}`;
 }
 
 /** The stored acceptance verdict in one line (lib/acceptance.ts): what the comparison page and the API show. */
 export function acceptanceLine(s: ExportSource): string {
   const v = storedAcceptance(s.accuracyReport?.figures, s.accuracyReport?.acceptancePassed);
-  return `Acceptance band: ${v ? acceptanceSentence(v, s.timeUnit, true) : 'none set'}`;
+  return `Acceptance band: ${v ? acceptanceSentence(v, s.timeBase, true) : 'none set'}`;
 }
 
 function exportAcceptance(s: ExportSource) {
   const v = storedAcceptance(s.accuracyReport?.figures, s.accuracyReport?.acceptancePassed);
-  return v ? { ...v, text: acceptanceSentence(v, s.timeUnit, true) } : null;
+  return v ? { ...v, text: acceptanceSentence(v, s.timeBase, true) } : null;
 }
 
 /**
@@ -124,11 +124,11 @@ export function exportJson(doc: ExportDocument, includeMatrices = true) {
     version: { number: s.version.number, id: s.version.id, status: s.version.status, registeredAt: s.version.registeredAt.toISOString() },
     kind: doc.kind,
     order: s.version.order,
-    inputs: s.names.inputs.length,
-    outputs: s.names.outputs.length,
+    inputs: s.labels.inputs.length,
+    outputs: s.labels.outputs.length,
     statesKeptUnstable: s.version.statesKeptUnstable,
-    timeUnit: s.timeUnit,
-    names: s.names,
+    timeBase: s.timeBase,
+    labels: s.labels,
     ...(includeMatrices ? { matrices: doc.matrices } : {}),
     matricesSha256: doc.matricesSha256,
     registeredMatricesSha256: doc.registeredMatricesSha256,
@@ -146,7 +146,7 @@ export function exportJson(doc: ExportDocument, includeMatrices = true) {
       : null,
     equations: d
       ? `x[k+1] = A x[k] + B u[k], y[k] = C x[k] + D u[k]; u held constant over each sample of ${d.ts} s`
-      : `dx/dt = A x + B u, y = C x + D u (time in ${s.timeUnit})`,
+      : `dx/dt = A x + B u, y = C x + D u (time in ${s.timeBase})`,
     recipe: s.recipe,
     lineage: {
       sourceModel: s.lineage.sourceModel,

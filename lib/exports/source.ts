@@ -32,9 +32,9 @@ export interface ExportSource {
   matrices: RegisteredMatrices;
   /** The digest stored at registration, equal to the digest of `matrices` (checked on load). */
   matricesSha256: string;
-  names: { inputs: string[]; outputs: string[]; states: string[] };
+  labels: { inputs: string[]; outputs: string[]; states: string[] };
   /** The time unit of A and B ("s" unless the model says otherwise). */
-  timeUnit: string;
+  timeBase: string;
   recipe: {
     method: string;
     order: number | null;
@@ -54,7 +54,7 @@ export interface ExportSource {
   accuracyReport: { figures: Record<string, unknown>; acceptancePassed: boolean | null } | null;
 }
 
-function names(stored: unknown, count: number, stem: string): string[] {
+function labelsOr(stored: unknown, count: number, stem: string): string[] {
   if (Array.isArray(stored) && stored.length === count && stored.every((s) => typeof s === 'string')) return stored as string[];
   return Array.from({ length: count }, (_, i) => `${stem}${i + 1}`);
 }
@@ -104,7 +104,7 @@ export async function loadExportSource(versionId: string, trx: Knex | Knex.Trans
       'sv.states as source_states',
       'sm.slug as source_slug',
       'sm.name as source_name',
-      'sm.time_unit as source_time_unit',
+      'sm.time_base as source_time_base',
       trx.raw('(SELECT max(s2.number) FROM source_versions s2 WHERE s2.source_model_id = sm.id) AS newest_source_number'),
       'r.method as recipe_method',
       'r.order as recipe_order',
@@ -135,6 +135,7 @@ export async function loadExportSource(versionId: string, trx: Knex | Knex.Trans
   const inputs = matrices.B[0]?.length ?? 0;
   const outputs = matrices.C.length;
   const newest = Number(row.newest_source_number);
+  const storedLabels = (m.labels !== null && typeof m.labels === 'object' ? m.labels : {}) as Record<string, unknown>;
   return {
     reducedModel: { id: row.reduced_model_id, slug: row.model_slug, name: row.model_name, description: row.model_description },
     version: {
@@ -148,12 +149,12 @@ export async function loadExportSource(versionId: string, trx: Knex | Knex.Trans
     },
     matrices,
     matricesSha256: digest,
-    names: {
-      inputs: names(m.inputNames, inputs, 'u'),
-      outputs: names(m.outputNames, outputs, 'y'),
-      states: names(m.stateNames, n, 'x'),
+    labels: {
+      inputs: labelsOr(storedLabels.inputs, inputs, 'u'),
+      outputs: labelsOr(storedLabels.outputs, outputs, 'y'),
+      states: labelsOr(storedLabels.states, n, 'x'),
     },
-    timeUnit: typeof m.timeUnit === 'string' && m.timeUnit ? m.timeUnit : row.source_time_unit || 's',
+    timeBase: typeof m.timeBase === 'string' && m.timeBase ? m.timeBase : row.source_time_base || 's',
     recipe: {
       method: row.recipe_method,
       order: row.recipe_order,

@@ -49,7 +49,7 @@ registerVerb({
     const response = frequencies.map((w) => evaluator.at(w));
     return {
       frequencies,
-      frequencyUnit: `rad/${model.timeUnit ?? 's'}`,
+      frequencyUnit: `rad/${model.timeBase ?? 's'}`,
       response: response.map((g) => ({ re: matrixRows(g.re), im: matrixRows(g.im) })),
       largestSingularValue: numberList(response.map((g) => largestSingularValue(g))),
     };

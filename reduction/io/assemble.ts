@@ -5,7 +5,7 @@
  */
 import { ModelError } from '../errors';
 import { type Matrix, zeros } from '../linalg/matrix';
-import type { StateSpaceModel } from '../model';
+import type { ModelLabels, StateSpaceModel } from '../model';
 
 export interface ModelMatrices {
   A: Matrix;
@@ -14,11 +14,10 @@ export interface ModelMatrices {
   D?: Matrix;
 }
 
-export interface ModelNames {
-  inputNames?: readonly string[];
-  outputNames?: readonly string[];
-  stateNames?: readonly string[];
-  timeUnit?: string;
+/** What a model file may say besides its matrices: labels of the inputs, outputs and states, and its time base. */
+export interface ModelDescription {
+  labels?: ModelLabels;
+  timeBase?: string;
 }
 
 function plural(n: number, word: string): string {
@@ -43,7 +42,7 @@ export function requireFinite(m: Matrix, field: string): void {
   }
 }
 
-function checkNames(names: readonly string[] | undefined, field: string, count: number, what: string): void {
+function checkLabels(names: readonly string[] | undefined, field: string, count: number, what: string): void {
   if (names === undefined) return;
   if (!Array.isArray(names) || names.some((s) => typeof s !== 'string')) {
     throw new ModelError('parse_error', field, `${field} must be a list of strings`);
@@ -59,9 +58,9 @@ function checkNames(names: readonly string[] | undefined, field: string, count: 
 
 /**
  * Validate and assemble ẋ = Ax + Bu, y = Cx + Du. D defaults to zeros (p×m).
- * Throws ModelError: empty_matrix, not_square, dimension_mismatch, non_finite, parse_error (names).
+ * Throws ModelError: empty_matrix, not_square, dimension_mismatch, non_finite, parse_error (labels, time base).
  */
-export function assembleModel(matrices: ModelMatrices, names: ModelNames = {}): StateSpaceModel {
+export function assembleModel(matrices: ModelMatrices, description: ModelDescription = {}): StateSpaceModel {
   const { A, B, C } = matrices;
   requireNonEmpty(A, 'A');
   if (A.rows !== A.cols) {
@@ -100,21 +99,25 @@ export function assembleModel(matrices: ModelMatrices, names: ModelNames = {}): 
   requireFinite(B, 'B');
   requireFinite(C, 'C');
   requireFinite(D, 'D');
-  checkNames(names.inputNames, 'inputNames', m, 'input');
-  checkNames(names.outputNames, 'outputNames', p, 'output');
-  checkNames(names.stateNames, 'stateNames', n, 'state');
-  if (names.timeUnit !== undefined && (typeof names.timeUnit !== 'string' || names.timeUnit.trim() === '')) {
-    throw new ModelError('parse_error', 'timeUnit', 'timeUnit must be a non-empty string such as "s"');
+  const { labels = {}, timeBase } = description;
+  checkLabels(labels.inputs, 'labels.inputs', m, 'input');
+  checkLabels(labels.outputs, 'labels.outputs', p, 'output');
+  checkLabels(labels.states, 'labels.states', n, 'state');
+  if (timeBase !== undefined && (typeof timeBase !== 'string' || timeBase.trim() === '')) {
+    throw new ModelError('parse_error', 'timeBase', 'timeBase must be a non-empty string such as "s"');
   }
+  const kept: ModelLabels = {
+    ...(labels.inputs ? { inputs: [...labels.inputs] } : {}),
+    ...(labels.outputs ? { outputs: [...labels.outputs] } : {}),
+    ...(labels.states ? { states: [...labels.states] } : {}),
+  };
   const model: StateSpaceModel = {
     A,
     B,
     C,
     D,
-    ...(names.inputNames ? { inputNames: [...names.inputNames] } : {}),
-    ...(names.outputNames ? { outputNames: [...names.outputNames] } : {}),
-    ...(names.stateNames ? { stateNames: [...names.stateNames] } : {}),
-    ...(names.timeUnit ? { timeUnit: names.timeUnit } : {}),
+    ...(Object.keys(kept).length > 0 ? { labels: kept } : {}),
+    ...(timeBase ? { timeBase } : {}),
   };
   return model;
 }

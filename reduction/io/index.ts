@@ -2,7 +2,7 @@
  * Model input and output. Text parsers (usable on uploaded buffers) and the file loader used by the
  * command line; every path ends in `assembleModel`, the single validation boundary.
  */
-export { assembleModel, type ModelMatrices, type ModelNames } from './assemble';
+export { assembleModel, type ModelMatrices, type ModelDescription } from './assemble';
 export { parseCsvMatrix } from './csv';
 export { parseMatrixMarket, writeMatrixMarket } from './matrix-market';
 export { parseModelJson, modelToJson, matrixFromJsonRows } from './json';

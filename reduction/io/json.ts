@@ -1,7 +1,10 @@
 /**
  * Model files in JSON: the first-order form {"A","B","C","D"?} with matrices as lists of rows, and the
  * second-order form {"form":"second-order","mass","damping","stiffness","force","displacementOutput",
- * "velocityOutput"}. Optional "inputNames", "outputNames", "stateNames" and "timeUnit" in both.
+ * "velocityOutput"}. Both may carry "labels": {"inputs": […], "outputs": […], "states": […]} (each list
+ * optional; a second-order model's "states" name its degrees of freedom) and "timeBase" (e.g. "s"). Any other
+ * key is refused, naming the key and the shape above, so a label in a misspelt or retired place is never
+ * dropped without a word.
  *
  * JSON has no NaN or infinity; some writers emit them as bare tokens anyway (Python's json module does by
  * default). Rather than fail with a syntax error at a character offset, those tokens are read as strings
@@ -11,7 +14,8 @@ import { ModelError } from '../errors';
 import { type Matrix, zeros, toRows } from '../linalg/matrix';
 import type { StateSpaceModel } from '../model';
 import { secondOrderToFirstOrder } from '../second-order';
-import { assembleModel, type ModelNames } from './assemble';
+import type { ModelLabels } from '../model';
+import { assembleModel, type ModelDescription } from './assemble';
 import { checkDenseSize, type ReadLimits } from './limits';
 import { inFile } from './numbers';
 
@@ -83,26 +87,54 @@ export function matrixFromJsonRows(value: unknown, field: string, fileName?: str
   return out;
 }
 
-function optionalStrings(doc: Record<string, unknown>, key: string, where: string): string[] | undefined {
-  const v = doc[key];
-  if (v === undefined || v === null) return undefined;
-  if (!Array.isArray(v) || v.some((s) => typeof s !== 'string')) {
-    throw new ModelError('parse_error', key, `${where}${key} must be a list of strings`);
+const LABEL_KEYS = ['inputs', 'outputs', 'states'] as const;
+const DESCRIPTION_KEYS = ['labels', 'timeBase'];
+const FIRST_ORDER_KEYS = ['form', 'A', 'B', 'C', 'D', ...DESCRIPTION_KEYS];
+const SECOND_ORDER_KEYS = ['form', 'mass', 'damping', 'stiffness', 'force', 'displacementOutput', 'velocityOutput', ...DESCRIPTION_KEYS];
+const LABELS_SHAPE = '"labels": {"inputs": [...], "outputs": [...], "states": [...]}';
+
+/** Refuses a key the form does not define, naming it and the keys the form holds. */
+function refuseUnknownKeys(doc: Record<string, unknown>, known: readonly string[], where: string, form: string): void {
+  for (const key of Object.keys(doc)) {
+    if (known.includes(key)) continue;
+    throw new ModelError(
+      'unknown_field',
+      key,
+      `${where}"${key}" is not a field of a ${form} model file, which holds ${known.filter((k) => !DESCRIPTION_KEYS.includes(k)).map((k) => `"${k}"`).join(', ')}, ` +
+        `and optionally ${LABELS_SHAPE} (names of the inputs, outputs and states) and "timeBase" (the unit of time, e.g. "s")`,
+    );
   }
-  return v as string[];
 }
 
-function readNames(doc: Record<string, unknown>, where: string): ModelNames {
-  const names: ModelNames = {
-    inputNames: optionalStrings(doc, 'inputNames', where),
-    outputNames: optionalStrings(doc, 'outputNames', where),
-    stateNames: optionalStrings(doc, 'stateNames', where),
-  };
-  if (doc.timeUnit !== undefined && doc.timeUnit !== null) {
-    if (typeof doc.timeUnit !== 'string') throw new ModelError('parse_error', 'timeUnit', `${where}timeUnit must be a string such as "s"`);
-    names.timeUnit = doc.timeUnit;
+function readLabels(doc: Record<string, unknown>, where: string): ModelLabels | undefined {
+  const v = doc.labels;
+  if (v === undefined || v === null) return undefined;
+  if (typeof v !== 'object' || Array.isArray(v)) {
+    throw new ModelError('parse_error', 'labels', `${where}labels must be an object: ${LABELS_SHAPE}, each list optional`);
   }
-  return names;
+  const labels: { inputs?: string[]; outputs?: string[]; states?: string[] } = {};
+  for (const [key, list] of Object.entries(v as Record<string, unknown>)) {
+    if (!(LABEL_KEYS as readonly string[]).includes(key)) {
+      throw new ModelError('unknown_field', `labels.${key}`, `${where}labels.${key} is not a label list: ${LABELS_SHAPE}`);
+    }
+    if (list === undefined || list === null) continue;
+    if (!Array.isArray(list) || list.some((s) => typeof s !== 'string')) {
+      throw new ModelError('parse_error', `labels.${key}`, `${where}labels.${key} must be a list of strings`);
+    }
+    labels[key as (typeof LABEL_KEYS)[number]] = list as string[];
+  }
+  return labels;
+}
+
+function readDescription(doc: Record<string, unknown>, where: string): ModelDescription {
+  const description: ModelDescription = {};
+  const labels = readLabels(doc, where);
+  if (labels) description.labels = labels;
+  if (doc.timeBase !== undefined && doc.timeBase !== null) {
+    if (typeof doc.timeBase !== 'string') throw new ModelError('parse_error', 'timeBase', `${where}timeBase must be a string such as "s"`);
+    description.timeBase = doc.timeBase;
+  }
+  return description;
 }
 
 function required(doc: Record<string, unknown>, key: string, where: string, form: string): unknown {
@@ -124,18 +156,20 @@ export function parseModelJson(text: string, fileName?: string, limits: ReadLimi
     throw new ModelError('parse_error', fileName ?? 'model', `${where}a model file must be a JSON object with matrices A, B, C (and D)`);
   }
   const d = doc as Record<string, unknown>;
-  const names = readNames(d, where);
   const form = d.form ?? 'first-order';
   if (form === 'second-order') {
+    refuseUnknownKeys(d, SECOND_ORDER_KEYS, where, 'second-order');
+    const description = readDescription(d, where);
     const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a second-order'), key, fileName, limits);
     const optional = (key: string) =>
       d[key] === undefined || d[key] === null ? undefined : matrixFromJsonRows(d[key], key, fileName, limits);
     const mass = read('mass');
     const dof = mass.rows;
     checkDenseSize(2 * dof, 2 * dof, 'mass', where, limits, `the first-order form of this ${dof}-degree-of-freedom model`);
-    // Degree-of-freedom names (one per q) are expanded to the first-order state [q; q̇].
-    if (names.stateNames && names.stateNames.length === mass.rows) {
-      names.stateNames = [...names.stateNames, ...names.stateNames.map((s) => `d(${s})/dt`)];
+    // Degree-of-freedom labels (one per q) are expanded to the first-order state [q; q̇].
+    const states = description.labels?.states;
+    if (states && states.length === mass.rows) {
+      description.labels = { ...description.labels, states: [...states, ...states.map((s) => `d(${s})/dt`)] };
     }
     return secondOrderToFirstOrder(
       {
@@ -146,12 +180,14 @@ export function parseModelJson(text: string, fileName?: string, limits: ReadLimi
         displacementOutput: optional('displacementOutput'),
         velocityOutput: optional('velocityOutput'),
       },
-      names,
+      description,
     );
   }
   if (form !== 'first-order') {
     throw new ModelError('unsupported_format', 'form', `${where}form "${String(form)}" is not "first-order" or "second-order"`);
   }
+  refuseUnknownKeys(d, FIRST_ORDER_KEYS, where, 'first-order');
+  const description = readDescription(d, where);
   const read = (key: string) => matrixFromJsonRows(required(d, key, where, 'a'), key, fileName, limits);
   return assembleModel(
     {
@@ -160,7 +196,7 @@ export function parseModelJson(text: string, fileName?: string, limits: ReadLimi
       C: read('C'),
       D: d.D === undefined || d.D === null ? undefined : matrixFromJsonRows(d.D, 'D', fileName, limits),
     },
-    names,
+    description,
   );
 }
 
@@ -172,9 +208,7 @@ export function modelToJson(model: StateSpaceModel, indent?: number): string {
     C: toRows(model.C),
     D: toRows(model.D),
   };
-  if (model.inputNames) doc.inputNames = model.inputNames;
-  if (model.outputNames) doc.outputNames = model.outputNames;
-  if (model.stateNames) doc.stateNames = model.stateNames;
-  if (model.timeUnit) doc.timeUnit = model.timeUnit;
+  if (model.labels) doc.labels = model.labels;
+  if (model.timeBase) doc.timeBase = model.timeBase;
   return JSON.stringify(doc, null, indent);
 }

@@ -71,14 +71,15 @@ export function channelWeights(model: StateSpaceModel, channel: number | string 
     }
     k -= 1;
   } else {
-    k = model.inputNames ? model.inputNames.indexOf(channel) : -1;
+    const inputs = model.labels?.inputs;
+    k = inputs ? inputs.indexOf(channel) : -1;
     if (k < 0) {
-      const known = model.inputNames ? `: ${model.inputNames.join(', ')}` : ' (the model has no input names)';
+      const known = inputs ? `: ${inputs.join(', ')}` : ' (the model has no input labels)';
       throw new ModelError('invalid_option', 'channel', `channel "${channel}" is not an input of the model${known}`);
     }
   }
   w[k] = 1;
-  const name = model.inputNames?.[k];
+  const name = model.labels?.inputs?.[k];
   return { weights: w, label: `input ${k + 1}${name ? ` (${name})` : ''}` };
 }
 

@@ -26,7 +26,7 @@ function structureJson(): string {
     B[2 * k + 1][0] = 1;
     C[0][2 * k] = 1;
   });
-  return JSON.stringify({ A, B, C, D: [[0]], timeUnit: 's' });
+  return JSON.stringify({ A, B, C, D: [[0]], timeBase: 's' });
 }
 
 describe('frequency-limited balanced truncation in the browser', () => {

@@ -29,7 +29,7 @@ async function signedIn(role: (typeof DEMO_PEOPLE)[number]['role']): Promise<Ope
 function modelFile(scaleDiagonal: number) {
   const m = kilnWallNetwork(6, 4);
   const A = m.A.map((row, i) => row.map((v, j) => (i === j ? v * scaleDiagonal : v)));
-  return { name: 'kiln-wall.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify({ A, B: m.B, C: m.C, D: m.D, timeUnit: 's' })) };
+  return { name: 'kiln-wall.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify({ A, B: m.B, C: m.C, D: m.D, timeBase: 's' })) };
 }
 
 const panelStatus = (page: Page) => page.getByTestId('review-panel').getByTestId('status-badge').getAttribute('data-status');

@@ -46,7 +46,7 @@ beforeAll(async () => {
   reviewer = await makeUser({ role: 'reviewer', label: 'acc-reviewer' });
   scratch = mkdtempSync(path.join(os.tmpdir(), 'acceptance-'));
   const file = path.join(scratch, 'network.json');
-  writeFileSync(file, JSON.stringify({ ...stiffTestModel(6, 1, 1, 5, 3), timeUnit: 's' }));
+  writeFileSync(file, JSON.stringify({ ...stiffTestModel(6, 1, 1, 5, 3), timeBase: 's' }));
   const files = [{ role: 'model' as const, name: 'network.json', path: file }];
   const analysis = runAnalysis(files, 'test', () => {});
 
@@ -120,7 +120,7 @@ describe('the acceptance verdict of one version', () => {
       // Page data: the comparison page (chart), the review sheet and the list.
       const page = (await getComparisonPage(v.slug, 1))!;
       expect(page.version.acceptance?.status, v.status).toBe(v.status);
-      const sentence = acceptanceSentence(page.version.acceptance!, page.source.timeUnit);
+      const sentence = acceptanceSentence(page.version.acceptance!, page.source.timeBase);
       expect(sentence.startsWith(`${word}:`), sentence).toBe(true);
       const sheet = (await reviewSheet(v.id, { id: reviewer.id, name: reviewer.name, role: 'reviewer' }))!;
       expect(sheet.version.acceptance?.status, v.status).toBe(v.status);

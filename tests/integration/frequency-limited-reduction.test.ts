@@ -167,7 +167,7 @@ function post(body: unknown): Promise<Response> {
 
 async function analysedStructure(): Promise<{ versionId: string }> {
   const upload = await registerUpload(
-    uploadRequest({ name: uniqueName('Lightly damped structure') }, [{ field: 'model', name: 'structure.json', text: JSON.stringify({ ...structureRows(), timeUnit: 's' }) }]),
+    uploadRequest({ name: uniqueName('Lightly damped structure') }, [{ field: 'model', name: 'structure.json', text: JSON.stringify({ ...structureRows(), timeBase: 's' }) }]),
     engineer,
   );
   const analysis = await waitFor(upload.job.id);
@@ -278,7 +278,7 @@ describe('frequency-limited balanced truncation through /api/reductions', () => 
     }
     // A band in Hz for a model whose time unit has no known length cannot be converted.
     const odd = await registerUpload(
-      uploadRequest({ name: uniqueName('Odd time unit'), timeUnit: 'sample' }, [{ field: 'model', name: 'odd.json', text: JSON.stringify(structureRows()) }]),
+      uploadRequest({ name: uniqueName('Odd time unit'), timeBase: 'sample' }, [{ field: 'model', name: 'odd.json', text: JSON.stringify(structureRows()) }]),
       engineer,
     );
     expect((await waitFor(odd.job.id)).status).toBe('succeeded');

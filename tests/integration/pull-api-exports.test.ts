@@ -61,7 +61,7 @@ function maxAbsDiff(a: number[][], b: number[][]): number {
 const byReIm = (p: [number, number][]) => [...p].sort((x, y) => x[0] - y[0] || x[1] - y[1]);
 
 const MODEL = stiffTestModel(5, 2, 3, 11, 3);
-const LABELS = { inputNames: ['heater "north"', 'fan'], outputNames: ['T zone', 'T wall', 'T süd'], stateNames: ['x1', 'x2', 'x3', 'x4', 'x5'], timeUnit: 's' };
+const DESCRIPTION = { labels: { inputs: ['heater "north"', 'fan'], outputs: ['T zone', 'T wall', 'T süd'], states: ['x1', 'x2', 'x3', 'x4', 'x5'] }, timeBase: 's' };
 
 let engineer: SessionUser;
 let shelf: ProjectShelf;
@@ -72,7 +72,7 @@ beforeAll(async () => {
   await migrateTestDatabase();
   engineer = asSession(await makeUser({ role: 'engineer', label: 'export-eng' }));
   shelf = await makeProjectShelf('export');
-  await addVersion(shelf, { matrices: MODEL, labels: LABELS, hInfinityErrorRelative: 2.5e-3 });
+  await addVersion(shelf, { matrices: MODEL, description: DESCRIPTION, hInfinityErrorRelative: 2.5e-3 });
   project = await createProject({ name: 'Export checks', slug: uniqueSlug('export') }, engineer);
   await createPin(project.slug, { reducedModel: shelf.reducedModel.slug, mode: 'newest_approved' }, engineer);
   token = (await createProjectToken(project.slug, { name: 'exports' }, engineer)).token;
@@ -97,7 +97,7 @@ describe('JSON export', () => {
     expect(response.headers.get('x-modeshelf-version')).toBe('1');
   });
 
-  it('carries names, units, order, recipe, source lineage, accuracy report and the caution', async () => {
+  it('carries labels, units, order, recipe, source lineage, accuracy report and the caution', async () => {
     const doc = await (await pull.model(project.slug, shelf.reducedModel.slug, { token })).json();
     expect(doc).toMatchObject({
       format: 'modeshelf-reduced-model',
@@ -106,8 +106,8 @@ describe('JSON export', () => {
       order: 5,
       inputs: 2,
       outputs: 3,
-      timeUnit: 's',
-      names: { inputs: LABELS.inputNames, outputs: LABELS.outputNames, states: LABELS.stateNames },
+      timeBase: 's',
+      labels: DESCRIPTION.labels,
       recipe: { method: 'balanced', order: 1 },
       lineage: { sourceModel: { slug: shelf.sourceModel.slug }, sourceVersion: { number: 1 }, upstreamChanged: false },
       accuracyReport: { figures: { hInfinityErrorRelative: 2.5e-3 }, acceptancePassed: true },
@@ -190,8 +190,8 @@ describe('C header', () => {
           print('B', `${ID}_STATES`, `${ID}_INPUTS`) +
           print('C', `${ID}_OUTPUTS`, `${ID}_STATES`) +
           print('D', `${ID}_OUTPUTS`, `${ID}_INPUTS`) +
-          `for (i = 0; i < ${ID}_INPUTS; i++) printf("%s\\n", ${id}_input_names[i]);\n` +
-          `for (i = 0; i < ${ID}_OUTPUTS; i++) printf("%s\\n", ${id}_output_names[i]);\n` +
+          `for (i = 0; i < ${ID}_INPUTS; i++) printf("%s\\n", ${id}_input_labels[i]);\n` +
+          `for (i = 0; i < ${ID}_OUTPUTS; i++) printf("%s\\n", ${id}_output_labels[i]);\n` +
           `printf("%s\\n", ${ID}_MATRICES_SHA256); return 0; }\n`,
       );
       execFileSync(GCC, ['-std=c99', '-pedantic', '-Wall', '-Wextra', '-Werror', '-o', path.join(dir, 'main'), path.join(dir, 'main.c')], { cwd: dir });
@@ -200,7 +200,7 @@ describe('C header', () => {
         const rows = out[k].trim().split('\n').map((l) => l.split(',').map(Number));
         expectBitForBit(rows, MODEL[key], `header ${key}`);
       });
-      expect(out[4].trim().split('\n')).toEqual([...LABELS.inputNames, ...LABELS.outputNames, matricesSha256(MODEL)]);
+      expect(out[4].trim().split('\n')).toEqual([...DESCRIPTION.labels.inputs, ...DESCRIPTION.labels.outputs, matricesSha256(MODEL)]);
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
@@ -258,7 +258,7 @@ describe('discretised export (?ts=)', () => {
 
     // The same matrices stated in milliseconds: ts = 0.004 s is 4 ms of model time.
     const ms = await makeProjectShelf('millis');
-    await addVersion(ms, { matrices: MODEL, labels: { ...LABELS, timeUnit: 'ms' } });
+    await addVersion(ms, { matrices: MODEL, description: { ...DESCRIPTION, timeBase: 'ms' } });
     const p = await createProject({ name: 'Millisecond model', slug: uniqueSlug('ms') }, engineer);
     await createPin(p.slug, { reducedModel: ms.reducedModel.slug, mode: 'newest_approved' }, engineer);
     const t = (await createProjectToken(p.slug, { name: 'ms' }, engineer)).token;

@@ -111,10 +111,10 @@ describe('uploading a source model', () => {
 
   it('registers CSV files A, B, C with D left out (zeros)', async () => {
     const files = matrixFiles(SMALL, 'csv').filter((f) => f.field !== 'D');
-    const result = await registerUpload(uploadRequest({ name: uniqueName('Small CSV'), timeUnit: 'ms' }, files), engineer);
+    const result = await registerUpload(uploadRequest({ name: uniqueName('Small CSV'), timeBase: 'ms' }, files), engineer);
     expect(result.version).toMatchObject({ states: 3, inputs: 1, outputs: 1 });
     expect((await versionRow(result.version.id)).format).toBe('csv');
-    expect(result.sourceModel.timeUnit).toBe('ms');
+    expect(result.sourceModel.timeBase).toBe('ms');
   });
 
   it('numbers a new version of an existing model v2, and lists the model with its latest version', async () => {

@@ -20,8 +20,7 @@ export interface DenseModel {
   B: number[][];
   C: number[][];
   D: number[][];
-  inputNames: string[];
-  outputNames: string[];
+  labels: { inputs: string[]; outputs: string[] };
 }
 
 const zerosRows = (r: number, c: number) => Array.from({ length: r }, () => new Array<number>(c).fill(0));
@@ -122,8 +121,10 @@ export function kilnWallNetwork(layersThrough = 30, zones = 20): DenseModel {
     B,
     C,
     D: zerosRows(3, 2),
-    inputNames: ['upper heater power', 'lower heater power'],
-    outputNames: ['upper thermocouple', 'lower thermocouple', 'casing temperature'],
+    labels: {
+      inputs: ['upper heater power', 'lower heater power'],
+      outputs: ['upper thermocouple', 'lower thermocouple', 'casing temperature'],
+    },
   };
 }
 
@@ -147,9 +148,8 @@ export interface SecondOrderDocument {
   force: number[][];
   displacementOutput: number[][];
   velocityOutput: number[][];
-  inputNames: string[];
-  outputNames: string[];
-  timeUnit: string;
+  labels: { inputs: string[]; outputs: string[] };
+  timeBase: string;
 }
 
 /**
@@ -189,9 +189,11 @@ export function rigFrameStructure(dofs = 150): SecondOrderDocument {
     force,
     displacementOutput,
     velocityOutput,
-    inputNames: ['shaker force', 'damper actuator force'],
-    outputNames: ['tip displacement', 'mid-length velocity'],
-    timeUnit: 's',
+    labels: {
+      inputs: ['shaker force', 'damper actuator force'],
+      outputs: ['tip displacement', 'mid-length velocity'],
+    },
+    timeBase: 's',
   };
 }
 
@@ -228,8 +230,10 @@ export function burnerPlant(states = 12): DenseModel {
     B,
     C,
     D,
-    inputNames: ['gas valve', 'air damper'],
-    outputNames: ['flame temperature', 'flue oxygen', 'chamber pressure'],
+    labels: {
+      inputs: ['gas valve', 'air damper'],
+      outputs: ['flame temperature', 'flue oxygen', 'chamber pressure'],
+    },
   };
 }
 

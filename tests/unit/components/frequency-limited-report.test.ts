@@ -96,7 +96,7 @@ describe('review sheet: figure lines', () => {
 describe('exports: recipe and accuracy lines', () => {
   const source = (figures: AccuracyFiguresRecord) =>
     ({
-      timeUnit: 's',
+      timeBase: 's',
       version: { order: 4 },
       recipe: { method: 'frequency-limited', order: 4, tolerance: null, options: { band: { minFrequency: 10, maxFrequency: 60 } }, acceptance: null },
       accuracyReport: { figures: figures as unknown as Record<string, unknown>, acceptancePassed: null },

@@ -26,11 +26,11 @@ const analysis = {
 function render(overrides: Partial<RecipeFormProps>): string {
   const props: RecipeFormProps = {
     analysis,
-    timeUnitSeconds: 1,
+    timeBaseSeconds: 1,
     sourceVersionId: '00000000-0000-4000-8000-000000000000',
     sourceName: 'Structure',
     versionNumber: 1,
-    timeUnit: 's',
+    timeBase: 's',
     canRun: true,
     reducedModels: [],
     method: 'frequency-limited',
@@ -58,7 +58,7 @@ describe('RecipeForm, frequency-limited balanced truncation', () => {
   });
 
   it('offers no Hz for a time unit of unknown length', () => {
-    const html = render({ timeUnitSeconds: null, timeUnit: 'sample' });
+    const html = render({ timeBaseSeconds: null, timeBase: 'sample' });
     expect(html).toContain('rad/sample');
     expect(html).not.toContain('value="hz"');
   });

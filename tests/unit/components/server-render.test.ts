@@ -64,7 +64,7 @@ describe('server-rendered components', () => {
   });
 
   it('ChannelPicker labels its selects, and a SISO model shows its channel as text', () => {
-    const html = renderToStaticMarkup(h(ChannelPicker, { inputCount: 2, outputCount: 3, outputNames: ['x1'], value: { input: 1, output: 2 }, onChange: noop }));
+    const html = renderToStaticMarkup(h(ChannelPicker, { inputCount: 2, outputCount: 3, outputLabels: ['x1'], value: { input: 1, output: 2 }, onChange: noop }));
     expect(html).toMatch(/<label for="[^"]+"[^>]*>Input<\/label>/);
     expect(html).toMatch(/<label for="[^"]+"[^>]*>Output<\/label>/);
     expect(html).toContain('<option value="2" selected="">3 · y3</option>');

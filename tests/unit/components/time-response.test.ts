@@ -33,7 +33,7 @@ describe('absolute error between responses on different time grids', () => {
 });
 
 describe('buildTimeResponseOption', () => {
-  const option = buildTimeResponseOption({ kind: 'step', full: FULL, reduced: REDUCED, timeUnit: 's' });
+  const option = buildTimeResponseOption({ kind: 'step', full: FULL, reduced: REDUCED, timeBase: 's' });
   const series = option.series as unknown as Series[];
 
   it('draws full solid graphite and reduced dashed teal on the upper grid', () => {

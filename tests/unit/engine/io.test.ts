@@ -160,15 +160,15 @@ describe('CSV matrices', () => {
 });
 
 describe('JSON models', () => {
-  it('reads matrices, names and time unit; D defaults to zeros', () => {
+  it('reads matrices, labels and time base; D defaults to zeros', () => {
     const m = parseModelJson(text(good('first_order.json')));
     expect(toRows(m.A)).toEqual([
       [-1, 0.5],
       [0, -2],
     ]);
     expect(toRows(m.D)).toEqual([[0]]);
-    expect(m.inputNames).toEqual(['heater']);
-    expect(m.timeUnit).toBe('s');
+    expect(m.labels).toEqual({ inputs: ['heater'], outputs: ['T1'], states: ['x1', 'x2'] });
+    expect(m.timeBase).toBe('s');
   });
 
   it('round-trips through modelToJson exactly', () => {
@@ -177,6 +177,10 @@ describe('JSON models', () => {
     expect(back.A.data).toEqual(m.A.data);
     expect(back.B.data).toEqual(m.B.data);
     expect(back.C.data).toEqual(m.C.data);
+    const labelled = parseModelJson(text(good('first_order.json')));
+    const again = parseModelJson(modelToJson(labelled));
+    expect(again.labels).toEqual(labelled.labels);
+    expect(again.timeBase).toBe('s');
   });
 
   const cases: [string, string, string, RegExp][] = [
@@ -191,7 +195,11 @@ describe('JSON models', () => {
     ['A_jagged.json', 'jagged_rows', 'A', /A row 2 has 2 entries but row 1 has 3/],
     ['A_empty.json', 'empty_matrix', 'A', /A is empty/],
     ['C_missing.json', 'missing_field', 'C', /no "C" matrix/],
-    ['inputNames_length.json', 'dimension_mismatch', 'inputNames', /inputNames has 2 names but the model has 1 input/],
+    ['labels_inputs_length.json', 'dimension_mismatch', 'labels.inputs', /labels\.inputs has 2 names but the model has 1 input/],
+    // A key the format does not define (labels outside "labels", a misspelt or retired key) is refused, naming
+    // the key and the shape that holds labels and the time base, instead of dropping the labels silently.
+    ['labels_at_top_level.json', 'unknown_field', 'inputs', /"inputs" is not a field of a first-order model file.*"labels": \{"inputs": \[\.\.\.\], "outputs": \[\.\.\.\], "states": \[\.\.\.\]\}.*"timeBase"/],
+    ['labels_unknown_list.json', 'unknown_field', 'labels.input', /labels\.input is not a label list/],
     ['syntax_error.json', 'parse_error', 'syntax_error.json', /not valid JSON/],
     ['unknown_form.json', 'unsupported_format', 'form', /third-order/],
   ];

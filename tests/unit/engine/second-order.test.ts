@@ -34,7 +34,8 @@ describe('second-order to first-order', () => {
     ]);
     expect(toRows(m.B)).toEqual([[0], [0.5]]);
     expect(toRows(m.C)).toEqual([[1, 0.5]]);
-    expect(m.stateNames).toEqual(['q', 'd(q)/dt']);
+    expect(m.labels).toEqual({ states: ['q', 'd(q)/dt'] });
+    expect(m.timeBase).toBe('s');
   });
 
   it('has poles −ζω ± iω√(1−ζ²) with ω = √(k/m), ζ = c/(2√(km)) (any vibration text, e.g. Meirovitch 1986)', () => {

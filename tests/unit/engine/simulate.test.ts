@@ -145,7 +145,7 @@ describe('exact solver: block recursion (m steps per product with Φ^m, exact-bl
 describe('input signals', () => {
   it('a step on a named channel drives only that input', () => {
     const base = modelWithRates([1, 2], 2, 1, 3);
-    const model = { ...base, inputNames: ['valve', 'pump'] };
+    const model = { ...base, labels: { inputs: ['valve', 'pump'] } };
     const s = stepInput(model, 'pump');
     expect(Array.from(s.values[1])).toEqual([0, 1]);
     expect(s.description).toBe('unit step on input 2 (pump)');

@@ -15,7 +15,7 @@ describe('matricesSha256', () => {
   });
 
   it('ignores extra keys such as names, and key order of the input object', () => {
-    const reordered = { D: model.D, C: model.C, B: model.B, A: model.A, inputNames: ['u'] };
+    const reordered = { D: model.D, C: model.C, B: model.B, A: model.A, labels: { inputs: ['u'] } };
     expect(matricesSha256(reordered)).toBe(matricesSha256(model));
   });
 

@@ -52,7 +52,7 @@ describe('checkSampleTime', () => {
   });
 
   it('refuses a time unit it cannot convert, naming ts', () => {
-    expect(() => unitSeconds('fortnight')).toThrow(expect.objectContaining({ status: 422, code: 'unknown_time_unit' }));
+    expect(() => unitSeconds('fortnight')).toThrow(expect.objectContaining({ status: 422, code: 'unknown_time_base' }));
   });
 });
 

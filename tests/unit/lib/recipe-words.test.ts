@@ -19,7 +19,7 @@ describe('recipe words', () => {
     expect(describeRecipe({ method: 'residualization', order: null, tolerance: 0.01, options: {} }, { resultOrder: 8 })).toBe(
       'balanced residualization, smallest order whose bound is at most 0.01 × ‖G‖∞ (gave 8)',
     );
-    expect(describeRecipe({ method: 'modal', order: 4, tolerance: null, options: { selection: 'band', band: { minFrequency: 0.5, maxFrequency: 30 } } }, { timeUnit: 'min' })).toBe(
+    expect(describeRecipe({ method: 'modal', order: 4, tolerance: null, options: { selection: 'band', band: { minFrequency: 0.5, maxFrequency: 30 } } }, { timeBase: 'min' })).toBe(
       `modal truncation, modes kept first by band in 0.5–30${NB}rad/min, order 4`,
     );
     const fl = { method: 'frequency-limited', order: 6, tolerance: null, options: { band: { minFrequency: 62.83185307179586, maxFrequency: 376.99111843077515 }, enteredBand: { minFrequency: 10, maxFrequency: 60, unit: 'hz' } } };

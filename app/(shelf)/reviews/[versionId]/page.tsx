@@ -65,7 +65,7 @@ export default async function ReviewSheetPage({ params }: { params: Promise<{ ve
                 <span className="num text-xs text-graphite-soft">checksum {v.source.checksum.slice(0, 16)}</span>
               </dd>
               <dt className="field-label">Recipe</dt>
-              <dd>{describeRecipe(v.recipe, { timeUnit: v.source.timeUnit, resultOrder: v.order })}</dd>
+              <dd>{describeRecipe(v.recipe, { timeBase: v.source.timeBase, resultOrder: v.order })}</dd>
               <dt className="field-label">Order</dt>
               <dd className="num">
                 {v.order}

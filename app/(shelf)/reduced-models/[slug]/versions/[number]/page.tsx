@@ -22,7 +22,7 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
   const data = await getComparisonPage(slug, n);
   if (!data) notFound();
   const { model, version, recipe, source, figures, curves } = data;
-  const timeUnit = source.timeUnit || 's';
+  const timeBase = source.timeBase || 's';
   return (
     <>
       <PageHeader
@@ -33,7 +33,7 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
             <Link href={source.url}>
               {source.modelName} v{source.versionNumber}
             </Link>{' '}
-            (<span className="num">{figures.fullOrder}</span> states) by {describeRecipe(recipe, { timeUnit, resultOrder: version.order })}.
+            (<span className="num">{figures.fullOrder}</span> states) by {describeRecipe(recipe, { timeBase, resultOrder: version.order })}.
           </>
         }
         actions={
@@ -60,9 +60,9 @@ export default async function ComparisonPage({ params }: { params: Promise<{ slu
         figures={figures}
         curves={curves}
         acceptance={version.acceptance}
-        timeUnit={timeUnit}
-        inputNames={source.inputNames}
-        outputNames={source.outputNames}
+        timeBase={timeBase}
+        inputLabels={source.inputLabels}
+        outputLabels={source.outputLabels}
         responseJob={data.responseJob}
         canUploadSignal={user.role === 'engineer' || user.role === 'reviewer'}
       />

@@ -3,7 +3,7 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageRole } from '@/lib/auth';
 import { getVersionPage } from '@/lib/source-models';
-import { projectBandSeed, reducedModelsOfSource, timeUnitSeconds } from '@/lib/reduced-models';
+import { projectBandSeed, reducedModelsOfSource, timeBaseSeconds } from '@/lib/reduced-models';
 import { PageHeader } from '@/components/shell/PageHeader';
 import { AnalysisFigures } from '@/components/source-models/AnalysisFigures';
 import { JobProgress } from '@/components/source-models/JobProgress';
@@ -27,11 +27,11 @@ export default async function SourceVersionPage({
   const data = await getVersionPage(slug, n);
   if (!data) notFound();
   const { model, version, analysis } = data;
-  const timeUnit = model.timeUnit || 's';
+  const timeBase = model.timeBase || 's';
   const reducedModels = analysis ? await reducedModelsOfSource(model.id) : [];
   // ?project=slug: a person arriving from a controller project starts from its acceptance band.
   const project = (await searchParams).project;
-  const seed = analysis ? await projectBandSeed(typeof project === 'string' ? project : undefined, timeUnit) : null;
+  const seed = analysis ? await projectBandSeed(typeof project === 'string' ? project : undefined, timeBase) : null;
   return (
     <>
       <PageHeader
@@ -62,16 +62,16 @@ export default async function SourceVersionPage({
       </p>
       {analysis ? (
         <div className="space-y-6">
-          <AnalysisFigures analysis={analysis} timeUnit={timeUnit} />
+          <AnalysisFigures analysis={analysis} timeBase={timeBase} />
           <VersionWorkspace
             analysis={analysis}
             sourceVersionId={version.id}
             sourceName={model.name}
             versionNumber={version.number}
-            timeUnit={timeUnit}
+            timeBase={timeBase}
             canRun={user.role === 'engineer'}
             reducedModels={reducedModels}
-            timeUnitSeconds={timeUnitSeconds(timeUnit)}
+            timeBaseSeconds={timeBaseSeconds(timeBase)}
             seed={seed}
           />
         </div>
