@@ -91,6 +91,13 @@ describe('uploading a source model', () => {
     expect(audit).toMatchObject({ action: 'source_model.created', actor_id: engineer.id });
   });
 
+  it('keeps the labels and the time base a JSON model gives', async () => {
+    const text = firstOrderJson({ labels: { inputs: ['burner'], outputs: ['flue temperature'] }, timeBase: 'ms' });
+    const result = await registerUpload(uploadRequest({ name: uniqueName('Labelled lag') }, [{ field: 'model', name: 'labelled.json', text }]), engineer);
+    // The form leaves the time base empty, so the file's own is kept.
+    expect(result.sourceModel.timeBase).toBe('ms');
+  });
+
   it('registers a second-order JSON model as its first-order form [q; q̇] (2 DOF → 4 states)', async () => {
     const text = secondOrderJson();
     const result = await registerUpload(uploadRequest({ name: uniqueName('Two masses') }, [{ field: 'model', name: 'masses.json', text }]), engineer);
@@ -176,6 +183,16 @@ describe('a refused upload gives its message, names its field, and leaves no row
       code: /missing_file/,
       field: 'C',
       message: /C matrix file is missing/,
+    },
+    {
+      // Labels belong under "labels" and the unit of time is "timeBase": any other key (one misplaced, misspelt or
+      // from an earlier shape of the format) is refused with the key and the shape named, never dropped silently.
+      label: 'a JSON model with a key the format does not define',
+      files: [bad('model', 'placed.json', firstOrderJson({ outputs: ['flame temperature'] }))],
+      status: 422,
+      code: /invalid_model_unknown_field/,
+      field: 'model',
+      message: /placed\.json: "outputs" is not a field of a first-order model file.*"labels": \{"inputs": \[\.\.\.\], "outputs": \[\.\.\.\], "states": \[\.\.\.\]\}.*"timeBase"/,
     },
     {
       label: 'a model file that is not JSON',
