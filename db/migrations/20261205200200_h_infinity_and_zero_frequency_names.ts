@@ -12,13 +12,15 @@
 // the history of pin changes keeps the limit names of its day).
 import type { Knex } from 'knex';
 
-const ANALYSIS_KEYS: [string, string][] = [
+/** Old → new keys of analyses.result (exported for the migration's test). */
+export const ANALYSIS_KEYS: [string, string][] = [
   ['dcGain', 'zeroFrequencyGain'],
   ['hinfNorm', 'hInfinityNorm'],
   ['stablePartHinfNorm', 'stablePartHInfinityNorm'],
 ];
 
-const FIGURE_KEYS: [string, string][] = [
+/** Old → new keys of accuracy figures and of the approval snapshot's figures. */
+export const FIGURE_KEYS: [string, string][] = [
   ['hinfError', 'hInfinityError'],
   ['hinfErrorFrequency', 'hInfinityErrorFrequency'],
   ['hinfErrorRelative', 'hInfinityErrorRelative'],
