@@ -87,10 +87,10 @@ export function acceptanceWord(v: StoredAcceptance | null): string {
 export function acceptanceSentence(v: StoredAcceptance, timeBase = 's', plain = false): string {
   const word = ACCEPTANCE_WORD[v.status];
   const num = plain ? (x: number) => String(x) : (x: number) => formatNumber(x);
-  const freq = plain ? (w: number) => `${w} ${frequencyUnit(timeBase)}` : (w: number) => formatFrequency(w, timeBase);
+  const frequencyText = plain ? (w: number) => `${w} ${frequencyUnit(timeBase)}` : (w: number) => formatFrequency(w, timeBase);
   const dash = plain ? ' to ' : '–';
-  const range = v.minFrequency !== null && v.maxFrequency !== null ? `${num(v.minFrequency)}${dash}${freq(v.maxFrequency)}` : null;
-  const at = v.worstError !== null && v.worstFrequency !== null ? `${num(v.worstError)} at ${freq(v.worstFrequency)}` : null;
+  const range = v.minFrequency !== null && v.maxFrequency !== null ? `${num(v.minFrequency)}${dash}${frequencyText(v.maxFrequency)}` : null;
+  const at = v.worstError !== null && v.worstFrequency !== null ? `${num(v.worstError)} at ${frequencyText(v.worstFrequency)}` : null;
   const limit = v.maxError !== null ? num(v.maxError) : null;
   if (v.status === 'fail') {
     return at && limit && range ? `${word}: error ${at} exceeds ${limit} in the band ${range}` : `${word}: the error exceeds the acceptance band's limit`;
@@ -99,7 +99,7 @@ export function acceptanceSentence(v: StoredAcceptance, timeBase = 's', plain = 
     return at && limit && range ? `${word}: largest error ${at} is within ${limit} over ${range}` : `${word}: the error is within the acceptance band's limit`;
   }
   if (v.computedRange && range && v.pointsChecked) {
-    return `${word}: the error was computed over ${num(v.computedRange[0])}${dash}${freq(v.computedRange[1])}, the band is ${range}`;
+    return `${word}: the error was computed over ${num(v.computedRange[0])}${dash}${frequencyText(v.computedRange[1])}, the band is ${range}`;
   }
   return range ? `${word}: no error sample lies in the band ${range}` : `${word}: no error sample lies in the band`;
 }

@@ -69,18 +69,18 @@ export function describeRecipe(recipe: RecipeInWords, options: { timeBase?: stri
   const timeBase = options.timeBase || 's';
   const plain = options.plain ?? false;
   const num = plain ? (x: number) => String(x) : (x: number) => formatNumber(x);
-  const freq = plain ? (w: number) => `${w} ${frequencyUnit(timeBase)}` : (w: number) => formatFrequency(w, timeBase);
+  const frequencyText = plain ? (w: number) => `${w} ${frequencyUnit(timeBase)}` : (w: number) => formatFrequency(w, timeBase);
   const dash = plain ? ' to ' : '–';
   const opts = recipe.options as Record<string, unknown>;
   const parts = [methodName(recipe.method)];
   const band = bandOf(opts.band);
   if (recipe.method === 'modal') {
     const selection = typeof opts.selection === 'string' ? opts.selection : 'dominance';
-    parts[0] += `, modes kept first by ${selection}${band ? ` in ${num(band.lo)}${dash}${freq(band.hi)}` : ''}`;
+    parts[0] += `, modes kept first by ${selection}${band ? ` in ${num(band.lo)}${dash}${frequencyText(band.hi)}` : ''}`;
   } else if (recipe.method === 'frequency-limited' && band) {
     const entered = bandOf(opts.enteredBand);
     const given = entered && entered.unit === 'hz' ? ` (given as ${num(entered.lo)}${dash}${num(entered.hi)} Hz)` : '';
-    parts[0] += ` on the band ${num(band.lo)}${dash}${freq(band.hi)}${given}`;
+    parts[0] += ` on the band ${num(band.lo)}${dash}${frequencyText(band.hi)}${given}`;
   }
   if (recipe.order !== null) parts.push(`order ${recipe.order}`);
   else if (recipe.tolerance !== null) {

@@ -95,7 +95,7 @@ export function integerOption(args: ParsedArgs, name: string): number | undefine
   return v;
 }
 
-/** A comma-separated list of numbers, e.g. `--w 0.1,1,10`. */
+/** A comma-separated list of numbers, e.g. `--at 0.1,1,10`. */
 export function numberListOption(args: ParsedArgs, name: string): number[] | undefined {
   const v = stringOption(args, name);
   if (v === undefined) return undefined;

@@ -8,7 +8,7 @@ export interface CliVerb {
   readonly name: string;
   /** One line for the usage text. */
   readonly summary: string;
-  /** Arguments after the verb, e.g. `MODEL --w w1,w2,…`. */
+  /** Arguments after the verb, e.g. `MODEL --at w1,w2,…`. */
   readonly usage: string;
   readonly options: Readonly<Record<string, OptionSpec>>;
   /** Computes the verb's JSON document (printed by cli.ts). Throws ModelError on bad input. */

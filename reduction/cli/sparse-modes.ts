@@ -78,19 +78,19 @@ export function sparseModalFigures(
   const slowMag = Math.min(...Array.from(slow.values.re, (r, i) => Math.hypot(r, slow.values.im[i])).filter((x) => x > 0));
   const fastMag = Math.hypot(fast.re, fast.im);
   const grid = [0, ...sweepGridFromPoles(slowMag, fastMag, points)];
-  let hinf = hInfinityLowerBound(model, { grid, refine: 1, refineSteps: 10, memoryBudgetBytes: budget });
+  let peak = hInfinityLowerBound(model, { grid, refine: 1, refineSteps: 10, memoryBudgetBytes: budget });
   const dominant = dominantPoles(model, {
     count,
-    initialShifts: hinf.peaks.slice(0, 6).map((w) => ({ re: 0, im: w })),
+    initialShifts: peak.peaks.slice(0, 6).map((w) => ({ re: 0, im: w })),
     memoryBudgetBytes: budget,
   });
   // Lightly damped dominant poles peak near ω = Im λ: look there too.
   const candidates = dominant.poles.filter((p) => p.im > 0 && p.dampingRatio < 0.5).map((p) => p.im);
-  let evaluations = hinf.evaluations;
+  let evaluations = peak.evaluations;
   if (candidates.length > 0) {
     const near = hInfinityLowerBound(model, { grid: candidates, refine: 1, refineSteps: 8, memoryBudgetBytes: budget });
     evaluations += near.evaluations;
-    if (near.value > hinf.value) hinf = near;
+    if (near.value > peak.value) peak = near;
   }
   const computed: ComputedPole[] = [];
   // The slowest as computed (a multiple eigenvalue keeps its multiplicity), the others unless already listed.
@@ -140,8 +140,8 @@ export function sparseModalFigures(
       })),
     },
     modalDominanceNote: 'the dominant poles found by the subspace-accelerated dominant pole algorithm started at the sweep\'s peaks, most dominant first; not certified to be the model\'s most dominant',
-    hInfinityNorm: hinf.value,
-    hInfinityPeakFrequency: finiteOrNull(hinf.frequency),
+    hInfinityNorm: peak.value,
+    hInfinityPeakFrequency: finiteOrNull(peak.frequency),
     hInfinityNormNote: `largest σ_max(G(iω)) over ω = 0, ${points} frequencies and the dominant poles' frequencies, refined at the highest peak (${evaluations} evaluations): a lower bound on ‖G‖∞`,
     fastestPole: { pole: [fast.re, fast.im], residual: fast.residual, converged: fast.converged, solver: fast.solver },
   };

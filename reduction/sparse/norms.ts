@@ -105,10 +105,10 @@ export function hInfinityLowerBound(
     readonly signal?: StopSignal;
   },
 ): HInfinityLowerBound {
-  const freq = [...Array.from(options.grid), ...(options.candidates ?? [])].filter((w) => Number.isFinite(w) && w >= 0);
-  freq.sort((a, b) => a - b);
+  const asked = [...Array.from(options.grid), ...(options.candidates ?? [])].filter((w) => Number.isFinite(w) && w >= 0);
+  asked.sort((a, b) => a - b);
   const ws: number[] = [];
-  for (const w of freq) if (ws.length === 0 || w > ws[ws.length - 1] * (1 + 1e-12)) ws.push(w);
+  for (const w of asked) if (ws.length === 0 || w > ws[ws.length - 1] * (1 + 1e-12)) ws.push(w);
   const ev = new SparseFrequencyEvaluator(model, options.memoryBudgetBytes);
   try {
     const sigma = (w: number) => {

@@ -52,10 +52,10 @@ beforeAll(async () => {
 
   const sourceModel = await makeSourceModel(author.id, 'acc-net');
   const sourceVersion = await addSourceVersion(sourceModel.id, author.id, 6);
-  const hinf = analysis.stablePartHInfinityNorm ?? 1;
+  const hInfinityNorm = analysis.stablePartHInfinityNorm ?? 1;
   // The same band, [0.5, 50] rad/s inside the poles' band (decay rates 1 to 1000): a limit no order-2 model
   // meets (1e-9·‖G‖∞), and one every model meets (10·‖G‖∞, above any error of a stable truncation's bound).
-  for (const [status, maxError] of [['fail', 1e-9 * hinf], ['pass', 10 * hinf]] as const) {
+  for (const [status, maxError] of [['fail', 1e-9 * hInfinityNorm], ['pass', 10 * hInfinityNorm]] as const) {
     const recipe: RecipeInput = { method: 'balanced', order: 2, tolerance: null, acceptance: { minFrequency: 0.5, maxFrequency: 50, maxError } };
     const record = runReduction(files, recipe, analysis, 'test', () => {});
     const registered = await db().transaction(async (trx) => {
@@ -74,7 +74,7 @@ beforeAll(async () => {
   // Not checked: the same function on the first version's stored curve, for a band reaching past its top.
   const stored = (await db()('accuracy_reports').where({ reduced_version_id: versions[0].id }).first('curves', 'figures')) as { curves: ReductionCurves; figures: Record<string, unknown> };
   const w = stored.curves.frequency.frequencies;
-  const band = { minFrequency: 0.5, maxFrequency: w[w.length - 1] * 10, maxError: 10 * hinf };
+  const band = { minFrequency: 0.5, maxFrequency: w[w.length - 1] * 10, maxError: 10 * hInfinityNorm };
   const record = acceptanceRecord(band, w, stored.curves.frequency.error);
   const reducedModel = await makeReducedModel(sourceModel.id, author.id);
   const recipe = await makeRecipe(author.id, 2);

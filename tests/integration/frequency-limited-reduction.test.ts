@@ -108,7 +108,7 @@ beforeAll(async () => {
   process.env.MODESHELF_UPLOADS_DIR = tempUploadsDir();
   process.env.MODESHELF_QUEUE_PREFIX = `fl${Date.now().toString(36)}-`;
   await migrateTestDatabase();
-  const row = await makeUser({ role: 'engineer', label: 'freq-limited' });
+  const row = await makeUser({ role: 'engineer', label: 'band-limited' });
   engineer = { id: row.id, email: row.email, name: row.name, role: 'engineer' };
 });
 
