@@ -77,12 +77,15 @@ function cutOk(v: ComplexVector, j: number): boolean {
 /**
  * The longest prefix j on which the right and left runs found the same eigenvalues (as multisets, within
  * `tol`), cut where neither splits a pair and where the distance to σ grows past the cut in both (so a
- * multiple eigenvalue is never cut through: both invariant subspaces are then complete).
+ * multiple eigenvalue is never cut through: both invariant subspaces are then complete). Eigenvalues within
+ * `zeroTol` of 0 count as one cluster: a defective pole at 0 (a rigid-body mode) comes out of each run as a
+ * pair ±δ with δ of the order of √ε, different for the two runs.
  */
-function commonPrefix(right: SparseEigsResult, left: SparseEigsResult, tol: number): number {
+function commonPrefix(right: SparseEigsResult, left: SparseEigsResult, tol: number, zeroTol: number): number {
   const R = right.values, L = left.values, s = right.shift;
+  const atZero = (v: ComplexVector, i: number) => Math.hypot(v.re[i], v.im[i]) <= zeroTol;
   const dist = (v: ComplexVector, i: number) => Math.hypot(v.re[i] - s.re, v.im[i] - s.im);
-  const gap = (v: ComplexVector, j: number) => j < v.re.length && dist(v, j) > dist(v, j - 1) + tol;
+  const gap = (v: ComplexVector, j: number) => j < v.re.length && !(atZero(v, j) && atZero(v, j - 1)) && dist(v, j) > dist(v, j - 1) + tol;
   for (let j = Math.min(R.re.length, L.re.length) - 1; j >= 1; j--) {
     if (!cutOk(R, j) || !cutOk(L, j) || !gap(R, j) || !gap(L, j)) continue;
     const used = new Uint8Array(j);
@@ -90,7 +93,9 @@ function commonPrefix(right: SparseEigsResult, left: SparseEigsResult, tol: numb
     for (let a = 0; a < j && ok; a++) {
       let hit = -1;
       for (let b = 0; b < j; b++) {
-        if (!used[b] && Math.abs(R.re[a] - L.re[b]) <= tol && Math.abs(R.im[a] - L.im[b]) <= tol) {
+        if (used[b]) continue;
+        const same = (Math.abs(R.re[a] - L.re[b]) <= tol && Math.abs(R.im[a] - L.im[b]) <= tol) || (atZero(R, a) && atZero(L, b));
+        if (same) {
           hit = b;
           break;
         }
@@ -198,7 +203,7 @@ export function sparseModalReduction(model: SparseStateSpaceModel, options: Spar
     si.dispose();
   }
   const scale = Math.max(...Array.from(right!.values.re, (re, i) => Math.hypot(re, right!.values.im[i])), Number.MIN_VALUE);
-  const j = commonPrefix(right!, left!, 1e-8 * scale);
+  const j = commonPrefix(right!, left!, 1e-8 * scale, 1e-6 * scale);
   if (j === 0) throw new Error('sparse modal truncation: the right and left eigenvalue runs found no common set of modes');
   if (j < right!.values.re.length - Math.max(4, Math.ceil(right!.values.re.length / 4)) - 1) {
     notes.push(`the right and left runs agreed on ${j} of the ${right!.values.re.length} eigenvalues nearest the shift; the others are not used`);
