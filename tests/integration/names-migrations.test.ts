@@ -8,7 +8,7 @@ import type { Knex } from 'knex';
 import { closeDb, db } from '@/lib/db';
 import type { UserRow } from '@/lib/people';
 import { makeUser, migrateTestDatabase } from './helpers';
-import { makeShelf, markApproved, SAMPLE_FIGURES, type Shelf } from './fixtures/shelf';
+import { FIRST_ORDER_LAG, makeShelf, markApproved, SAMPLE_FIGURES, type Shelf } from './fixtures/shelf';
 import * as curvesMigration from '@/db/migrations/20261205200100_curves_frequencies_key';
 import * as figuresMigration from '@/db/migrations/20261205200200_h_infinity_and_zero_frequency_names';
 import * as labelsMigration from '@/db/migrations/20261205200300_model_labels_and_time_base';
@@ -44,7 +44,7 @@ async function oldShapeShelf(): Promise<Shelf & { figures: Record<string, unknow
     .where({ reduced_version_id: shelf.version.id })
     .update({ figures: JSON.stringify(figures), curves: JSON.stringify({ frequency: { [from]: [0.1, 1, 10], error: [1e-4, 2e-4, 3e-4] } }) });
   const [inputs, outputs, states] = labelsMigration.LABEL_KEYS.map(([old]) => old);
-  const matrices = { ...shelf.version.matrices, [inputs]: ['burner'], [states]: ['x1'], [labelsMigration.TIME_KEY[0]]: 'ms' };
+  const matrices = { ...FIRST_ORDER_LAG, [inputs]: ['burner'], [states]: ['x1'], [labelsMigration.TIME_KEY[0]]: 'ms' };
   await db()('reduced_versions').where({ id: shelf.version.id }).update({ matrices: JSON.stringify(matrices) }); // a draft: not frozen yet
   await markApproved(shelf.version.id, reviewer.id); // the snapshot takes the report's figures as they are
   const analysis: Record<string, unknown> = { states: 1, [inputs]: ['burner'], [outputs]: null, [labelsMigration.TIME_KEY[0]]: 'ms' };
@@ -85,7 +85,7 @@ describe('names of our own: the migrations move what was stored before them', ()
     for (const [old] of labelsMigration.LABEL_KEYS) expect(analysis).not.toHaveProperty(old);
 
     expect(version.status).toBe('approved');
-    expect(version.matrices).toEqual({ ...s.version.matrices, labels: { inputs: ['burner'], states: ['x1'] }, timeBase: 'ms' });
+    expect(version.matrices).toEqual({ ...FIRST_ORDER_LAG, labels: { inputs: ['burner'], states: ['x1'] }, timeBase: 'ms' });
     expect(version.matrices_sha256).toBe(digestBefore);
 
     const column = await db().raw(`SELECT column_name FROM information_schema.columns WHERE table_name = 'pins' AND column_name LIKE 'max_relative%'`);
