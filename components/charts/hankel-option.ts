@@ -54,6 +54,20 @@ export function openingView(hsv: readonly number[], order?: number): number {
 
 const decadeBelow = (v: number) => powerOfTen(Math.floor(Math.log10(v)));
 
+/** The log axis of the opening view: its values set it; below the rounding floor only the floor's decade is kept. */
+function logAxisOfView(hsv: readonly number[], bound: readonly number[], end: number) {
+  const inView = [...hsv.slice(0, end), ...bound.slice(0, end)].filter((v) => v > 0);
+  const range = decadeRange(inView)!;
+  return { range, yMin: Math.max(range.min, decadeBelow(roundingFloor(hsv))) };
+}
+
+/** Whether the rounding floor lies above the bottom of the opening view's axis (and so is shaded). */
+export function floorInView(hsv: readonly number[], order?: number, errorBound?: readonly number[]): boolean {
+  if (hsv.length === 0 || !(hsv[0] > 0)) return false;
+  const bound = errorBound ?? balancedTruncationBound(hsv);
+  return roundingFloor(hsv) > logAxisOfView(hsv, bound, openingView(hsv, order)).yMin;
+}
+
 export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEFAULT_CHART_THEME): ChartOption {
   const hsv = data.hankelSingularValues;
   checkHankelSingularValues(CHART, hsv);
@@ -76,10 +90,7 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
   const energy = cumulativeEnergy(hsv, data.energyMeasure ?? 'squared');
   const end = openingView(hsv, data.order);
   const floor = roundingFloor(hsv);
-  // The values in the opening view set the axis; below the rounding floor only the floor's decade is kept.
-  const inView = [...hsv.slice(0, end), ...bound.slice(0, end)].filter((v) => v > 0);
-  const range = decadeRange(inView)!;
-  const yMin = Math.max(range.min, decadeBelow(floor));
+  const { range, yMin } = logAxisOfView(hsv, bound, end);
   const positive = (v: number) => (v > 0 ? v : null);
 
   const hsvSeries: LineSeriesOption = {
@@ -94,12 +105,15 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
     showSymbol: n <= 200,
     connectNulls: false,
   };
-  hsvSeries.markArea = {
-    silent: true,
-    itemStyle: { color: INK.rule, opacity: 1 },
-    label: { show: true, position: 'insideTopRight', formatter: `${FLOOR_LABEL} = ${formatNumber(floor)}`, color: INK.graphiteMuted, fontFamily: theme.fontMono, fontSize: 11 },
-    data: [[{ yAxis: yMin }, { yAxis: floor }]],
-  };
+  // Shaded only where the view reaches it; a floor under the axis needs no shade (the note below says so).
+  if (floor > yMin) {
+    hsvSeries.markArea = {
+      silent: true,
+      itemStyle: { color: INK.rule, opacity: 1 },
+      label: { show: true, position: 'insideTopRight', formatter: `${FLOOR_LABEL} = ${formatNumber(floor)}`, color: INK.graphiteMuted, fontFamily: theme.fontMono, fontSize: 11 },
+      data: [[{ yAxis: yMin }, { yAxis: floor }]],
+    };
+  }
   if (data.order !== undefined) {
     hsvSeries.markLine = {
       silent: true,
@@ -138,7 +152,8 @@ export function buildHankelOption(data: HankelChartData, theme: ChartTheme = DEF
   return {
     ...base,
     legend: legendBox(theme),
-    grid: plotGrid({ right: 64, top: 40, bottom: 76 }),
+    // Room for the legend's two rows at a narrow width.
+    grid: plotGrid({ right: 64, top: 60, bottom: 76 }),
     tooltip: {
       ...tooltipBox(theme),
       trigger: 'axis',

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { balancedTruncationBound, cumulativeEnergy } from '@/components/charts/hankel-data';
-import { BOUND_SERIES, buildHankelOption, ENERGY_SERIES, FLOOR_LABEL, hankelTooltipLines, HSV_SERIES, OPENING_MAX_VALUES, openingView } from '@/components/charts/hankel-option';
+import { BOUND_SERIES, buildHankelOption, ENERGY_SERIES, floorInView, FLOOR_LABEL, hankelTooltipLines, HSV_SERIES, OPENING_MAX_VALUES, openingView } from '@/components/charts/hankel-option';
 import { BOUND_LINE } from '@/components/charts/theme';
 
 type Series = { name: string; yAxisIndex: number; data: [number, number | null][]; lineStyle: { color: string; type: string }; markLine?: { data: { xAxis: number }[]; label: { formatter: string } } };
@@ -135,6 +135,14 @@ describe('the opening view of a large model', () => {
     expect((option.yAxis as unknown as { min: number }[])[0].min).toBe(1e-16);
     expect(area.data[0][0].yAxis).toBe(1e-16);
     expect(area.label.formatter).toBe(`${FLOOR_LABEL} = 8.88e-16`);
+    expect(floorInView(deep, 3)).toBe(true);
+  });
+
+  it('leaves the floor unshaded when the view stops above it', () => {
+    // the 1000 values' opening view ends near 1e-2, far above σ1·n·ε = 2.2e-13
+    const option = buildHankelOption({ hankelSingularValues: hsv, order: 20 });
+    expect((option.series as unknown as { markArea?: unknown }[])[0].markArea).toBeUndefined();
+    expect(floorInView(hsv, 20)).toBe(false);
   });
 });
 
