@@ -220,8 +220,9 @@ export function sparseModalReduction(model: SparseStateSpaceModel, options: Spar
       const fast = fastestPole(model, { memoryBudgetBytes: options.memoryBudgetBytes, signal: options.signal });
       initialShifts = sweepPeakShifts(model, sweepGridFromPoles(slow, Math.hypot(fast.re, fast.im), 16), 6, options.memoryBudgetBytes);
     }
+    // The candidates are the slowest computed above and these; the dense ranking then keeps the most dominant.
     dominant = dominantPoles(model, {
-      count: order!,
+      count: Math.max(2, Math.ceil(order! / 2) + 2),
       initialShifts,
       tolerance: options.tolerance,
       memoryBudgetBytes: options.memoryBudgetBytes,
