@@ -1,6 +1,6 @@
 /**
- * The command line's modal figures on the sparse path (`reduction/sparse/eigs.ts`, `dominant.ts`, `modal.ts`,
- * `norms.ts`):
+ * The command line's modal figures on the sparse path (computed by `reduction/sparse/analysis.ts` from
+ * `eigs.ts`, `dominant.ts`, `norms.ts`; modal truncation in `modal.ts`):
  *
  *   analyze                 the slowest poles (shift-invert Krylov–Schur near 0), the dominant poles (SAMDP,
  *                           started at a sweep's peaks), the fastest pole (Krylov–Schur on E⁻¹A), and from
@@ -10,14 +10,10 @@
  *   reduce --method modal   modal truncation of the computed modes (`sparseModalReduction`).
  */
 import { ModelError } from '../errors';
-import { classifyPoles, DEFAULT_STABILITY_TOLERANCE } from '../spectral-split';
-import { poleData, snapMarginalPoles, stiffnessOf } from '../analysis';
-import { stepLimitsFromPoles } from '../step-limits';
 import type { ReductionOptions } from '../reduce';
-import { fastestPole, sparseEigs } from '../sparse/eigs';
-import { dominantPoles } from '../sparse/dominant';
-import { hInfinityLowerBound, sweepGridFromPoles } from '../sparse/norms';
-import { shiftNearZero, sparseModalReduction } from '../sparse/modal';
+import { DEFAULT_POLE_COUNT, DEFAULT_SWEEP_POINTS, type SparseModes } from '../sparse/analysis';
+import { sweepGridFromPoles } from '../sparse/norms';
+import { sparseModalReduction } from '../sparse/modal';
 import { sampledErrorPeak } from '../sparse/frequency';
 import { memoryBudgetBytes } from '../sparse/budget';
 import type { SparseStateSpaceModel } from '../sparse/model';
@@ -39,95 +35,37 @@ function positiveInteger(args: ParsedArgs, name: string, fallback: number, least
   return v;
 }
 
-interface ComputedPole {
-  re: number;
-  im: number;
-  residual: number;
-}
-
-/** Adds λ (and λ̄ for a complex λ) unless already listed (within 1e-8 relative). */
-function addPole(list: ComputedPole[], p: ComputedPole): void {
-  const scale = Math.hypot(p.re, p.im);
-  for (const sign of p.im === 0 ? [1] : [1, -1]) {
-    const q = { re: p.re, im: sign * Math.abs(p.im), residual: p.residual };
-    if (!list.some((x) => Math.abs(x.re - q.re) <= 1e-8 * scale && Math.abs(x.im - q.im) <= 1e-8 * scale)) list.push(q);
-  }
-}
-
 /**
- * The modal figures of `analyze` on the sparse path (see the file header). `stableByGramians` says whether
- * the low-rank ADI converged (it does only for a stable model).
+ * The modal figures of `analyze` on the sparse path as the command line writes them (the computation is
+ * `sparseModes`, reduction/sparse/analysis.ts, which the web's analysis task calls too).
  */
-export function sparseModalFigures(
-  model: SparseStateSpaceModel,
-  args: ParsedArgs,
-  options: { readonly memoryBudgetBytes?: number; readonly stableByGramians: boolean },
-): { figures: Record<string, unknown>; estimated: string[] } {
-  const count = positiveInteger(args, 'pole-count', 6, 1);
-  const points = positiveInteger(args, 'sweep-points', 16, 2);
-  const budget = options.memoryBudgetBytes;
-  const tolerance = DEFAULT_STABILITY_TOLERANCE;
-  const si = shiftNearZero(model, budget);
-  let slow;
-  try {
-    slow = sparseEigs(model, { count, factorization: si });
-  } finally {
-    si.dispose();
-  }
-  const fast = fastestPole(model, { memoryBudgetBytes: budget });
-  const slowMag = Math.min(...Array.from(slow.values.re, (r, i) => Math.hypot(r, slow.values.im[i])).filter((x) => x > 0));
-  const fastMag = Math.hypot(fast.re, fast.im);
-  const grid = [0, ...sweepGridFromPoles(slowMag, fastMag, points)];
-  let peak = hInfinityLowerBound(model, { grid, refine: 1, refineSteps: 10, memoryBudgetBytes: budget });
-  const dominant = dominantPoles(model, {
-    count,
-    initialShifts: peak.peaks.slice(0, 6).map((w) => ({ re: 0, im: w })),
-    memoryBudgetBytes: budget,
-  });
-  // Lightly damped dominant poles peak near ω = Im λ: look there too.
-  const candidates = dominant.poles.filter((p) => p.im > 0 && p.dampingRatio < 0.5).map((p) => p.im);
-  let evaluations = peak.evaluations;
-  if (candidates.length > 0) {
-    const near = hInfinityLowerBound(model, { grid: candidates, refine: 1, refineSteps: 8, memoryBudgetBytes: budget });
-    evaluations += near.evaluations;
-    if (near.value > peak.value) peak = near;
-  }
-  const computed: ComputedPole[] = [];
-  // The slowest as computed (a multiple eigenvalue keeps its multiplicity), the others unless already listed.
-  for (let i = 0; i < slow.values.re.length; i++) computed.push({ re: slow.values.re[i], im: slow.values.im[i], residual: slow.residuals[i] });
-  for (const p of dominant.poles) addPole(computed, { re: p.re, im: p.im, residual: p.residual });
-  addPole(computed, { re: fast.re, im: fast.im, residual: fast.residual });
-  computed.sort((a, b) => Math.hypot(a.re, a.im) - Math.hypot(b.re, b.im) || b.im - a.im);
-  const poles = { re: Float64Array.from(computed, (p) => p.re), im: Float64Array.from(computed, (p) => p.im) };
-  const classification = classifyPoles(poles, tolerance);
+export function sparseModesDocument(m: SparseModes): { figures: Record<string, unknown>; estimated: string[] } {
+  const { computed, poles, classification, stiffness, stepLimits: limits, dominant, fastest: fast, hInfinity: peak } = m;
   const count3 = (s: string) => classification.stability.filter((x) => x === s).length;
-  const stiffness = stiffnessOf(classification);
-  const limits = stepLimitsFromPoles(snapMarginalPoles(poles.re, poles.im, classification.stability, tolerance, classification.scale));
-  const data = poleData(classification);
   const stepLimit = (l: { maxStep: number; limitingPole: [number, number] | null }) => ({ maxStep: finiteOrNull(l.maxStep), limitingPole: l.limitingPole });
   const figures: Record<string, unknown> = {
     poles: complexPairs(poles),
     polesComplete: false,
     polesNote:
-      `the poles computed: the ${slow.values.re.length} nearest s = ${slow.shift.re} (shift-invert Krylov–Schur), ${dominant.poles.length} dominant ` +
+      `the poles computed: the ${m.slowestCount} nearest s = ${m.slowestShift.re} (shift-invert Krylov–Schur), ${dominant.poles.length} dominant ` +
       `(subspace-accelerated dominant pole algorithm) and the fastest (Krylov–Schur on E⁻¹A); the model's other poles are not computed`,
     poleResiduals: computed.map((p) => finiteOrNull(p.residual)),
     poleResidualsNote: '‖A x − λ E x‖₂/(‖A‖₁‖x‖₂) of each computed pole',
-    stable: options.stableByGramians && classification.stability.every((s) => s === 'stable'),
+    stable: m.stable,
     stableNote: 'every computed pole is stable and the low-rank ADI of the gramians converged (it does not for an unstable model); not a certificate',
     stablePoles: count3('stable'),
     marginalPoles: count3('marginal'),
     unstablePoles: count3('unstable'),
-    stabilityTolerance: tolerance,
+    stabilityTolerance: m.stabilityTolerance,
     slowestDecayRate: stiffness.slowestDecayRate,
     fastestDecayRate: stiffness.fastestDecayRate,
     stiffnessRatio: stiffness.stiffnessRatio === null ? null : finiteOrNull(stiffness.stiffnessRatio),
     decayRatesNote: 'over the computed poles: the slowest decay rate among the poles nearest s = 0 and the dominant ones, the fastest from the fastest pole',
-    modalData: data.map((p) => ({ naturalFrequency: p.naturalFrequency, dampingRatio: p.dampingRatio, timeConstant: p.timeConstant, stability: p.stability })),
+    modalData: m.modalData.map((p) => ({ naturalFrequency: p.naturalFrequency, dampingRatio: p.dampingRatio, timeConstant: p.timeConstant, stability: p.stability })),
     stepLimits: { forwardEuler: stepLimit(limits.forwardEuler), rk4: stepLimit(limits.rk4) },
     stepLimitsNote: 'from the computed poles; the fastest pole sets them unless a lightly damped pole not computed lies closer to the imaginary axis',
     modalDominance: {
-      reliable: dominant.poles.every((p) => p.residual <= 1e-8 && p.leftResidual <= 1e-8),
+      reliable: m.dominanceReliable,
       eigenvectorCondition: null,
       modes: dominant.poles.map((p) => ({
         pole: [p.re, p.im],
@@ -142,13 +80,18 @@ export function sparseModalFigures(
     modalDominanceNote: 'the dominant poles found by the subspace-accelerated dominant pole algorithm started at the sweep\'s peaks, most dominant first; not certified to be the model\'s most dominant',
     hInfinityNorm: peak.value,
     hInfinityPeakFrequency: finiteOrNull(peak.frequency),
-    hInfinityNormNote: `largest σ_max(G(iω)) over ω = 0, ${points} frequencies and the dominant poles' frequencies, refined at the highest peak (${evaluations} evaluations): a lower bound on ‖G‖∞`,
+    hInfinityNormNote: `largest σ_max(G(iω)) over ω = 0, ${m.sweepPoints} frequencies and the dominant poles' frequencies, refined at the highest peak (${m.evaluations} evaluations): a lower bound on ‖G‖∞`,
     fastestPole: { pole: [fast.re, fast.im], residual: fast.residual, converged: fast.converged, solver: fast.solver },
   };
   return {
     figures,
     estimated: ['poles', 'stable', 'stablePoles', 'marginalPoles', 'unstablePoles', 'slowestDecayRate', 'fastestDecayRate', 'stiffnessRatio', 'modalData', 'stepLimits', 'modalDominance', 'hInfinityNorm'],
   };
+}
+
+/** `--pole-count` and `--sweep-points` of `analyze` on the sparse path. */
+export function sparseAnalysisCounts(args: ParsedArgs): { poleCount: number; sweepPoints: number } {
+  return { poleCount: positiveInteger(args, 'pole-count', DEFAULT_POLE_COUNT, 1), sweepPoints: positiveInteger(args, 'sweep-points', DEFAULT_SWEEP_POINTS, 2) };
 }
 
 /** `reduce --method modal` on the sparse path. */

@@ -3,7 +3,8 @@
  *
  * A model takes the sparse path when its A file is a Matrix Market coordinate file and either
  * `--path sparse` is given, or `--path auto` (the default) and A has more states than the crossover
- * (`SPARSE_CROSSOVER_STATES`, or the `MODESHELF_SPARSE_CROSSOVER` environment variable), or a descriptor
+ * (`SPARSE_CROSSOVER_STATES` in `reduction/sparse/path.ts`, which the web upload uses too, or the
+ * `MODESHELF_SPARSE_CROSSOVER` environment variable), or a descriptor
  * matrix is given (`--E E.mtx`, which only the sparse path reads). Everything else takes the dense path,
  * unchanged. On the sparse path A and E are read into compressed columns (`reduction/sparse/`), B, C and D
  * by the dense readers (they are thin).
@@ -13,29 +14,18 @@ import { ModelError } from '../errors';
 import { parseMatrixFile } from '../io/model-files';
 import { coordinateRowCount, parseSparseMatrixMarket } from '../sparse/matrix-market';
 import { createSparseModel, type SparseStateSpaceModel } from '../sparse/model';
+import { autoPathIsSparse, SPARSE_CROSSOVER_STATES } from '../sparse/path';
 import { integerOption, numberOption, stringOption, type OptionSpec, type ParsedArgs } from './args';
-import { matmul, zeros } from '../linalg/index';
-import { SparseLu } from '../linalg/sparse';
 import { largestSingularValue, logFrequencyGrid } from '../frequency';
 import { lowRankGramians, type AdiFactor, type AdiOptions, type AdiResult } from '../sparse/adi';
 import { lowRankBalancedRealization, sparseBalancedReduction } from '../sparse/balanced';
 import { sampledErrorPeak, sparseFrequencyResponse } from '../sparse/frequency';
 import { balancedErrorBound } from '../balanced';
-import { checkFactorBudget, memoryBudgetBytes, MEMORY_BUDGET_ENV } from '../sparse/budget';
+import { memoryBudgetBytes, MEMORY_BUDGET_ENV } from '../sparse/budget';
+import { analyzeSparseModel } from '../sparse/analysis';
 import { finiteOrNull, matrixRows, numberList } from './output';
 import { ENGINE_PATH } from './registry';
-import { sparseModalFigures } from './sparse-modes';
-
-/**
- * Default state count above which `--path auto` takes the sparse path. Measured (2-core machine shared with
- * other jobs, so ±30 %): `reduce --method balanced --order 6` on the 2-D heat plate (5-point Laplacian,
- * one input, one output) took on the dense / sparse path 1.0 s / 0.13 s at 196 states, 3.1 s / 0.11 s at
- * 400 and 12.5 s / 0.15 s at 900 (dense grows as n³: about 20 s at 1000, minutes at 3000). The dense path
- * gives more below the crossover (every Hankel singular value, poles, a certified H∞ error); above 1000
- * states its cost stops being worth that.
- */
-export const SPARSE_CROSSOVER_STATES = 1000;
-export const SPARSE_CROSSOVER_ENV = 'MODESHELF_SPARSE_CROSSOVER';
+import { sparseAnalysisCounts, sparseModesDocument } from './sparse-modes';
 
 export const SPARSE_PATH_OPTIONS: Readonly<Record<string, OptionSpec>> = {
   path: { value: true, description: `dense | sparse | auto (default: sparse for a Matrix Market coordinate A above ${SPARSE_CROSSOVER_STATES} states, or with --E)` },
@@ -44,14 +34,6 @@ export const SPARSE_PATH_OPTIONS: Readonly<Record<string, OptionSpec>> = {
   'adi-max-iterations': { value: true, description: 'sparse path: most ADI steps per gramian (default 300)' },
   'memory-budget': { value: true, description: `sparse path: MiB a sparse factorization may take, checked before it is made (default: ${MEMORY_BUDGET_ENV}, else unlimited)` },
 };
-
-function crossover(): number {
-  const env = process.env[SPARSE_CROSSOVER_ENV];
-  if (env === undefined || env === '') return SPARSE_CROSSOVER_STATES;
-  const v = Number(env);
-  if (!Number.isInteger(v) || v < 1) throw new ModelError('invalid_option', 'path', `${SPARSE_CROSSOVER_ENV} must be a whole number ≥ 1, got "${env}"`);
-  return v;
-}
 
 function readText(path: string, field: string): string {
   try {
@@ -87,7 +69,7 @@ export function sparseModelArgument(args: ParsedArgs): SparseStateSpaceModel | n
     }
     return null;
   }
-  if (path === 'auto' && ePath === undefined && rows <= crossover()) return null;
+  if (path === 'auto' && !autoPathIsSparse(rows, ePath !== undefined)) return null;
   const A = parseSparseMatrixMarket(aText, 'A', files[0]);
   const E = ePath === undefined ? undefined : parseSparseMatrixMarket(readText(ePath, 'E'), 'E', ePath);
   const [B, C, D] = (['B', 'C', 'D'] as const).slice(0, files.length - 1).map((field, k) => parseMatrixFile(readText(files[k + 1], field), field, files[k + 1]));
@@ -223,39 +205,9 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
 /** `analyze` on the sparse path: the dense path's keys at scale, each figure exact or listed in `estimated`. */
 export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs): Record<string, unknown> {
   const adi = adiOptionsOf(args);
-  const g = lowRankGramians(model, adi);
-  const { realization } = lowRankBalancedRealization(model, g);
-  const zc = g.controllability!.Z;
-  const cz = matmul(model.C, zc);
-  const h2 = model.D.data.some((x) => x !== 0) ? null : Math.sqrt(cz.data.reduce((s, x) => s + x * x, 0));
-  // DC gain G(0) = D − C A⁻¹ B by one sparse LU of A.
-  let zeroFrequencyGain: (number | null)[][] | null = null;
-  let zeroFrequencyGainNote: string | undefined;
-  const lu = SparseLu.analyze(model.A, 'A');
-  checkFactorBudget(lu, adi.memoryBudgetBytes ?? Infinity, 'A');
-  try {
-    lu.factor();
-    const m = model.B.cols, p = model.C.rows, n = model.A.n;
-    const g0 = zeros(p, m);
-    for (let c = 0; c < m; c++) {
-      const b = new Float64Array(n);
-      for (let i = 0; i < n; i++) b[i] = model.B.data[i * m + c];
-      const x = lu.solve(b);
-      for (let r = 0; r < p; r++) {
-        let s = 0;
-        for (let i = 0; i < n; i++) s += model.C.data[r * n + i] * x[i];
-        g0.data[r * m + c] = model.D.data[r * m + c] - s;
-      }
-    }
-    zeroFrequencyGain = matrixRows(g0);
-  } catch (e) {
-    zeroFrequencyGainNote = `A is singular to working precision (${(e as Error).message}): no DC gain`;
-  } finally {
-    lu.dispose();
-  }
+  const a = analyzeSparseModel(model, { adi, ...sparseAnalysisCounts(args) });
   // Poles and the figures made from them, and ‖G‖∞ from below (sparse-modes.ts).
-  const stableByGramians = Boolean(g.controllability?.converged && g.observability?.converged);
-  const modes = sparseModalFigures(model, args, { memoryBudgetBytes: adi.memoryBudgetBytes, stableByGramians });
+  const modes = sparseModesDocument(a.modes);
   return {
     [ENGINE_PATH]: 'sparse',
     states: model.A.n,
@@ -263,13 +215,13 @@ export function runSparseAnalyze(model: SparseStateSpaceModel, args: ParsedArgs)
     outputs: model.C.rows,
     descriptor: model.E !== undefined,
     ...modes.figures,
-    hankelSingularValues: numberList(realization.hankelSingularValues),
+    hankelSingularValues: numberList(a.hankelSingularValues),
     hsvComplete: false,
-    h2Norm: h2,
-    h2NormNote: h2 === null ? 'D ≠ 0: the H2 norm is infinite' : '‖C Zc‖_F from the low-rank controllability factor',
-    zeroFrequencyGain,
-    ...(zeroFrequencyGainNote ? { zeroFrequencyGainNote } : {}),
-    gramianResidual: gramianReport(g, adi.tolerance ?? 1e-10),
+    h2Norm: a.h2Norm,
+    h2NormNote: a.h2Norm === null ? 'D ≠ 0: the H2 norm is infinite' : '‖C Zc‖_F from the low-rank controllability factor',
+    zeroFrequencyGain: a.zeroFrequencyGain ? matrixRows(a.zeroFrequencyGain) : null,
+    ...(a.zeroFrequencyGainNote ? { zeroFrequencyGainNote: a.zeroFrequencyGainNote } : {}),
+    gramianResidual: gramianReport(a.gramians, a.adiTolerance),
     estimated: [...modes.estimated, 'hankelSingularValues', 'h2Norm'],
   };
 }

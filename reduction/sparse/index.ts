@@ -12,6 +12,9 @@
  *   dominant.ts         dominant poles by the subspace-accelerated dominant pole algorithm (SISO and MIMO)
  *   modal.ts            modal truncation of the computed modes (E-biorthogonal projection)
  *   norms.ts            ‖G‖∞ from below: a sweep with local refinement
+ *   analysis.ts         the whole analysis of a sparse model (command line and web task alike)
+ *   path.ts             which path a model takes (the crossover)
+ *   second-order.ts     M, D, K in descriptor form without M⁻¹
  */
 export * from './model';
 export { parseSparseMatrixMarket, writeSparseMatrixMarket, isMatrixMarketCoordinate, coordinateRowCount } from './matrix-market';
@@ -24,3 +27,6 @@ export { krylovSchur, sparseEigs, fastestPole, ShiftInvert, eigenResidual, type 
 export { dominantPoles, sweepPeakShifts, type DominantPole, type DominantPoleOptions, type DominantPoleResult } from './dominant';
 export { sparseModalReduction, projectOnModes, type SparseModalOptions, type SparseModalResult } from './modal';
 export { hInfinityLowerBound, sweepGridFromPoles, SparseFrequencyEvaluator, type HInfinityLowerBound } from './norms';
+export { analyzeSparseModel, sparseModes, sparseZeroFrequencyGain, DEFAULT_POLE_COUNT, DEFAULT_SWEEP_POINTS, DEFAULT_ADI_TOLERANCE, type SparseAnalysis, type SparseAnalysisProgress, type SparseAnalysisStage, type SparseModes } from './analysis';
+export { autoPathIsSparse, sparseCrossover, SPARSE_CROSSOVER_STATES, SPARSE_CROSSOVER_ENV } from './path';
+export { secondOrderToDescriptor, type SparseSecondOrder } from './second-order';

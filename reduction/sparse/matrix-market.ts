@@ -21,8 +21,16 @@ import { checkDeclaredCount } from '../io/limits';
 import { inFile, readNumericCell } from '../io/numbers';
 import { cscFromCoo, type CscMatrix } from './model';
 
+/** The lines of a coordinate file, one at a time: from a text in memory, or streamed from a file (file-reader.ts). */
+export interface LineSource {
+  /** 1-based number of the last line returned */
+  readonly line: number;
+  /** The next non-blank, non-comment line (trimmed) or null at the end. */
+  next(): string | null;
+}
+
 /** Line-by-line reading of a text without splitting it all at once. */
-class Lines {
+class Lines implements LineSource {
   private pos = 0;
   line = 0; // 1-based number of the last line returned
   constructor(private readonly text: string) {}
@@ -48,11 +56,19 @@ class Lines {
  * `fileName` starts every message.
  */
 export function parseSparseMatrixMarket(text: string, field: string, fileName?: string): CscMatrix {
-  const where = inFile(fileName);
   const body = text.replace(/^\uFEFF/, '').replace(/\r\n?/g, '\n');
-  const lines = new Lines(body);
   const firstEnd = body.indexOf('\n');
-  const header = (firstEnd < 0 ? body : body.slice(0, firstEnd)).trim().split(/\s+/);
+  return parseCoordinateLines((firstEnd < 0 ? body : body.slice(0, firstEnd)).trim(), new Lines(body), body.length, field, fileName);
+}
+
+/**
+ * The reader behind both entries: `header` is the file's first line; `lines` starts at the first line (the
+ * header, a comment to it, is passed over); `length` is the file's length in characters (or bytes), against
+ * which a declared entry count is checked before anything is allocated.
+ */
+export function parseCoordinateLines(headerLine: string, lines: LineSource, length: number, field: string, fileName?: string): CscMatrix {
+  const where = inFile(fileName);
+  const header = headerLine.trim().split(/\s+/);
   if (header[0]?.toLowerCase() !== '%%matrixmarket' || header.length < 5) {
     throw new ModelError(
       'parse_error',
@@ -99,7 +115,7 @@ export function parseSparseMatrixMarket(text: string, field: string, fileName?: 
   if (rows !== cols) throw new ModelError('not_square', field, `${where}line ${lines.line}: ${field} must be square, the file declares ${rows}×${cols}`);
   if (rows > 2 ** 31 - 2) throw new ModelError('too_large', field, `${where}line ${lines.line}: ${field} declares ${rows} rows, past 32-bit indices`);
   // Shortest entry: "1 1 0\n".
-  checkDeclaredCount(nnz, body.length, 6, field, where, 'entries');
+  checkDeclaredCount(nnz, length, 6, field, where, 'entries');
 
   const mirrored = symmetry !== 'general';
   const cap = mirrored ? 2 * nnz : nnz;
