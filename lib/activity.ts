@@ -4,10 +4,11 @@
 import { db } from '@/lib/db';
 import type { Role } from '@/lib/roles';
 import type { VersionStatus } from '@/lib/review/state-machine';
-import { reviewQueue, type Actor, type QueueEntry } from '@/lib/reviews';
+import { reviewQueue, type Actor, type QueueEntry } from '@/lib/review';
 import { LIVE_STATUSES, upstreamChangedVersions, type UpstreamChange } from '@/lib/upstream';
 import { versionPath } from '@/lib/source-models';
 import { methodName } from '@/lib/recipe-words';
+import { versionLineage } from '@/lib/version-lineage';
 
 /** How an event is marked in the feed: the state it leaves a version in, or what kind of thing it concerns. */
 export type ActivityTone = 'source' | 'draft' | 'in_review' | 'approved' | 'revise' | 'retired' | 'project' | 'people' | 'job';
@@ -87,17 +88,14 @@ async function subjectsOf(rows: readonly AuditRow[]) {
           [LIVE_STATUSES as string[]],
         ),
       ),
-    knex('reduced_versions as rv')
-      .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
-      .whereIn('rv.id', only(ids('reduced_version')))
-      .select('rv.id', 'rv.number', 'rm.name'),
+    versionLineage(knex).whereIn('rv.id', only(ids('reduced_version'))),
     knex('controller_projects').whereIn('id', only(ids('controller_project'))).select('id', 'name', 'slug'),
     knex('users').whereIn('id', only(ids('user'))).select('id', 'name'),
     knex('jobs').whereIn('id', only(ids('job'))).select('id', 'kind'),
   ]);
   return {
     source: new Map(sources.map((r: Record<string, unknown>) => [r.id as string, r])),
-    reduced: new Map(reduced.map((r: Record<string, unknown>) => [r.id as string, r])),
+    reduced: new Map(reduced.map((r) => [r.versionId, { number: r.versionNumber, name: r.reducedModelName }])),
     project: new Map(projects.map((r: Record<string, unknown>) => [r.id as string, r])),
     person: new Map(people.map((r: Record<string, unknown>) => [r.id as string, r])),
     job: new Map(jobs.map((r: Record<string, unknown>) => [r.id as string, r])),
@@ -148,7 +146,7 @@ function describe(row: AuditRow, subjects: Awaited<ReturnType<typeof subjectsOf>
       suffix = method ? ` by ${methodName(method)}` : '';
     }
   } else if (row.subject_type === 'reduced_version') {
-    const rv = subjects.reduced.get(id) as { number: number; name: string } | undefined;
+    const rv = subjects.reduced.get(id);
     subject = { label: rv ? `${rv.name} v${rv.number}` : `a reduced model version${typeof d.number === 'number' ? ` v${d.number}` : ''}`, href: rv ? `/reviews/${id}` : null };
     const step = REVIEW_STEPS[row.action];
     tone = 'draft';
@@ -235,22 +233,24 @@ export async function recentActivity(limit = 15, options: { withPeople?: boolean
 }
 
 async function sentBackTo(authorId: string): Promise<SentBack[]> {
-  const rows = await db()('reduced_versions as rv')
-    .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
+  const rows = await versionLineage<{ reviewerName: string; comment: string; sentBackAt: Date }>(db(), {
+    reviewerName: 'u.name',
+    comment: 'rw.body',
+    sentBackAt: 'rw.created_at',
+  })
     .join('reviews as rw', (j) => j.on('rw.reduced_version_id', 'rv.id').andOnVal('rw.event', '=', 'revise'))
     .join('users as u', 'u.id', 'rw.actor_id')
     .where({ 'rv.author_id': authorId, 'rv.status': 'revise' satisfies VersionStatus })
     // Answered once a next draft exists.
     .whereNotExists(db()('reduced_versions as nxt').whereRaw('nxt.predecessor_id = rv.id').andWhereRaw('nxt.source_version_id = rv.source_version_id'))
-    .orderBy('rw.id', 'desc')
-    .select('rv.id', 'rv.number', 'rm.name as rm_name', 'u.name as reviewer_name', 'rw.body', 'rw.created_at');
+    .orderBy('rw.id', 'desc');
   return rows.map((r) => ({
-    versionId: r.id,
-    reducedModelName: r.rm_name,
-    number: r.number,
-    reviewerName: r.reviewer_name,
-    comment: r.body,
-    at: (r.created_at as Date).toISOString(),
+    versionId: r.versionId,
+    reducedModelName: r.reducedModelName,
+    number: r.versionNumber,
+    reviewerName: r.reviewerName,
+    comment: r.comment,
+    at: r.sentBackAt.toISOString(),
   }));
 }
 

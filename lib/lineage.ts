@@ -9,8 +9,9 @@ import { methodOrderLabel } from '@/lib/recipe-words';
 import { db } from '@/lib/db';
 import { ApiError, notFound } from '@/lib/http';
 import type { VersionStatus } from '@/lib/review/state-machine';
-import { versionSummaries, type VersionSummary } from '@/lib/reviews';
+import { versionSummaries, type VersionSummary } from '@/lib/review';
 import { pinsForReducedModel } from '@/lib/pins';
+import { versionLineage } from '@/lib/version-lineage';
 
 export interface SourceVersionNode {
   kind: 'source_version';
@@ -71,37 +72,34 @@ async function buildLineage(sourceModelId: string, reducedModelId: string | null
   const sm = await knex('source_models').where({ id: sourceModelId }).first('id', 'name', 'slug');
   if (!sm) throw notFound('That source model');
   const svRows = await knex('source_versions').where({ source_model_id: sourceModelId }).orderBy('number').select('id', 'number', 'checksum', 'states', 'created_at');
-  const rvQuery = knex('reduced_versions as rv')
-    .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
+  const rvQuery = versionLineage<{
+    predecessorId: string | null;
+    matricesSha256: string;
+    inputChecksum: string;
+    engineVersion: string;
+    method: string;
+    upstreamChanged: boolean;
+    newestSourceNumber: number;
+  }>(knex, {
+    predecessorId: 'rv.predecessor_id',
+    matricesSha256: 'rv.matrices_sha256',
+    inputChecksum: 'rv.input_checksum',
+    engineVersion: 'rv.engine_version',
+    method: 'r.method',
+    upstreamChanged: 'up.upstream_changed',
+    newestSourceNumber: 'up.newest_source_number',
+  })
     .join('recipes as r', 'r.id', 'rv.recipe_id')
     .join('reduced_version_upstream as up', 'up.reduced_version_id', 'rv.id')
-    .where('up.source_model_id', sourceModelId)
-    .orderBy([{ column: 'rm.name' }, { column: 'rv.number' }])
-    .select(
-      'rv.id',
-      'rv.number',
-      'rv.status',
-      'rv.order',
-      'rv.source_version_id',
-      'rv.predecessor_id',
-      'rv.matrices_sha256',
-      'rv.input_checksum',
-      'rv.engine_version',
-      'rv.reduced_model_id',
-      'rm.name as rm_name',
-      'rm.slug as rm_slug',
-      'r.method',
-      'up.upstream_changed',
-      'up.source_number',
-      'up.newest_source_number',
-    );
+    .where('sm.id', sourceModelId)
+    .orderBy([{ column: 'rm.name' }, { column: 'rv.number' }]);
   if (reducedModelId) rvQuery.where('rv.reduced_model_id', reducedModelId);
   const rvRows = await rvQuery;
 
   const newest = svRows.length > 0 ? svRows[svRows.length - 1].number : 0;
   // A reduced model's page shows the source versions its versions came from, plus the newest one (to show
   // what an upstream change points at); the source model's page shows them all.
-  const usedSources = new Set(rvRows.map((r) => r.source_version_id));
+  const usedSources = new Set(rvRows.map((r) => r.sourceVersionId));
   const shownSources = reducedModelId ? svRows.filter((s) => usedSources.has(s.id) || s.number === newest) : svRows;
 
   const nodes: LineageNode[] = shownSources.map((s) => ({
@@ -116,32 +114,32 @@ async function buildLineage(sourceModelId: string, reducedModelId: string | null
     registeredAt: (s.created_at as Date).toISOString(),
   }));
   const edges: LineageEdge[] = [];
-  const shownIds = new Set(rvRows.map((r) => r.id));
+  const shownIds = new Set(rvRows.map((r) => r.versionId));
   for (const r of rvRows) {
     nodes.push({
       kind: 'reduced_version',
-      id: r.id,
-      reducedModelName: r.rm_name,
-      reducedModelSlug: r.rm_slug,
-      number: r.number,
+      id: r.versionId,
+      reducedModelName: r.reducedModelName,
+      reducedModelSlug: r.reducedModelSlug,
+      number: r.versionNumber,
       status: r.status,
       order: r.order,
       method: r.method,
-      upstreamChanged: r.upstream_changed,
-      sourceNumber: r.source_number,
-      newestSourceNumber: r.newest_source_number,
-      matricesSha256: r.matrices_sha256,
-      inputChecksum: r.input_checksum,
-      engineVersion: r.engine_version,
+      upstreamChanged: r.upstreamChanged,
+      sourceNumber: r.sourceVersionNumber,
+      newestSourceNumber: r.newestSourceNumber,
+      matricesSha256: r.matricesSha256,
+      inputChecksum: r.inputChecksum,
+      engineVersion: r.engineVersion,
     });
-    edges.push({ from: r.source_version_id, to: r.id, kind: 'reduced_from', label: methodOrderLabel(r.method, r.order) });
-    if (r.predecessor_id && shownIds.has(r.predecessor_id)) {
-      edges.push({ from: r.predecessor_id, to: r.id, kind: 'predecessor', label: 'made from' });
+    edges.push({ from: r.sourceVersionId, to: r.versionId, kind: 'reduced_from', label: methodOrderLabel(r.method, r.order) });
+    if (r.predecessorId && shownIds.has(r.predecessorId)) {
+      edges.push({ from: r.predecessorId, to: r.versionId, kind: 'predecessor', label: 'made from' });
     }
   }
 
-  const modelIds = [...new Set(rvRows.map((r) => r.reduced_model_id as string))];
-  const versionByModelNumber = new Map(rvRows.map((r) => [`${r.reduced_model_id}:${r.number}`, r.id as string]));
+  const modelIds = [...new Set(rvRows.map((r) => r.reducedModelId))];
+  const versionByModelNumber = new Map(rvRows.map((r) => [`${r.reducedModelId}:${r.versionNumber}`, r.versionId]));
   const projects = new Map<string, ProjectNode>();
   for (const modelId of modelIds) {
     for (const pin of await pinsForReducedModel(modelId)) {

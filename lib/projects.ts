@@ -1,4 +1,4 @@
-// Controller projects: their records, members, schemas and permission rules. Pins live in lib/pins.ts,
+// Controller projects: their records, members, schemas and permission rules. Pins live in lib/pins/,
 // project tokens in lib/project-tokens.ts.
 //
 // Who may do what (checked here, beside the writes; route handlers first check the shelf role):

@@ -4,18 +4,16 @@
 //
 // Also here: "re-run the recipe on the new version" (a reduction job with the same recipe on the newest
 // source version, recording the old version as predecessor; the old-versus-new comparison of the result is
-// in lib/lineage.ts), and the sweep that queues "upstream changed" mails to the authors of derived versions, once per new source
-// version.
+// in lib/lineage.ts). The "upstream changed" mails to the authors of derived versions are queued by
+// lib/notifications/upstream-notices.ts, once per new source version.
 import type { Knex } from 'knex';
 import { db } from '@/lib/db';
-import { appUrl } from '@/lib/config';
 import { recordAudit } from '@/lib/audit';
 import { ApiError, notFound } from '@/lib/http';
 import type { Role } from '@/lib/roles';
 import type { VersionStatus } from '@/lib/review/state-machine';
-import { queueMail, recipientsFor } from '@/lib/notifications';
-import { upstreamChangedMail } from '@/lib/notification-mail';
 import { createJob, dispatchJob } from '@/lib/jobs/jobs';
+import { versionLineage } from '@/lib/version-lineage';
 
 /** States in which a version still matters enough to be flagged and re-run (not superseded, not retired). */
 export const LIVE_STATUSES: readonly VersionStatus[] = ['draft', 'in_review', 'approved'];
@@ -46,60 +44,54 @@ export async function upstreamChangedVersions(
   filter: { reducedModelId?: string; sourceModelId?: string; authorId?: string; limit?: number } = {},
   trx: Knex | Knex.Transaction = db(),
 ): Promise<UpstreamChange[]> {
-  const query = trx('reduced_version_upstream as up')
-    .join('reduced_versions as rv', 'rv.id', 'up.reduced_version_id')
-    .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
+  const query = versionLineage<{
+    authorName: string;
+    newestSourceVersionId: string;
+    newestSourceNumber: number;
+    newestCreatedAt: Date;
+    rerunId: string | null;
+    rerunNumber: number;
+    rerunStatus: VersionStatus;
+  }>(trx, {
+    authorName: 'au.name',
+    newestSourceVersionId: 'up.newest_source_version_id',
+    newestSourceNumber: 'up.newest_source_number',
+    newestCreatedAt: 'nsv.created_at',
+    rerunId: 'nxt.id',
+    rerunNumber: 'nxt.number',
+    rerunStatus: 'nxt.status',
+  })
     .join('users as au', 'au.id', 'rv.author_id')
-    .join('source_models as sm', 'sm.id', 'up.source_model_id')
+    .join('reduced_version_upstream as up', 'up.reduced_version_id', 'rv.id')
     .join('source_versions as nsv', 'nsv.id', 'up.newest_source_version_id')
     .leftJoin('reduced_versions as nxt', (j) =>
       j.on('nxt.predecessor_id', 'rv.id').andOn('nxt.source_version_id', 'up.newest_source_version_id'),
     )
     .where('up.upstream_changed', true)
     .whereIn('rv.status', LIVE_STATUSES as string[])
-    .orderBy([{ column: 'nsv.created_at', order: 'desc' }, { column: 'rm.name' }, { column: 'rv.number', order: 'desc' }])
-    .select(
-      'rv.id',
-      'rv.number',
-      'rv.status',
-      'rm.id as rm_id',
-      'rm.name as rm_name',
-      'rm.slug as rm_slug',
-      'au.id as author_id',
-      'au.name as author_name',
-      'sm.id as sm_id',
-      'sm.name as sm_name',
-      'sm.slug as sm_slug',
-      'up.source_number',
-      'up.newest_source_version_id',
-      'up.newest_source_number',
-      'nsv.created_at as newest_created_at',
-      'nxt.id as nxt_id',
-      'nxt.number as nxt_number',
-      'nxt.status as nxt_status',
-    );
+    .orderBy([{ column: 'nsv.created_at', order: 'desc' }, { column: 'rm.name' }, { column: 'rv.number', order: 'desc' }]);
   if (filter.reducedModelId) query.where('rv.reduced_model_id', filter.reducedModelId);
-  if (filter.sourceModelId) query.where('up.source_model_id', filter.sourceModelId);
+  if (filter.sourceModelId) query.where('sm.id', filter.sourceModelId);
   if (filter.authorId) query.where('rv.author_id', filter.authorId);
   if (filter.limit) query.limit(filter.limit);
   const rows = await query;
   return rows.map((r) => ({
-    reducedVersionId: r.id,
-    reducedModelId: r.rm_id,
-    reducedModelName: r.rm_name,
-    reducedModelSlug: r.rm_slug,
-    number: r.number,
+    reducedVersionId: r.versionId,
+    reducedModelId: r.reducedModelId,
+    reducedModelName: r.reducedModelName,
+    reducedModelSlug: r.reducedModelSlug,
+    number: r.versionNumber,
     status: r.status,
-    authorId: r.author_id,
-    authorName: r.author_name,
-    sourceModelId: r.sm_id,
-    sourceModelName: r.sm_name,
-    sourceModelSlug: r.sm_slug,
-    sourceNumber: r.source_number,
-    newestSourceVersionId: r.newest_source_version_id,
-    newestSourceNumber: r.newest_source_number,
-    newestRegisteredAt: (r.newest_created_at as Date).toISOString(),
-    rerun: r.nxt_id ? { id: r.nxt_id, number: r.nxt_number, status: r.nxt_status } : null,
+    authorId: r.authorId,
+    authorName: r.authorName,
+    sourceModelId: r.sourceModelId,
+    sourceModelName: r.sourceModelName,
+    sourceModelSlug: r.sourceModelSlug,
+    sourceNumber: r.sourceVersionNumber,
+    newestSourceVersionId: r.newestSourceVersionId,
+    newestSourceNumber: r.newestSourceNumber,
+    newestRegisteredAt: r.newestCreatedAt.toISOString(),
+    rerun: r.rerunId ? { id: r.rerunId, number: r.rerunNumber, status: r.rerunStatus } : null,
   }));
 }
 
@@ -215,65 +207,4 @@ export async function rerunRecipe(versionId: string, actor: { id: string; role: 
   });
   if (!result.alreadyQueued) await dispatchJob(result.jobId);
   return result;
-}
-
-// ---------------------------------------------------------------------------------------------------------
-// "Upstream changed" mail
-
-/**
- * For each source version registered since the last sweep, queues one mail to each author (who wants it)
- * of a live reduced version derived from an older version of that source model. Each source version is
- * claimed in upstream_notices inside the same transaction as its mails, so two sweeps never both mail.
- * Returns how many mails were queued.
- */
-export async function queueUpstreamNotices(limit = 20): Promise<number> {
-  const fresh = await db()('source_versions as sv')
-    .whereNotExists(db()('upstream_notices as n').whereRaw('n.source_version_id = sv.id'))
-    .orderBy('sv.created_at')
-    .limit(limit)
-    .select('sv.id');
-  let queued = 0;
-  for (const { id } of fresh) {
-    queued += await db().transaction(async (trx) => {
-      const claimed = await trx('upstream_notices').insert({ source_version_id: id }).onConflict('source_version_id').ignore().returning('source_version_id');
-      if (claimed.length === 0) return 0;
-      const sv = await trx('source_versions as sv')
-        .join('source_models as sm', 'sm.id', 'sv.source_model_id')
-        .join('users as u', 'u.id', 'sv.uploaded_by')
-        .where('sv.id', id)
-        .first('sv.number', 'sv.source_model_id', 'sm.name', 'sm.slug', 'u.name as uploader_name');
-      const derived = await trx('reduced_versions as rv')
-        .join('source_versions as old', 'old.id', 'rv.source_version_id')
-        .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
-        .where('old.source_model_id', sv.source_model_id)
-        .andWhere('old.number', '<', sv.number)
-        .whereIn('rv.status', LIVE_STATUSES as string[])
-        .orderBy(['rm.name', 'rv.number'])
-        .select('rv.author_id', 'rv.number', 'old.number as source_number', 'rm.name as rm_name');
-      const byAuthor = new Map<string, { reducedModelName: string; number: number; sourceNumber: number }[]>();
-      for (const d of derived) {
-        const list = byAuthor.get(d.author_id) ?? [];
-        list.push({ reducedModelName: d.rm_name, number: d.number, sourceNumber: d.source_number });
-        byAuthor.set(d.author_id, list);
-      }
-      let count = 0;
-      if (byAuthor.size > 0) {
-        const recipients = await recipientsFor(trx, 'upstream_changed', { userIds: [...byAuthor.keys()] });
-        for (const recipient of recipients) {
-          const content = upstreamChangedMail({
-            recipientName: recipient.name,
-            sourceModelName: sv.name,
-            newNumber: sv.number,
-            uploaderName: sv.uploader_name,
-            derived: byAuthor.get(recipient.id)!,
-            url: `${appUrl()}/lineage/source-models/${sv.slug}`,
-          });
-          if (await queueMail(trx, { kind: 'upstream_changed', recipient, content, dedupeKey: `upstream:${id}:${recipient.id}` })) count += 1;
-        }
-      }
-      await trx('upstream_notices').where({ source_version_id: id }).update({ recipients: count });
-      return count;
-    });
-  }
-  return queued;
 }

@@ -24,7 +24,7 @@ import { readFileSync } from 'node:fs';
 import { closeDb } from '../lib/db';
 import { closeQueue } from '../lib/jobs/queue';
 import { parseWorkerClasses, startWorker, type RunningWorker } from '../lib/jobs/worker-loop';
-import { startNotificationSender } from '../lib/notification-sender';
+import { startNotificationSender } from '../lib/notifications/sender';
 import { workerMemoryBudgetMiB } from '../lib/jobs/memory-budget';
 import { objectStore, verifyStore } from '../lib/storage';
 

@@ -10,7 +10,7 @@ import { useRouter } from 'next/navigation';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { apiFetch, ApiClientError } from '@/components/api-client';
 import { describeText, TRANSITIONS, type ReviewAction } from '@/lib/review/state-machine';
-import type { ReviewEntry, ReviewSheet } from '@/lib/reviews';
+import type { ReviewEntry, ReviewSheet } from '@/lib/review';
 import { StatusBadge } from './StatusBadge';
 import { formatWhen } from './when';
 

@@ -15,7 +15,7 @@ import {
 } from '@tanstack/react-table';
 import { apiFetch } from '@/components/api-client';
 import { formatCount, formatNumber, formatOptional, formatPercent } from '@/lib/format';
-import type { DecisionEntry, QueueEntry } from '@/lib/reviews';
+import type { DecisionEntry, QueueEntry } from '@/lib/review';
 import { UpstreamChangedBadge } from './StatusBadge';
 import { formatWhen } from './when';
 import { SortableHead } from '@/components/table/SortableHead';

@@ -1,7 +1,7 @@
 // The review of one version where it is compared with its source (the comparison page): upstream change
 // with its re-run, and the review panel (actions, history, comments). Reads as the signed-in person.
 import { currentUser } from '@/lib/auth';
-import { reviewSheet } from '@/lib/reviews';
+import { reviewSheet } from '@/lib/review';
 import { UpstreamNotice } from '@/components/lineage/UpstreamNotice';
 import { ReviewPanel } from './ReviewPanel';
 

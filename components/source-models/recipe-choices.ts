@@ -43,7 +43,7 @@ export function frequencyLimitedTable(balanced: OrderFigureTable): OrderFigureTa
   return { available: true, orders: [...balanced.orders], figures, limitNote: balanced.limitNote };
 }
 
-/** Frequency-limited band as entered, checked as the server checks it (lib/reduced-models.ts limitedBandSchema). */
+/** Frequency-limited band as entered, checked as the server checks it (lib/reduced-models/schemas.ts limitedBandSchema). */
 export type BandUnit = 'rad' | 'hz';
 export type BandCheck =
   | { ok: true; band: { minFrequency: number; maxFrequency: number; unit: BandUnit } }

@@ -8,6 +8,7 @@ import { db } from '@/lib/db';
 import { preparedRows } from '@/lib/prepared';
 import { ApiError } from '@/lib/http';
 import { matricesSha256, type StateSpaceRows } from '@/lib/checksums';
+import { newestSourceNumber, versionLineage } from '@/lib/version-lineage';
 
 export type Rows = number[][];
 
@@ -81,71 +82,88 @@ function checkShapes(m: RegisteredMatrices, label: string): void {
   if (!ok) throw new ApiError(500, 'corrupt_version', `The stored matrices of ${label} do not have the shapes of a state-space model.`);
 }
 
+/** The columns of an export beyond the lineage's own. */
+interface ExportColumns {
+  matrices: Record<string, unknown>;
+  matricesSha256: string;
+  statesKeptUnstable: number;
+  engineVersion: string;
+  inputChecksum: string;
+  modelDescription: string;
+  sourceChecksum: string;
+  sourceFormat: string;
+  sourceStates: number;
+  sourceTimeBase: string | null;
+  newestSourceNumber: number;
+  recipeMethod: string;
+  recipeOrder: number | null;
+  recipeTolerance: number | null;
+  recipeOptions: Record<string, unknown> | null;
+  recipeAcceptance: Record<string, unknown> | null;
+  reportFigures: Record<string, unknown> | null;
+  reportAcceptancePassed: boolean | null;
+  reportId: string | null;
+  predecessorNumber: number | null;
+}
+
 /** Loads a version for export; throws a 404 when there is none with that id. */
 export async function loadExportSource(versionId: string, trx: Knex | Knex.Transaction = db()): Promise<ExportSource> {
-  const [row] = await preparedRows<Record<string, any>>(
-    trx('reduced_versions as rv')
-    .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
-    .join('source_versions as sv', 'sv.id', 'rv.source_version_id')
-    .join('source_models as sm', 'sm.id', 'sv.source_model_id')
+  const query = versionLineage<ExportColumns>(trx, {
+    matrices: 'rv.matrices',
+    matricesSha256: 'rv.matrices_sha256',
+    statesKeptUnstable: 'rv.states_kept_unstable',
+    engineVersion: 'rv.engine_version',
+    inputChecksum: 'rv.input_checksum',
+    modelDescription: 'rm.description',
+    sourceChecksum: 'sv.checksum',
+    sourceFormat: 'sv.format',
+    sourceStates: 'sv.states',
+    sourceTimeBase: 'sm.time_base',
+    newestSourceNumber: newestSourceNumber(trx),
+    recipeMethod: 'r.method',
+    recipeOrder: 'r.order',
+    recipeTolerance: 'r.tolerance',
+    recipeOptions: 'r.options',
+    recipeAcceptance: 'r.acceptance',
+    reportFigures: 'ar.figures',
+    reportAcceptancePassed: 'ar.acceptance_passed',
+    reportId: 'ar.id',
+    predecessorNumber: 'pv.number',
+  })
     .join('recipes as r', 'r.id', 'rv.recipe_id')
     .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id')
     .leftJoin('reduced_versions as pv', 'pv.id', 'rv.predecessor_id')
     .where('rv.id', versionId)
-    .limit(1)
-    .select(
-      'rv.*',
-      'rm.slug as model_slug',
-      'rm.name as model_name',
-      'rm.description as model_description',
-      'sv.number as source_number',
-      'sv.checksum as source_checksum',
-      'sv.format as source_format',
-      'sv.states as source_states',
-      'sm.slug as source_slug',
-      'sm.name as source_name',
-      'sm.time_base as source_time_base',
-      trx.raw('(SELECT max(s2.number) FROM source_versions s2 WHERE s2.source_model_id = sm.id) AS newest_source_number'),
-      'r.method as recipe_method',
-      'r.order as recipe_order',
-      'r.tolerance as recipe_tolerance',
-      'r.options as recipe_options',
-      'r.acceptance as recipe_acceptance',
-      'ar.figures as report_figures',
-      'ar.acceptance_passed as report_acceptance_passed',
-      'ar.id as report_id',
-      'pv.number as predecessor_number',
-    ),
-    trx,
-  );
+    .limit(1);
+  const [row] = await preparedRows<Awaited<typeof query>[number]>(query, trx);
   if (!row) throw new ApiError(404, 'not_found', 'That reduced model version was not found.');
 
-  const m = row.matrices as Record<string, unknown>;
+  const m = row.matrices;
   const matrices: RegisteredMatrices = { A: rowsOf(m.A, 'A'), B: rowsOf(m.B, 'B'), C: rowsOf(m.C, 'C'), D: rowsOf(m.D, 'D') };
-  checkShapes(matrices, `${row.model_slug} v${row.number}`);
+  checkShapes(matrices, `${row.reducedModelSlug} v${row.versionNumber}`);
   const digest = matricesSha256(matrices as StateSpaceRows);
-  if (digest !== row.matrices_sha256) {
+  if (digest !== row.matricesSha256) {
     throw new ApiError(
       500,
       'checksum_mismatch',
-      `The stored matrices of ${row.model_slug} v${row.number} no longer match the SHA-256 registered with them; nothing was exported. Tell an admin.`,
+      `The stored matrices of ${row.reducedModelSlug} v${row.versionNumber} no longer match the SHA-256 registered with them; nothing was exported. Tell an admin.`,
     );
   }
   const n = matrices.A.length;
   const inputs = matrices.B[0]?.length ?? 0;
   const outputs = matrices.C.length;
-  const newest = Number(row.newest_source_number);
+  const newest = Number(row.newestSourceNumber);
   const storedLabels = (m.labels !== null && typeof m.labels === 'object' ? m.labels : {}) as Record<string, unknown>;
   return {
-    reducedModel: { id: row.reduced_model_id, slug: row.model_slug, name: row.model_name, description: row.model_description },
+    reducedModel: { id: row.reducedModelId, slug: row.reducedModelSlug, name: row.reducedModelName, description: row.modelDescription },
     version: {
-      id: row.id,
-      number: row.number,
+      id: row.versionId,
+      number: row.versionNumber,
       status: row.status,
       order: row.order,
-      statesKeptUnstable: row.states_kept_unstable,
-      engineVersion: row.engine_version,
-      registeredAt: row.created_at,
+      statesKeptUnstable: row.statesKeptUnstable,
+      engineVersion: row.engineVersion,
+      registeredAt: row.createdAt,
     },
     matrices,
     matricesSha256: digest,
@@ -154,22 +172,22 @@ export async function loadExportSource(versionId: string, trx: Knex | Knex.Trans
       outputs: labelsOr(storedLabels.outputs, outputs, 'y'),
       states: labelsOr(storedLabels.states, n, 'x'),
     },
-    timeBase: typeof m.timeBase === 'string' && m.timeBase ? m.timeBase : row.source_time_base || 's',
+    timeBase: typeof m.timeBase === 'string' && m.timeBase ? m.timeBase : row.sourceTimeBase || 's',
     recipe: {
-      method: row.recipe_method,
-      order: row.recipe_order,
-      tolerance: row.recipe_tolerance,
-      options: row.recipe_options ?? {},
-      acceptance: row.recipe_acceptance ?? null,
+      method: row.recipeMethod,
+      order: row.recipeOrder,
+      tolerance: row.recipeTolerance,
+      options: row.recipeOptions ?? {},
+      acceptance: row.recipeAcceptance ?? null,
     },
     lineage: {
-      sourceModel: { slug: row.source_slug, name: row.source_name },
-      sourceVersion: { number: row.source_number, checksum: row.source_checksum, format: row.source_format, states: row.source_states },
+      sourceModel: { slug: row.sourceModelSlug, name: row.sourceModelName },
+      sourceVersion: { number: row.sourceVersionNumber, checksum: row.sourceChecksum, format: row.sourceFormat, states: row.sourceStates },
       newestSourceVersionNumber: newest,
-      upstreamChanged: newest > row.source_number,
-      inputChecksum: row.input_checksum,
-      predecessorVersionNumber: row.predecessor_number ?? null,
+      upstreamChanged: newest > row.sourceVersionNumber,
+      inputChecksum: row.inputChecksum,
+      predecessorVersionNumber: row.predecessorNumber ?? null,
     },
-    accuracyReport: row.report_id ? { figures: row.report_figures ?? {}, acceptancePassed: row.report_acceptance_passed } : null,
+    accuracyReport: row.reportId ? { figures: row.reportFigures ?? {}, acceptancePassed: row.reportAcceptancePassed } : null,
   };
 }

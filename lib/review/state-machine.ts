@@ -1,7 +1,7 @@
 // The life of a reduced-model version (DEVELOPERS.md, "Review, lineage and notifications"), defined once.
 // Every transition the shelf makes is decided here: which state it leaves and enters, which roles may take
 // it, whether the actor must or must not be the version's author (the four-eyes rule), and the text it
-// requires. lib/reviews.ts applies the decision inside a transaction; the database (migration
+// requires. lib/review/transitions.ts applies the decision inside a transaction; the database (migration
 // 20261202000200_reviews) refuses the same impossible steps again, so a bug here cannot write one.
 //
 //   draft ──submit (author, note)──▶ in_review ──approve (reviewer ≠ author, comment)──▶ approved
@@ -126,7 +126,7 @@ export function roleRefusal(rule: TransitionRule): Refusal {
 /**
  * Decides one transition. Checks in the order a person can act on: role, then who they are relative to
  * the author, then the version's current state, then the text. The state check is what a concurrent loser
- * meets (lib/reviews.ts decides under a row lock), so its message says the state changed.
+ * meets (lib/review/transitions.ts decides under a row lock), so its message says the state changed.
  */
 export function decideTransition(request: TransitionRequest): TransitionDecision {
   const rule = TRANSITIONS[request.action];

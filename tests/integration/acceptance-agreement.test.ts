@@ -4,7 +4,7 @@
 // list all show that stored verdict, for a failing, a passing and a not-checked band.
 //
 // Two versions are real reductions (balanced truncation of a made-up stiff 6-state network, run in-process
-// as the seed does, registered with lib/reduced-models.ts); the third stores a verdict of the same function
+// as the seed does, registered with lib/reduced-models/); the third stores a verdict of the same function
 // on a band that reaches past the computed frequencies. The reference for "the worker decided with the
 // shared rule" is acceptanceVerdict run again here on the stored error curve.
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
@@ -21,7 +21,7 @@ import { runAnalysis } from '@/lib/engine-tasks/analysis-task';
 import { acceptanceRecord, runReduction, type RecipeInput } from '@/lib/engine-tasks/reduction-task';
 import type { ReductionCurves } from '@/lib/engine-tasks/records';
 import { getComparisonPage, listReducedModels, registerReducedVersion } from '@/lib/reduced-models';
-import { reviewSheet } from '@/lib/reviews';
+import { reviewSheet } from '@/lib/review';
 import { createProject } from '@/lib/projects';
 import { createPin } from '@/lib/pins';
 import { createProjectToken } from '@/lib/project-tokens';

@@ -1,13 +1,12 @@
 // Mail to controller project members on the real PostgreSQL and over SMTP to the fake server: a newer
 // approved version that satisfies a pin, a retired resolved version, and an upstream change, each told once,
-// through the review feature's mail queue and notification round (lib/notification-sender.ts), with the
-// approval and retirement made by the review service itself (lib/reviews.ts).
+// through the review feature's mail queue and notification round (lib/notifications/sender.ts), with the
+// approval and retirement made by the review service itself (lib/review/).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
 import { startFakeSmtp, type FakeSmtp } from '@/lib/mail/fake-smtp';
-import { transitionVersion, type Actor } from '@/lib/reviews';
-import { runNotificationRound, setAfterCommitDelivery } from '@/lib/notification-sender';
-import { queuePinNotices } from '@/lib/project-notices';
+import { transitionVersion, type Actor } from '@/lib/review';
+import { queuePinNotices, runNotificationRound, setAfterCommitDelivery } from '@/lib/notifications';
 import type { SessionUser } from '@/lib/auth';
 import type { UserRow } from '@/lib/people';
 import { addMember, createProject } from '@/lib/projects';

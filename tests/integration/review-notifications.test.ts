@@ -4,7 +4,7 @@
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
 import { startFakeSmtp, type FakeSmtp } from '@/lib/mail/fake-smtp';
-import { transitionVersion, type Actor } from '@/lib/reviews';
+import { transitionVersion, type Actor } from '@/lib/review';
 import {
   deliverDueMail,
   getPreferences,
@@ -12,9 +12,10 @@ import {
   queueMail,
   preferencesUpdateSchema,
   retryDelaySeconds,
+  runNotificationRound,
+  setAfterCommitDelivery,
   updatePreferences,
 } from '@/lib/notifications';
-import { runNotificationRound, setAfterCommitDelivery } from '@/lib/notification-sender';
 import type { UserRow } from '@/lib/people';
 import { makeUser, migrateTestDatabase } from './helpers';
 import { makeShelf } from './fixtures/shelf';

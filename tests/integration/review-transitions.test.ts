@@ -1,11 +1,11 @@
-// Review transitions on the real PostgreSQL: the life of a version through lib/reviews.ts, the four-eyes
+// Review transitions on the real PostgreSQL: the life of a version through lib/review/, the four-eyes
 // rule in the service and in the database, frozen matrices, the approval snapshot, the review history and
 // audit rows, and concurrent decisions on one version (exactly one wins; the other gets a 409 that says so).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
-import { addComment, reviewHistory, reviewQueue, reviewSheet, startNextDraft, transitionVersion, versionSummary, type Actor } from '@/lib/reviews';
+import { addComment, reviewHistory, reviewQueue, reviewSheet, startNextDraft, transitionVersion, versionSummary, type Actor } from '@/lib/review';
 import { startFakeSmtp, type FakeSmtp } from '@/lib/mail/fake-smtp';
-import { runNotificationRound } from '@/lib/notification-sender';
+import { runNotificationRound } from '@/lib/notifications';
 import type { UserRow } from '@/lib/people';
 import { makeUser, migrateTestDatabase } from './helpers';
 import { makeShelf, markApproved, markInReview, SAMPLE_FIGURES } from './fixtures/shelf';
@@ -51,7 +51,7 @@ async function expectRefusedBy(promise: Promise<unknown>, constraint: string): P
   await expect(promise).rejects.toMatchObject({ constraint });
 }
 
-describe('the review life through lib/reviews.ts', () => {
+describe('the review life through lib/review/', () => {
   it('submits, approves and retires, writing the history and an audit row for each step in its transaction', async () => {
     const { version } = await makeShelf(engineer.id);
     const submitted = await transitionVersion(version.id, 'submit', actor(engineer), '  Order 1 keeps the slow zone pole; bound 4.8e-3.  ');

@@ -5,13 +5,12 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
 import { closeQueue } from '@/lib/jobs/queue';
-import { reducedModelsUpstream, queueUpstreamNotices, rerunRecipe, upstreamChangedVersions } from '@/lib/upstream';
+import { reducedModelsUpstream, rerunRecipe, upstreamChangedVersions } from '@/lib/upstream';
 import { accuracySideBySide, reducedModelLineage, sourceModelLineage } from '@/lib/lineage';
 import { dashboardActivity, recentActivity } from '@/lib/activity';
-import { transitionVersion, versionSummary, type Actor } from '@/lib/reviews';
-import { runNotificationRound, setAfterCommitDelivery } from '@/lib/notification-sender';
+import { transitionVersion, versionSummary, type Actor } from '@/lib/review';
+import { queueUpstreamNotices, runNotificationRound, setAfterCommitDelivery, updatePreferences } from '@/lib/notifications';
 import { startFakeSmtp, type FakeSmtp } from '@/lib/mail/fake-smtp';
-import { updatePreferences } from '@/lib/notifications';
 import type { UserRow } from '@/lib/people';
 import { makeUser, migrateTestDatabase } from './helpers';
 import { addReducedVersion, addSourceVersion, makeShelf, markAnalysed, markApproved, SAMPLE_FIGURES } from './fixtures/shelf';

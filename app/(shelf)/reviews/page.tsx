@@ -1,7 +1,7 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
 import { requirePageRole } from '@/lib/auth';
-import { recentDecisions, reviewQueue } from '@/lib/reviews';
+import { recentDecisions, reviewQueue } from '@/lib/review';
 import { upstreamChangedVersions } from '@/lib/upstream';
 import { PageHeader } from '@/components/shell/PageHeader';
 import { ReviewQueueTable } from '@/components/review/ReviewQueueTable';

@@ -2,7 +2,7 @@
 import { z } from 'zod';
 import { requireRole } from '@/lib/auth';
 import { parseQuery, route } from '@/lib/http';
-import { recentDecisions, reviewQueue } from '@/lib/reviews';
+import { recentDecisions, reviewQueue } from '@/lib/review';
 
 export const GET = route(async (request) => {
   const user = await requireRole();

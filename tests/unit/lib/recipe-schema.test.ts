@@ -1,4 +1,4 @@
-// The recipe schema (lib/reduced-models.ts) for frequency-limited balanced truncation (issue 15): a band
+// The recipe schema (lib/reduced-models/schemas.ts) for frequency-limited balanced truncation (issue 15): a band
 // 0 ≤ w1 < w2, finite, in rad per time unit or Hz; refused bands name their field, as the route answers
 // (lib/http.ts validationError); the order is by number only (the method has no a-priori bound), and the
 // Hz conversion is ω = 2π f × (seconds per time unit), the definition of the hertz.

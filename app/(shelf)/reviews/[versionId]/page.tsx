@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageRole } from '@/lib/auth';
-import { reviewSheet, versionIdSchema } from '@/lib/reviews';
+import { reviewSheet, versionIdSchema } from '@/lib/review';
 import { accuracySideBySide } from '@/lib/lineage';
 import { reducedVersionPath } from '@/lib/reduced-models';
 import { versionPath } from '@/lib/source-models';

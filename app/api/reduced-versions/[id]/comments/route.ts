@@ -2,7 +2,7 @@
 // reviewers and admins (viewers read).
 import { requireRole } from '@/lib/auth';
 import { created, notFound, parseJson, parseParams, route } from '@/lib/http';
-import { addComment, COMMENT_ROLES, commentBodySchema, reviewHistory, versionIdSchema, versionSummary } from '@/lib/reviews';
+import { addComment, COMMENT_ROLES, commentBodySchema, reviewHistory, versionIdSchema, versionSummary } from '@/lib/review';
 
 export const GET = route<{ id: string }>(async (_request, { params }) => {
   await requireRole();

@@ -2,7 +2,7 @@
 // revised version as predecessor).
 import { requireRole } from '@/lib/auth';
 import { created, parseParams, route } from '@/lib/http';
-import { NEXT_DRAFT_ROLES, startNextDraft, versionIdSchema } from '@/lib/reviews';
+import { NEXT_DRAFT_ROLES, startNextDraft, versionIdSchema } from '@/lib/review';
 
 export const POST = route<{ id: string }>(async (_request, { params }) => {
   const user = await requireRole(...NEXT_DRAFT_ROLES);

@@ -3,7 +3,7 @@
 import { NextResponse } from 'next/server';
 import { requireRole } from '@/lib/auth';
 import { parseParams, route } from '@/lib/http';
-import { versionIdSchema } from '@/lib/reviews';
+import { versionIdSchema } from '@/lib/review';
 import { RERUN_ROLES, rerunRecipe } from '@/lib/upstream';
 
 export const POST = route<{ id: string }>(async (_request, { params }) => {

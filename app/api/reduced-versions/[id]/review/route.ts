@@ -1,7 +1,7 @@
 // GET: the review sheet of a version as the signed-in person sees it (what they may do, and why not).
 import { requireRole } from '@/lib/auth';
 import { notFound, parseParams, route } from '@/lib/http';
-import { reviewSheet, versionIdSchema } from '@/lib/reviews';
+import { reviewSheet, versionIdSchema } from '@/lib/review';
 
 export const GET = route<{ id: string }>(async (_request, { params }) => {
   const user = await requireRole();

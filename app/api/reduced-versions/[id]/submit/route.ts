@@ -1,13 +1,4 @@
-// POST: the "submit" transition of lib/review/state-machine.ts, with { note }. The role is checked before the
-// body is read; the author rule and the version's current state are decided under the row lock in lib/.
-import { requireRole } from '@/lib/auth';
-import { parseJson, parseParams, route } from '@/lib/http';
-import { TRANSITIONS } from '@/lib/review/state-machine';
-import { transitionBodySchemas, transitionVersion, versionIdSchema } from '@/lib/reviews';
+// POST: the "submit" transition of lib/review/state-machine.ts, with { note } (lib/review/transition-route.ts).
+import { transitionRoute } from '@/lib/review/transition-route';
 
-export const POST = route<{ id: string }>(async (request, { params }) => {
-  const user = await requireRole(...TRANSITIONS.submit.roles);
-  const { id } = await parseParams(params, versionIdSchema);
-  const { note } = await parseJson(request, transitionBodySchemas.submit);
-  return transitionVersion(id, 'submit', user, note);
-});
+export const POST = transitionRoute('submit');

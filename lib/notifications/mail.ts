@@ -1,29 +1,22 @@
-// The wording of the review and upstream-change mails. Plain text first (it is what Admin › Mail shows),
-// with an HTML alternative carrying the same words, like the account mails in lib/mail/templates.ts.
+// The wording of the notification mails: review requested and decided, and upstream changed (pin notices to
+// controller project members are worded in pin-notices.ts on the same layout). Plain text first (it is what
+// Admin › Mail shows), with an HTML alternative carrying the same words, like the account mails in
+// lib/mail/templates.ts.
+import { escapeHtml, type MailContent } from '@/lib/mail/templates';
 
-export interface NotificationMailContent {
-  subject: string;
-  text: string;
-  html: string;
-}
-
-function escapeHtml(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
-}
-
-/** Paragraphs, an optional quoted text (note, comment), then the link. */
-function render(
+/** Paragraphs, an optional quoted text (note, comment), then the link and the footer. */
+export function renderNotice(
   subject: string,
   paragraphs: string[],
   quote: { who: string; text: string } | null,
   link: { url: string; label: string },
   footer: string,
-): NotificationMailContent {
+): MailContent {
   const quoted = quote ? [`${quote.who} wrote:`, quote.text.split('\n').map((l) => `> ${l}`).join('\n')] : [];
   const text = [...paragraphs, ...quoted, `${link.label}: ${link.url}`, footer].join('\n\n') + '\n';
   const html =
     [
-      ...paragraphs.map((p) => `<p>${escapeHtml(p)}</p>`),
+      ...paragraphs.map((p) => `<p>${escapeHtml(p).replace(/\n/g, '<br>')}</p>`),
       ...(quote
         ? [`<p>${escapeHtml(quote.who)} wrote:</p>`, `<blockquote>${escapeHtml(quote.text).replace(/\n/g, '<br>')}</blockquote>`]
         : []),
@@ -47,9 +40,9 @@ export function reviewRequestedMail(input: {
   version: VersionMention;
   authorName: string;
   note: string;
-}): NotificationMailContent {
+}): MailContent {
   const v = input.version;
-  return render(
+  return renderNotice(
     `Review requested: ${v.reducedModelName} v${v.number}`,
     [
       `Hello ${input.recipientName}, ${input.authorName} has submitted version ${v.number} of the reduced model "${v.reducedModelName}" for review.`,
@@ -67,10 +60,10 @@ export function reviewDecidedMail(input: {
   reviewerName: string;
   decision: 'approved' | 'revise';
   comment: string;
-}): NotificationMailContent {
+}): MailContent {
   const v = input.version;
   const approved = input.decision === 'approved';
-  return render(
+  return renderNotice(
     approved
       ? `Approved: ${v.reducedModelName} v${v.number}`
       : `Sent back for revision: ${v.reducedModelName} v${v.number}`,
@@ -92,9 +85,9 @@ export function upstreamChangedMail(input: {
   uploaderName: string;
   derived: { reducedModelName: string; number: number; sourceNumber: number }[];
   url: string;
-}): NotificationMailContent {
+}): MailContent {
   const list = input.derived.map((d) => `${d.reducedModelName} v${d.number} (reduced from v${d.sourceNumber})`).join('; ');
-  return render(
+  return renderNotice(
     `Upstream changed: ${input.sourceModelName} has version ${input.newNumber}`,
     [
       `Hello ${input.recipientName}, ${input.uploaderName} has registered version ${input.newNumber} of the source model "${input.sourceModelName}".`,
@@ -105,3 +98,4 @@ export function upstreamChangedMail(input: {
     FOOTER,
   );
 }
+

@@ -1,18 +1,18 @@
 // Runs notification delivery outside the transactions that queue it. One round: queue the "upstream
-// changed" mails for source versions registered since the last round (lib/upstream.ts) and the pin notices
-// to controller project members (lib/project-notices.ts), then send what is due (lib/notifications.ts).
+// changed" mails for source versions registered since the last round (upstream-notices.ts) and the pin
+// notices to controller project members (pin-notices.ts), then send what is due (queue.ts).
 //
 // Two callers: the request that queued mail kicks a round right after its transaction commits, so mail is
 // prompt without waiting for a poll; the worker (scripts/worker.ts) runs rounds on an interval, which
 // retries failures and picks up source versions registered by any process. Rounds in one process never
 // overlap; rounds in several processes are safe because mail rows are claimed with SKIP LOCKED.
-import { DELIVERY_BATCH, deliverDueMail, type DeliveryReport } from '@/lib/notifications';
-import { queueUpstreamNotices } from '@/lib/upstream';
-import { queuePinNotices } from '@/lib/project-notices';
+import { DELIVERY_BATCH, deliverDueMail, type DeliveryReport } from '@/lib/notifications/queue';
+import { queueUpstreamNotices } from '@/lib/notifications/upstream-notices';
+import { queuePinNotices } from '@/lib/notifications/pin-notices';
 
 export interface RoundReport extends DeliveryReport {
   upstreamNotices: number;
-  /** Mails to controller project members about their pins (lib/project-notices.ts). */
+  /** Mails to controller project members about their pins (pin-notices.ts). */
   pinNotices: number;
 }
 

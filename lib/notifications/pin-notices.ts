@@ -6,19 +6,19 @@
 //
 // queuePinNotices() reconciles rather than reacting to one event: it resolves the pins, compares each with
 // what members were last told (pins.notice_state), and in the same transaction records the new state and
-// queues the differences into the review feature's mail queue (lib/notifications.ts, kind 'pin_changed'),
-// one message per member per project. Calling it twice queues nothing the second time, and a change made
-// by any process (an approval, a retirement, a new source version) is picked up by the next call. It runs in
-// each notification round (lib/notification-sender.ts): right after a request that queued mail commits,
-// and on the worker's interval; the round then delivers the queue. Row locks on the pins keep two
+// queues the differences into the notification mail queue (queue.ts, kind 'pin_changed'), one message per
+// member per project. Calling it twice queues nothing the second time, and a change made by any process (an
+// approval, a retirement, a new source version) is picked up by the next call. It runs in each notification
+// round (sender.ts): right after a request that queued mail commits, and on the worker's interval; the round
+// then delivers the queue. Row locks on the pins keep two
 // concurrent rounds from queueing the same change twice.
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import { db } from '@/lib/db';
 import { appUrl } from '@/lib/config';
 import { loadVersionFacts, noticeStateOf, resolvePin, specOf, type NoticeState, type PinRow } from '@/lib/pins';
-
-export const PIN_NOTICE_KIND = 'pin_changed';
+import { renderNotice } from '@/lib/notifications/mail';
+import { PIN_NOTICE_KIND, queueMail } from '@/lib/notifications/queue';
 
 export type PinChangeKind = 'newer_approved' | 'retired' | 'upstream_changed';
 
@@ -87,27 +87,19 @@ export function describeChanges(
   return changes;
 }
 
-function escapeHtml(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
-}
-
-export function pinNoticeMail(input: { recipientName: string; projectName: string; url: string; changes: readonly PinChange[] }) {
-  const paragraphs = [
-    `Hello ${input.recipientName}, pins of the controller project "${input.projectName}" changed:`,
-    input.changes.map((c) => `- ${c.message}`).join('\n'),
-    'Before a changed reduced model goes into the controller, download it again, update modeshelf.lock.json, and verify closed-loop behaviour against the full model and on the hardware.',
-  ];
-  const footer = 'You receive this as a member of the project; an engineer member can remove you from it.';
-  return {
-    subject: `Pins changed: ${input.projectName}`,
-    text: [...paragraphs, `Open the project: ${input.url}`, footer].join('\n\n') + '\n',
-    html:
-      [
-        ...paragraphs.map((p) => `<p>${escapeHtml(p).replace(/\n/g, '<br>')}</p>`),
-        `<p><a href="${escapeHtml(input.url)}">Open the project</a></p>`,
-        `<p><small>${escapeHtml(footer)}</small></p>`,
-      ].join('\n') + '\n',
-  };
+/** One mail per member and project: the project's pin changes in a list, and what to do before using them. */
+function pinNoticeMail(input: { recipientName: string; projectName: string; url: string; changes: readonly PinChange[] }) {
+  return renderNotice(
+    `Pins changed: ${input.projectName}`,
+    [
+      `Hello ${input.recipientName}, pins of the controller project "${input.projectName}" changed:`,
+      input.changes.map((c) => `- ${c.message}`).join('\n'),
+      'Before a changed reduced model goes into the controller, download it again, update modeshelf.lock.json, and verify closed-loop behaviour against the full model and on the hardware.',
+    ],
+    null,
+    { url: input.url, label: 'Open the project' },
+    'You receive this as a member of the project; an engineer member can remove you from it.',
+  );
 }
 
 /**
@@ -164,20 +156,7 @@ export async function queuePinNotices(filter: NoticeFilter = {}, outer: Knex = d
           url: `${appUrl()}/projects/${list[0].projectSlug}`,
           changes: list,
         });
-        const inserted = await trx('mail_queue')
-          .insert({
-            kind: PIN_NOTICE_KIND,
-            recipient_id: member.id,
-            to_address: member.email,
-            subject: content.subject,
-            text_body: content.text,
-            html_body: content.html,
-            dedupe_key: `pins:${identity}:${member.id}`,
-          })
-          .onConflict('dedupe_key')
-          .ignore()
-          .returning('id');
-        queued += inserted.length;
+        if (await queueMail(trx, { kind: PIN_NOTICE_KIND, recipient: member, content, dedupeKey: `pins:${identity}:${member.id}` })) queued += 1;
       }
     }
     return { changes, queued };

@@ -1,57 +1,15 @@
-// Notification mail: who wants which mail (per-user preferences), the queue of mail to send (mail_queue,
-// written inside the transaction of the change it tells about), and its delivery after commit.
+// The queue of notification mail (mail_queue) and its delivery after commit.
 //
 // Why a queue and not a send inside the request: a review decision must stand whatever the mail server
-// does. The intent row commits with the decision; delivery happens afterwards (lib/notification-sender.ts
+// does. The intent row commits with the decision; delivery happens afterwards (lib/notifications/sender.ts
 // runs it right after the request and in the worker's loop), a failed send is retried with back-off, and
 // nothing that happens to a mail ever touches the review. A sender that dies mid-send leaves its claim to
 // expire, so another picks the mail up: delivery is at least once.
 import type { Knex } from 'knex';
-import { z } from 'zod';
 import { db } from '@/lib/db';
-import { recordAudit } from '@/lib/audit';
 import { sendMail, type OutgoingMail } from '@/lib/mail/transport';
-import type { NotificationMailContent } from '@/lib/notification-mail';
-import type { Role } from '@/lib/roles';
-
-export const NOTIFICATION_KINDS = ['review_requested', 'review_decided', 'upstream_changed'] as const;
-export type NotificationKind = (typeof NOTIFICATION_KINDS)[number];
-
-export interface NotificationPreferences {
-  /** Reviewers: a version was submitted for review. */
-  reviewRequested: boolean;
-  /** Authors: their version was approved or sent back for revision. */
-  reviewDecided: boolean;
-  /** Authors: the source model of their reduced model has a new version. */
-  upstreamChanged: boolean;
-}
-
-export const DEFAULT_PREFERENCES: NotificationPreferences = { reviewRequested: true, reviewDecided: true, upstreamChanged: true };
-
-const COLUMN: Record<NotificationKind, 'review_requested' | 'review_decided' | 'upstream_changed'> = {
-  review_requested: 'review_requested',
-  review_decided: 'review_decided',
-  upstream_changed: 'upstream_changed',
-};
-
-/** Which roles each mail is for; the profile page offers only these. */
-export const KIND_ROLES: Record<NotificationKind, readonly Role[]> = {
-  review_requested: ['reviewer'],
-  review_decided: ['engineer', 'reviewer', 'admin'],
-  upstream_changed: ['engineer', 'reviewer', 'admin'],
-};
-
-const flag = (name: string) => z.boolean({ error: `${name} must be true or false.` });
-export const preferencesUpdateSchema = z
-  .object({
-    reviewRequested: flag('reviewRequested'),
-    reviewDecided: flag('reviewDecided'),
-    upstreamChanged: flag('upstreamChanged'),
-  })
-  .partial()
-  .strict()
-  .refine((p) => Object.keys(p).length > 0, { message: 'Give at least one setting to change.' });
-export type PreferencesUpdate = z.infer<typeof preferencesUpdateSchema>;
+import type { MailContent } from '@/lib/mail/templates';
+import type { NotificationKind, Recipient } from '@/lib/notifications/preferences';
 
 // After this many failed attempts a mail is marked failed and left for an admin to see; common practice
 // for mail queues is a handful of retries over about an hour, which the back-off below spans.
@@ -65,79 +23,13 @@ export function retryDelaySeconds(failedAttempts: number): number {
   return Math.min(LONGEST_RETRY_SECONDS, FIRST_RETRY_SECONDS * 2 ** Math.max(0, failedAttempts - 1));
 }
 
-interface PreferenceRow {
-  user_id: string;
-  review_requested: boolean;
-  review_decided: boolean;
-  upstream_changed: boolean;
-}
-
-function toPreferences(row: PreferenceRow | undefined): NotificationPreferences {
-  if (!row) return { ...DEFAULT_PREFERENCES };
-  return { reviewRequested: row.review_requested, reviewDecided: row.review_decided, upstreamChanged: row.upstream_changed };
-}
-
-export async function getPreferences(userId: string, trx: Knex | Knex.Transaction = db()): Promise<NotificationPreferences> {
-  return toPreferences(await trx<PreferenceRow>('notification_preferences').where({ user_id: userId }).first());
-}
-
-export async function updatePreferences(userId: string, change: PreferencesUpdate): Promise<NotificationPreferences> {
-  return db().transaction(async (trx) => {
-    const before = await getPreferences(userId, trx);
-    const after = { ...before, ...change };
-    await trx('notification_preferences')
-      .insert({
-        user_id: userId,
-        review_requested: after.reviewRequested,
-        review_decided: after.reviewDecided,
-        upstream_changed: after.upstreamChanged,
-        updated_at: trx.fn.now(),
-      })
-      .onConflict('user_id')
-      .merge();
-    await recordAudit(trx, {
-      actorId: userId,
-      action: 'user.notifications_changed',
-      subjectType: 'user',
-      subjectId: userId,
-      details: { from: before, to: after },
-    });
-    return after;
-  });
-}
-
-export interface Recipient {
-  id: string;
-  email: string;
-  name: string;
-}
-
-/**
- * Active people who want this kind of mail, optionally only among `userIds` and only with `roles`.
- * Read inside the caller's transaction, so the recipients are those at the moment of the change.
- */
-export async function recipientsFor(
-  trx: Knex | Knex.Transaction,
-  kind: NotificationKind,
-  filter: { userIds?: readonly string[]; roles?: readonly Role[]; exclude?: readonly string[] },
-): Promise<Recipient[]> {
-  const query = trx('users as u')
-    .leftJoin('notification_preferences as p', 'p.user_id', 'u.id')
-    .where('u.active', true)
-    .whereNotNull('u.password_hash') // an open invitation is not someone to notify yet
-    .andWhere((q) => q.whereNull('p.user_id').orWhere(`p.${COLUMN[kind]}`, true))
-    .select('u.id', 'u.email', 'u.name')
-    .orderBy('u.name');
-  if (filter.userIds) query.whereIn('u.id', filter.userIds as string[]);
-  if (filter.roles) query.whereIn('u.role', filter.roles as string[]);
-  if (filter.exclude && filter.exclude.length > 0) query.whereNotIn('u.id', filter.exclude as string[]);
-  return query;
-}
+/** The kind of a pin notice to controller project members (lib/notifications/pin-notices.ts): not a preference. */
+export const PIN_NOTICE_KIND = 'pin_changed';
 
 /** Queues one mail; with a dedupe key, a second queueing of the same key is a no-op. Returns whether queued. */
 export async function queueMail(
   trx: Knex | Knex.Transaction,
-  input: { kind: NotificationKind; recipient: Recipient; content: NotificationMailContent; dedupeKey?: string },
+  input: { kind: NotificationKind | typeof PIN_NOTICE_KIND; recipient: Recipient; content: MailContent; dedupeKey?: string },
 ): Promise<boolean> {
   const inserted = await trx('mail_queue')
     .insert({
@@ -155,7 +47,7 @@ export async function queueMail(
   return inserted.length > 0;
 }
 
-/** Mails claimed per call; a round calls again while a call comes back full (lib/notification-sender.ts). */
+/** Mails claimed per call; a round calls again while a call comes back full (lib/notifications/sender.ts). */
 export const DELIVERY_BATCH = 50;
 const SEND_CONCURRENCY = 8;
 
