@@ -83,6 +83,19 @@ export class SparseLu {
     return info;
   }
 
+  /**
+   * A numeric factorization of new (real) values on the analysed pattern, kept apart from the one `factor`
+   * makes: several may live at once on one analysis (one per shift or step size, say), each freed by its
+   * own `dispose`. `values` is kept by the factor (UMFPACK's iterative refinement reads the matrix).
+   */
+  factorApart(values: Float64Array): SparseLuFactor {
+    if (!this.symbolic) throw new Error(`sparse LU of ${this.name}: the analysis was freed`);
+    const [num, info] = native(`sparse LU of ${this.name}`, () =>
+      this.lib.umfpackNumeric(this.symbolic, this.pattern.n, this.pattern.colPtr, this.pattern.rowIndex, values, null, this.name),
+    );
+    return new SparseLuFactor(this.lib, this.pattern, this.name, values, num, info);
+  }
+
   /** x with A·x = b (or Aᵀ·x = b), real factorization. */
   solve(b: Float64Array, options: { transpose?: boolean } = {}): Float64Array {
     const { values } = this.requireFactor();
@@ -114,6 +127,35 @@ export class SparseLu {
   private requireFactor(): { values: Float64Array; imag: Float64Array | null } {
     if (!this.numeric || !this.current) throw new Error(`sparse solve with ${this.name}: call factor() first`);
     return this.current;
+  }
+}
+
+/** One real numeric factorization made by `SparseLu.factorApart`; independent of the analysis once made. */
+export class SparseLuFactor {
+  private numeric: unknown;
+
+  constructor(
+    private readonly lib: NativeAddon,
+    private readonly pattern: CscMatrix,
+    private readonly name: string,
+    private readonly values: Float64Array,
+    numeric: unknown,
+    readonly info: UmfpackNumericInfo,
+  ) {
+    this.numeric = numeric;
+  }
+
+  /** x with A·x = b, written into `out` (a new array when not given; it must not be `b`). */
+  solve(b: Float64Array, out: Float64Array = new Float64Array(this.pattern.n)): Float64Array {
+    if (!this.numeric) throw new Error(`sparse solve with ${this.name}: the factorization was freed`);
+    const { n, colPtr, rowIndex } = this.pattern;
+    native(`sparse solve with ${this.name}`, () => this.lib.umfpackSolve(this.numeric, n, colPtr, rowIndex, this.values, null, b, null, out, null, false));
+    return out;
+  }
+
+  dispose(): void {
+    if (this.numeric) this.lib.umfpackFree(this.numeric);
+    this.numeric = null;
   }
 }
 

@@ -31,7 +31,8 @@ export const EXACT_MAX = 2000;
 const EIGEN_MAX = 200;
 /** Stiffness ratio from which a linear model counts as stiff (common practice); the reduction report uses it too. */
 export const STIFF_RATIO = 1e3;
-const EXPLICIT_STEP_LIMIT = 1e5;
+/** Explicit steps for stability alone above which a model counts as stiff whatever its ratio (also the sparse path's rule). */
+export const EXPLICIT_STEP_LIMIT = 1e5;
 const MAX_EXPONENTIALS = 4;
 
 export interface StiffnessEstimate {

@@ -25,17 +25,31 @@
  * Dense output is the interpolating polynomial of the step, Σ_{j≤k} ∇ʲ yₙ₊₁ Π_{m<j} (t − tₙ₊₁ + m·h)/((m+1)·h),
  * of order k. At an input jump the derivative of x jumps, so the method restarts at order 1 there.
  *
- * Factorisations use `luFactor` / `luSolve` of the linear-algebra interface (`reduction/linalg`), whatever
- * backend serves it.
+ * Descriptor form E ẋ = A x + b (the sparse path, `reduction/sparse/simulate.ts`): the formulas are applied
+ * to ẋ = E⁻¹(A x + b) and multiplied through by E, so that E⁻¹ is never formed — the treatment of M y' = f(y)
+ * in Hairer & Wanner, "Solving Ordinary Differential Equations II", 2nd ed., Springer 1996, §VI.1 (as
+ * recalled; Shampine & Reichelt 1997 describe the same for their NDF code, also as recalled):
+ *
+ *     (E − c·A)·d = c·f(y⁽⁰⁾) − E·ψ,     f(y) = A y + b,
+ *
+ * the same d in exact arithmetic as the explicit form's, hence the same error estimate, step and order
+ * selection and dense output (all in terms of the state). Only the (re)start needs ẋ itself, one solve
+ * with E there.
+ *
+ * The step and order logic (`integrateNdf`) is written once; the linear algebra sits behind `NdfSystem`
+ * (right-hand side, product with E, and solves with E − c·A for a few recent c): here dense, with
+ * `luFactor` / `luSolve` of the linear-algebra interface (`reduction/linalg`), whatever backend serves it;
+ * on the sparse path UMFPACK factors of E − c·A through one kept symbolic analysis.
  */
 import { ModelError } from '../errors';
 import { type LuFactorization, luFactor, luSolve } from '../linalg/index';
 import type { StateSpaceModel } from '../model';
+import { throwIfStopped, type LoopHooks } from '../stop';
 import { startingStep } from './dormand-prince';
 import type { InputSignal } from './inputs';
-import { LinearSystem } from './linear-system';
+import { LinearSystem, type TimeSystem } from './linear-system';
 import { type CheckedOptions, OutputRecorder, constantInputIntervals } from './output-grid';
-import type { SimulationResult } from './types';
+import type { SimulationResult, TimeStepReport } from './types';
 
 export const NDF_MAX_ORDER = 5;
 /** κₖ of the NDFs, Shampine & Reichelt (1997) (k = 1…4; as recalled, see above); κ₅ = 0: order 5 is plain BDF5. */
@@ -151,13 +165,47 @@ class IterationFactors {
   }
 }
 
+/**
+ * The linear algebra the NDFs need of E ẋ = A x + b (E = I when `massTimes` is absent). `derivative` (from
+ * `TimeSystem`) is ẋ = E⁻¹(A x + b), used at (re)starts only.
+ */
+export interface NdfSystem extends TimeSystem {
+  /** out = A x + b, the right side of E ẋ = A x + b (counted as a right-hand-side evaluation). */
+  rhs(x: Float64Array, b: Float64Array, out: Float64Array): void;
+  /** out = E v; absent when E = I. */
+  massTimes?(v: Float64Array, out: Float64Array): void;
+  /** d with (E − c·A)·d = r (d must not alias r); E − c·A factored once per c, a few recent c kept. */
+  solveShifted(c: number, r: Float64Array, d: Float64Array): void;
+}
+
+/** The dense system: `LinearSystem` with the factorisations of I − cA (`IterationFactors`). */
+class DenseNdfSystem extends LinearSystem implements NdfSystem {
+  private readonly factors: IterationFactors;
+  private readonly column: { rows: number; cols: number; data: Float64Array };
+
+  constructor(model: StateSpaceModel) {
+    super(model);
+    this.factors = new IterationFactors(model.A);
+    this.column = { rows: this.n, cols: 1, data: new Float64Array(this.n) };
+  }
+
+  override get factorizations(): number {
+    return this.factors.factorizations;
+  }
+
+  solveShifted(c: number, r: Float64Array, d: Float64Array): void {
+    this.column.data.set(r);
+    d.set(luSolve(this.factors.for(c), this.column).data);
+  }
+}
+
 export interface BdfOptions {
   /** Highest order used (1…5, default 5). */
   maxOrder?: number;
 }
 
-export function simulateBdf(model: StateSpaceModel, input: InputSignal, opts: CheckedOptions, ndf: BdfOptions = {}): SimulationResult {
-  const wallStart = performance.now();
+/** Checks the NDF options against the run's; returns the highest order. */
+function checkNdfOptions(opts: CheckedOptions, ndf: BdfOptions): number {
   const maxOrder = ndf.maxOrder ?? NDF_MAX_ORDER;
   if (!Number.isInteger(maxOrder) || maxOrder < 1 || maxOrder > NDF_MAX_ORDER) {
     throw new ModelError('invalid_option', 'maxOrder', `the stiff solver's highest order must be 1…5, got ${maxOrder}`);
@@ -165,176 +213,205 @@ export function simulateBdf(model: StateSpaceModel, input: InputSignal, opts: Ch
   if (opts.fixedStep !== undefined) {
     throw new ModelError('invalid_option', 'fixedStep', 'the variable-order stiff solver chooses its own steps; fixed steps use the one-step stiff method');
   }
-  const system = new LinearSystem(model);
-  const factors = new IterationFactors(model.A);
+  return maxOrder;
+}
+
+export function simulateBdf(
+  model: StateSpaceModel,
+  input: InputSignal,
+  opts: CheckedOptions,
+  ndf: BdfOptions = {},
+  hooks: LoopHooks<TimeStepReport> = {},
+): SimulationResult {
+  checkNdfOptions(opts, ndf);
+  const system = new DenseNdfSystem(model);
   try {
-    const n = system.n;
-    const recorder = new OutputRecorder(opts.times, system, input);
-    const { relTol, absTol } = opts;
-
-    const x = Float64Array.from(opts.initialState);
-    if (input.impulseWeights) {
-      const jump = system.inputTerm(input.impulseWeights);
-      for (let i = 0; i < n; i++) x[i] += jump[i];
-    }
-    while (!recorder.done && recorder.nextTime <= 0) recorder.record(x);
-
-    // Backward differences ∇⁰…∇^{K+2}, one row of n each.
-    const D = new Float64Array((NDF_MAX_ORDER + 3) * n);
-    const scratch = new Float64Array((NDF_MAX_ORDER + 1) * n);
-    const f = new Float64Array(n);
-    const yPred = new Float64Array(n);
-    const yNew = new Float64Array(n);
-    const rhs = { rows: n, cols: 1, data: new Float64Array(n) };
-    const d = new Float64Array(n);
-    const dense = new Float64Array(n);
-
-    let steps = 0;
-    let rejected = 0;
-    let hPrevious = NaN;
-    const intervals = constantInputIntervals(input, opts.tEnd);
-
-    intervals.forEach((interval, index) => {
-      if (recorder.done) return;
-      const b = system.inputTerm(input.values[interval.piece]);
-      // After the final input jump the input is held, so the solution is defined past tEnd and the last
-      // step may overshoot (outputs come from dense output); an interior jump must be landed on.
-      const mayOvershoot = index === intervals.length - 1;
-      let t = interval.start;
-      const tStop = interval.end;
-
-      // (Re)start at order 1: ∇⁰ = x, ∇¹ = h·f(x).
-      system.rhs(x, b, f);
-      let h = startingStep(system, x, b, f, tStop - t, relTol, absTol, 1);
-      if (hPrevious > 0) h = Math.min(h, hPrevious);
-      D.fill(0);
-      D.set(x, 0);
-      for (let i = 0; i < n; i++) D[n + i] = h * f[i];
-      let order = 1;
-      let equalSteps = 0;
-
-      while (t < tStop && !recorder.done) {
-        if (steps + rejected >= opts.maxSteps) {
-          throw new ModelError('invalid_option', 'maxSteps', `the stiff solver reached ${opts.maxSteps} steps at t = ${t}`);
-        }
-        const minStep = 10 * Math.abs(t) * Number.EPSILON + Number.MIN_VALUE;
-        if (!(h > minStep)) {
-          throw new ModelError('invalid_option', 'relTol', `the stiff solver's step fell below ${minStep} at t = ${t}; loosen relTol or absTol`);
-        }
-        let landing = false;
-        if (!mayOvershoot && t + h >= tStop - 1e-12 * Math.max(1, Math.abs(tStop))) {
-          const hLand = tStop - t;
-          rescaleDifferences(D, n, order, hLand / h, scratch);
-          h = hLand;
-          equalSteps = 0;
-          landing = true;
-        }
-
-        // Predictor and ψ.
-        yPred.fill(0);
-        for (let j = 0; j <= order; j++) for (let i = 0; i < n; i++) yPred[i] += D[j * n + i];
-        const alpha = NDF_ALPHA[order];
-        const c = h / alpha;
-        system.rhs(yPred, b, f);
-        const r = rhs.data;
-        for (let i = 0; i < n; i++) {
-          let psi = 0;
-          for (let j = 1; j <= order; j++) psi += NDF_GAMMA[j] * D[j * n + i];
-          r[i] = c * f[i] - psi / alpha;
-        }
-        const sol = luSolve(factors.for(c), rhs).data;
-        for (let i = 0; i < n; i++) {
-          d[i] = sol[i];
-          yNew[i] = yPred[i] + d[i];
-        }
-        let errNorm = 0;
-        {
-          let s = 0;
-          const ec = NDF_ERROR_CONSTANT[order];
-          for (let i = 0; i < n; i++) {
-            const v = (ec * d[i]) / (absTol + relTol * Math.abs(yNew[i]));
-            s += v * v;
-          }
-          errNorm = Math.sqrt(s / n);
-        }
-        if (!(errNorm <= 1)) {
-          rejected++;
-          const factor = Number.isFinite(errNorm) ? Math.max(MIN_FACTOR, SAFETY * Math.pow(errNorm, -1 / (order + 1))) : MIN_FACTOR;
-          rescaleDifferences(D, n, order, factor, scratch);
-          h *= factor;
-          equalSteps = 0;
-          continue;
-        }
-
-        // Accepted: ∇^{k+2} ← d − ∇^{k+1}, ∇^{k+1} ← d, then ∇ʲ += ∇ʲ⁺¹ downwards.
-        steps++;
-        equalSteps++;
-        const tNew = landing ? tStop : t + h;
-        for (let i = 0; i < n; i++) {
-          D[(order + 2) * n + i] = d[i] - D[(order + 1) * n + i];
-          D[(order + 1) * n + i] = d[i];
-        }
-        for (let j = order; j >= 0; j--) for (let i = 0; i < n; i++) D[j * n + i] += D[(j + 1) * n + i];
-
-        while (!recorder.done && recorder.nextTime <= tNew) {
-          const s = recorder.nextTime;
-          dense.set(D.subarray(0, n));
-          let p = 1;
-          for (let j = 1; j <= order; j++) {
-            p *= (s - (tNew - (j - 1) * h)) / (j * h);
-            for (let i = 0; i < n; i++) dense[i] += p * D[j * n + i];
-          }
-          recorder.record(dense);
-        }
-        x.set(D.subarray(0, n));
-        t = tNew;
-        hPrevious = h;
-        if (equalSteps < order + 1) continue;
-
-        // Order and step selection from the estimates of orders k − 1, k, k + 1.
-        const errLower = order > 1 ? scaledNorm(scaleInto(scratch, D, order * n, n, NDF_ERROR_CONSTANT[order - 1]), 0, yNew, n, relTol, absTol) : Infinity;
-        const errHigher = order < maxOrder ? scaledNorm(scaleInto(scratch, D, (order + 2) * n, n, NDF_ERROR_CONSTANT[order + 1]), 0, yNew, n, relTol, absTol) : Infinity;
-        const fLower = Math.pow(errLower, -1 / order);
-        const fSame = Math.pow(errNorm, -1 / (order + 1));
-        const fHigher = Math.pow(errHigher, -1 / (order + 2));
-        let best = fSame;
-        let newOrder = order;
-        if (fLower > best) {
-          best = fLower;
-          newOrder = order - 1;
-        }
-        if (fHigher > best) {
-          best = fHigher;
-          newOrder = order + 1;
-        }
-        const factor = Math.min(MAX_FACTOR, SAFETY * best);
-        if (newOrder === order && factor >= 1 && factor < SMALLEST_WORTHWHILE_RAISE) {
-          equalSteps = 0; // keep h and its factorisation; look again after k + 1 more steps
-          continue;
-        }
-        order = newOrder;
-        rescaleDifferences(D, n, order, factor, scratch);
-        h *= factor;
-        equalSteps = 0;
-      }
-    });
-    while (!recorder.done) recorder.record(x);
-    return {
-      t: opts.times,
-      y: recorder.y,
-      solver: 'stiff',
-      stats: {
-        steps,
-        rejectedSteps: rejected,
-        rhsEvaluations: system.rhsEvaluations,
-        factorizations: factors.factorizations,
-        pointsStored: recorder.next,
-        wallMs: performance.now() - wallStart,
-      },
-    };
+    return integrateNdf(system, input, opts, ndf, hooks);
   } finally {
     system.dispose();
   }
+}
+
+/**
+ * The NDF integration (see the file header) on any `NdfSystem`: dense here, sparse in
+ * `reduction/sparse/simulate.ts`. `hooks`: a stop flag looked at before each step, and a report after each
+ * accepted one (time reached, step, order). The caller owns (and disposes) the system.
+ */
+export function integrateNdf(
+  system: NdfSystem,
+  input: InputSignal,
+  opts: CheckedOptions,
+  ndf: BdfOptions = {},
+  hooks: LoopHooks<TimeStepReport> = {},
+): SimulationResult {
+  const wallStart = performance.now();
+  const maxOrder = checkNdfOptions(opts, ndf);
+  const n = system.n;
+  const recorder = new OutputRecorder(opts.times, system, input);
+  const { relTol, absTol } = opts;
+
+  const x = Float64Array.from(opts.initialState);
+  if (input.impulseWeights) {
+    const jump = system.impulseJump(input.impulseWeights);
+    for (let i = 0; i < n; i++) x[i] += jump[i];
+  }
+  while (!recorder.done && recorder.nextTime <= 0) recorder.record(x);
+
+  // Backward differences ∇⁰…∇^{K+2}, one row of n each.
+  const D = new Float64Array((NDF_MAX_ORDER + 3) * n);
+  const scratch = new Float64Array((NDF_MAX_ORDER + 1) * n);
+  const f = new Float64Array(n);
+  const yPred = new Float64Array(n);
+  const yNew = new Float64Array(n);
+  const r = new Float64Array(n);
+  const psi = new Float64Array(n);
+  const massPsi = system.massTimes ? new Float64Array(n) : psi;
+  const d = new Float64Array(n);
+  const dense = new Float64Array(n);
+
+  let steps = 0;
+  let rejected = 0;
+  let hPrevious = NaN;
+  const intervals = constantInputIntervals(input, opts.tEnd);
+
+  intervals.forEach((interval, index) => {
+    if (recorder.done) return;
+    const b = system.inputTerm(input.values[interval.piece]);
+    // After the final input jump the input is held, so the solution is defined past tEnd and the last
+    // step may overshoot (outputs come from dense output); an interior jump must be landed on.
+    const mayOvershoot = index === intervals.length - 1;
+    let t = interval.start;
+    const tStop = interval.end;
+
+    // (Re)start at order 1: ∇⁰ = x, ∇¹ = h·ẋ.
+    system.derivative(x, b, f);
+    let h = startingStep(system, x, b, f, tStop - t, relTol, absTol, 1);
+    if (hPrevious > 0) h = Math.min(h, hPrevious);
+    D.fill(0);
+    D.set(x, 0);
+    for (let i = 0; i < n; i++) D[n + i] = h * f[i];
+    let order = 1;
+    let equalSteps = 0;
+
+    while (t < tStop && !recorder.done) {
+      throwIfStopped(hooks.signal, 'the stiff solver');
+      if (steps + rejected >= opts.maxSteps) {
+        throw new ModelError('invalid_option', 'maxSteps', `the stiff solver reached ${opts.maxSteps} steps at t = ${t}`);
+      }
+      const minStep = 10 * Math.abs(t) * Number.EPSILON + Number.MIN_VALUE;
+      if (!(h > minStep)) {
+        throw new ModelError('invalid_option', 'relTol', `the stiff solver's step fell below ${minStep} at t = ${t}; loosen relTol or absTol`);
+      }
+      let landing = false;
+      if (!mayOvershoot && t + h >= tStop - 1e-12 * Math.max(1, Math.abs(tStop))) {
+        const hLand = tStop - t;
+        rescaleDifferences(D, n, order, hLand / h, scratch);
+        h = hLand;
+        equalSteps = 0;
+        landing = true;
+      }
+
+      // Predictor and ψ; then (E − cA)·d = c·f(y⁽⁰⁾) − E·ψ.
+      yPred.fill(0);
+      for (let j = 0; j <= order; j++) for (let i = 0; i < n; i++) yPred[i] += D[j * n + i];
+      const alpha = NDF_ALPHA[order];
+      const c = h / alpha;
+      system.rhs(yPred, b, f);
+      for (let i = 0; i < n; i++) {
+        let s = 0;
+        for (let j = 1; j <= order; j++) s += NDF_GAMMA[j] * D[j * n + i];
+        psi[i] = s / alpha;
+      }
+      system.massTimes?.(psi, massPsi);
+      for (let i = 0; i < n; i++) r[i] = c * f[i] - massPsi[i];
+      system.solveShifted(c, r, d);
+      for (let i = 0; i < n; i++) yNew[i] = yPred[i] + d[i];
+      let errNorm = 0;
+      {
+        let s = 0;
+        const ec = NDF_ERROR_CONSTANT[order];
+        for (let i = 0; i < n; i++) {
+          const v = (ec * d[i]) / (absTol + relTol * Math.abs(yNew[i]));
+          s += v * v;
+        }
+        errNorm = Math.sqrt(s / n);
+      }
+      if (!(errNorm <= 1)) {
+        rejected++;
+        const factor = Number.isFinite(errNorm) ? Math.max(MIN_FACTOR, SAFETY * Math.pow(errNorm, -1 / (order + 1))) : MIN_FACTOR;
+        rescaleDifferences(D, n, order, factor, scratch);
+        h *= factor;
+        equalSteps = 0;
+        continue;
+      }
+
+      // Accepted: ∇^{k+2} ← d − ∇^{k+1}, ∇^{k+1} ← d, then ∇ʲ += ∇ʲ⁺¹ downwards.
+      steps++;
+      equalSteps++;
+      const tNew = landing ? tStop : t + h;
+      for (let i = 0; i < n; i++) {
+        D[(order + 2) * n + i] = d[i] - D[(order + 1) * n + i];
+        D[(order + 1) * n + i] = d[i];
+      }
+      for (let j = order; j >= 0; j--) for (let i = 0; i < n; i++) D[j * n + i] += D[(j + 1) * n + i];
+
+      while (!recorder.done && recorder.nextTime <= tNew) {
+        const s = recorder.nextTime;
+        dense.set(D.subarray(0, n));
+        let p = 1;
+        for (let j = 1; j <= order; j++) {
+          p *= (s - (tNew - (j - 1) * h)) / (j * h);
+          for (let i = 0; i < n; i++) dense[i] += p * D[j * n + i];
+        }
+        recorder.record(dense);
+      }
+      x.set(D.subarray(0, n));
+      t = tNew;
+      hPrevious = h;
+      hooks.onStep?.({ t, tEnd: opts.tEnd, steps, rejectedSteps: rejected, h, order });
+      if (equalSteps < order + 1) continue;
+
+      // Order and step selection from the estimates of orders k − 1, k, k + 1.
+      const errLower = order > 1 ? scaledNorm(scaleInto(scratch, D, order * n, n, NDF_ERROR_CONSTANT[order - 1]), 0, yNew, n, relTol, absTol) : Infinity;
+      const errHigher = order < maxOrder ? scaledNorm(scaleInto(scratch, D, (order + 2) * n, n, NDF_ERROR_CONSTANT[order + 1]), 0, yNew, n, relTol, absTol) : Infinity;
+      const fLower = Math.pow(errLower, -1 / order);
+      const fSame = Math.pow(errNorm, -1 / (order + 1));
+      const fHigher = Math.pow(errHigher, -1 / (order + 2));
+      let best = fSame;
+      let newOrder = order;
+      if (fLower > best) {
+        best = fLower;
+        newOrder = order - 1;
+      }
+      if (fHigher > best) {
+        best = fHigher;
+        newOrder = order + 1;
+      }
+      const factor = Math.min(MAX_FACTOR, SAFETY * best);
+      if (newOrder === order && factor >= 1 && factor < SMALLEST_WORTHWHILE_RAISE) {
+        equalSteps = 0; // keep h and its factorisation; look again after k + 1 more steps
+        continue;
+      }
+      order = newOrder;
+      rescaleDifferences(D, n, order, factor, scratch);
+      h *= factor;
+      equalSteps = 0;
+    }
+  });
+  while (!recorder.done) recorder.record(x);
+  return {
+    t: opts.times,
+    y: recorder.y,
+    solver: 'stiff',
+    stats: {
+      steps,
+      rejectedSteps: rejected,
+      rhsEvaluations: system.rhsEvaluations,
+      factorizations: system.factorizations,
+      pointsStored: recorder.next,
+      wallMs: performance.now() - wallStart,
+    },
+  };
 }
 
 /** out[0..n) = w · src[off..off+n); returns out. */

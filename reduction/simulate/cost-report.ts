@@ -58,11 +58,31 @@ export function simulationCostReport(
   options: SimulationOptions,
   solvers: readonly SolverName[] = ['exact', 'explicit', 'stiff'],
 ): SimulationCostReport {
-  if (full.B.cols !== reduced.B.cols || full.C.rows !== reduced.C.rows) {
+  return costReport(
+    { states: full.A.rows, inputs: full.B.cols, outputs: full.C.rows, run: (solver) => simulate(full, input, { ...options, solver }) },
+    reduced,
+    input,
+    options,
+    solvers,
+  );
+}
+
+/**
+ * The report's core, for any full model that can be simulated by the solvers named (the sparse path's
+ * `sparseSimulationCostReport` runs its full model with `simulateSparse`); the reduced model is dense.
+ */
+export function costReport(
+  full: { states: number; inputs: number; outputs: number; run: (solver: SolverName) => SimulationResult },
+  reduced: StateSpaceModel,
+  input: InputSignal,
+  options: SimulationOptions,
+  solvers: readonly SolverName[],
+): SimulationCostReport {
+  if (full.inputs !== reduced.B.cols || full.outputs !== reduced.C.rows) {
     throw new ModelError(
       'dimension_mismatch',
       'reduced',
-      `the reduced model has ${reduced.B.cols} inputs and ${reduced.C.rows} outputs, the full model ${full.B.cols} and ${full.C.rows}`,
+      `the reduced model has ${reduced.B.cols} inputs and ${reduced.C.rows} outputs, the full model ${full.inputs} and ${full.outputs}`,
     );
   }
   if (options.initialState !== undefined) {
@@ -71,7 +91,7 @@ export function simulationCostReport(
   const rows: SolverCostRow[] = [];
   let reference: { abs: number; scale: number } | null = null;
   for (const solver of solvers) {
-    const f = simulate(full, input, { ...options, solver });
+    const f = full.run(solver);
     const r = simulate(reduced, input, { ...options, solver });
     const ratios = {} as Record<StatName, number | null>;
     for (const s of STAT_NAMES) ratios[s] = r.stats[s] > 0 ? f.stats[s] / r.stats[s] : null;
@@ -84,7 +104,7 @@ export function simulationCostReport(
     tEnd: options.tEnd,
     relTol: options.relTol,
     absTol: options.absTol,
-    fullStates: full.A.rows,
+    fullStates: full.states,
     reducedStates: reduced.A.rows,
     rows,
     relativeOutputDifference: reference && reference.scale > 0 ? reference.abs / reference.scale : 0,

@@ -17,9 +17,10 @@
 import { ModelError } from '../errors';
 import type { StateSpaceModel } from '../model';
 import type { InputSignal } from './inputs';
-import { LinearSystem } from './linear-system';
+import { LinearSystem, type TimeSystem } from './linear-system';
 import { type CheckedOptions, OutputRecorder, constantInputIntervals, errorNorm } from './output-grid';
-import type { SimulationResult } from './types';
+import type { SimulationResult, TimeStepReport } from './types';
+import { throwIfStopped, type LoopHooks } from '../stop';
 
 const C2 = 1 / 5, C3 = 3 / 10, C4 = 4 / 5, C5 = 8 / 9;
 const A21 = 1 / 5;
@@ -58,144 +59,160 @@ const BETA = 0.04;
 const ALPHA = 0.2 - 0.75 * BETA;
 
 export function simulateExplicit(model: StateSpaceModel, input: InputSignal, opts: CheckedOptions): SimulationResult {
-  const wallStart = performance.now();
   const system = new LinearSystem(model);
   try {
-    const n = system.n;
-    const recorder = new OutputRecorder(opts.times, system, input);
-    const { relTol, absTol } = opts;
-
-    const x = Float64Array.from(opts.initialState);
-    if (input.impulseWeights) {
-      const jump = system.inputTerm(input.impulseWeights);
-      for (let i = 0; i < n; i++) x[i] += jump[i];
-    }
-    while (!recorder.done && recorder.nextTime <= 0) recorder.record(x);
-
-    const k1 = new Float64Array(n), k2 = new Float64Array(n), k3 = new Float64Array(n), k4 = new Float64Array(n);
-    const k5 = new Float64Array(n), k6 = new Float64Array(n), k7 = new Float64Array(n);
-    const stage = new Float64Array(n);
-    const xNew = new Float64Array(n);
-    const err = new Float64Array(n);
-    const dense = new Float64Array(n);
-    const r2 = new Float64Array(n), r3 = new Float64Array(n), r4 = new Float64Array(n), r5 = new Float64Array(n);
-
-    let steps = 0;
-    let rejected = 0;
-    let h = NaN;
-    let errOld = 1e-4;
-    let rejectedLast = false;
-
-    for (const interval of constantInputIntervals(input, opts.tEnd)) {
-      if (recorder.done) break;
-      const b = system.inputTerm(input.values[interval.piece]);
-      let t = interval.start;
-      const tStop = interval.end;
-      system.rhs(x, b, k1); // the input may have jumped: first-same-as-last does not carry over
-      if (opts.fixedStep !== undefined) h = opts.fixedStep;
-      else if (!(h > 0)) h = startingStep(system, x, b, k1, tStop - t, relTol, absTol);
-
-      while (t < tStop && !recorder.done) {
-        if (steps + rejected >= opts.maxSteps) {
-          throw new ModelError(
-            'invalid_option',
-            'maxSteps',
-            `the explicit solver reached ${opts.maxSteps} steps at t = ${t}; the model is probably stiff: use the stiff or exact solver`,
-          );
-        }
-        let last = false;
-        const hWanted = h;
-        if (t + h >= tStop - 1e-12 * Math.max(1, Math.abs(tStop))) {
-          h = tStop - t;
-          last = true;
-        }
-        for (let i = 0; i < n; i++) stage[i] = x[i] + h * A21 * k1[i];
-        system.rhs(stage, b, k2);
-        for (let i = 0; i < n; i++) stage[i] = x[i] + h * (A31 * k1[i] + A32 * k2[i]);
-        system.rhs(stage, b, k3);
-        for (let i = 0; i < n; i++) stage[i] = x[i] + h * (A41 * k1[i] + A42 * k2[i] + A43 * k3[i]);
-        system.rhs(stage, b, k4);
-        for (let i = 0; i < n; i++) stage[i] = x[i] + h * (A51 * k1[i] + A52 * k2[i] + A53 * k3[i] + A54 * k4[i]);
-        system.rhs(stage, b, k5);
-        for (let i = 0; i < n; i++) {
-          stage[i] = x[i] + h * (A61 * k1[i] + A62 * k2[i] + A63 * k3[i] + A64 * k4[i] + A65 * k5[i]);
-        }
-        system.rhs(stage, b, k6);
-        for (let i = 0; i < n; i++) xNew[i] = x[i] + h * (B1 * k1[i] + B3 * k3[i] + B4 * k4[i] + B5 * k5[i] + B6 * k6[i]);
-        system.rhs(xNew, b, k7);
-
-        let accept = true;
-        let errNorm = 0;
-        if (opts.fixedStep === undefined) {
-          for (let i = 0; i < n; i++) {
-            err[i] = h * (E1 * k1[i] + E3 * k3[i] + E4 * k4[i] + E5 * k5[i] + E6 * k6[i] + E7 * k7[i]);
-          }
-          errNorm = errorNorm(err, x, xNew, relTol, absTol);
-          accept = errNorm <= 1;
-        }
-        if (!accept) {
-          rejected++;
-          rejectedLast = true;
-          h *= Math.max(FAC_MIN, SAFETY * Math.pow(errNorm, -0.2));
-          continue;
-        }
-
-        steps++;
-        const tNew = last ? tStop : t + h;
-        if (recorder.nextTime <= tNew) {
-          // Continuous extension: x(t + θh) = x + θ(r2 + (1−θ)(r3 + θ(r4 + (1−θ) r5))).
-          for (let i = 0; i < n; i++) {
-            const dx = xNew[i] - x[i];
-            const bspl = h * k1[i] - dx;
-            r2[i] = dx;
-            r3[i] = bspl;
-            r4[i] = dx - h * k7[i] - bspl;
-            r5[i] = h * (D1 * k1[i] + D3 * k3[i] + D4 * k4[i] + D5 * k5[i] + D6 * k6[i] + D7 * k7[i]);
-          }
-          while (!recorder.done && recorder.nextTime <= tNew) {
-            const theta = Math.min(1, (recorder.nextTime - t) / h);
-            const theta1 = 1 - theta;
-            for (let i = 0; i < n; i++) {
-              dense[i] = x[i] + theta * (r2[i] + theta1 * (r3[i] + theta * (r4[i] + theta1 * r5[i])));
-            }
-            recorder.record(dense);
-          }
-        }
-        x.set(xNew);
-        k1.set(k7);
-        t = tNew;
-
-        if (opts.fixedStep !== undefined) {
-          h = opts.fixedStep;
-        } else {
-          // PI step-size control (HNW93 §II.4 with Gustafsson's stabilisation, β = 0.04).
-          const e = Math.max(errNorm, 1e-10);
-          let factor = SAFETY * Math.pow(e, -ALPHA) * Math.pow(errOld, BETA);
-          factor = Math.min(rejectedLast ? 1 : FAC_MAX, Math.max(FAC_MIN, factor));
-          errOld = Math.max(errNorm, 1e-4);
-          rejectedLast = false;
-          // A step shortened to land on the interval's end says little about the next one.
-          h = last ? Math.max(h * factor, hWanted) : h * factor;
-        }
-      }
-    }
-    while (!recorder.done) recorder.record(x);
-    return {
-      t: opts.times,
-      y: recorder.y,
-      solver: 'explicit',
-      stats: {
-        steps,
-        rejectedSteps: rejected,
-        rhsEvaluations: system.rhsEvaluations,
-        factorizations: 0,
-        pointsStored: recorder.next,
-        wallMs: performance.now() - wallStart,
-      },
-    };
+    return integrateExplicit(system, input, opts);
   } finally {
     system.dispose();
   }
+}
+
+/**
+ * The Dormand–Prince integration on any `TimeSystem` (dense here, sparse in `reduction/sparse/simulate.ts`).
+ * `hooks`: a stop flag looked at before each step, and a report after each accepted one. The caller owns
+ * (and disposes) the system.
+ */
+export function integrateExplicit(
+  system: TimeSystem,
+  input: InputSignal,
+  opts: CheckedOptions,
+  hooks: LoopHooks<TimeStepReport> = {},
+): SimulationResult {
+  const wallStart = performance.now();
+  const n = system.n;
+  const recorder = new OutputRecorder(opts.times, system, input);
+  const { relTol, absTol } = opts;
+
+  const x = Float64Array.from(opts.initialState);
+  if (input.impulseWeights) {
+    const jump = system.impulseJump(input.impulseWeights);
+    for (let i = 0; i < n; i++) x[i] += jump[i];
+  }
+  while (!recorder.done && recorder.nextTime <= 0) recorder.record(x);
+
+  const k1 = new Float64Array(n), k2 = new Float64Array(n), k3 = new Float64Array(n), k4 = new Float64Array(n);
+  const k5 = new Float64Array(n), k6 = new Float64Array(n), k7 = new Float64Array(n);
+  const stage = new Float64Array(n);
+  const xNew = new Float64Array(n);
+  const err = new Float64Array(n);
+  const dense = new Float64Array(n);
+  const r2 = new Float64Array(n), r3 = new Float64Array(n), r4 = new Float64Array(n), r5 = new Float64Array(n);
+
+  let steps = 0;
+  let rejected = 0;
+  let h = NaN;
+  let errOld = 1e-4;
+  let rejectedLast = false;
+
+  for (const interval of constantInputIntervals(input, opts.tEnd)) {
+    if (recorder.done) break;
+    const b = system.inputTerm(input.values[interval.piece]);
+    let t = interval.start;
+    const tStop = interval.end;
+    system.derivative(x, b, k1); // the input may have jumped: first-same-as-last does not carry over
+    if (opts.fixedStep !== undefined) h = opts.fixedStep;
+    else if (!(h > 0)) h = startingStep(system, x, b, k1, tStop - t, relTol, absTol);
+
+    while (t < tStop && !recorder.done) {
+      throwIfStopped(hooks.signal, 'the explicit solver');
+      if (steps + rejected >= opts.maxSteps) {
+        throw new ModelError(
+          'invalid_option',
+          'maxSteps',
+          `the explicit solver reached ${opts.maxSteps} steps at t = ${t}; the model is probably stiff: use the stiff or exact solver`,
+        );
+      }
+      let last = false;
+      const hWanted = h;
+      if (t + h >= tStop - 1e-12 * Math.max(1, Math.abs(tStop))) {
+        h = tStop - t;
+        last = true;
+      }
+      for (let i = 0; i < n; i++) stage[i] = x[i] + h * A21 * k1[i];
+      system.derivative(stage, b, k2);
+      for (let i = 0; i < n; i++) stage[i] = x[i] + h * (A31 * k1[i] + A32 * k2[i]);
+      system.derivative(stage, b, k3);
+      for (let i = 0; i < n; i++) stage[i] = x[i] + h * (A41 * k1[i] + A42 * k2[i] + A43 * k3[i]);
+      system.derivative(stage, b, k4);
+      for (let i = 0; i < n; i++) stage[i] = x[i] + h * (A51 * k1[i] + A52 * k2[i] + A53 * k3[i] + A54 * k4[i]);
+      system.derivative(stage, b, k5);
+      for (let i = 0; i < n; i++) {
+        stage[i] = x[i] + h * (A61 * k1[i] + A62 * k2[i] + A63 * k3[i] + A64 * k4[i] + A65 * k5[i]);
+      }
+      system.derivative(stage, b, k6);
+      for (let i = 0; i < n; i++) xNew[i] = x[i] + h * (B1 * k1[i] + B3 * k3[i] + B4 * k4[i] + B5 * k5[i] + B6 * k6[i]);
+      system.derivative(xNew, b, k7);
+
+      let accept = true;
+      let errNorm = 0;
+      if (opts.fixedStep === undefined) {
+        for (let i = 0; i < n; i++) {
+          err[i] = h * (E1 * k1[i] + E3 * k3[i] + E4 * k4[i] + E5 * k5[i] + E6 * k6[i] + E7 * k7[i]);
+        }
+        errNorm = errorNorm(err, x, xNew, relTol, absTol);
+        accept = errNorm <= 1;
+      }
+      if (!accept) {
+        rejected++;
+        rejectedLast = true;
+        h *= Math.max(FAC_MIN, SAFETY * Math.pow(errNorm, -0.2));
+        continue;
+      }
+
+      steps++;
+      const tNew = last ? tStop : t + h;
+      if (recorder.nextTime <= tNew) {
+        // Continuous extension: x(t + θh) = x + θ(r2 + (1−θ)(r3 + θ(r4 + (1−θ) r5))).
+        for (let i = 0; i < n; i++) {
+          const dx = xNew[i] - x[i];
+          const bspl = h * k1[i] - dx;
+          r2[i] = dx;
+          r3[i] = bspl;
+          r4[i] = dx - h * k7[i] - bspl;
+          r5[i] = h * (D1 * k1[i] + D3 * k3[i] + D4 * k4[i] + D5 * k5[i] + D6 * k6[i] + D7 * k7[i]);
+        }
+        while (!recorder.done && recorder.nextTime <= tNew) {
+          const theta = Math.min(1, (recorder.nextTime - t) / h);
+          const theta1 = 1 - theta;
+          for (let i = 0; i < n; i++) {
+            dense[i] = x[i] + theta * (r2[i] + theta1 * (r3[i] + theta * (r4[i] + theta1 * r5[i])));
+          }
+          recorder.record(dense);
+        }
+      }
+      x.set(xNew);
+      k1.set(k7);
+      t = tNew;
+      hooks.onStep?.({ t, tEnd: opts.tEnd, steps, rejectedSteps: rejected, h, order: 5 });
+
+      if (opts.fixedStep !== undefined) {
+        h = opts.fixedStep;
+      } else {
+        // PI step-size control (HNW93 §II.4 with Gustafsson's stabilisation, β = 0.04).
+        const e = Math.max(errNorm, 1e-10);
+        let factor = SAFETY * Math.pow(e, -ALPHA) * Math.pow(errOld, BETA);
+        factor = Math.min(rejectedLast ? 1 : FAC_MAX, Math.max(FAC_MIN, factor));
+        errOld = Math.max(errNorm, 1e-4);
+        rejectedLast = false;
+        // A step shortened to land on the interval's end says little about the next one.
+        h = last ? Math.max(h * factor, hWanted) : h * factor;
+      }
+    }
+  }
+  while (!recorder.done) recorder.record(x);
+  return {
+    t: opts.times,
+    y: recorder.y,
+    solver: 'explicit',
+    stats: {
+      steps,
+      rejectedSteps: rejected,
+      rhsEvaluations: system.rhsEvaluations,
+      factorizations: system.factorizations,
+      pointsStored: recorder.next,
+      wallMs: performance.now() - wallStart,
+    },
+  };
 }
 
 /**
@@ -203,7 +220,7 @@ export function simulateExplicit(model: StateSpaceModel, input: InputSignal, opt
  * ‖x‖/‖f‖, refined by one explicit Euler step's estimate of the second derivative.
  */
 export function startingStep(
-  system: LinearSystem,
+  system: Pick<TimeSystem, 'n' | 'derivative'>,
   x: Float64Array,
   b: Float64Array,
   f0: Float64Array,
@@ -226,7 +243,7 @@ export function startingStep(
   const x1 = new Float64Array(n);
   for (let i = 0; i < n; i++) x1[i] = x[i] + h0 * f0[i];
   const f1 = new Float64Array(n);
-  system.rhs(x1, b, f1);
+  system.derivative(x1, b, f1);
   let d2 = 0;
   for (let i = 0; i < n; i++) {
     const sc = absTol + relTol * Math.abs(x[i]);

@@ -49,11 +49,14 @@ export function pieceAfter(signal: InputSignal, t: number, tol: number): number 
   return pieceAt(signal, t + tol);
 }
 
+/** What the input builders read of a model: B's column count and the input labels (a sparse model has B too). */
+type InputSide = Pick<StateSpaceModel, 'B' | 'labels'>;
+
 /**
  * Which channels a step or impulse acts on: "all", a 1-based index, or an input name.
  * Throws invalid_option naming `channel`.
  */
-export function channelWeights(model: StateSpaceModel, channel: number | string | undefined): {
+export function channelWeights(model: InputSide, channel: number | string | undefined): {
   weights: Float64Array;
   label: string;
 } {
@@ -84,7 +87,7 @@ export function channelWeights(model: StateSpaceModel, channel: number | string 
 }
 
 /** Unit step at t = 0 on the chosen channel(s). */
-export function stepInput(model: StateSpaceModel, channel?: number | string): InputSignal {
+export function stepInput(model: InputSide, channel?: number | string): InputSignal {
   const { weights, label } = channelWeights(model, channel);
   return {
     kind: 'step',
@@ -96,7 +99,7 @@ export function stepInput(model: StateSpaceModel, channel?: number | string): In
 }
 
 /** Unit impulse at t = 0 on the chosen channel(s). */
-export function impulseInput(model: StateSpaceModel, channel?: number | string): InputSignal {
+export function impulseInput(model: InputSide, channel?: number | string): InputSignal {
   const { weights, label } = channelWeights(model, channel);
   return {
     kind: 'impulse',

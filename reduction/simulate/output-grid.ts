@@ -7,7 +7,7 @@ import { ModelError } from '../errors';
 import { type Matrix, zeros } from '../linalg/matrix';
 import type { InputSignal } from './inputs';
 import { pieceAfter, pieceAt } from './inputs';
-import type { LinearSystem } from './linear-system';
+import type { OutputMap } from './linear-system';
 import { DEFAULT_ABS_TOL, DEFAULT_POINTS, DEFAULT_REL_TOL, type SharedExponentialStore, type SimulationOptions } from './types';
 
 export interface CheckedOptions {
@@ -96,7 +96,7 @@ export class OutputRecorder {
 
   constructor(
     readonly times: Float64Array,
-    private readonly system: LinearSystem,
+    private readonly system: OutputMap,
     private readonly input: InputSignal,
   ) {
     this.y = zeros(times.length, system.p);

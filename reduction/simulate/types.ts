@@ -22,6 +22,19 @@ export interface SolverStats {
   wallMs: number;
 }
 
+/** An adaptive solver's report after each accepted step (the progress of a long run: `t` of `tEnd`). */
+export interface TimeStepReport {
+  /** Time reached. */
+  t: number;
+  tEnd: number;
+  /** Accepted and rejected steps so far. */
+  steps: number;
+  rejectedSteps: number;
+  /** The step just taken, and the order of the formula that took it (5 for Dormand–Prince). */
+  h: number;
+  order: number;
+}
+
 export interface SimulationOptions {
   /** End time (the simulation starts at t = 0). */
   tEnd: number;

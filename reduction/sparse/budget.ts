@@ -39,3 +39,16 @@ export function checkFactorBudget(lu: SparseLu, budgetBytes: number, what: strin
     );
   }
 }
+
+/**
+ * Throws ModelError('too_large') when a factorization's estimated memory `needBytes` (from an ordering's fill
+ * count, say) exceeds the budget; `source` says where the estimate comes from.
+ */
+export function checkMemoryEstimate(needBytes: number, budgetBytes: number, what: string, source: string): void {
+  if (!Number.isFinite(budgetBytes) || needBytes <= budgetBytes) return;
+  throw new ModelError(
+    'too_large',
+    'memory-budget',
+    `the sparse factorization of ${what} needs an estimated ${mib(needBytes)} MiB (${source}), over the memory budget of ${mib(budgetBytes)} MiB (--memory-budget or ${MEMORY_BUDGET_ENV})`,
+  );
+}

@@ -526,7 +526,8 @@ export interface FastestPoleResult {
   readonly solver: 'identity' | 'cholesky' | 'lu';
 }
 
-function isSymmetric(a: CscMatrix): boolean {
+/** Whether A = Aᵀ exactly (pattern and values). */
+export function isSymmetric(a: CscMatrix): boolean {
   const { n, colPtr, rowIndex, values } = a;
   // Entry (i, j) against (j, i) by binary search in column i (rows sorted).
   for (let j = 0; j < n; j++) {

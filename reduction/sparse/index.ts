@@ -15,6 +15,8 @@
  *   analysis.ts         the whole analysis of a sparse model (command line and web task alike)
  *   path.ts             which path a model takes (the crossover)
  *   second-order.ts     M, D, K in descriptor form without M⁻¹
+ *   simulate.ts         time responses: the NDF/BDF solver on sparse LU factors of E − c·A, Dormand–Prince on
+ *                       sparse products, and the simulation-cost report against a dense reduced model
  */
 export * from './model';
 export { parseSparseMatrixMarket, writeSparseMatrixMarket, isMatrixMarketCoordinate, coordinateRowCount } from './matrix-market';
@@ -30,3 +32,4 @@ export { hInfinityLowerBound, sweepGridFromPoles, SparseFrequencyEvaluator, type
 export { analyzeSparseModel, sparseModes, sparseZeroFrequencyGain, DEFAULT_POLE_COUNT, DEFAULT_SWEEP_POINTS, DEFAULT_ADI_TOLERANCE, type SparseAnalysis, type SparseAnalysisProgress, type SparseAnalysisStage, type SparseModes } from './analysis';
 export { autoPathIsSparse, sparseCrossover, SPARSE_CROSSOVER_STATES, SPARSE_CROSSOVER_ENV } from './path';
 export { secondOrderToDescriptor, type SparseSecondOrder } from './second-order';
+export { simulateSparse, sparseSimulationCostReport, type SparseSimulationOptions, type SparseSolverChoice } from './simulate';
