@@ -88,9 +88,7 @@ async function buildLineage(sourceModelId: string, reducedModelId: string | null
     method: 'r.method',
     upstreamChanged: 'up.upstream_changed',
     newestSourceNumber: 'up.newest_source_number',
-  })
-    .join('recipes as r', 'r.id', 'rv.recipe_id')
-    .join('reduced_version_upstream as up', 'up.reduced_version_id', 'rv.id')
+  }, ['recipe', 'upstream'])
     .where('sm.id', sourceModelId)
     .orderBy([{ column: 'rm.name' }, { column: 'rv.number' }]);
   if (reducedModelId) rvQuery.where('rv.reduced_model_id', reducedModelId);

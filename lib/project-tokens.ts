@@ -15,7 +15,7 @@
 // every USE_FLUSH_MS (100 ms) rather than one per request. Revocation, expiry and project settings still
 // apply to the very next request. Readers of the use record in this process (listProjectTokens,
 // listTokenUses) flush the batch first; a process that dies loses at most the last 100 ms of records.
-import { createHash, randomBytes } from 'node:crypto';
+import { hashSecretToken, newSecretToken } from '@/lib/auth/secret-token';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { db } from '@/lib/db';
@@ -93,12 +93,8 @@ export const tokenCreateSchema = z.object({
 
 export type TokenCreateInput = z.input<typeof tokenCreateSchema>;
 
-export function hashProjectToken(token: string): string {
-  return createHash('sha256').update(token, 'utf8').digest('hex');
-}
-
 export function generateProjectToken(): string {
-  return TOKEN_PREFIX + randomBytes(32).toString('base64url');
+  return TOKEN_PREFIX + newSecretToken();
 }
 
 function tokenState(row: Pick<ProjectTokenRow, 'expires_at' | 'revoked_at'>, now: Date): ProjectToken['state'] {
@@ -123,7 +119,7 @@ export async function createProjectToken(
       .insert({
         project_id: project.id,
         name: parsed.name,
-        token_hash: hashProjectToken(token),
+        token_hash: hashSecretToken(token),
         token_prefix: token.slice(0, DISPLAY_PREFIX_LENGTH),
         scope: parsed.scope,
         expires_at: parsed.expiresInDays === null ? null : new Date(now.getTime() + parsed.expiresInDays * 86_400_000),
@@ -311,7 +307,7 @@ export async function authenticatePull(
               p.created_at AS p_created_at, p.updated_at AS p_updated_at
          FROM project_tokens t JOIN controller_projects p ON p.id = t.project_id
         WHERE t.token_hash = ?`,
-      [hashProjectToken(token)],
+      [hashSecretToken(token)],
     ),
     trx,
   );

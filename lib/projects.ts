@@ -14,6 +14,7 @@ import { ApiError, notFound } from '@/lib/http';
 import { emailSchema, findUserByEmail } from '@/lib/people';
 import type { SessionUser } from '@/lib/auth';
 import type { Role } from '@/lib/roles';
+import { SLUG_PATTERN, slugFromName } from '@/lib/slug';
 
 export interface ProjectRow {
   id: string;
@@ -63,8 +64,6 @@ export interface ProjectAccess {
   /** An engineer member: may change settings, members, pins and tokens. */
   canManage: boolean;
 }
-
-export const SLUG_PATTERN = /^[a-z0-9]+(-[a-z0-9]+)*$/;
 
 export const projectSlugSchema = z
   .string({ error: 'The project slug is required.' })
@@ -140,19 +139,6 @@ export function toProject(row: ProjectRow): Project {
   };
 }
 
-/** A slug from a name: "Kiln 3 — zone controller" → "kiln-3-zone-controller". */
-export function slugFromName(name: string): string {
-  const slug = name
-    .normalize('NFKD')
-    .replace(/[\u0300-\u036f]/g, '')
-    .toLowerCase()
-    .replace(/[^a-z0-9]+/g, '-')
-    .replace(/^-+|-+$/g, '')
-    .slice(0, 60)
-    .replace(/-+$/, '');
-  return slug || 'project';
-}
-
 export async function findProjectBySlug(slug: string, trx: Knex | Knex.Transaction = db()): Promise<ProjectRow | undefined> {
   return trx<ProjectRow>('controller_projects').where({ slug }).first();
 }
@@ -210,7 +196,7 @@ export async function listProjects(user: SessionUser): Promise<ProjectSummary[]>
 }
 
 export async function createProject(input: ProjectCreate, actor: SessionUser, outer: Knex = db()): Promise<Project> {
-  const slug = input.slug ?? slugFromName(input.name);
+  const slug = input.slug ?? slugFromName(input.name, 'project');
   return outer.transaction(async (trx) => {
     if (await findProjectBySlug(slug, trx)) {
       throw new ApiError(409, 'slug_taken', `A controller project with the slug "${slug}" already exists; choose another.`, 'slug');

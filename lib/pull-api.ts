@@ -15,7 +15,7 @@ import { z } from 'zod';
 import { ApiError, route } from '@/lib/http';
 import { authenticatePull, type PullCaller, type TokenScope } from '@/lib/project-tokens';
 import { findPinByModelSlug, pinnedModelVersion, type ResolvedPin, type VersionFacts } from '@/lib/pins';
-import { SLUG_PATTERN } from '@/lib/projects';
+import { SLUG_PATTERN } from '@/lib/slug';
 import { exportResponse, exportVersion, type ExportFormat, type PinContext } from '@/lib/exports';
 import { CAUTION_TEXT } from '@/lib/caution';
 

@@ -60,9 +60,7 @@ export async function upstreamChangedVersions(
     rerunId: 'nxt.id',
     rerunNumber: 'nxt.number',
     rerunStatus: 'nxt.status',
-  })
-    .join('users as au', 'au.id', 'rv.author_id')
-    .join('reduced_version_upstream as up', 'up.reduced_version_id', 'rv.id')
+  }, ['author', 'upstream'])
     .join('source_versions as nsv', 'nsv.id', 'up.newest_source_version_id')
     .leftJoin('reduced_versions as nxt', (j) =>
       j.on('nxt.predecessor_id', 'rv.id').andOn('nxt.source_version_id', 'up.newest_source_version_id'),

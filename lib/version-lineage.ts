@@ -46,18 +46,32 @@ const LINEAGE_COLUMNS: { readonly [K in keyof LineageRow]: string } = {
 export type LineageColumns<Extra> = { readonly [K in keyof Extra]: string | Knex.Raw };
 
 /**
- * The lineage join with its columns, plus `extra` ones; filter, order and join further on the builder.
- * Awaiting it (or `.first()`) gives `LineageRow & Extra` rows.
+ * The tables a read may ask to be joined as well, each under a fixed alias its `extra` columns can name:
+ *   recipe    r   the version's recipe (recipes)
+ *   author    au  the version's author (users)
+ *   upstream  up  the view reduced_version_upstream (newest source version, upstream changed)
+ *   report    ar  the accuracy report (accuracy_reports, left join: a version may have none yet)
+ */
+export type LineageJoin = 'recipe' | 'author' | 'upstream' | 'report';
+
+/**
+ * The lineage join with its columns, plus `extra` ones and the `joins` asked for; filter, order and join
+ * further on the builder. Awaiting it (or `.first()`) gives `LineageRow & Extra` rows.
  */
 export function versionLineage<Extra extends object = Record<never, never>>(
   knex: Knex | Knex.Transaction,
   extra?: LineageColumns<Extra>,
+  joins: readonly LineageJoin[] = [],
 ): Knex.QueryBuilder<Record<string, unknown>, (LineageRow & Extra)[]> {
   const query = knex('reduced_versions as rv')
     .join('reduced_models as rm', 'rm.id', 'rv.reduced_model_id')
     .join('source_versions as sv', 'sv.id', 'rv.source_version_id')
     .join('source_models as sm', 'sm.id', 'sv.source_model_id')
     .select({ ...LINEAGE_COLUMNS, ...extra } as Record<string, string>);
+  if (joins.includes('recipe')) query.join('recipes as r', 'r.id', 'rv.recipe_id');
+  if (joins.includes('author')) query.join('users as au', 'au.id', 'rv.author_id');
+  if (joins.includes('upstream')) query.join('reduced_version_upstream as up', 'up.reduced_version_id', 'rv.id');
+  if (joins.includes('report')) query.leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id');
   return query as unknown as Knex.QueryBuilder<Record<string, unknown>, (LineageRow & Extra)[]>;
 }
 
@@ -66,14 +80,14 @@ export function newestSourceNumber(knex: Knex | Knex.Transaction): Knex.Raw {
   return knex.raw('(SELECT max(s2.number) FROM source_versions s2 WHERE s2.source_model_id = sv.source_model_id)');
 }
 
-/** The accuracy report's acceptance record (`ar` joined by the caller), without the rest of its figures. */
+/** The accuracy report's acceptance record (join 'report'), without the rest of its figures. */
 export function reportAcceptance(knex: Knex | Knex.Transaction): Knex.Raw {
   return knex.raw(`ar.figures->'acceptance'`);
 }
 
 /**
- * A number from the accuracy report `ar` (joined by the caller) by its key: null when the report states no
- * finite figure there, never zero.
+ * A number from the accuracy report (join 'report') by its key: null when the report states no finite figure
+ * there, never zero.
  */
 export function reportFigure(knex: Knex | Knex.Transaction, key: 'hInfinityErrorRelative' | 'errorBound'): Knex.Raw {
   return knex.raw(`CASE WHEN jsonb_typeof(ar.figures->'${key}') = 'number' THEN (ar.figures->>'${key}')::float8 END`);

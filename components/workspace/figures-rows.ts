@@ -5,17 +5,15 @@
  * points stored, wall time). Every value leaves here formatted with its unit.
  */
 import { formatCount, formatFactor, formatFrequency, formatNumber, formatPercent, formatWallTime } from '@/lib/format';
+import type { SolverCostRecord } from '@/lib/engine-tasks/records';
 
-export interface SimulationCost {
-  /** solver as the engine names it, e.g. "exact", "explicit", "stiff" */
-  readonly solver: string;
-  readonly steps: number;
-  readonly rejectedSteps?: number;
-  readonly rhsEvaluations?: number;
-  readonly factorizations?: number;
-  readonly pointsStored: number;
-  readonly wallMs: number;
-}
+type OptionalCount = 'rejectedSteps' | 'rhsEvaluations' | 'factorizations';
+
+/**
+ * One solver's cost as stored (lib/engine-tasks/records.ts SolverCostRecord; the solver as the engine names
+ * it, e.g. "exact", "explicit", "stiff"); the counts a solver does not keep may be absent.
+ */
+export type SimulationCost = Readonly<Omit<SolverCostRecord, OptionalCount> & Partial<Pick<SolverCostRecord, OptionalCount>>>;
 
 export interface AccuracyFigures {
   readonly fullOrder: number;

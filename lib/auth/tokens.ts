@@ -1,7 +1,7 @@
 // Single-use, expiring links for invitations and password resets. The link carries 32 random bytes; the
 // database keeps only their SHA-256, so reading the table does not give anyone a working link. Issuing a
 // new token of a purpose voids the person's earlier open ones of that purpose.
-import { createHash, randomBytes } from 'node:crypto';
+import { hashSecretToken, newSecretToken } from '@/lib/auth/secret-token';
 import type { Knex } from 'knex';
 import { z } from 'zod';
 import { db } from '@/lib/db';
@@ -23,10 +23,6 @@ export const tokenSchema = z
 
 export const redeemSchema = z.object({ token: tokenSchema, password: passwordSchema });
 
-export function hashToken(token: string): string {
-  return createHash('sha256').update(token, 'utf8').digest('hex');
-}
-
 export async function issueToken(
   trx: Knex.Transaction,
   userId: string,
@@ -34,12 +30,12 @@ export async function issueToken(
   createdBy: string | null,
   now = new Date(),
 ): Promise<string> {
-  const token = randomBytes(32).toString('base64url');
+  const token = newSecretToken();
   await trx('auth_tokens').where({ user_id: userId, purpose }).whereNull('used_at').delete();
   await trx('auth_tokens').insert({
     user_id: userId,
     purpose,
-    token_hash: hashToken(token),
+    token_hash: hashSecretToken(token),
     expires_at: new Date(now.getTime() + TOKEN_LIFETIME_MINUTES[purpose] * 60_000),
     created_by: createdBy,
   });
@@ -57,7 +53,7 @@ type TokenState =
   | { valid: false; code: 'unknown' | 'used' | 'expired' | 'deactivated'; message: string };
 
 async function lookUp(trx: Knex | Knex.Transaction, token: string, lock: boolean, now: Date): Promise<TokenState> {
-  const query = trx('auth_tokens').where({ token_hash: hashToken(token) }).first();
+  const query = trx('auth_tokens').where({ token_hash: hashSecretToken(token) }).first();
   const row = lock ? await query.forUpdate() : await query;
   if (!row) {
     return { valid: false, code: 'unknown', message: 'This link is not valid. It may have been replaced by a newer one.' };

@@ -6,6 +6,7 @@
 import type { SourceFormat } from './model-files';
 import type { PoleStability } from '../../reduction/poles';
 import type { AcceptanceStatus } from '../../reduction/acceptance';
+import type { SolverStats } from '../../reduction/simulate/types';
 
 export type { PoleStability };
 
@@ -123,15 +124,8 @@ export interface ReductionCurves {
   impulse: TimeCurves;
 }
 
-export interface SolverCostRecord {
-  solver: string;
-  steps: number;
-  rejectedSteps: number;
-  rhsEvaluations: number;
-  factorizations: number;
-  pointsStored: number;
-  wallMs: number;
-}
+/** One solver's cost figures as stored: the engine's SolverStats (reduction/simulate/types.ts) with the solver's name. */
+export type SolverCostRecord = SolverStats & { solver: string };
 
 export interface CostRowRecord {
   solver: string;

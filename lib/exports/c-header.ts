@@ -8,6 +8,7 @@
 import type { ExportDocument } from './document';
 import { acceptanceLine, accuracyLine, exportWarnings, recipeLine } from './document';
 import type { Rows } from './source';
+import { wrapWords } from './wrap';
 
 /** An identifier stem from a slug: "kiln-zone-3" → "kiln_zone_3" (prefixed when it would start with a digit). */
 export function cIdentifier(slug: string): string {
@@ -45,18 +46,7 @@ export function cString(text: string): string {
 }
 
 function wrapComment(text: string, width = 92): string[] {
-  const lines: string[] = [];
-  let line = '';
-  for (const word of commentText(text).split(/\s+/)) {
-    if (line && line.length + 1 + word.length > width) {
-      lines.push(line);
-      line = word;
-    } else {
-      line = line ? `${line} ${word}` : word;
-    }
-  }
-  if (line) lines.push(line);
-  return lines;
+  return wrapWords(commentText(text), width);
 }
 
 function array(name: string, rows: Rows, rowsMacro: string, colsMacro: string): string {

@@ -10,6 +10,7 @@ import JSZip from 'jszip';
 import type { ExportDocument } from './document';
 import { acceptanceLine, accuracyLine, exportJson, exportStem, exportWarnings, recipeLine } from './document';
 import type { Rows } from './source';
+import { wrapWords } from './wrap';
 
 export function csvNumber(x: number): string {
   return Object.is(x, -0) ? '0' : String(x);
@@ -33,20 +34,7 @@ function namesCsv(doc: ExportDocument): string {
   return lines.join('\n') + '\n';
 }
 
-function wrap(text: string, width = 96): string[] {
-  const lines: string[] = [];
-  let line = '';
-  for (const word of text.split(/\s+/)) {
-    if (line && line.length + 1 + word.length > width) {
-      lines.push(line);
-      line = word;
-    } else {
-      line = line ? `${line} ${word}` : word;
-    }
-  }
-  if (line) lines.push(line);
-  return lines;
-}
+const wrap = (text: string) => wrapWords(text, 96);
 
 export function matrixFileNames(doc: ExportDocument): Record<'A' | 'B' | 'C' | 'D', string> {
   return doc.kind === 'discrete'

@@ -129,9 +129,7 @@ export async function loadExportSource(versionId: string, trx: Knex | Knex.Trans
     reportAcceptancePassed: 'ar.acceptance_passed',
     reportId: 'ar.id',
     predecessorNumber: 'pv.number',
-  })
-    .join('recipes as r', 'r.id', 'rv.recipe_id')
-    .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id')
+  }, ['recipe', 'report'])
     .leftJoin('reduced_versions as pv', 'pv.id', 'rv.predecessor_id')
     .where('rv.id', versionId)
     .limit(1);

@@ -46,8 +46,7 @@ export async function loadVersionFacts(
     hInfinityErrorRelative: reportFigure(trx, 'hInfinityErrorRelative'),
     acceptancePassed: 'ar.acceptance_passed',
     acceptanceRecord: reportAcceptance(trx),
-  })
-    .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id')
+  }, ['report'])
     .whereIn('rv.reduced_model_id', Array.isArray(reducedModels) ? [...new Set(reducedModels as readonly string[])] : (reducedModels as Knex.QueryBuilder))
     .whereIn('rv.status', ['approved', 'retired']);
   const rows = await preparedRows<Awaited<typeof query>[number]>(query, trx);

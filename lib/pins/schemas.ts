@@ -1,6 +1,6 @@
 // What the pin routes accept: a new pin (the reduced model by slug, and how to resolve it) and a changed one.
 import { z } from 'zod';
-import { SLUG_PATTERN } from '@/lib/projects';
+import { SLUG_PATTERN } from '@/lib/slug';
 
 export const PIN_MODES = ['exact', 'newest_approved'] as const;
 export type PinMode = (typeof PIN_MODES)[number];

@@ -8,7 +8,8 @@ import type { AccuracyFiguresRecord, ReductionCurves, ReducedMatricesRecord } fr
 import { latestJobFor, type JobView } from '@/lib/jobs/jobs';
 import { analysisOf, versionPath } from '@/lib/source-models';
 import type { RecipeRow, ReducedVersionRow } from '@/lib/reduced-models/rows';
-import { reportAcceptance, reportFigure, versionLineage } from '@/lib/version-lineage';
+import { SLUG_PATTERN } from '@/lib/slug';
+import { reportAcceptance, reportFigure, versionLineage, type LineageRow } from '@/lib/version-lineage';
 
 // ---------------------------------------------------------------------------------------------------
 // A controller project's acceptance band as the reduce page's starting band
@@ -33,7 +34,7 @@ export interface ProjectBandSeed {
  * has no known length (the band cannot be converted then). Any signed-in person reads projects.
  */
 export async function projectBandSeed(projectSlug: string | undefined, timeBase: string): Promise<ProjectBandSeed | null> {
-  if (!projectSlug || !/^[a-z0-9]+(-[a-z0-9]+)*$/.test(projectSlug) || projectSlug.length > 60) return null;
+  if (!projectSlug || !SLUG_PATTERN.test(projectSlug) || projectSlug.length > 60) return null;
   const row = await db()('controller_projects')
     .where({ slug: projectSlug })
     .first('name', 'slug', 'acceptance_min_frequency', 'acceptance_max_frequency', 'acceptance_max_error');
@@ -63,82 +64,6 @@ export async function pinnedSourcesOfProject(projectId: string): Promise<{ name:
 // ---------------------------------------------------------------------------------------------------
 // Reads
 
-export interface ReducedModelListRow {
-  id: string;
-  name: string;
-  slug: string;
-  sourceModel: { name: string; slug: string };
-  latestVersion: number;
-  status: string;
-  order: number;
-  method: string;
-  hInfinityErrorRelative: number | null;
-  acceptancePassed: boolean | null;
-  /** the latest version's stored acceptance verdict (lib/acceptance.ts); null when its recipe set no band */
-  acceptance: StoredAcceptance | null;
-  author: string;
-  updatedAt: string;
-}
-
-/** The figures lists show beside a version: method, author and the accuracy report's figures. */
-interface ListedColumns {
-  method: string;
-  authorName: string;
-  hInfinityErrorRelative: number | null;
-  errorBound: number | null;
-  acceptancePassed: boolean | null;
-  acceptanceRecord: Record<string, unknown> | null;
-  matricesSha256: string;
-}
-
-function listedVersions(knex: Knex) {
-  return versionLineage<ListedColumns>(knex, {
-    method: 'r.method',
-    authorName: 'u.name',
-    hInfinityErrorRelative: reportFigure(knex, 'hInfinityErrorRelative'),
-    errorBound: reportFigure(knex, 'errorBound'),
-    acceptancePassed: 'ar.acceptance_passed',
-    acceptanceRecord: reportAcceptance(knex),
-    matricesSha256: 'rv.matrices_sha256',
-  })
-    .join('recipes as r', 'r.id', 'rv.recipe_id')
-    .join('users as u', 'u.id', 'rv.author_id')
-    .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id');
-}
-
-const acceptanceOf = (r: ListedColumns) => storedAcceptance(r.acceptanceRecord ? { acceptance: r.acceptanceRecord } : null, r.acceptancePassed ?? null);
-
-export async function listReducedModels(): Promise<ReducedModelListRow[]> {
-  const knex = db();
-  // Each reduced model by its newest version.
-  const rows = await listedVersions(knex)
-    .whereNotExists(knex('reduced_versions as newer').whereRaw('newer.reduced_model_id = rv.reduced_model_id').andWhereRaw('newer.number > rv.number'))
-    .orderBy('rv.created_at', 'desc');
-  return rows.map((r) => ({
-    id: r.reducedModelId,
-    name: r.reducedModelName,
-    slug: r.reducedModelSlug,
-    sourceModel: { name: r.sourceModelName, slug: r.sourceModelSlug },
-    latestVersion: r.versionNumber,
-    status: r.status,
-    order: r.order,
-    method: r.method,
-    hInfinityErrorRelative: r.hInfinityErrorRelative ?? null,
-    acceptancePassed: r.acceptancePassed ?? null,
-    acceptance: acceptanceOf(r),
-    author: r.authorName,
-    updatedAt: r.createdAt.toISOString(),
-  }));
-}
-
-export interface ReducedModelView {
-  id: string;
-  name: string;
-  slug: string;
-  description: string;
-  sourceModel: { id: string; name: string; slug: string };
-}
-
 export interface ReducedVersionSummary {
   id: string;
   number: number;
@@ -156,6 +81,79 @@ export interface ReducedVersionSummary {
   createdAt: string;
 }
 
+/** A reduced model in the list, by its newest version. */
+export interface ReducedModelListRow {
+  id: string;
+  name: string;
+  slug: string;
+  sourceModel: { name: string; slug: string };
+  latest: ReducedVersionSummary;
+}
+
+/** The figures lists show beside a version: method, author and the accuracy report's figures. */
+interface ListedColumns {
+  method: string;
+  authorName: string;
+  hInfinityErrorRelative: number | null;
+  errorBound: number | null;
+  acceptancePassed: boolean | null;
+  acceptanceRecord: Record<string, unknown> | null;
+  matricesSha256: string;
+}
+
+function listedVersions(knex: Knex) {
+  return versionLineage<ListedColumns>(knex, {
+    method: 'r.method',
+    authorName: 'au.name',
+    hInfinityErrorRelative: reportFigure(knex, 'hInfinityErrorRelative'),
+    errorBound: reportFigure(knex, 'errorBound'),
+    acceptancePassed: 'ar.acceptance_passed',
+    acceptanceRecord: reportAcceptance(knex),
+    matricesSha256: 'rv.matrices_sha256',
+  }, ['recipe', 'author', 'report']);
+}
+
+function toVersionSummary(v: LineageRow & ListedColumns): ReducedVersionSummary {
+  return {
+    id: v.versionId,
+    number: v.versionNumber,
+    status: v.status,
+    order: v.order,
+    method: v.method,
+    sourceVersionNumber: v.sourceVersionNumber,
+    matricesSha256: v.matricesSha256,
+    hInfinityErrorRelative: v.hInfinityErrorRelative,
+    errorBound: v.errorBound,
+    acceptancePassed: v.acceptancePassed,
+    acceptance: storedAcceptance(v.acceptanceRecord ? { acceptance: v.acceptanceRecord } : null, v.acceptancePassed),
+    author: v.authorName,
+    createdAt: v.createdAt.toISOString(),
+  };
+}
+
+export async function listReducedModels(): Promise<ReducedModelListRow[]> {
+  const knex = db();
+  // Each reduced model by its newest version.
+  const rows = await listedVersions(knex)
+    .whereNotExists(knex('reduced_versions as newer').whereRaw('newer.reduced_model_id = rv.reduced_model_id').andWhereRaw('newer.number > rv.number'))
+    .orderBy('rv.created_at', 'desc');
+  return rows.map((r) => ({
+    id: r.reducedModelId,
+    name: r.reducedModelName,
+    slug: r.reducedModelSlug,
+    sourceModel: { name: r.sourceModelName, slug: r.sourceModelSlug },
+    latest: toVersionSummary(r),
+  }));
+}
+
+export interface ReducedModelView {
+  id: string;
+  name: string;
+  slug: string;
+  description: string;
+  sourceModel: { id: string; name: string; slug: string };
+}
+
 export async function getReducedModel(slug: string): Promise<{ model: ReducedModelView; versions: ReducedVersionSummary[] } | null> {
   const row = await db()('reduced_models as rm')
     .join('source_models as sm', 'sm.id', 'rm.source_model_id')
@@ -171,21 +169,7 @@ export async function getReducedModel(slug: string): Promise<{ model: ReducedMod
       description: row.description,
       sourceModel: { id: row.source_model_id, name: row.source_name, slug: row.source_slug },
     },
-    versions: versions.map((v) => ({
-      id: v.versionId,
-      number: v.versionNumber,
-      status: v.status,
-      order: v.order,
-      method: v.method,
-      sourceVersionNumber: v.sourceVersionNumber,
-      matricesSha256: v.matricesSha256,
-      hInfinityErrorRelative: v.hInfinityErrorRelative ?? null,
-      errorBound: v.errorBound ?? null,
-      acceptancePassed: v.acceptancePassed ?? null,
-      acceptance: acceptanceOf(v),
-      author: v.authorName,
-      createdAt: v.createdAt.toISOString(),
-    })),
+    versions: versions.map(toVersionSummary),
   };
 }
 
@@ -222,8 +206,8 @@ export async function getComparisonPage(slug: string, number: number): Promise<C
     timeBase: 'sm.time_base',
     figures: 'ar.figures',
     curves: 'ar.curves',
-  })
-    .join('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id')
+  }, ['report'])
+    .whereNotNull('ar.id')
     .where('rv.id', summary.id)
     .first();
   if (!row) return null;

@@ -8,16 +8,10 @@ import { matricesSha256 } from '@/lib/checksums';
 import type { ReductionRecord, ReducedMatricesRecord } from '@/lib/engine-tasks/records';
 import type { ReducedModelRow, ReducedVersionRow } from '@/lib/reduced-models/rows';
 import type { JobRow } from '@/lib/jobs/jobs';
-import { findSourceVersion, slugFromName } from '@/lib/source-models';
+import { findSourceVersion } from '@/lib/source-models';
+import { uniqueSlug } from '@/lib/slug';
 import { reducedVersionPath } from '@/lib/reduced-models/paths';
 import type { ReductionRequest } from '@/lib/reduced-models/schemas';
-
-async function uniqueReducedSlug(trx: Knex.Transaction, name: string): Promise<string> {
-  const base = slugFromName(name);
-  const taken = new Set((await trx('reduced_models').where('slug', base).orWhere('slug', 'like', `${base}-%`).pluck('slug')) as string[]);
-  if (!taken.has(base)) return base;
-  for (let k = 2; ; k++) if (!taken.has(`${base}-${k}`)) return `${base}-${k}`;
-}
 
 /** A draft version as registered: where it comes from, what it holds, and who wrote it. */
 interface DraftVersion {
@@ -93,7 +87,7 @@ export async function registerReducedVersion(
     [model] = await trx<ReducedModelRow>('reduced_models')
       .insert({
         name: payload.target.name,
-        slug: await uniqueReducedSlug(trx, payload.target.name),
+        slug: await uniqueSlug(trx, 'reduced_models', payload.target.name, 'model'),
         description: payload.target.description,
         source_model_id: version.source_model_id,
         created_by: author,

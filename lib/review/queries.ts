@@ -115,15 +115,11 @@ function summaryQuery(trx: Knex | Knex.Transaction) {
     retirerName: 'reu.name',
     reportFigures: 'ar.figures',
     reportAcceptancePassed: 'ar.acceptance_passed',
-  })
-    .join('users as au', 'au.id', 'rv.author_id')
-    .join('recipes as r', 'r.id', 'rv.recipe_id')
-    .join('reduced_version_upstream as up', 'up.reduced_version_id', 'rv.id')
+  }, ['author', 'recipe', 'upstream', 'report'])
     .leftJoin('reduced_versions as pv', 'pv.id', 'rv.predecessor_id')
     .leftJoin('source_versions as psv', 'psv.id', 'pv.source_version_id')
     .leftJoin('users as apu', 'apu.id', 'rv.approved_by')
-    .leftJoin('users as reu', 'reu.id', 'rv.retired_by')
-    .leftJoin('accuracy_reports as ar', 'ar.reduced_version_id', 'rv.id');
+    .leftJoin('users as reu', 'reu.id', 'rv.retired_by');
 }
 
 function toSummary(r: LineageRow & SummaryColumns): VersionSummary {

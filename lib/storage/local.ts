@@ -8,6 +8,7 @@ import { copyFile, mkdir, open, rename, rm, stat } from 'node:fs/promises';
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
+import { buffer } from 'node:stream/consumers';
 import { checkKey, StorageError, StorageKeyNotFound, type ObjectStore } from './types';
 
 function isMissing(e: unknown): boolean {
@@ -90,9 +91,7 @@ export class LocalStore implements ObjectStore {
   }
 
   async get(key: string): Promise<Buffer> {
-    const chunks: Buffer[] = [];
-    for await (const chunk of await this.getStream(key)) chunks.push(chunk as Buffer);
-    return Buffer.concat(chunks);
+    return buffer(await this.getStream(key));
   }
 
   async getStream(key: string): Promise<Readable> {

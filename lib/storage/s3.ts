@@ -5,6 +5,7 @@
 import { createReadStream } from 'node:fs';
 import { rm } from 'node:fs/promises';
 import { Readable } from 'node:stream';
+import { buffer } from 'node:stream/consumers';
 import type { S3Client, S3ClientConfig } from '@aws-sdk/client-s3';
 import type { S3StoreConfig } from './config';
 import { checkKey, StorageError, StorageKeyNotFound, type ObjectStore } from './types';
@@ -112,9 +113,7 @@ export class S3Store implements ObjectStore {
   }
 
   async get(key: string): Promise<Buffer> {
-    const chunks: Buffer[] = [];
-    for await (const chunk of await this.getStream(key)) chunks.push(chunk as Buffer);
-    return Buffer.concat(chunks);
+    return buffer(await this.getStream(key));
   }
 
   async getStream(key: string): Promise<Readable> {

@@ -125,7 +125,7 @@ describe('the acceptance verdict of one version', () => {
       const sheet = (await reviewSheet(v.id, { id: reviewer.id, name: reviewer.name, role: 'reviewer' }))!;
       expect(sheet.version.acceptance?.status, v.status).toBe(v.status);
       expect(acceptanceText(sheet.version.accuracy!.figures, sheet.version.accuracy!.acceptancePassed).startsWith(word)).toBe(true);
-      expect(list.find((m) => m.slug === v.slug)?.acceptance?.status, v.status).toBe(v.status);
+      expect(list.find((m) => m.slug === v.slug)?.latest.acceptance?.status, v.status).toBe(v.status);
 
       // Exports: JSON, C header and the CSV bundle's README.
       const doc = await (await pull.model(project.slug, v.slug, { token })).json();

@@ -52,20 +52,20 @@ export default async function ReducedModelsPage() {
                     <Link href={`/source-models/${m.sourceModel.slug}`}>{m.sourceModel.name}</Link>
                   </td>
                   <td className="px-4 py-2">
-                    <Link className="num" href={`/reduced-models/${m.slug}/versions/${m.latestVersion}`}>
-                      v{m.latestVersion}
+                    <Link className="num" href={`/reduced-models/${m.slug}/versions/${m.latest.number}`}>
+                      v{m.latest.number}
                     </Link>
                   </td>
                   <td className="px-4 py-2">
-                    <StatusBadge status={m.status as VersionStatus} />
+                    <StatusBadge status={m.latest.status as VersionStatus} />
                     {upstream.get(m.id)?.upstreamChanged ? <UpstreamChangedBadge sourceNumber={upstream.get(m.id)!.latestSourceNumber} newestSourceNumber={upstream.get(m.id)!.newestSourceNumber} /> : null}
                   </td>
-                  <td className="num px-4 py-2">{m.order}</td>
-                  <td className="px-4 py-2">{methodName(m.method)}</td>
-                  <td className="num px-4 py-2">{m.hInfinityErrorRelative === null ? '—' : formatPercent(m.hInfinityErrorRelative)}</td>
-                  <td className="px-4 py-2">{acceptanceWord(m.acceptance)}</td>
-                  <td className="px-4 py-2">{m.author}</td>
-                  <td className="num px-4 py-2 text-xs">{m.updatedAt.replace('T', ' ').slice(0, 16)}</td>
+                  <td className="num px-4 py-2">{m.latest.order}</td>
+                  <td className="px-4 py-2">{methodName(m.latest.method)}</td>
+                  <td className="num px-4 py-2">{m.latest.hInfinityErrorRelative === null ? '—' : formatPercent(m.latest.hInfinityErrorRelative)}</td>
+                  <td className="px-4 py-2">{acceptanceWord(m.latest.acceptance)}</td>
+                  <td className="px-4 py-2">{m.latest.author}</td>
+                  <td className="num px-4 py-2 text-xs">{m.latest.createdAt.replace('T', ' ').slice(0, 16)}</td>
                 </tr>
               ))}
             </tbody>
