@@ -3,19 +3,11 @@
 // form. Every change goes through /api/admin/people, which checks the admin role on the server.
 import { useMemo, useState } from 'react';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import {
-  createColumnHelper,
-  flexRender,
-  getCoreRowModel,
-  getFilteredRowModel,
-  getSortedRowModel,
-  useReactTable,
-  type SortingState,
-} from '@tanstack/react-table';
+import { createColumnHelper } from '@tanstack/react-table';
 import { apiFetch, ApiClientError } from '@/components/api-client';
 import { ROLES, ROLE_LABELS, type Role } from '@/lib/roles';
 import type { Person } from '@/lib/people';
-import { SortableHead } from '@/components/table/SortableHead';
+import { DataTable, useFilteredTable } from '@/components/table/DataTable';
 
 interface LinkSent {
   person: Person;
@@ -64,8 +56,6 @@ export function PeopleTable({ initialPeople, currentUserId }: { initialPeople: P
     onError: (err: Error) => setNotice({ tone: 'error', text: err.message }),
   });
 
-  const [sorting, setSorting] = useState<SortingState>([{ id: 'name', desc: false }]);
-  const [filter, setFilter] = useState('');
   const [roleFilter, setRoleFilter] = useState<Role | ''>('');
 
   const rows = useMemo(() => (roleFilter ? people.filter((p) => p.role === roleFilter) : people), [people, roleFilter]);
@@ -133,17 +123,7 @@ export function PeopleTable({ initialPeople, currentUserId }: { initialPeople: P
     [update, sendLink, currentUserId],
   );
 
-  const table = useReactTable({
-    data: rows,
-    columns,
-    state: { sorting, globalFilter: filter },
-    onSortingChange: setSorting,
-    onGlobalFilterChange: setFilter,
-    globalFilterFn: 'includesString',
-    getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
-    getFilteredRowModel: getFilteredRowModel(),
-  });
+  const { table, filter, setFilter } = useFilteredTable({ data: rows, columns, initialSorting: [{ id: 'name', desc: false }] });
 
   return (
     <div className="space-y-6">
@@ -165,25 +145,14 @@ export function PeopleTable({ initialPeople, currentUserId }: { initialPeople: P
         </p>
       ) : null}
 
-      <section aria-label="People" className="panel">
-        <div className="flex flex-wrap items-end gap-4 border-b border-rule px-4 py-3">
-          <label className="min-w-64 flex-1">
-            <span className="field-label">Filter</span>
-            <input
-              className="field-input"
-              type="search"
-              placeholder="Name, e-mail, role or status"
-              value={filter}
-              onChange={(e) => setFilter(e.target.value)}
-            />
-          </label>
+      <DataTable
+        table={table}
+        label="People"
+        filter={{ value: filter, onChange: setFilter, placeholder: 'Name, e-mail, role or status' }}
+        controls={
           <label>
             <span className="field-label">Role</span>
-            <select
-              className="field-input"
-              value={roleFilter}
-              onChange={(e) => setRoleFilter(e.target.value as Role | '')}
-            >
+            <select className="field-input" value={roleFilter} onChange={(e) => setRoleFilter(e.target.value as Role | '')}>
               <option value="">All roles</option>
               {ROLES.map((r) => (
                 <option key={r} value={r}>
@@ -192,37 +161,15 @@ export function PeopleTable({ initialPeople, currentUserId }: { initialPeople: P
               ))}
             </select>
           </label>
-          <p className="num pb-2 text-xs text-graphite-soft">
-            {table.getRowModel().rows.length} of {people.length}
-          </p>
-        </div>
-        <table className="w-full text-left text-sm">
-          <SortableHead table={table} />
-          <tbody>
-            {table.getRowModel().rows.map((row) => (
-              <tr
-                key={row.id}
-                className={`border-b border-rule last:border-0 ${row.original.active ? '' : 'text-graphite-faint'}`}
-                data-testid="person-row"
-                data-email={row.original.email}
-              >
-                {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className="px-4 py-2 align-middle">
-                    {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                  </td>
-                ))}
-              </tr>
-            ))}
-            {table.getRowModel().rows.length === 0 ? (
-              <tr>
-                <td colSpan={columns.length} className="px-4 py-6 text-center text-graphite-soft">
-                  Nobody matches this filter.
-                </td>
-              </tr>
-            ) : null}
-          </tbody>
-        </table>
-      </section>
+        }
+        count={`${table.getRowModel().rows.length} of ${people.length}`}
+        empty="Nobody matches this filter."
+        rowProps={(row) => ({
+          className: row.original.active ? '' : 'text-graphite-faint',
+          'data-testid': 'person-row',
+          'data-email': row.original.email,
+        })}
+      />
     </div>
   );
 }

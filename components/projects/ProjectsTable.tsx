@@ -5,20 +5,12 @@ import Link from 'next/link';
 import { useRouter } from 'next/navigation';
 import { useMemo, useState } from 'react';
 import { useMutation } from '@tanstack/react-query';
-import {
-  createColumnHelper,
-  flexRender,
-  getCoreRowModel,
-  getFilteredRowModel,
-  getSortedRowModel,
-  useReactTable,
-  type SortingState,
-} from '@tanstack/react-table';
+import { createColumnHelper } from '@tanstack/react-table';
 import { apiFetch, ApiClientError } from '@/components/api-client';
 import { formatTime } from '@/lib/format';
 import { numberField } from './form-values';
 import type { Project, ProjectSummary } from '@/lib/projects';
-import { SortableHead } from '@/components/table/SortableHead';
+import { DataTable, useFilteredTable } from '@/components/table/DataTable';
 
 /** A project row: its summary and how many of its pins are retired, upstream changed or unresolved. */
 export type ProjectRowData = ProjectSummary & { pinsNeedingAttention: number };
@@ -26,8 +18,6 @@ export type ProjectRowData = ProjectSummary & { pinsNeedingAttention: number };
 const column = createColumnHelper<ProjectRowData>();
 
 export function ProjectsTable({ projects, canCreate }: { projects: ProjectRowData[]; canCreate: boolean }) {
-  const [sorting, setSorting] = useState<SortingState>([{ id: 'name', desc: false }]);
-  const [filter, setFilter] = useState('');
   const [mineOnly, setMineOnly] = useState(false);
   const rows = useMemo(() => (mineOnly ? projects.filter((p) => p.isMember) : projects), [projects, mineOnly]);
 
@@ -65,57 +55,25 @@ export function ProjectsTable({ projects, canCreate }: { projects: ProjectRowDat
     [],
   );
 
-  const table = useReactTable({
-    data: rows,
-    columns,
-    state: { sorting, globalFilter: filter },
-    onSortingChange: setSorting,
-    onGlobalFilterChange: setFilter,
-    globalFilterFn: 'includesString',
-    getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
-    getFilteredRowModel: getFilteredRowModel(),
-  });
+  const { table, filter, setFilter } = useFilteredTable({ data: rows, columns, initialSorting: [{ id: 'name', desc: false }] });
 
   return (
     <div className="space-y-6">
       {canCreate ? <NewProjectForm /> : null}
-      <section aria-label="Controller projects" className="panel">
-        <div className="flex flex-wrap items-end gap-4 border-b border-rule px-4 py-3">
-          <label className="min-w-64 flex-1">
-            <span className="field-label">Filter</span>
-            <input className="field-input" type="search" placeholder="Name or slug" value={filter} onChange={(e) => setFilter(e.target.value)} />
-          </label>
+      <DataTable
+        table={table}
+        label="Controller projects"
+        filter={{ value: filter, onChange: setFilter, placeholder: 'Name or slug' }}
+        controls={
           <label className="flex items-center gap-2 pb-2 text-sm">
             <input type="checkbox" checked={mineOnly} onChange={(e) => setMineOnly(e.target.checked)} />
             Only projects I am a member of
           </label>
-          <p className="num pb-2 text-xs text-graphite-soft">
-            {table.getRowModel().rows.length} of {projects.length}
-          </p>
-        </div>
-        <table className="w-full text-left text-sm">
-          <SortableHead table={table} />
-          <tbody>
-            {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-b border-rule last:border-0" data-testid="project-row" data-slug={row.original.slug}>
-                {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className="px-4 py-2 align-middle">
-                    {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                  </td>
-                ))}
-              </tr>
-            ))}
-            {table.getRowModel().rows.length === 0 ? (
-              <tr>
-                <td colSpan={columns.length} className="px-4 py-6 text-center text-graphite-soft">
-                  {projects.length === 0 ? 'No controller projects yet.' : 'No project matches this filter.'}
-                </td>
-              </tr>
-            ) : null}
-          </tbody>
-        </table>
-      </section>
+        }
+        count={`${table.getRowModel().rows.length} of ${projects.length}`}
+        empty={projects.length === 0 ? 'No controller projects yet.' : 'No project matches this filter.'}
+        rowProps={(row) => ({ 'data-testid': 'project-row', 'data-slug': row.original.slug })}
+      />
     </div>
   );
 }

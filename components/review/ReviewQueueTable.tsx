@@ -4,21 +4,13 @@
 import Link from 'next/link';
 import { useMemo, useState } from 'react';
 import { useQuery } from '@tanstack/react-query';
-import {
-  createColumnHelper,
-  flexRender,
-  getCoreRowModel,
-  getFilteredRowModel,
-  getSortedRowModel,
-  useReactTable,
-  type SortingState,
-} from '@tanstack/react-table';
+import { createColumnHelper } from '@tanstack/react-table';
 import { apiFetch } from '@/components/api-client';
 import { formatCount, formatNumber, formatOptional, formatPercent } from '@/lib/format';
 import type { DecisionEntry, QueueEntry } from '@/lib/review';
 import { UpstreamChangedBadge } from './StatusBadge';
 import { formatWhen } from './when';
-import { SortableHead } from '@/components/table/SortableHead';
+import { DataTable, useFilteredTable } from '@/components/table/DataTable';
 import { ACCEPTANCE_WORD } from '@/lib/acceptance';
 import { methodName } from '@/lib/recipe-words';
 
@@ -31,8 +23,6 @@ export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: Qu
     initialData: initialQueue,
     refetchInterval: 30_000,
   });
-  const [sorting, setSorting] = useState<SortingState>([{ id: 'submittedAt', desc: false }]);
-  const [filter, setFilter] = useState('');
   const [mineOnly, setMineOnly] = useState(canDecide);
   const rows = useMemo(() => (mineOnly ? queue.filter((q) => q.yoursToDecide) : queue), [queue, mineOnly]);
 
@@ -95,68 +85,30 @@ export function ReviewQueueTable({ initialQueue, canDecide }: { initialQueue: Qu
     [],
   );
 
-  const table = useReactTable({
-    data: rows,
-    columns,
-    state: { sorting, globalFilter: filter },
-    onSortingChange: setSorting,
-    onGlobalFilterChange: setFilter,
-    globalFilterFn: 'includesString',
-    getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
-    getFilteredRowModel: getFilteredRowModel(),
-  });
+  const { table, filter, setFilter } = useFilteredTable({ data: rows, columns, initialSorting: [{ id: 'submittedAt', desc: false }] });
 
   return (
-    <section aria-label="Review queue" className="panel">
-      <div className="flex flex-wrap items-end gap-4 border-b border-rule px-4 py-3">
-        <label className="min-w-64 flex-1">
-          <span className="field-label">Filter</span>
-          <input
-            className="field-input"
-            type="search"
-            placeholder="Reduced model, author or source"
-            value={filter}
-            onChange={(e) => setFilter(e.target.value)}
-          />
-        </label>
-        {canDecide ? (
+    <DataTable
+      table={table}
+      label="Review queue"
+      filter={{ value: filter, onChange: setFilter, placeholder: 'Reduced model, author or source' }}
+      controls={
+        canDecide ? (
           <label className="flex items-center gap-2 pb-2 text-sm">
             <input type="checkbox" checked={mineOnly} onChange={(e) => setMineOnly(e.target.checked)} />
             Only versions I may decide (not my own)
           </label>
-        ) : null}
-        <p className="num pb-2 text-xs text-graphite-soft">
-          {table.getRowModel().rows.length} of {queue.length} in review
-        </p>
-      </div>
-      <div className="overflow-x-auto">
-        <table className="w-full text-left text-sm">
-          <SortableHead table={table} />
-          <tbody>
-            {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-b border-rule last:border-0" data-testid="queue-row" data-version={row.original.versionId}>
-                {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className="px-4 py-2 align-middle">
-                    {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                  </td>
-                ))}
-              </tr>
-            ))}
-            {table.getRowModel().rows.length === 0 ? (
-              <tr>
-                <td colSpan={columns.length} className="px-4 py-6 text-center text-graphite-soft">
-                  {queue.length === 0
-                    ? 'Nothing is waiting for review.'
-                    : mineOnly
-                      ? 'Nothing here is yours to decide: the versions in review are your own or match no filter.'
-                      : 'Nothing matches this filter.'}
-                </td>
-              </tr>
-            ) : null}
-          </tbody>
-        </table>
-      </div>
-    </section>
+        ) : null
+      }
+      count={`${table.getRowModel().rows.length} of ${queue.length} in review`}
+      empty={
+        queue.length === 0
+          ? 'Nothing is waiting for review.'
+          : mineOnly
+            ? 'Nothing here is yours to decide: the versions in review are your own or match no filter.'
+            : 'Nothing matches this filter.'
+      }
+      rowProps={(row) => ({ 'data-testid': 'queue-row', 'data-version': row.original.versionId })}
+    />
   );
 }

@@ -6,11 +6,11 @@
 import Link from 'next/link';
 import { useEffect, useMemo, useState } from 'react';
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
-import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
+import { createColumnHelper, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
 import { apiFetch } from '@/components/api-client';
 import { formatNumber } from '@/lib/format';
 import type { SourceModelListRow, SourceModelSort } from '@/lib/source-models';
-import { SortableHead } from '@/components/table/SortableHead';
+import { DataTable } from '@/components/table/DataTable';
 
 export interface SourceModelPage {
   rows: SourceModelListRow[];
@@ -108,18 +108,12 @@ export function SourceModelsTable({ initial }: { initial: SourceModelPage }) {
   });
 
   return (
-    <section aria-label="Source models" className="panel" data-testid="source-models-table">
-      <div className="flex flex-wrap items-end gap-4 border-b border-rule px-4 py-3">
-        <label className="min-w-64 flex-1">
-          <span className="field-label">Filter</span>
-          <input
-            className="field-input"
-            type="search"
-            placeholder="Name, description, tag or uploader"
-            value={filterText}
-            onChange={(e) => setFilterText(e.target.value)}
-          />
-        </label>
+    <DataTable
+      table={table}
+      label="Source models"
+      data-testid="source-models-table"
+      filter={{ value: filterText, onChange: setFilterText, placeholder: 'Name, description, tag or uploader' }}
+      controls={
         <label>
           <span className="field-label">Stable?</span>
           <select
@@ -135,45 +129,24 @@ export function SourceModelsTable({ initial }: { initial: SourceModelPage }) {
             <option value="no">Marginal or unstable poles</option>
           </select>
         </label>
-        <p className="num pb-2 text-xs text-graphite-soft" aria-live="polite">
-          {query.isFetching ? 'Loading… ' : ''}
-          {data.total} model{data.total === 1 ? '' : 's'}
-        </p>
-      </div>
-      <div className="overflow-x-auto">
-        <table className="w-full text-left text-sm">
-          <SortableHead table={table} rowClassName="border-b border-rule-strong" />
-          <tbody>
-            {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-b border-rule last:border-b-0">
-                {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className="px-4 py-2 align-top">
-                    {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                  </td>
-                ))}
-              </tr>
-            ))}
-            {data.rows.length === 0 ? (
-              <tr>
-                <td colSpan={columns.length} className="px-4 py-6 text-center text-graphite-soft">
-                  {filter || stable ? 'No source model matches the filter.' : 'No source models yet.'}
-                </td>
-              </tr>
-            ) : null}
-          </tbody>
-        </table>
-      </div>
-      <nav aria-label="Pages" className="flex items-center justify-between border-t border-rule px-4 py-2 text-sm">
-        <button type="button" className="button-quiet" disabled={page === 0} onClick={() => setPage((p) => Math.max(0, p - 1))}>
-          Previous
-        </button>
-        <span className="num text-graphite-soft">
-          page {page + 1} of {pages}
-        </span>
-        <button type="button" className="button-quiet" disabled={page + 1 >= pages} onClick={() => setPage((p) => p + 1)}>
-          Next
-        </button>
-      </nav>
-    </section>
+      }
+      count={`${query.isFetching ? 'Loading… ' : ''}${data.total} model${data.total === 1 ? '' : 's'}`}
+      empty={filter || stable ? 'No source model matches the filter.' : 'No source models yet.'}
+      headRowClassName="border-b border-rule-strong"
+      cellClassName="px-4 py-2 align-top"
+      footer={
+        <nav aria-label="Pages" className="flex items-center justify-between border-t border-rule px-4 py-2 text-sm">
+          <button type="button" className="button-quiet" disabled={page === 0} onClick={() => setPage((p) => Math.max(0, p - 1))}>
+            Previous
+          </button>
+          <span className="num text-graphite-soft">
+            page {page + 1} of {pages}
+          </span>
+          <button type="button" className="button-quiet" disabled={page + 1 >= pages} onClick={() => setPage((p) => p + 1)}>
+            Next
+          </button>
+        </nav>
+      }
+    />
   );
 }
