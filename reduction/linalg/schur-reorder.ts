@@ -18,7 +18,7 @@
  * few hundred rows), O(m²) per swap.
  */
 import { type Matrix } from './matrix';
-import { standardise2x2 } from './schur';
+import { standardise2x2 } from './schur-2x2';
 
 const ULP = Number.EPSILON;
 

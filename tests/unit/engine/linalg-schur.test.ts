@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { schur, eigenvalues, eig, standardise2x2 } from '../../../reduction/linalg/schur';
+import { schur, eigenvalues, eig } from '../../../reduction/linalg/schur';
+import { standardise2x2 } from '../../../reduction/linalg/schur-2x2';
 import { hessenberg } from '../../../reduction/linalg/hessenberg';
 import { multiply, multiplyTransposeA, multiplyTransposeB } from '../../../reduction/linalg/gemm';
 import { type Matrix, fromRows, identity, sub, frobeniusNorm, zeros } from '../../../reduction/linalg/matrix';
