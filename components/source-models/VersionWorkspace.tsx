@@ -8,21 +8,10 @@ import { PoleMap } from '@/components/charts/PoleMap';
 import { ModesTable } from '@/components/workspace/ModesTable';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { keptPoles, suggestedOrder, storedTable, type Method, type ModalSelection } from './recipe-choices';
-import { RecipeForm, type ProjectBandSeed, type ReducedModelChoice } from './RecipeForm';
+import { RecipeForm, type RecipeSource } from './RecipeForm';
 
-export interface WorkspaceProps {
-  analysis: AnalysisRecord;
-  sourceVersionId: string;
-  sourceName: string;
-  versionNumber: number;
-  timeBase: string;
-  canRun: boolean;
-  reducedModels: ReducedModelChoice[];
-  /** seconds in one model time unit when known (the band may then be given in Hz) */
-  timeBaseSeconds: number | null;
-  /** a controller project's acceptance band, when the person came from that project */
-  seed?: ProjectBandSeed | null;
-}
+/** The analysed source version, as the recipe form takes it (RecipeSource). */
+export type WorkspaceProps = RecipeSource;
 
 export function VersionWorkspace(props: WorkspaceProps) {
   const { analysis, timeBase } = props;
