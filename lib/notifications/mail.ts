@@ -35,22 +35,21 @@ export interface VersionMention {
   url: string;
 }
 
-export function reviewRequestedMail(input: {
-  recipientName: string;
-  version: VersionMention;
-  authorName: string;
-  note: string;
-}): MailContent {
+/** A mail about a version in review: its paragraphs, the quoted note or comment, and the link to its review sheet. */
+function reviewNotice(subject: string, paragraphs: string[], quote: { who: string; text: string }, v: VersionMention): MailContent {
+  return renderNotice(subject, paragraphs, quote, { url: v.url, label: 'Open the review' }, FOOTER);
+}
+
+export function reviewRequestedMail(input: { recipientName: string; version: VersionMention; authorName: string; note: string }): MailContent {
   const v = input.version;
-  return renderNotice(
+  return reviewNotice(
     `Review requested: ${v.reducedModelName} v${v.number}`,
     [
       `Hello ${input.recipientName}, ${input.authorName} has submitted version ${v.number} of the reduced model "${v.reducedModelName}" for review.`,
       'Compare it with its source model, then approve it or send it back for revision with a comment. You cannot decide on a version you authored.',
     ],
     { who: input.authorName, text: input.note },
-    { url: v.url, label: 'Open the review' },
-    FOOTER,
+    v,
   );
 }
 
@@ -63,18 +62,15 @@ export function reviewDecidedMail(input: {
 }): MailContent {
   const v = input.version;
   const approved = input.decision === 'approved';
-  return renderNotice(
-    approved
-      ? `Approved: ${v.reducedModelName} v${v.number}`
-      : `Sent back for revision: ${v.reducedModelName} v${v.number}`,
+  return reviewNotice(
+    approved ? `Approved: ${v.reducedModelName} v${v.number}` : `Sent back for revision: ${v.reducedModelName} v${v.number}`,
     [
       approved
         ? `Hello ${input.recipientName}, ${input.reviewerName} has approved version ${v.number} of "${v.reducedModelName}". Controller projects can now pin it.`
         : `Hello ${input.recipientName}, ${input.reviewerName} has sent version ${v.number} of "${v.reducedModelName}" back for revision. Make a new draft version that answers the comment, and submit that.`,
     ],
     { who: input.reviewerName, text: input.comment },
-    { url: v.url, label: 'Open the review' },
-    FOOTER,
+    v,
   );
 }
 
