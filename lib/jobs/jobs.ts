@@ -18,6 +18,8 @@ import { recordAudit } from '@/lib/audit';
 import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
 import type { ProgressDetail } from '@/lib/engine-tasks/progress';
+import { versionLineage } from '@/lib/version-lineage';
+import { reducedVersionPath } from '@/lib/reduced-models/paths';
 import { queue, queueDb, queueNameOf, sendDelivery, type JobKind, type WorkerClass } from './queue';
 import { modelSizeOfPayload, workerClassFor } from './worker-class';
 import { estimateTimeLeft, type TimeLeft } from './progress-estimate';
@@ -332,11 +334,8 @@ export async function jobSubject(job: Pick<JobView, 'subjectType' | 'subjectId'>
     if (row) return { words: `${row.name} v${row.number} (${row.states} states)`, href: `/source-models/${row.slug}/versions/${row.number}` };
   }
   if (job.subjectType === 'reduced_version' && job.subjectId) {
-    const row = await db()('reduced_versions as v')
-      .join('reduced_models as m', 'm.id', 'v.reduced_model_id')
-      .where('v.id', job.subjectId)
-      .first('m.name', 'm.slug', 'v.number');
-    if (row) return { words: `${row.name} v${row.number}`, href: `/reduced-models/${row.slug}/versions/${row.number}` };
+    const row = await versionLineage(db()).where('rv.id', job.subjectId).first();
+    if (row) return { words: `${row.reducedModelName} v${row.versionNumber}`, href: reducedVersionPath(row.reducedModelSlug, row.versionNumber) };
   }
   return { words: job.subjectType.replace(/_/g, ' '), href: null };
 }

@@ -15,7 +15,7 @@ import path from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/lib/db';
 import { closeQueue } from '@/lib/jobs/queue';
-import { getJob, retryJob, type JobView } from '@/lib/jobs/jobs';
+import { getJob, jobSubject, retryJob, type JobView } from '@/lib/jobs/jobs';
 import { registerUpload } from '@/lib/source-models';
 import { requestInputResponse, requestReduction } from '@/lib/reduced-models';
 import { storagePath } from '@/lib/uploads/store';
@@ -227,8 +227,9 @@ describe('background jobs', () => {
     startWorker();
     const upload = await registerUpload(uploadRequest({ name: uniqueName('Signal') }, [{ field: 'model', name: 'm.json', text: firstOrderJson({ D: [[0.2]] }) }]), engineer);
     await waitFor(upload.job.id, done);
+    const romName = uniqueName('Signal ROM');
     const reduction = await requestReduction(
-      { sourceVersionId: upload.version.id, recipe: { method: 'residualization', orderRule: 'order', order: 2, modalSelection: 'dominance' }, target: { kind: 'new', name: uniqueName('Signal ROM'), description: '' } },
+      { sourceVersionId: upload.version.id, recipe: { method: 'residualization', orderRule: 'order', order: 2, modalSelection: 'dominance' }, target: { kind: 'new', name: romName, description: '' } },
       engineer,
     );
     const reduced = await waitFor(reduction.job.id, done);
@@ -244,6 +245,8 @@ describe('background jobs', () => {
     const { job } = await requestInputResponse(uploadRequest({ reducedVersionId }, [{ field: 'signal', name: 'pulse.csv', text: 'time,u\n0,0\n1,2\n3,0\n' }], url), engineer);
     const finished = await waitFor(job.id, done);
     expect(finished.status).toBe('succeeded');
+    // The job page names the version the job worked on, with the version's page.
+    expect(await jobSubject(finished)).toEqual({ words: `${romName} v1`, href: reduced.result!.url });
     const result = finished.result as { t: number[]; full: number[][]; reduced: number[][] };
     expect(result.full).toHaveLength(1);
     expect(result.full[0]).toHaveLength(result.t.length);
