@@ -164,30 +164,25 @@ export function LimitedBandFields({ id, analysis, timeBase, timeBaseSeconds, see
         </p>
       ) : null}
       <div className="grid gap-4 md:grid-cols-3">
-        <Field htmlFor={`${id}-fl-lo`} label="From">
-          <input
-            id={`${id}-fl-lo`}
-            className="field-input num"
-            {...field('limitedBand.from', { onChange: clearBandErrors })}
-            inputMode="decimal"
-            placeholder="e.g. 0"
-            aria-invalid={invalid('recipe.limitedBand.minFrequency')}
-            disabled={!canRun}
-          />
-          <FieldMessage field="recipe.limitedBand.minFrequency" />
-        </Field>
-        <Field htmlFor={`${id}-fl-hi`} label="To">
-          <input
-            id={`${id}-fl-hi`}
-            className="field-input num"
-            {...field('limitedBand.to', { onChange: clearBandErrors })}
-            inputMode="decimal"
-            placeholder="e.g. 50"
-            aria-invalid={invalid('recipe.limitedBand.maxFrequency')}
-            disabled={!canRun}
-          />
-          <FieldMessage field="recipe.limitedBand.maxFrequency" />
-        </Field>
+        {(
+          [
+            ['lo', 'From', 'limitedBand.from', 'e.g. 0', 'recipe.limitedBand.minFrequency'],
+            ['hi', 'To', 'limitedBand.to', 'e.g. 50', 'recipe.limitedBand.maxFrequency'],
+          ] as const
+        ).map(([edge, label, name, placeholder, errorField]) => (
+          <Field key={edge} htmlFor={`${id}-fl-${edge}`} label={label}>
+            <input
+              id={`${id}-fl-${edge}`}
+              className="field-input num"
+              {...field(name, { onChange: clearBandErrors })}
+              inputMode="decimal"
+              placeholder={placeholder}
+              aria-invalid={invalid(errorField)}
+              disabled={!canRun}
+            />
+            <FieldMessage field={errorField} />
+          </Field>
+        ))}
         <Field htmlFor={`${id}-fl-unit`} label="Unit">
           <select id={`${id}-fl-unit`} className="field-input" value={unitChosen} onChange={(e) => switchUnit(e.target.value as BandUnit)} disabled={!canRun}>
             <option value="rad">{unit}</option>
