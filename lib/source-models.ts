@@ -6,6 +6,13 @@
 // separate process, and streamed into the store at their content address (lib/storage). Anything that fails
 // before the commit removes the objects this upload placed, so a refused upload leaves no row and no file
 // behind.
+//
+// The files: one JSON model; or A, B, C with D and E optional; or a second-order model's mass, stiffness,
+// B (force input) and C with damping and D optional; or all of them in one zip archive (field "archive",
+// unpacked by the check's child process, lib/uploads/archive.ts, and then stored member by member exactly
+// as if they had been sent one by one). A model above the engine's crossover, or with E, takes the sparse
+// path and is checked without ever being made dense (lib/engine-tasks/validate-task.ts); its analysis job
+// goes to the large worker class (lib/jobs/worker-class.ts).
 import { createHash } from 'node:crypto';
 import type { Knex } from 'knex';
 import { z } from 'zod';
@@ -15,7 +22,12 @@ import { ApiError, notFound } from '@/lib/http';
 import type { SessionUser } from '@/lib/auth';
 import { receiveUpload, type ReceivedFile } from '@/lib/uploads/receive';
 import { releaseFiles, storeFile, type StoredFile } from '@/lib/uploads/store';
-import { validateInChildProcess } from '@/lib/engine-tasks/validate-process';
+import { checkArchiveInChildProcess, validateInChildProcess } from '@/lib/engine-tasks/validate-process';
+import type { ValidationOutcome } from '@/lib/engine-tasks/validate-task';
+import { tempDir } from '@/lib/uploads/receive';
+import { maxUploadBytes } from '@/lib/uploads/settings';
+import { rm } from 'node:fs/promises';
+import path from 'node:path';
 import { FILE_ROLES, type FileRole, type ModelFile, type SourceFormat, type StoredModelFile } from '@/lib/engine-tasks/model-files';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { keptPolesOf, modalOrderFigures } from '@/lib/engine-tasks/order-figures';
@@ -171,23 +183,87 @@ async function uniqueSlug(trx: Knex.Transaction, table: string, name: string): P
   for (let k = 2; ; k++) if (!taken.has(`${base}-${k}`)) return `${base}-${k}`;
 }
 
-const FILE_FIELDS: readonly FileRole[] = FILE_ROLES;
+/** The form's file fields: every role a model file can have, and one zip archive holding them. */
+const FILE_FIELDS: readonly (FileRole | 'archive')[] = [...FILE_ROLES, 'archive'];
+const SECOND_ORDER_FIELDS = ['mass', 'damping', 'stiffness'] as const;
 
-/** Which uploaded files make the model: one JSON, or A, B, C and optionally D. Throws ApiError naming the field. */
+/**
+ * Which uploaded files make the model: one JSON; A, B, C (D, E optional); mass, stiffness, B, C (damping, D
+ * optional); or one archive. Throws ApiError naming the field.
+ */
 function modelFilesOf(files: Readonly<Record<string, ReceivedFile>>): ReceivedFile[] {
   const given = FILE_FIELDS.filter((f) => files[f]);
   if (given.length === 0) {
-    throw new ApiError(400, 'missing_file', 'Choose the model file (JSON) or the matrix files A, B, C (and optionally D).', 'model');
+    throw new ApiError(
+      400,
+      'missing_file',
+      'Choose the model file (JSON), the matrix files A, B, C (D and E optional), a second-order model’s M, K, B, C (its damping D optional) or a zip archive of them.',
+      'model',
+    );
+  }
+  if (files.archive && given.length > 1) {
+    throw new ApiError(400, 'invalid_request', 'Give either a zip archive or the model’s files one by one, not both.', 'archive');
   }
   if (files.model && given.length > 1) {
-    throw new ApiError(400, 'invalid_request', 'Give either one JSON model file or the matrix files A, B, C, D, not both.', 'model');
+    throw new ApiError(400, 'invalid_request', 'Give either one JSON model file or the matrix files, not both.', 'model');
   }
-  if (!files.model) {
+  if (files.archive) {
+    if (path.extname(files.archive.originalName).toLowerCase() !== '.zip') {
+      throw new ApiError(400, 'invalid_request', `${files.archive.originalName}: the archive must be a .zip file.`, 'archive');
+    }
+    return [files.archive];
+  }
+  if (files.model) return [files.model];
+  if (SECOND_ORDER_FIELDS.some((f) => files[f])) {
+    for (const f of ['A', 'E'] as const) {
+      if (files[f]) throw new ApiError(400, 'invalid_request', `A second-order model (M, D, K) takes no ${f} file: its first-order form is made from M, D and K.`, f);
+    }
+    for (const [f, words] of [
+      ['mass', 'mass matrix M'],
+      ['stiffness', 'stiffness matrix K'],
+      ['B', 'force input matrix B'],
+      ['C', 'output matrix C'],
+    ] as const) {
+      if (!files[f]) throw new ApiError(400, 'missing_file', `The ${words} file is missing (a second-order model needs M, K, B and C; its damping D is optional).`, f);
+    }
+  } else {
     for (const role of ['A', 'B', 'C'] as const) {
-      if (!files[role]) throw new ApiError(400, 'missing_file', `The ${role} matrix file is missing (A, B and C are required; D is optional).`, role);
+      if (!files[role]) throw new ApiError(400, 'missing_file', `The ${role} matrix file is missing (A, B and C are required; D and E are optional).`, role);
     }
   }
   return given.map((f) => files[f]);
+}
+
+/** A file of the model, received as it was sent or unpacked from an archive: what is checked, stored and registered. */
+interface ModelPart {
+  role: FileRole;
+  name: string;
+  size: number;
+  sha256: string;
+  tempPath: string;
+}
+
+/**
+ * The model's files, checked by the engine in a child process: the received files as they are, or the
+ * members of the received archive (unpacked into a folder of their own, returned for removal).
+ */
+async function checkedParts(received: ReceivedFile[]): Promise<{ parts: ModelPart[]; check: ValidationOutcome; folder: string | null }> {
+  const failed = (field: string) => (e: Error) => {
+    throw new ApiError(422, 'check_failed', `The model could not be checked: ${e.message}`, field);
+  };
+  if (received.length === 1 && received[0].field === 'archive') {
+    const archive = received[0];
+    const answer = await checkArchiveInChildProcess({ path: archive.tempPath, name: archive.originalName }, tempDir(), maxUploadBytes()).catch(failed('archive'));
+    if (!answer.archive.ok) {
+      const e = answer.archive.error;
+      throw new ApiError(e.code === 'archive_too_large' ? 413 : 422, `invalid_archive_${e.code}`, e.message, 'archive');
+    }
+    const parts = answer.archive.members.map((m) => ({ role: m.role, name: m.name, size: m.size, sha256: m.sha256, tempPath: m.path }));
+    return { parts, check: answer.check!, folder: parts.length > 0 ? path.dirname(parts[0].tempPath) : null };
+  }
+  const parts = received.map((f) => ({ role: f.field as FileRole, name: f.originalName, size: f.size, sha256: f.sha256, tempPath: f.tempPath }));
+  const check = await validateInChildProcess(parts.map((f): ModelFile => ({ role: f.role, name: f.name, path: f.tempPath }))).catch(failed(received[0].field));
+  return { parts, check, folder: null };
 }
 
 export interface RegisteredVersion {
@@ -217,6 +293,7 @@ function fieldErrorFromZod(err: z.ZodError): ApiError {
 export async function registerUpload(request: Request, user: SessionUser): Promise<RegisteredVersion> {
   const upload = await receiveUpload(request, { fileFields: FILE_FIELDS });
   const placed: StoredFile[] = [];
+  let archiveFolder: string | null = null;
   try {
     const isNewVersion = Boolean(upload.fields.sourceModelId);
     const parsed = isNewVersion ? newVersionSchema.safeParse(upload.fields) : newSourceModelSchema.safeParse(upload.fields);
@@ -229,23 +306,25 @@ export async function registerUpload(request: Request, user: SessionUser): Promi
       if (!existingModel) throw new ApiError(404, 'not_found', 'The source model to add a version to was not found.', 'sourceModelId');
     }
 
-    const checksum = versionChecksum(received.map((f) => ({ role: f.field as FileRole, sha256: f.sha256 })));
-    if (existingModel) await refuseDuplicate(existingModel, checksum, received[0].field);
-
-    const check = await validateInChildProcess(
-      received.map((f): ModelFile => ({ role: f.field as FileRole, name: f.originalName, path: f.tempPath })),
-    ).catch((e: Error) => {
-      throw new ApiError(422, 'check_failed', `The model could not be checked: ${e.message}`, received[0].field);
-    });
+    // Files sent one by one are refused as a duplicate before the check; an archive's members once unpacked.
+    if (existingModel && received[0].field !== 'archive') {
+      await refuseDuplicate(existingModel, versionChecksum(received.map((f) => ({ role: f.field as FileRole, sha256: f.sha256 }))), received[0].field);
+    }
+    const checked = await checkedParts(received);
+    archiveFolder = checked.folder;
+    const { parts, check } = checked;
+    const checksum = versionChecksum(parts);
+    if (existingModel && received[0].field === 'archive') await refuseDuplicate(existingModel, checksum, 'archive');
     if (!check.ok) {
-      const field = FILE_FIELDS.includes(check.error.field as FileRole) ? check.error.field : received[0].field;
-      throw new ApiError(422, `invalid_model_${check.error.code}`, check.error.message, field);
+      const field = received[0].field === 'archive' ? 'archive' : FILE_FIELDS.includes(check.error.field as FileRole) ? check.error.field : received[0].field;
+      const inArchive = received[0].field === 'archive' && check.error.field !== 'archive' ? ` (in ${received[0].originalName}: ${check.error.field})` : '';
+      throw new ApiError(422, `invalid_model_${check.error.code}`, `${check.error.message}${inArchive}`, field);
     }
 
-    for (const f of received) placed.push(await storeFile(f.tempPath, f.sha256, f.field));
-    const files: StoredFileEntry[] = received.map((f, k) => ({
-      role: f.field as FileRole,
-      name: f.originalName,
+    for (const f of parts) placed.push(await storeFile(f.tempPath, f.sha256, received[0].field === 'archive' ? 'archive' : f.role));
+    const files: StoredFileEntry[] = parts.map((f, k) => ({
+      role: f.role,
+      name: f.name,
       size: f.size,
       sha256: f.sha256,
       storageKey: placed[k].storageKey,
@@ -322,6 +401,8 @@ export async function registerUpload(request: Request, user: SessionUser): Promi
     throw translateConstraint(err, upload.files);
   } finally {
     await upload.discard();
+    // An archive's unpacked members not stored (a refusal) go with their folder.
+    if (archiveFolder) await rm(archiveFolder, { recursive: true, force: true });
   }
 }
 

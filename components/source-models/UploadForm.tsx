@@ -3,11 +3,15 @@
 // multipart/form-data to /api/uploads/source-models, which streams them to disk, has the engine check them
 // and answers with the new version (202) or with the problem and the field it concerns. Each error is shown
 // beside its field; a duplicate links to the version that already holds those files.
+//
+// Four ways to give the files: one JSON model; the matrix files A, B, C (D and E optional); a second-order
+// model's M, D, K with its force input B and output map C; or one zip archive of such files. Large models
+// (above the engine's crossover, or with E) are checked and analysed on the sparse path.
 import Link from 'next/link';
 import { useRouter } from 'next/navigation';
 import { useId, useRef, useState, type FormEvent } from 'react';
 
-type FileMode = 'json' | 'matrices';
+type FileMode = 'json' | 'matrices' | 'second-order' | 'archive';
 
 interface FieldError {
   message: string;
@@ -24,7 +28,26 @@ const MATRIX_FIELDS = [
   { name: 'B', label: 'B', shape: '(n×m)', required: true },
   { name: 'C', label: 'C', shape: '(p×n)', required: true },
   { name: 'D', label: 'D', shape: '(p×m), optional', required: false },
+  { name: 'E', label: 'E', shape: '(n×n, coordinate), optional: E ẋ = A x + B u', required: false },
 ] as const;
+
+/** A second-order model M q̈ + D q̇ + K q = B u, y = C [q; q̇]: its files travel in these fields. */
+const SECOND_ORDER_FIELDS = [
+  { name: 'mass', label: 'M, mass', shape: '(q×q)', required: true },
+  { name: 'damping', label: 'D, damping', shape: '(q×q), optional', required: false },
+  { name: 'stiffness', label: 'K, stiffness', shape: '(q×q)', required: true },
+  { name: 'B', label: 'B, force input', shape: '(q×m)', required: true },
+  { name: 'C', label: 'C, output', shape: '(p×q displacements, or p×2q with velocities)', required: true },
+] as const;
+
+/** The file fields each way of giving the files sends; the others are dropped before sending. */
+const MODE_FIELDS: Record<FileMode, readonly string[]> = {
+  json: ['model'],
+  matrices: MATRIX_FIELDS.map((f) => f.name),
+  'second-order': SECOND_ORDER_FIELDS.map((f) => f.name),
+  archive: ['archive'],
+};
+const ALL_FILE_FIELDS = Array.from(new Set(Object.values(MODE_FIELDS).flat()));
 
 /** Sends the form with XMLHttpRequest, whose upload events give the bytes sent so far (fetch has none). */
 function send(form: FormData, onProgress: (fraction: number) => void): Promise<{ status: number; body: unknown }> {
@@ -57,7 +80,7 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeBase }: { sour
     setGeneral(null);
     const data = new FormData(e.currentTarget);
     // Only the files of the chosen mode travel.
-    for (const f of mode === 'json' ? ['A', 'B', 'C', 'D'] : ['model']) data.delete(f);
+    for (const f of ALL_FILE_FIELDS) if (!MODE_FIELDS[mode].includes(f)) data.delete(f);
     for (const [k, v] of [...data.entries()]) if (v instanceof File && v.size === 0 && v.name === '') data.delete(k);
     setSending(0);
     try {
@@ -69,7 +92,7 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeBase }: { sour
       }
       const error = (body as { error?: { message?: string; field?: string; link?: string } } | null)?.error;
       const shown: FieldError = { message: error?.message ?? `The server answered ${status}.`, link: error?.link };
-      const known = error?.field && (error.field === 'model' || ['A', 'B', 'C', 'D', 'name', 'description', 'timeBase', 'tags', 'notes'].includes(error.field));
+      const known = error?.field && [...MODE_FIELDS[mode], 'name', 'description', 'timeBase', 'tags', 'notes'].includes(error.field);
       if (known) setErrors({ [error!.field!]: shown });
       else setGeneral(shown);
     } catch (err) {
@@ -173,14 +196,36 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeBase }: { sour
           </label>
           <label className="flex items-center gap-2">
             <input type="radio" name="fileMode" value="matrices" checked={mode === 'matrices'} onChange={() => setMode('matrices')} />
-            Matrix files A, B, C, D (Matrix Market .mtx or CSV)
+            Matrix files A, B, C, D, E (Matrix Market .mtx or CSV)
+          </label>
+          <label className="flex items-center gap-2">
+            <input type="radio" name="fileMode" value="second-order" checked={mode === 'second-order'} onChange={() => setMode('second-order')} />
+            Second-order files M, D, K with B and C (Matrix Market .mtx or CSV)
+          </label>
+          <label className="flex items-center gap-2">
+            <input type="radio" name="fileMode" value="archive" checked={mode === 'archive'} onChange={() => setMode('archive')} />
+            One zip archive of the matrix files
           </label>
         </div>
         {mode === 'json' ? (
           fileInput('model', 'Model file (.json)', '.json,application/json', true)
+        ) : mode === 'archive' ? (
+          <>
+            {fileInput('archive', 'Zip archive (.zip)', '.zip,application/zip', true)}
+            <p className="mt-1 text-xs text-graphite-soft">
+              Name the files inside by their matrix: A, B, C and optionally D and E (A.mtx, B.mtx, …), or M, K, B, C and optionally D for a second-order model
+              (M q̈ + D q̇ + K q = B u).
+            </p>
+          </>
         ) : (
-          <div className="grid gap-4 sm:grid-cols-2">{MATRIX_FIELDS.map((f) => fileInput(f.name, f.label, '.mtx,.mm,.csv,text/csv', f.required, f.shape))}</div>
+          <div className="grid gap-4 sm:grid-cols-2">
+            {(mode === 'matrices' ? MATRIX_FIELDS : SECOND_ORDER_FIELDS).map((f) => fileInput(f.name, f.label, '.mtx,.mm,.csv,text/csv', f.required, f.shape))}
+          </div>
         )}
+        <p className="mt-2 text-xs text-graphite-soft">
+          Models above the engine’s crossover (1000 states unless set otherwise) given as Matrix Market coordinate files, and every model with E, take the large-model path: checked and analysed
+          without ever being made dense, their figures marked exact or estimated.
+        </p>
       </fieldset>
 
       {general ? (

@@ -7,10 +7,18 @@ import path from 'node:path';
 import { repoRoot } from '../uploads/settings';
 import type { ModelFile } from './model-files';
 import type { SignalOutcome, ValidationOutcome } from './validate-task';
+import type { ArchiveOutcome } from '../uploads/archive';
 
 export type CheckRequest =
   | { kind: 'model'; files: ModelFile[] }
+  | { kind: 'archive'; archive: { path: string; name: string }; outDir: string; maxBytes: number }
   | { kind: 'signal'; file: { path: string; name: string }; inputs: number };
+
+/** A zip archive unpacked (its members on disk, lib/uploads/archive.ts) and, when that worked, its model checked. */
+export interface ArchiveCheck {
+  archive: ArchiveOutcome;
+  check: ValidationOutcome | null;
+}
 
 /** Heap of the checking process, MiB: room for the text of a maximal upload and its parsed matrices. */
 const CHECK_HEAP_MB = 4096;
@@ -87,6 +95,11 @@ function spawnCheck<T>(request: CheckRequest): Promise<T> {
 
 export function validateInChildProcess(files: readonly ModelFile[]): Promise<ValidationOutcome> {
   return runCheck<ValidationOutcome>({ kind: 'model', files: [...files] });
+}
+
+/** Unpacks a zip archive of model files into `outDir` and checks the model they make. */
+export function checkArchiveInChildProcess(archive: { path: string; name: string }, outDir: string, maxBytes: number): Promise<ArchiveCheck> {
+  return runCheck<ArchiveCheck>({ kind: 'archive', archive, outDir, maxBytes });
 }
 
 export function validateSignalInChildProcess(file: { path: string; name: string }, inputs: number): Promise<SignalOutcome> {

@@ -1,8 +1,11 @@
 // The check an upload passes before anything is registered: the files load into a valid model through
 // the engine's one validation boundary (model-files.ts). What it reports is what the version row records.
+// A model on the sparse path (enginePathOf: above the crossover, or with E) is read streamed into
+// compressed columns and checked there (shapes, finite values, sizes of B, C, D, E against A): it is never
+// made dense, so a 10⁵-state model is checked in the memory of its nonzeros.
 import { readFileSync } from 'node:fs';
 import { ModelError, parseSampledInput } from '../../reduction/index';
-import { loadModel, nonzeros, type ModelFile, type SourceFormat } from './model-files';
+import { enginePathOf, loadModel, loadSparseModel, nonzeros, type EnginePath, type ModelFile, type SourceFormat } from './model-files';
 
 export interface ValidatedModel {
   format: SourceFormat;
@@ -11,6 +14,8 @@ export interface ValidatedModel {
   outputs: number;
   nonzerosA: number;
   timeBase: string | null;
+  /** the engine path the model takes (reduction/sparse/path.ts) */
+  path: EnginePath;
 }
 
 export type ValidationOutcome =
@@ -19,6 +24,11 @@ export type ValidationOutcome =
 
 export function validateModelFiles(files: readonly ModelFile[]): ValidationOutcome {
   try {
+    if (enginePathOf(files) === 'sparse') {
+      const { model, format } = loadSparseModel(files);
+      const n = model.A.n;
+      return { ok: true, model: { format, states: n, inputs: model.B.cols, outputs: model.C.rows, nonzerosA: model.A.colPtr[n], timeBase: null, path: 'sparse' } };
+    }
     const { model, format } = loadModel(files);
     return {
       ok: true,
@@ -29,6 +39,7 @@ export function validateModelFiles(files: readonly ModelFile[]): ValidationOutco
         outputs: model.C.rows,
         nonzerosA: nonzeros(model.A),
         timeBase: model.timeBase ?? null,
+        path: 'dense',
       },
     };
   } catch (e) {
