@@ -4,7 +4,7 @@
 // Pure and browser-safe: client components import it.
 import { formatFrequency, formatNumber, frequencyUnit } from '@/lib/format';
 
-export type RecipeMethod = 'balanced' | 'residualization' | 'modal' | 'frequency-limited';
+export type RecipeMethod = 'balanced' | 'residualization' | 'modal' | 'frequency-limited' | 'irka';
 
 /** The method's name in running text (trade names of published methods). */
 export const METHOD_NAMES: Record<RecipeMethod, string> = {
@@ -12,12 +12,14 @@ export const METHOD_NAMES: Record<RecipeMethod, string> = {
   residualization: 'balanced residualization',
   modal: 'modal truncation',
   'frequency-limited': 'frequency-limited balanced truncation',
+  irka: 'IRKA (iterative rational Krylov)',
 };
 
 /** What sets each method apart, for the recipe form's choices. */
 const METHOD_NOTES: Partial<Record<RecipeMethod, string>> = {
   residualization: 'keeps the DC gain',
   'frequency-limited': 'for a band',
+  irka: 'H2-optimal, no a-priori bound',
 };
 
 /** The sentence that stands in for a bound where the method has none. */
@@ -87,6 +89,6 @@ export function describeRecipe(recipe: RecipeInWords, options: { timeBase?: stri
     const gave = options.resultOrder !== undefined ? ` (gave ${options.resultOrder})` : '';
     parts.push(`smallest order whose bound is at most ${num(recipe.tolerance)} ${plain ? 'x ||G||inf' : '× ‖G‖∞'}${gave}`);
   }
-  if (recipe.method === 'frequency-limited') parts.push(NO_BOUND_NOTE);
+  if (recipe.method === 'frequency-limited' || recipe.method === 'irka') parts.push(NO_BOUND_NOTE);
   return parts.join(', ');
 }

@@ -369,7 +369,8 @@ export async function registerUpload(request: Request, user: SessionUser): Promi
         kind: 'analysis',
         subjectType: 'source_version',
         subjectId: version.id,
-        payload: { sourceVersionId: version.id },
+        // The engine path the check found: the worker's memory estimate depends on it (lib/jobs/memory-budget.ts).
+        payload: { sourceVersionId: version.id, enginePath: check.model.path },
         createdBy: user.id,
       });
       await recordAudit(trx, {

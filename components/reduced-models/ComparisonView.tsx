@@ -172,26 +172,47 @@ export function ComparisonView(p: ComparisonViewProps) {
           {figures.frequencyLimited ? <BandErrorSummary figures={figures} timeBase={timeBase} /> : null}
         </div>
       </div>
+      {curves.step.full.length > 0 ? (
+        <>
+          <div className="grid gap-6 xl:grid-cols-2">
+            <TimeResponseChart kind="step" full={series(curves.step, 'full')} reduced={series(curves.step, 'reduced')} timeBase={timeBase} channelLabel={label} />
+            <TimeResponseChart kind="impulse" full={series(curves.impulse, 'full')} reduced={series(curves.impulse, 'reduced')} timeBase={timeBase} channelLabel={label} />
+          </div>
+          <p className="text-xs text-graphite-soft">
+            Responses from rest to a unit step and a unit impulse on input {inputLabels[j]}, over {formatTime(figures.simulationEnd, timeBase)}; solvers: full {curves.step.solverFull},
+            reduced {curves.step.solverReduced}.
+          </p>
+          <InputSignalPanel
+            reducedVersionId={p.reducedVersionId}
+            initialJob={p.responseJob}
+            canUpload={p.canUploadSignal}
+            channel={channel}
+            channelLabel={label}
+            inputCount={inputs}
+            timeBase={timeBase}
+          />
+        </>
+      ) : (
+        // The large-model path: the full model's frequency response comes from sparse solves, its time responses are not computed.
+        <p className="panel p-4 text-sm" data-testid="full-time-note">
+          {figures.fullTimeResponseNote ?? 'The full model’s time responses were not computed.'} Responses to an uploaded input are not offered for this model either.
+        </p>
+      )}
       <div className="grid gap-6 xl:grid-cols-2">
-        <TimeResponseChart kind="step" full={series(curves.step, 'full')} reduced={series(curves.step, 'reduced')} timeBase={timeBase} channelLabel={label} />
-        <TimeResponseChart kind="impulse" full={series(curves.impulse, 'full')} reduced={series(curves.impulse, 'reduced')} timeBase={timeBase} channelLabel={label} />
-      </div>
-      <p className="text-xs text-graphite-soft">
-        Responses from rest to a unit step and a unit impulse on input {inputLabels[j]}, over {formatTime(figures.simulationEnd, timeBase)}; solvers: full {curves.step.solverFull},
-        reduced {curves.step.solverReduced}.
-      </p>
-      <InputSignalPanel
-        reducedVersionId={p.reducedVersionId}
-        initialJob={p.responseJob}
-        canUpload={p.canUploadSignal}
-        channel={channel}
-        channelLabel={label}
-        inputCount={inputs}
-        timeBase={timeBase}
-      />
-      <div className="grid gap-6 xl:grid-cols-2">
-        <FiguresTable figures={toFiguresTable(figures, timeBase)} caption="Accuracy report" />
-        <CostRows rows={figures.costRows} input={figures.simulationInput} tEnd={figures.simulationEnd} timeBase={timeBase} />
+        <div>
+          <FiguresTable figures={toFiguresTable(figures, timeBase)} caption="Accuracy report" />
+          {figures.path === 'sparse' ? (
+            <p className="mt-2 text-xs text-graphite-soft" data-testid="estimated-figures">
+              Large-model path, estimated: {(figures.estimated ?? []).join(', ') || 'none'} (the H∞ error is the largest of the sampled errors, a lower bound; the H2 error is
+              not computed). The DC-gain error is exact.
+            </p>
+          ) : null}
+        </div>
+        {figures.costRows.length > 0 ? (
+          <CostRows rows={figures.costRows} input={figures.simulationInput} tEnd={figures.simulationEnd} timeBase={timeBase} />
+        ) : (
+          <p className="panel p-4 text-sm text-graphite-soft">Simulation cost: {figures.simulationInput}.</p>
+        )}
       </div>
       {figures.notes.length ? (
         <ul className="list-disc pl-5 text-sm" aria-label="Notes from the reduction">

@@ -23,7 +23,7 @@ import type { OrderFigureTable } from '@/lib/engine-tasks/records';
 import type { JobView } from '@/lib/jobs/jobs';
 import type { ReductionRequest } from '@/lib/reduced-models/schemas';
 import { JobProgress } from './JobProgress';
-import { storedTable, suggestedOrder } from './recipe-choices';
+import { orderByNumberOnly, storedTable, suggestedOrder } from './recipe-choices';
 import { modalBand, recipeFormSchema, type RecipeFormContext, type RecipeFormValues } from './recipe-form-schema';
 import {
   AcceptanceFields,
@@ -90,7 +90,14 @@ export function RecipeForm(p: RecipeFormProps) {
   const router = useRouter();
   const id = useId();
   const [job, setJob] = useState<JobView | null>(null);
-  const context: RecipeFormContext = { sourceVersionId: p.sourceVersionId, method, selection, order, hzAllowed: p.timeBaseSeconds !== null };
+  const context: RecipeFormContext = {
+    sourceVersionId: p.sourceVersionId,
+    method,
+    selection,
+    order,
+    hzAllowed: p.timeBaseSeconds !== null,
+    numberOnly: orderByNumberOnly(analysis, method),
+  };
   const form = useForm<RecipeFormValues, RecipeFormContext, ReductionRequest>({
     defaultValues: startingValues(p),
     context,

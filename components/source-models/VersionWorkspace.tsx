@@ -23,6 +23,7 @@ export function VersionWorkspace(props: WorkspaceProps) {
 
   const keptExact = analysis.marginalPoles + analysis.unstablePoles;
   const stableOrder = Math.max(0, order - keptExact);
+  const sparse = analysis.path === 'sparse';
   const kept = useMemo(() => keptPoles(analysis, method, selection, order), [analysis, method, selection, order]);
   const modes = useMemo(
     () => analysis.modes.map((m) => ({ re: m.re, im: m.im, pair: m.pair, stability: m.stability, dominance: m.dominance })),
@@ -32,15 +33,28 @@ export function VersionWorkspace(props: WorkspaceProps) {
   return (
     <div className="space-y-6">
       <div className="grid gap-6 xl:grid-cols-2">
-        <PoleMap re={analysis.poles.re} im={analysis.poles.im} stability={analysis.poles.stability} kept={kept ?? undefined} timeBase={timeBase} title="Pole map" />
+        <PoleMap
+          re={analysis.poles.re}
+          im={analysis.poles.im}
+          stability={analysis.poles.stability}
+          kept={kept ?? undefined}
+          timeBase={timeBase}
+          title={sparse ? `Computed poles (${analysis.poles.re.length} of ${analysis.states.toLocaleString('en-US')}, estimated)` : 'Pole map'}
+        />
         {analysis.hankelSingularValues.length > 0 ? (
           <div>
             <HankelChart
               hankelSingularValues={analysis.hankelSingularValues}
               errorBound={analysis.hankelBound}
               order={method === 'balanced' || method === 'residualization' ? stableOrder : undefined}
-              title="Hankel singular values of the stable part"
+              title={sparse ? `Leading Hankel singular values (${analysis.hankelSingularValues.length} resolved, estimated)` : 'Hankel singular values of the stable part'}
             />
+            {sparse ? (
+              <p className="mt-1 text-xs text-graphite-soft" data-testid="hsv-leading-note">
+                Large-model path: the values the low-rank gramian factors resolve, accurate to about the gramian residual; the smaller ones are not
+                computed, so each bound 2Σσ(r+1..k) sums the resolved values only (an estimate). Choose the order where the values have fallen far enough.
+              </p>
+            ) : null}
             <p className="mt-1 text-xs text-graphite-soft">
               Index and order count stable states{keptExact > 0 ? `; ${keptExact} marginal or unstable states are kept exactly on top` : ''}. The bound
               2Σσ(r+1..n) holds for balanced truncation and residualization (Enns 1984; Glover 1984), not for
@@ -60,7 +74,11 @@ export function VersionWorkspace(props: WorkspaceProps) {
         order={order}
         onOrder={setOrder}
       />
-      <ModesTable modes={modes} timeBase={timeBase} caption={`Modes (${analysis.modes.length}), most dominant first`} />
+      <ModesTable
+        modes={modes}
+        timeBase={timeBase}
+        caption={sparse ? `Computed modes (${analysis.modes.length}), the dominant ones first (estimated)` : `Modes (${analysis.modes.length}), most dominant first`}
+      />
     </div>
   );
 }

@@ -7,11 +7,30 @@ import type { AnalysisRecord, OrderFigureTable, OrderFiguresRecord } from '@/lib
 // The engine's own ranking rule (a pure module: no linear algebra reaches the browser).
 import { rankStoredModes } from '@/reduction/mode-ranking';
 
-export type Method = 'balanced' | 'residualization' | 'modal' | 'frequency-limited';
+export type Method = 'balanced' | 'residualization' | 'modal' | 'frequency-limited' | 'irka';
 export type ModalSelection = 'dominance' | 'slowest' | 'band';
+
+/**
+ * The methods offered for an analysed model: on the large-model path the at-scale ones (low-rank balanced
+ * truncation and residualization, modal truncation of computed modes, IRKA); on the dense path all.
+ */
+export function methodsFor(analysis: AnalysisRecord): readonly Method[] {
+  return analysis.path === 'sparse' ? ['balanced', 'residualization', 'modal', 'irka'] : ['balanced', 'residualization', 'modal', 'frequency-limited', 'irka'];
+}
+
+/**
+ * Whether the order is chosen by number only: methods without an a-priori bound (frequency-limited balanced
+ * truncation, IRKA), and every method on the large-model path (its bounds are estimates over the leading
+ * Hankel values, shown on the slider for each order).
+ */
+export function orderByNumberOnly(analysis: AnalysisRecord, method: Method): boolean {
+  return method === 'frequency-limited' || method === 'irka' || analysis.path === 'sparse';
+}
 
 export function storedTable(analysis: AnalysisRecord, method: Method, selection: ModalSelection): OrderFigureTable | null {
   if (method === 'balanced') return analysis.orderFigures.balanced;
+  // IRKA has no bound: the balanced orders without it on the dense path; the large-model path's plain orders.
+  if (method === 'irka') return analysis.path === 'sparse' ? analysis.orderFigures.modalDominance : frequencyLimitedTable(analysis.orderFigures.balanced);
   if (method === 'frequency-limited') return frequencyLimitedTable(analysis.orderFigures.balanced);
   if (method === 'residualization') return analysis.orderFigures.residualization;
   if (selection === 'dominance') return analysis.orderFigures.modalDominance;

@@ -9,7 +9,7 @@ import { formatFrequency, formatNumber, frequencyUnit } from '@/lib/format';
 import { OrderSlider } from '@/components/workspace/OrderSlider';
 import type { AnalysisRecord, OrderFigureTable } from '@/lib/engine-tasks/records';
 import type { ProjectBandSeed } from '@/lib/reduced-models/queries';
-import { orderForTolerance, type BandUnit, type Method, type ModalSelection } from './recipe-choices';
+import { methodsFor, orderByNumberOnly, orderForTolerance, type BandUnit, type Method, type ModalSelection } from './recipe-choices';
 import { typedNumber, type RecipeFormValues } from './recipe-form-schema';
 import { methodChoiceLabel } from '@/lib/recipe-words';
 
@@ -43,7 +43,6 @@ export interface RecipeFormProps extends RecipeSource {
   onOrder: (r: number) => void;
 }
 
-const METHODS: readonly Method[] = ['balanced', 'residualization', 'modal', 'frequency-limited'];
 
 /** Shown instead of the bound column, and on the result page. */
 export const NO_BOUND_SENTENCE =
@@ -83,12 +82,12 @@ function Field({ htmlFor, label, children }: { htmlFor: string; label: ReactNode
 }
 
 /** Method, and for modal truncation the rule that chooses the modes kept first (both held by the workspace). */
-export function MethodFields({ id, method, onMethod, selection, onSelection, canRun }: { id: string } & RecipeFormProps) {
+export function MethodFields({ id, analysis, method, onMethod, selection, onSelection, canRun }: { id: string } & RecipeFormProps) {
   return (
     <div className="grid gap-4 md:grid-cols-2">
       <Field htmlFor={`${id}-method`} label="Method">
         <select id={`${id}-method`} className="field-input" value={method} onChange={(e) => onMethod(e.target.value as Method)} disabled={!canRun}>
-          {METHODS.map((m) => (
+          {methodsFor(analysis).map((m) => (
             <option key={m} value={m}>
               {methodChoiceLabel(m)}
             </option>
@@ -100,7 +99,7 @@ export function MethodFields({ id, method, onMethod, selection, onSelection, can
           <select id={`${id}-selection`} className="field-input" value={selection} onChange={(e) => onSelection(e.target.value as ModalSelection)} disabled={!canRun}>
             <option value="dominance">Most dominant (largest contribution to ‖G‖∞)</option>
             <option value="slowest">Slowest (smallest decay rate)</option>
-            <option value="band">Inside a frequency band</option>
+            {analysis.path === 'sparse' ? null : <option value="band">Inside a frequency band</option>}
           </select>
         </Field>
       ) : null}
@@ -217,14 +216,19 @@ export function OrderFields({
   const orderRule = useWatch<RecipeFormValues, 'orderRule'>({ name: 'orderRule' });
   const tolerance = useWatch<RecipeFormValues, 'tolerance'>({ name: 'tolerance' });
   const limited = method === 'frequency-limited';
+  const numberOnly = orderByNumberOnly(analysis, method);
   const toleranceValue = typedNumber(tolerance);
   const available = table?.available ? table : null;
   const byTolerance = available && toleranceValue ? orderForTolerance(available, toleranceValue, analysis.stablePartHInfinityNorm) : null;
   return (
     <fieldset>
       <legend className="field-label mb-1">Order</legend>
-      {limited ? (
-        <p className="mb-3 text-sm">By number of states (the method has no bound for a tolerance to meet).</p>
+      {numberOnly ? (
+        <p className="mb-3 text-sm">
+          {limited || method === 'irka'
+            ? 'By number of states (the method has no bound for a tolerance to meet).'
+            : 'By number of states: on the large-model path each order’s bound is an estimate over the leading Hankel singular values, shown beside the slider.'}
+        </p>
       ) : (
         <div role="radiogroup" aria-label="Order rule" className="mb-3 flex flex-wrap gap-4 text-sm">
           <label className="flex items-center gap-2">
@@ -243,7 +247,7 @@ export function OrderFields({
         <p role="alert" className="text-sm">
           {methodChoiceLabel(method)} is not available for this model: {table.reason}
         </p>
-      ) : orderRule === 'order' || limited ? (
+      ) : orderRule === 'order' || numberOnly ? (
         <>
           <OrderSlider
             orders={table.orders}
@@ -253,7 +257,13 @@ export function OrderFields({
             fullOrder={analysis.states}
             timeBase={timeBase}
             disabled={!canRun}
-            noBoundNote={limited ? `${NO_BOUND_SENTENCE} Stiffness and step limits are shown on the result page, since the reduced poles depend on the band.` : undefined}
+            noBoundNote={
+              limited
+                ? `${NO_BOUND_SENTENCE} Stiffness and step limits are shown on the result page, since the reduced poles depend on the band.`
+                : method === 'irka'
+                  ? 'IRKA has no a-priori error bound: the error is measured against the full model once the reduction has run, and the reduced model’s stability is reported.'
+                  : undefined
+            }
           />
           {table.limitNote ? <p className="mt-1 text-xs text-graphite-soft">{table.limitNote}</p> : null}
           <FieldMessage field="recipe.order" />

@@ -34,6 +34,8 @@ export interface RecipeFormContext {
   order: number;
   /** the model's time unit has a known length, so a band in Hz can be converted */
   hzAllowed: boolean;
+  /** the order is chosen by number only (recipe-choices.ts orderByNumberOnly): no tolerance rule */
+  numberOnly?: boolean;
 }
 
 /** A number as typed: undefined when nothing is typed, NaN when it is not a finite number. */
@@ -58,7 +60,7 @@ type RequestInput = z.input<typeof reductionRequestSchema>;
 /** The form's values and context as a reduction request body, for the server's schema to check (hence the cast). */
 function requestBody(v: RecipeFormValues, ctx: RecipeFormContext): RequestInput {
   const limited = ctx.method === 'frequency-limited';
-  const orderRule = limited ? 'order' : v.orderRule;
+  const orderRule = limited || ctx.numberOnly ? 'order' : v.orderRule;
   const recipe: Record<string, unknown> = { method: ctx.method, orderRule, modalSelection: ctx.selection };
   if (limited) {
     const checked = checkLimitedBand(v.limitedBand.from, v.limitedBand.to, v.limitedBand.unit, ctx.hzAllowed);
@@ -88,7 +90,7 @@ export function recipeFormSchema(ctx: RecipeFormContext) {
         const checked = checkLimitedBand(v.limitedBand.from, v.limitedBand.to, v.limitedBand.unit, ctx.hzAllowed);
         if (!checked.ok) fail(checked.field, checked.message);
       }
-      if (!limited && v.orderRule === 'tolerance' && !((typedNumber(v.tolerance) ?? NaN) > 0)) {
+      if (!limited && !ctx.numberOnly && v.orderRule === 'tolerance' && !((typedNumber(v.tolerance) ?? NaN) > 0)) {
         fail('recipe.tolerance', 'Give a positive tolerance, e.g. 1e-3.');
       }
       if (ctx.method === 'modal' && ctx.selection === 'band' && !modalBand(v.band)) {

@@ -2,6 +2,9 @@
 // stability split, stiffness ratio, DC gain, H2 and H∞ norms, Hankel singular values, modal dominance and
 // fixed-step limits; reduction/analysis.ts cites each method) and the order slider's figures for every
 // method (order-figures.ts). The result is plain JSON for analyses.result.
+//
+// A model on the large-model path (model-files.ts, enginePathOf) is analysed by sparse-analysis-task.ts
+// instead, with the job's stop flag and the worker's memory budget.
 import {
   PreparationCache,
   analyzeModel,
@@ -12,7 +15,8 @@ import {
   toRows,
   type ModelAnalysis,
 } from '../../reduction/index';
-import { loadModel, nonzeros, type ModelFile } from './model-files';
+import { enginePathOf, loadModel, nonzeros, type ModelFile } from './model-files';
+import { runSparseAnalysis, type SparseTaskOptions } from './sparse-analysis-task';
 import { balancedOrderFigures, keptPolesOf, modalOrderFigures } from './order-figures';
 import type { AnalysisRecord, ModeRecord, OrderFigureTable } from './records';
 import type { ProgressReporter } from './progress';
@@ -45,7 +49,8 @@ function unavailable(e: unknown): OrderFigureTable {
 /** Weights of the stages in the progress bar: the analysis itself is about half of the work. */
 const STAGES = { read: 0.02, analysis: 0.6, balanced: 0.22, residualization: 0.1, modal: 0.06 } as const;
 
-export function runAnalysis(files: readonly ModelFile[], engineVersion: string, report: ProgressReporter): AnalysisRecord {
+export function runAnalysis(files: readonly ModelFile[], engineVersion: string, report: ProgressReporter, options: SparseTaskOptions = {}): AnalysisRecord {
+  if (enginePathOf(files) === 'sparse') return runSparseAnalysis(files, engineVersion, report, options);
   const started = Date.now();
   report('Reading the model files', 0);
   const { model, format } = loadModel(files);
@@ -125,5 +130,6 @@ export function runAnalysis(files: readonly ModelFile[], engineVersion: string, 
     frequencyBand: band,
     orderFigures: { balanced, residualization, modalDominance, modalSlowest },
     wallMs: Date.now() - started,
+    path: 'dense',
   };
 }

@@ -92,6 +92,40 @@ export interface AnalysisRecord {
     modalSlowest: OrderFigureTable;
   };
   wallMs: number;
+  /** the engine path that analysed it; absent in records written before the large-model path (dense) */
+  path?: 'dense' | 'sparse';
+  /** large-model path only: what was computed how, and which figures are estimates */
+  sparse?: SparseAnalysisRecord;
+}
+
+/**
+ * What the large-model path adds to an analysis (lib/engine-tasks/sparse-analysis-task.ts): which of the
+ * record's figures are estimates and how each was obtained, and the low-rank gramians' own accuracy.
+ */
+export interface SparseAnalysisRecord {
+  /** keys of AnalysisRecord whose values are estimates (the rest are exact to rounding) */
+  estimated: string[];
+  /** how each figure was obtained, by AnalysisRecord key */
+  notes: Record<string, string>;
+  /** E ẋ = A x + B u: whether a descriptor matrix E was given (or made from a second-order M) */
+  descriptor: boolean;
+  /** the Hankel singular values the low-rank gramian factors resolve (the slider stops there) */
+  hsvResolved: number;
+  /** the low-rank ADI of both gramians: normalised residual ‖W‖²/‖B‖² reached, steps, factor columns */
+  gramianResidual: {
+    tolerance: number;
+    controllability: { residual: number; iterations: number; factorColumns: number; converged: boolean } | null;
+    observability: { residual: number; iterations: number; factorColumns: number; converged: boolean } | null;
+    shifts: number;
+    factorizations: number;
+    seconds: number;
+  };
+  /** ‖A x − λ E x‖/(‖A‖₁‖x‖) of each computed pole, in the order of `poles` */
+  poleResiduals: (number | null)[];
+  /** the fastest pole (Krylov–Schur on E⁻¹A): its residual and whether it converged */
+  fastestPole: { re: number; im: number; residual: number | null; converged: boolean };
+  /** frequencies evaluated by the ‖G‖∞ sweep */
+  sweepEvaluations: number;
 }
 
 export interface ChannelCurves {
@@ -215,6 +249,12 @@ export interface AccuracyFiguresRecord {
   /** frequency-limited balanced truncation only */
   frequencyLimited?: FrequencyLimitedRecord | null;
   engineWallMs: number;
+  /** the engine path that made it; absent in reports written before the large-model path (dense) */
+  path?: 'dense' | 'sparse';
+  /** large-model path: the keys of these figures that are estimates (the H∞ error sampled by a sweep, the bound over the resolved Hankel values) */
+  estimated?: string[];
+  /** large-model path: why the full model's time responses are absent (TimeCurves.full is then empty) */
+  fullTimeResponseNote?: string | null;
 }
 
 export interface ReducedMatricesRecord {

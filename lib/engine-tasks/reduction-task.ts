@@ -451,10 +451,11 @@ export function runReduction(
     orderRule: r.orderRule,
     toleranceTarget: r.toleranceTarget,
     notes: [...r.notes],
-    errorBoundNote: r.frequencyLimited ? NO_BOUND_NOTE : null,
+    errorBoundNote: r.frequencyLimited || recipe.method === 'irka' ? NO_BOUND_NOTE : null,
     reducedStable: r.frequencyLimited ? r.frequencyLimited.reducedStable : Array.from(stablePartPoles.re).every((re) => re < 0),
     frequencyLimited: r.frequencyLimited,
     engineWallMs: Date.now() - started,
+    path: 'dense',
   };
   const curves: ReductionCurves = {
     frequency: { frequencies: w, full: full.curves, reduced: red.curves, sigmaFull: full.sigma, sigmaReduced: red.sigma, error },

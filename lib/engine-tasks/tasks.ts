@@ -5,6 +5,6 @@ import type { AnalysisSummary, RecipeInput } from './reduction-task';
 import type { ReducedMatricesRecord } from './records';
 
 export type TaskRequest =
-  | { task: 'analysis'; files: ModelFileRef[]; engineVersion: string }
-  | { task: 'reduction'; files: ModelFileRef[]; recipe: RecipeInput; summary: AnalysisSummary; engineVersion: string }
+  | { task: 'analysis'; files: ModelFileRef[]; engineVersion: string; memoryBudgetMiB?: number }
+  | { task: 'reduction'; files: ModelFileRef[]; recipe: RecipeInput; summary: AnalysisSummary; engineVersion: string; memoryBudgetMiB?: number }
   | { task: 'response'; files: ModelFileRef[]; matrices: ReducedMatricesRecord; signal: FileRef };

@@ -11,7 +11,7 @@ import { findReducedVersion, recipeInputOf, registerReducedVersion, signalPathOf
 import { db } from '@/lib/db';
 import type { JobRow } from './jobs';
 import type { JobKind } from './queue';
-import { requireWithinMemoryBudget } from './memory-budget';
+import { requireWithinMemoryBudget, workerMemoryBudgetMiB } from './memory-budget';
 import { JobInputError } from './errors';
 
 export { JobInputError } from './errors';
@@ -25,8 +25,10 @@ const analysis: JobHandler<AnalysisRecord> = {
   async prepare(job) {
     const version = await findSourceVersion(String(job.payload.sourceVersionId));
     if (!version) throw new JobInputError('the source version of this analysis no longer exists');
-    requireWithinMemoryBudget('analysis', version.states);
-    return { task: 'analysis', files: modelFilesOfVersion(version), engineVersion: ENGINE_VERSION };
+    // The upload's check said which engine path the model takes (payload.enginePath; absent: dense).
+    const path = job.payload.enginePath === 'sparse' ? 'sparse' : 'dense';
+    requireWithinMemoryBudget('analysis', { states: version.states, nonzeros: Number(version.nonzeros_a), path });
+    return { task: 'analysis', files: modelFilesOfVersion(version), engineVersion: ENGINE_VERSION, memoryBudgetMiB: workerMemoryBudgetMiB() };
   },
   async write(trx, job, record) {
     const sourceVersionId = String(job.payload.sourceVersionId);
@@ -43,7 +45,7 @@ const reduction: JobHandler<ReductionRecord> = {
     if (!recipe) throw new JobInputError('the recipe of this reduction no longer exists');
     const record = await analysisOf(version.id);
     if (!record) throw new JobInputError('the source version has no analysis yet');
-    requireWithinMemoryBudget('reduction', version.states);
+    requireWithinMemoryBudget('reduction', { states: version.states, nonzeros: Number(version.nonzeros_a), path: record.path ?? 'dense' });
     const summary: AnalysisSummary = {
       frequencyBand: record.frequencyBand,
       stablePartHInfinityNorm: record.stablePartHInfinityNorm,
@@ -53,7 +55,14 @@ const reduction: JobHandler<ReductionRecord> = {
       poles: record.poles,
       stabilityTolerance: record.stabilityTolerance,
     };
-    return { task: 'reduction', files: modelFilesOfVersion(version), recipe: recipeInputOf(recipe), summary, engineVersion: ENGINE_VERSION };
+    return {
+      task: 'reduction',
+      files: modelFilesOfVersion(version),
+      recipe: recipeInputOf(recipe),
+      summary,
+      engineVersion: ENGINE_VERSION,
+      memoryBudgetMiB: workerMemoryBudgetMiB(),
+    };
   },
   async write(trx, job, record) {
     const registered = await registerReducedVersion(trx, job, record);
@@ -67,6 +76,11 @@ const response: JobHandler<InputResponseRecord> = {
     if (!reduced) throw new JobInputError('the reduced version no longer exists');
     const version = await findSourceVersion(reduced.source_version_id);
     if (!version) throw new JobInputError('the source version of the reduced model no longer exists');
+    if ((await analysisOf(version.id))?.path === 'sparse') {
+      throw new JobInputError(
+        'the response to an uploaded input needs the full model’s time response, which the large-model path does not compute; the reduced model can be simulated from its export',
+      );
+    }
     requireWithinMemoryBudget('response', version.states);
     return { task: 'response', files: modelFilesOfVersion(version), matrices: reduced.matrices, signal: signalPathOf(job.payload) };
   },

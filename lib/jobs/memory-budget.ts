@@ -17,9 +17,34 @@ import { JobInputError } from './errors';
 const BASE_MIB = 200;
 const DENSE_MATRICES = 32;
 
-/** Estimated peak resident memory of one engine task on an n-state model, MiB (dense engine). */
-export function estimateTaskMemoryMiB(_kind: JobKind, states: number): number {
-  const matrixMiB = (8 * states * states) / 1048576;
+/**
+ * The large-model path never forms an n×n matrix: its memory grows with the states (ADI factor columns,
+ * Krylov and dominant-pole bases, the frequency sweep's vectors: a few hundred vectors of n doubles) and
+ * with the nonzeros of A (the fill of each sparse LU of A − σE and the factorizations the ADI keeps). Per
+ * state 16 KiB and per nonzero of A 2 KiB (common practice: generous multiples of those counts); measured
+ * for scale: a 22,500-state hearth plate (112,500 nonzeros) peaked at 335 MiB in one process for its
+ * analysis and its reduction each (README, "Web benchmark"), against an estimate of 772 MiB here. Each
+ * sparse factorization is checked again against the budget from UMFPACK's own estimate before it is made
+ * (reduction/sparse/budget.ts), so an estimate too low here still fails with both figures named.
+ */
+const SPARSE_KIB_PER_STATE = 16;
+const SPARSE_KIB_PER_NONZERO = 2;
+
+/** The model a task works on: its states, and on the large-model path the nonzeros of its A. */
+export interface TaskModelSize {
+  readonly states: number;
+  /** 'sparse' on the large-model path (lib/engine-tasks/model-files.ts, enginePathOf); dense otherwise */
+  readonly path?: 'dense' | 'sparse';
+  readonly nonzeros?: number;
+}
+
+/** Estimated peak resident memory of one engine task, MiB (dense engine; or the large-model path by its nonzeros). */
+export function estimateTaskMemoryMiB(_kind: JobKind, size: number | TaskModelSize): number {
+  const model = typeof size === 'number' ? { states: size } : size;
+  if (model.path === 'sparse') {
+    return Math.ceil(BASE_MIB + (SPARSE_KIB_PER_STATE * model.states + SPARSE_KIB_PER_NONZERO * (model.nonzeros ?? 0)) / 1024);
+  }
+  const matrixMiB = (8 * model.states * model.states) / 1048576;
   return Math.ceil(BASE_MIB + DENSE_MATRICES * matrixMiB);
 }
 
@@ -35,8 +60,9 @@ export function workerMemoryBudgetMiB(): number {
 }
 
 /** Refuses a task whose estimate exceeds the budget (JobInputError: failed at once, not retried). */
-export function requireWithinMemoryBudget(kind: JobKind, states: number): void {
-  const estimate = estimateTaskMemoryMiB(kind, states);
+export function requireWithinMemoryBudget(kind: JobKind, size: number | TaskModelSize): void {
+  const estimate = estimateTaskMemoryMiB(kind, size);
+  const states = typeof size === 'number' ? size : size.states;
   const budget = workerMemoryBudgetMiB();
   if (estimate > budget) {
     throw new JobInputError(

@@ -14,6 +14,7 @@ import { analysisOf, findSourceVersion } from '@/lib/source-models';
 import { signalFieldsSchema, type LimitedBandInput, type ReductionRequest } from '@/lib/reduced-models/schemas';
 import type { RecipeRow } from '@/lib/reduced-models/rows';
 import { findReducedVersion } from '@/lib/reduced-models/queries';
+import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 
 /**
  * The entered band in rad per model time unit (what the engine works in): rad as given; Hz times 2π and the
@@ -39,6 +40,28 @@ export function limitedBandInRadians(band: LimitedBandInput, timeBase: string): 
   return out;
 }
 
+/**
+ * What the large-model path (lib/engine-tasks/sparse-reduction-task.ts) does not offer, refused before
+ * anything is written: frequency-limited balanced truncation, modal truncation's band rule, the tolerance
+ * rule (its bounds are estimates over the leading Hankel values: the order is chosen on the slider), and an
+ * order past what the analysis resolved for the balanced methods.
+ */
+function refuseOffTheLargeModelPath(recipe: ReductionRequest['recipe'], analysis: AnalysisRecord): void {
+  if (recipe.method === 'frequency-limited') {
+    throw new ApiError(400, 'invalid_request', 'Frequency-limited balanced truncation is not offered for models on the large-model path; use balanced truncation, residualization, modal truncation or IRKA.', 'recipe.method');
+  }
+  if (recipe.method === 'modal' && recipe.modalSelection === 'band') {
+    throw new ApiError(400, 'invalid_request', 'On the large-model path modal truncation keeps the most dominant or the slowest modes; the band rule is not offered.', 'recipe.modalSelection');
+  }
+  if (recipe.orderRule === 'tolerance') {
+    throw new ApiError(400, 'invalid_request', 'On the large-model path choose the order by number of states: each order’s estimated bound is shown on the slider.', 'recipe.orderRule');
+  }
+  const resolved = analysis.hankelSingularValues.length;
+  if ((recipe.method === 'balanced' || recipe.method === 'residualization') && recipe.order! > resolved) {
+    throw new ApiError(400, 'invalid_request', `The order ${recipe.order} is past the ${resolved} Hankel singular values the low-rank gramians resolve; keep at most ${resolved} states.`, 'recipe.order');
+  }
+}
+
 /** Registers the recipe and its reduction job; the draft version appears when the job finishes. */
 export async function requestReduction(input: ReductionRequest, user: SessionUser): Promise<{ job: JobView; recipeId: string }> {
   const version = await findSourceVersion(input.sourceVersionId);
@@ -51,6 +74,7 @@ export async function requestReduction(input: ReductionRequest, user: SessionUse
   if (recipe.orderRule === 'order' && recipe.order! > version.states) {
     throw new ApiError(400, 'invalid_request', `The order ${recipe.order} is larger than the model (${version.states} states).`, 'recipe.order');
   }
+  if (analysis.path === 'sparse') refuseOffTheLargeModelPath(recipe, analysis);
   const keptExactly = analysis.marginalPoles + analysis.unstablePoles;
   if (recipe.method === 'frequency-limited' && recipe.order! < keptExactly) {
     throw new ApiError(

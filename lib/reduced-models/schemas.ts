@@ -31,12 +31,12 @@ export const limitedBandSchema = z
   .refine((b) => b.maxFrequency > b.minFrequency, { message: 'The band’s upper edge must be above its lower edge.', path: ['maxFrequency'] });
 export type LimitedBandInput = z.infer<typeof limitedBandSchema>;
 
-export const RECIPE_METHODS = ['balanced', 'residualization', 'modal', 'frequency-limited'] as const;
+export const RECIPE_METHODS = ['balanced', 'residualization', 'modal', 'frequency-limited', 'irka'] as const;
 export type RecipeMethod = (typeof RECIPE_METHODS)[number];
 
 export const recipeSchema = z
   .object({
-    method: z.enum(RECIPE_METHODS, { error: 'Method must be balanced, residualization, modal or frequency-limited.' }),
+    method: z.enum(RECIPE_METHODS, { error: 'Method must be balanced, residualization, modal, frequency-limited or irka.' }),
     orderRule: z.enum(['order', 'tolerance'], { error: 'Choose the order by number or by tolerance.' }),
     order: z.number({ error: 'The order must be a number.' }).int('The order must be a whole number.').min(1, 'Keep at least 1 state.').optional(),
     tolerance: z
@@ -69,6 +69,9 @@ export const recipeSchema = z
       if (!r.limitedBand) ctx.addIssue({ code: 'custom', path: ['limitedBand'], message: 'Frequency-limited balanced truncation needs the band to balance on.' });
     } else if (r.limitedBand) {
       ctx.addIssue({ code: 'custom', path: ['limitedBand'], message: 'A band to balance on applies to frequency-limited balanced truncation only.' });
+    }
+    if (r.method === 'irka' && r.orderRule === 'tolerance') {
+      ctx.addIssue({ code: 'custom', path: ['orderRule'], message: 'IRKA has no a-priori error bound to meet a tolerance; choose the order by number of states.' });
     }
     if (r.orderRule === 'order' && r.order === undefined) ctx.addIssue({ code: 'custom', path: ['order'], message: 'Give the number of states to keep.' });
     if (r.orderRule === 'tolerance' && r.tolerance === undefined) ctx.addIssue({ code: 'custom', path: ['tolerance'], message: 'Give the tolerance the bound must meet.' });
