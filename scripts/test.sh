@@ -60,8 +60,9 @@ export DATABASE_URL="$TEST_DATABASE_URL"
 
 node_modules/.bin/tsx scripts/db.ts migrate || die "migrating the test database failed"
 # The demo rows with a 200-state kiln wall (the start command seeds the thousand-state one; see
-# db/seeds/02_demo_models.ts): the tests upload and reduce their own models.
-MODESHELF_DEMO_WALL=small node_modules/.bin/tsx scripts/db.ts seed || die "seeding the test database failed"
+# db/seeds/02_demo_models.ts) and a 1600-state hearth plate instead of the 22,500-state one (its analysis is
+# queued, db/seeds/03_demo_large_model.ts): the tests upload and reduce their own models.
+MODESHELF_DEMO_WALL=small MODESHELF_DEMO_PLATE=small node_modules/.bin/tsx scripts/db.ts seed || die "seeding the test database failed"
 
 stop_pidfile "$TEST_LOG_DIR/smtp.pid"
 setsid node_modules/.bin/tsx scripts/fake-smtp.ts >"$TEST_LOG_DIR/smtp.log" 2>&1 &
