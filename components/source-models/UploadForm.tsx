@@ -196,7 +196,7 @@ export function UploadForm({ sourceModelId, modelName, defaultTimeBase }: { sour
           </label>
           <label className="flex items-center gap-2">
             <input type="radio" name="fileMode" value="matrices" checked={mode === 'matrices'} onChange={() => setMode('matrices')} />
-            Matrix files A, B, C, D, E (Matrix Market .mtx or CSV)
+            Matrix files A, B, C, D (Matrix Market .mtx or CSV)
           </label>
           <label className="flex items-center gap-2">
             <input type="radio" name="fileMode" value="second-order" checked={mode === 'second-order'} onChange={() => setMode('second-order')} />

@@ -14,7 +14,7 @@ import {
   type StopSignal,
 } from '../../reduction/index';
 import { analyzeSparseModel, type SparseAnalysisProgress, type SparseModes } from '../../reduction/sparse/analysis';
-import type { AdiFactor } from '../../reduction/sparse/adi';
+import type { AdiFactor, AdiStep } from '../../reduction/sparse/adi';
 import { loadSparseModel, type ModelFile } from './model-files';
 import { scientific, type ProgressReporter } from './progress';
 import type { AnalysisRecord, ModeRecord, OrderFigureTable, OrderFiguresRecord, SparseAnalysisRecord } from './records';
@@ -39,6 +39,15 @@ const STAGES: Record<SparseAnalysisProgress['stage'], { at: number; weight: numb
   sweep: { at: 0.8, weight: 0.08, words: 'Frequency sweep for the H∞ norm' },
   'dominant-poles': { at: 0.88, weight: 0.1, words: 'Dominant poles by the dominant pole algorithm' },
 };
+
+/**
+ * How far an ADI iteration is: the larger of its steps over the most it may make and of its residual's way
+ * down to the tolerance on a log scale (it usually stops at the tolerance long before the step limit).
+ */
+export function adiFraction(s: AdiStep): number {
+  const byResidual = s.residual > 0 && s.residual < 1 ? Math.log(s.residual) / Math.log(s.tolerance) : s.residual <= 0 ? 1 : 0;
+  return Math.min(1, Math.max(s.step / s.maxSteps, byResidual));
+}
 
 /** The modes of the record: every computed pole (a pair once, Im > 0), with the dominance of those the dominant pole algorithm found. */
 function modesOf(m: SparseModes): ModeRecord[] {
@@ -113,7 +122,7 @@ export function runSparseAnalysis(files: readonly ModelFile[], engineVersion: st
         // Both equations run in lockstep: the fraction follows the steps of the one being reported.
         report(
           `${stage.words}: ${s.equation}`,
-          stage.at + stage.weight * Math.min(1, s.step / s.maxSteps),
+          stage.at + stage.weight * adiFraction(s),
           { done: s.step, total: s.maxSteps, atMost: true, unit: 'ADI step', note: `residual ${scientific(s.residual)}` },
         );
       } else report(stage.words, stage.at);

@@ -14,6 +14,7 @@ import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { hearthPlate } from '@/db/seeds/demo/plate';
 import { runAnalysis } from '@/lib/engine-tasks/analysis-task';
+import { adiFraction } from '@/lib/engine-tasks/sparse-analysis-task';
 import { runSparseReduction } from '@/lib/engine-tasks/sparse-reduction-task';
 import type { ModelFile } from '@/lib/engine-tasks/model-files';
 import type { ProgressDetail } from '@/lib/engine-tasks/progress';
@@ -85,6 +86,9 @@ describe('analysis on the large-model path', () => {
     expect(adi.length).toBeGreaterThan(4);
     expect(adi[0].detail).toMatchObject({ atMost: true, total: 300 });
     expect(adi[0].detail!.note).toMatch(/^residual /);
+    // The bar follows the residual's way down to the tolerance (log scale) when that is further than the steps.
+    expect(adiFraction({ equation: 'controllability', step: 8, maxSteps: 300, residual: 1e-5, tolerance: 1e-10 })).toBeCloseTo(0.5, 12);
+    expect(adiFraction({ equation: 'observability', step: 150, maxSteps: 300, residual: 0.5, tolerance: 1e-10 })).toBeCloseTo(0.5, 12);
     let calls = 0;
     const signal = {
       get aborted() {
@@ -107,6 +111,8 @@ describe('reduction on the large-model path', () => {
     expect(r.figures.hInfinityError!).toBeLessThanOrEqual(bound);
     expect(r.figures.estimated).toEqual(expect.arrayContaining(['hInfinityError', 'errorBound']));
     expect(r.figures.h2Error).toBeNull();
+    expect(r.figures.errorBoundNote).toBeNull(); // there is a bound: no note stands in for it
+    expect(r.figures.notes.join(' ')).toMatch(/A-priori bound estimated: 2Σσ\(r\+1\.\.k\)/);
     expect(r.figures.acceptance?.status).toBe('pass');
     const f = r.curves.frequency;
     expect(f.frequencies.length).toBeGreaterThanOrEqual(60);
