@@ -285,7 +285,7 @@ function timeCurves(
   };
 }
 
-function costOf(solver: string, s: SolverStats): SolverCostRecord {
+export function costOf(solver: string, s: SolverStats): SolverCostRecord {
   return {
     solver,
     steps: s.steps,

@@ -12,8 +12,11 @@
 // and then what the comparison page draws: the full model's frequency response by one sparse LU per
 // frequency (reduction/sparse/frequency.ts, with progress and the stop flag), the reduced model's on the same
 // grid, and σmax of their difference; the H∞ error as the largest of those samples (a lower bound, said so);
-// the DC-gain error from G(0) of both. Time responses of the full model are not computed at this scale (the
-// exact solver needs dense exponentials; the reduced model's step and impulse responses are drawn alone).
+// the DC-gain error from G(0) of both; the step and impulse responses of both models, the full one by the
+// engine's sparse time integration (reduction/sparse/simulate.ts: the NDF/BDF family of Shampine & Reichelt
+// 1997 on E − c·A, or Dormand–Prince, chosen once by the engine's stiffness rule), and the simulation cost of
+// both with that solver. Should the full model's integration not fit the memory budget, the reduced model's
+// responses are drawn alone and the page says why.
 import {
   frequencyEvaluator,
   largestSingularValue,
@@ -26,9 +29,11 @@ import {
   toRows,
   ModelError,
   type ComplexMatrix,
+  type InputSignal,
   type SimulationResult,
   type StateSpaceModel,
 } from '../../reduction/index';
+import { chooseSparseSolver, simulateSparse, sparseSimulationCostReport } from '../../reduction/sparse/simulate';
 import { sparseBalancedReduction } from '../../reduction/sparse/balanced';
 import { sparseIrka } from '../../reduction/sparse/irka';
 import { sparseModalReduction } from '../../reduction/sparse/modal';
@@ -39,9 +44,9 @@ import { METHOD_NAMES } from '../recipe-words';
 import { loadSparseModel, type ModelFile } from './model-files';
 import { figuresFromPoles, keptPolesOf } from './order-figures';
 import { scientific, type ProgressReporter } from './progress';
-import { acceptanceRecord, simulationEnd, type AnalysisSummary, type RecipeInput } from './reduction-task';
+import { acceptanceRecord, costOf, simulationEnd, type AnalysisSummary, type RecipeInput } from './reduction-task';
 import { adiFraction, type SparseTaskOptions } from './sparse-analysis-task';
-import type { AccuracyFiguresRecord, ChannelCurves, ReductionCurves, ReductionRecord, TimeCurves } from './records';
+import type { AccuracyFiguresRecord, ChannelCurves, CostRowRecord, ReductionCurves, ReductionRecord, SolverCostRecord, TimeCurves } from './records';
 
 const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
@@ -50,9 +55,10 @@ export const SPARSE_GRID_POINTS = 60;
 const SPARSE_BAND_POINTS = 20;
 const TIME_POINTS = 401;
 
-/** Why the full model has no time response on this path (shown on the comparison page). */
-export const FULL_TIME_RESPONSE_NOTE =
-  'The full model’s step and impulse responses are not computed on the large-model path (the exact solver needs dense matrix exponentials of the full model); the reduced model’s are drawn alone.';
+/** Why the full model's time responses are missing, when its integration could not be made (shown on the comparison page). */
+function fullTimeResponseNote(reason: string): string {
+  return `The full model’s step and impulse responses could not be computed (${reason}); the reduced model’s are drawn alone.`;
+}
 
 interface AtScale {
   model: StateSpaceModel;
@@ -157,22 +163,30 @@ function curvesOf(g: readonly ComplexMatrix[], p: number, m: number): { curves: 
   return { curves, sigma: g.map((gk) => largestSingularValue(gk)) };
 }
 
-/** Step or impulse responses of the reduced model alone ([input][output][k]; the full model's are left empty). */
-function reducedTimeCurves(reduced: StateSpaceModel, kind: 'step' | 'impulse', tEnd: number, shared: SharedExponentials): TimeCurves {
+const columns = (res: SimulationResult, p: number) =>
+  Array.from({ length: p }, (_, i) => Array.from({ length: res.y.rows }, (_, k) => res.y.data[k * p + i]));
+
+/** Step or impulse responses ([input][output][k]) of both models; the full model's are empty when `full` is null. */
+function timeCurves(
+  full: SparseStateSpaceModel,
+  reduced: StateSpaceModel,
+  kind: 'step' | 'impulse',
+  tEnd: number,
+  shared: SharedExponentials,
+  runFull: ((input: InputSignal, k: number) => SimulationResult) | null,
+  first: number,
+): TimeCurves {
   const m = reduced.B.cols;
   const p = reduced.C.rows;
-  const results: SimulationResult[] = [];
-  for (let j = 0; j < m; j++) {
-    const input = kind === 'step' ? stepInput(reduced, j + 1) : impulseInput(reduced, j + 1);
-    results.push(simulate(reduced, input, { tEnd, points: TIME_POINTS, solver: 'auto', sharedExponentials: shared }));
-  }
-  const column = (res: SimulationResult, i: number) => Array.from({ length: res.y.rows }, (_, k) => res.y.data[k * p + i]);
+  const inputOf = (model: { B: StateSpaceModel['B'] }, j: number) => (kind === 'step' ? stepInput(model, j + 1) : impulseInput(model, j + 1));
+  const reducedRuns = Array.from({ length: m }, (_, j) => simulate(reduced, inputOf(reduced, j), { tEnd, points: TIME_POINTS, solver: 'auto', sharedExponentials: shared }));
+  const fullRuns = runFull ? Array.from({ length: m }, (_, j) => runFull(inputOf(full, j), first + j)) : null;
   return {
-    t: Array.from(results[0].t),
-    full: [],
-    reduced: results.map((res) => Array.from({ length: p }, (_, i) => column(res, i))),
-    solverFull: 'not computed',
-    solverReduced: results[0].solver,
+    t: Array.from((fullRuns ?? reducedRuns)[0].t),
+    full: fullRuns ? fullRuns.map((res) => columns(res, p)) : [],
+    reduced: reducedRuns.map((res) => columns(res, p)),
+    solverFull: fullRuns ? fullRuns[0].solver : 'not computed',
+    solverReduced: reducedRuns[0].solver,
   };
 }
 
@@ -203,9 +217,9 @@ export function runSparseReduction(
   report(sweepWords, 0.45, { done: 0, total: w.length + 1, unit: 'frequency' });
   const full = sparseFrequencyResponse(model, [0, ...w], options.memoryBudgetBytes, {
     signal: options.signal,
-    onStep: ({ done, total }) => report(sweepWords, 0.45 + (0.4 * done) / total, { done, total, unit: 'frequency' }),
+    onStep: ({ done, total }) => report(sweepWords, 0.45 + (0.25 * done) / total, { done, total, unit: 'frequency' }),
   });
-  report('Frequency response of the reduced model and the error', 0.86);
+  report('Frequency response of the reduced model and the error', 0.72);
   const ev = frequencyEvaluator(reduced);
   let zeroFrequencyGainError: number | null = null;
   try {
@@ -224,11 +238,56 @@ export function runSparseReduction(
   const f = curvesOf(fullAt, p, m);
   const g = curvesOf(reducedAt, p, m);
 
-  report('Step and impulse responses of the reduced model', 0.9);
+  // Time responses: the solver chosen once for the full model by the engine's stiffness rule, then each
+  // input's step and impulse response of both models on the same output grid.
   const tEnd = simulationEnd(summary);
+  const budget = options.memoryBudgetBytes ?? Infinity;
+  const timeWords = 'Step and impulse responses of the full model by sparse time integration';
+  report(timeWords, 0.74);
   const shared = new SharedExponentials(reduced.A, reduced.B);
-  const step = reducedTimeCurves(reduced, 'step', tEnd, shared);
-  const impulse = reducedTimeCurves(reduced, 'impulse', tEnd, shared);
+  let note: string | null = null;
+  let step: TimeCurves;
+  let impulse: TimeCurves;
+  let cost: { rows: CostRowRecord[]; simulation: { full: SolverCostRecord; reduced: SolverCostRecord } | null; input: string };
+  try {
+    const choice = chooseSparseSolver(model, tEnd, budget);
+    const runs = 2 * m;
+    const runFull = (input: InputSignal, k: number) =>
+      simulateSparse(model, input, { tEnd, points: TIME_POINTS, solver: choice.solver, memoryBudgetBytes: budget }, {
+        signal: options.signal,
+        onStep: (s) =>
+          report(timeWords, 0.74 + (0.18 * (k + Math.min(1, s.t / s.tEnd))) / runs, {
+            done: k,
+            total: runs,
+            unit: 'simulation',
+            note: `t = ${scientific(s.t)} of ${scientific(s.tEnd)}, ${s.steps} steps`,
+          }),
+      });
+    step = timeCurves(model, reduced, 'step', tEnd, shared, runFull, 0);
+    impulse = timeCurves(model, reduced, 'impulse', tEnd, shared, runFull, m);
+    report('Simulation cost: full and reduced model with the same solver', 0.93);
+    const costReport = sparseSimulationCostReport(model, reduced, stepInput(model), { tEnd, points: TIME_POINTS, memoryBudgetBytes: budget }, [choice.solver]);
+    const rows = costReport.rows.map((row) => ({
+      solver: row.solver,
+      full: costOf(row.solver, row.full),
+      reduced: costOf(row.solver, row.reduced),
+      skippedFull: null,
+      maxOutputDifference: row.maxOutputDifference,
+    }));
+    cost = { rows, simulation: rows[0] ? { full: rows[0].full!, reduced: rows[0].reduced } : null, input: costReport.input };
+  } catch (e) {
+    // Over the memory budget (or a singular E − c·A): the reduced model's responses alone, and why.
+    if (!(e instanceof ModelError)) throw e;
+    note = fullTimeResponseNote(e.message);
+    step = timeCurves(model, reduced, 'step', tEnd, shared, null, 0);
+    impulse = timeCurves(model, reduced, 'impulse', tEnd, shared, null, m);
+    cost = { rows: [], simulation: null, input: `not run: ${e.message}` };
+  }
+  let peakStepError: number | null = null;
+  if (step.full.length > 0) {
+    peakStepError = 0;
+    step.full.forEach((outputs, j) => outputs.forEach((ys, i) => ys.forEach((y, k) => (peakStepError = Math.max(peakStepError!, Math.abs(y - step.reduced[j][i][k]))))));
+  }
 
   const poles = modelPoles(reduced.A);
   const reducedStable = Array.from(poles.re).every((re) => re < 0);
@@ -249,14 +308,14 @@ export function runSparseReduction(
     h2Error: null,
     h2ErrorNote: 'not computed on the large-model path',
     zeroFrequencyGainError,
-    peakStepError: null,
+    peakStepError,
     stiffnessRatioFull: summary.stiffnessRatio,
     stiffnessRatioReduced: reducedOrderFigures.stiffnessRatio,
     reducedOrderFigures,
-    simulation: null,
-    simulationInput: 'not run: the full model is simulated only on the dense path',
+    simulation: cost.simulation,
+    simulationInput: cost.input,
     simulationEnd: tEnd,
-    costRows: [],
+    costRows: cost.rows,
     acceptance,
     orderRule: 'order',
     toleranceTarget: null,
@@ -273,7 +332,7 @@ export function runSparseReduction(
     engineWallMs: Date.now() - started,
     path: 'sparse',
     estimated: ['hInfinityError', 'hInfinityErrorRelative', ...(Number.isFinite(r.errorBound) ? ['errorBound'] : [])],
-    fullTimeResponseNote: FULL_TIME_RESPONSE_NOTE,
+    fullTimeResponseNote: note,
   };
   const curves: ReductionCurves = {
     frequency: { frequencies: w, full: f.curves, reduced: g.curves, sigmaFull: f.sigma, sigmaReduced: g.sigma, error },

@@ -7,4 +7,4 @@ import type { ReducedMatricesRecord } from './records';
 export type TaskRequest =
   | { task: 'analysis'; files: ModelFileRef[]; engineVersion: string; memoryBudgetMiB?: number }
   | { task: 'reduction'; files: ModelFileRef[]; recipe: RecipeInput; summary: AnalysisSummary; engineVersion: string; memoryBudgetMiB?: number }
-  | { task: 'response'; files: ModelFileRef[]; matrices: ReducedMatricesRecord; signal: FileRef };
+  | { task: 'response'; files: ModelFileRef[]; matrices: ReducedMatricesRecord; signal: FileRef; memoryBudgetMiB?: number };

@@ -49,7 +49,7 @@ async function run(): Promise<unknown> {
         ? runSparseReduction(files, request.recipe, request.summary, request.engineVersion, report, taskOptions(request.memoryBudgetMiB))
         : runReduction(files, request.recipe, request.summary, request.engineVersion, report);
     case 'response':
-      return runInputResponse(files, request.matrices, { name: request.signal.name, path: await fetchFile(request.signal, 'signal') }, report);
+      return runInputResponse(files, request.matrices, { name: request.signal.name, path: await fetchFile(request.signal, 'signal') }, report, taskOptions(request.memoryBudgetMiB));
     default:
       throw new Error(`unknown engine task ${(request as { task: string }).task}`);
   }

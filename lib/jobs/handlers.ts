@@ -76,13 +76,9 @@ const response: JobHandler<InputResponseRecord> = {
     if (!reduced) throw new JobInputError('the reduced version no longer exists');
     const version = await findSourceVersion(reduced.source_version_id);
     if (!version) throw new JobInputError('the source version of the reduced model no longer exists');
-    if ((await analysisOf(version.id))?.path === 'sparse') {
-      throw new JobInputError(
-        'the response to an uploaded input needs the full model’s time response, which the large-model path does not compute; the reduced model can be simulated from its export',
-      );
-    }
-    requireWithinMemoryBudget('response', version.states);
-    return { task: 'response', files: modelFilesOfVersion(version), matrices: reduced.matrices, signal: signalPathOf(job.payload) };
+    const path = (await analysisOf(version.id))?.path ?? 'dense';
+    requireWithinMemoryBudget('response', { states: version.states, nonzeros: Number(version.nonzeros_a), path });
+    return { task: 'response', files: modelFilesOfVersion(version), matrices: reduced.matrices, signal: signalPathOf(job.payload), memoryBudgetMiB: workerMemoryBudgetMiB() };
   },
   async write(_trx, _job, record) {
     return { ...record };

@@ -3,8 +3,8 @@
 // descriptor form with E) as one zip archive through the upload page, sees it analysed on the large-model
 // path (figures labelled exact or estimated, the leading Hankel singular values), reduces it to 20 states by
 // balanced truncation on the reduce form, and opens the comparison: the full model's frequency response by
-// sparse solves against the reduced model's, and the page saying the full model's time responses are not
-// computed at this scale. Screenshots of each page go to test-output/.
+// sparse solves and its step and impulse responses by sparse time integration against the reduced model's,
+// with the simulation cost of both. Screenshots of each page go to test-output/.
 import JSZip from 'jszip';
 import { describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
@@ -84,9 +84,13 @@ describe('a large model through the real pages', () => {
       await page.getByRole('button', { name: 'Run balanced truncation' }).click();
       await page.waitForURL(/\/reduced-models\/[^/]+\/versions\/1$/, { timeout: 180_000 });
 
-      for (const chart of ['bode-chart', 'singular-value-chart', 'error-bound-chart']) await expectChartDrawn(page, chart);
+      for (const chart of ['bode-chart', 'singular-value-chart', 'error-bound-chart', 'time-response-step', 'time-response-impulse']) {
+        await expectChartDrawn(page, chart);
+      }
       await expect.poll(() => page.getByTestId('figures-table').textContent()).toMatch(/→ 20/);
-      expect(await page.getByTestId('full-time-note').textContent()).toMatch(/not computed on the large-model path/);
+      // The full model's time responses come from the engine's sparse time integration, with the cost of both.
+      expect(await page.getByTestId('full-time-note').count()).toBe(0);
+      expect(await page.getByTestId('cost-rows').textContent()).toMatch(/stiff/);
       expect(await page.getByTestId('estimated-figures').textContent()).toMatch(/hInfinityError/);
       expect(await page.getByTestId('caution').count()).toBe(1);
       await screenshot(page, 'large-4-comparison');
