@@ -22,8 +22,9 @@ const DENSE_MATRICES = 32;
  * Krylov and dominant-pole bases, the frequency sweep's vectors: a few hundred vectors of n doubles) and
  * with the nonzeros of A (the fill of each sparse LU of A − σE and the factorizations the ADI keeps). Per
  * state 16 KiB and per nonzero of A 2 KiB (common practice: generous multiples of those counts); measured
- * for scale: a 22,500-state hearth plate (112,500 nonzeros) peaked at 335 MiB in one process for its
- * analysis and its reduction each (README, "Web benchmark"), against an estimate of 772 MiB here. Each
+ * for scale: the 22,500-state hearth plate (111,900 nonzeros) peaked at 335 MiB in the command line's
+ * process for its analysis and its reduction each, and the worker running both through `npm run bench:web`
+ * at 421–460 MiB (README, "Web benchmark"), against an estimate of 771 MiB here. Each
  * sparse factorization is checked again against the budget from UMFPACK's own estimate before it is made
  * (reduction/sparse/budget.ts), so an estimate too low here still fails with both figures named.
  */
