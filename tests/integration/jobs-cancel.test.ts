@@ -11,7 +11,8 @@
 // The large job is the kiln wall of the demo scenario at 1200 states (db/seeds/demo/models.ts): its dense
 // analysis runs for tens of seconds on this machine, so it is still running when it is cancelled. This
 // file's process sets the class threshold low (MODESHELF_LARGE_JOB_STATES=200) so that wall is large and
-// the 3-state model small.
+// the 3-state model small, and the engine's crossover high (MODESHELF_SPARSE_CROSSOVER=5000) so that the
+// wall stays on the dense path.
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
@@ -41,6 +42,9 @@ beforeAll(async () => {
   process.env.MODESHELF_UPLOADS_DIR = tempUploadsDir();
   process.env.MODESHELF_QUEUE_PREFIX = `c${Date.now().toString(36)}-`;
   process.env.MODESHELF_LARGE_JOB_STATES = '200';
+  // The 1200-state wall must stay on the dense path (a long analysis to cancel): above the default crossover
+  // of 1000 states its coordinate files would take the large-model path, which analyses it in a second or two.
+  process.env.MODESHELF_SPARSE_CROSSOVER = '5000';
   await migrateTestDatabase();
   const as = (row: { id: string; email: string; name: string }, role: SessionUser['role']): SessionUser => ({ id: row.id, email: row.email, name: row.name, role });
   owner = as(await makeUser({ role: 'engineer', label: 'job-owner' }), 'engineer');
