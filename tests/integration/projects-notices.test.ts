@@ -32,8 +32,20 @@ afterAll(async () => {
   await closeDb();
 });
 
-async function pinMailTo(email: string) {
-  return db()('outbox').whereRaw('? = ANY(envelope_to)', [email]).andWhere('subject', 'like', 'Pins changed:%').orderBy('id');
+/**
+ * The pin mail that reached the fake SMTP for `email`, once at least `atLeast` have (or after 15 s): another
+ * test file's explicit round may have claimed this file's mail and be sending it through its own fake SMTP,
+ * which files into the same outbox a moment later. Callers then assert the exact count.
+ */
+async function pinMailTo(email: string, atLeast = 1) {
+  const read = () => db()('outbox').whereRaw('? = ANY(envelope_to)', [email]).andWhere('subject', 'like', 'Pins changed:%').orderBy('id');
+  const until = Date.now() + 15_000;
+  let rows = await read();
+  while (rows.length < atLeast && Date.now() < until) {
+    await new Promise((r) => setTimeout(r, 200));
+    rows = await read();
+  }
+  return rows;
 }
 
 /** A draft taken through submit and approve by the review service, as people would. */
@@ -82,7 +94,7 @@ describe('pin notices to project members', () => {
     expect(viewerMail[0].subject).toMatch(/^Pins changed: Newest /);
     expect(viewerMail[0].text_body).toContain(`v3 of ${shelf.reducedModel.slug} is approved and meets the pin's limits; the pin now resolves to it (was v1).`);
     expect(viewerMail[0].text_body).toContain(`http://modeshelf.test/projects/${newest.slug}`);
-    const engineerMail = await pinMailTo(engineer.email);
+    const engineerMail = await pinMailTo(engineer.email, 2); // the exact pin heard of v2, then of v3
     expect(engineerMail.map((m) => m.text_body).join('\n')).toContain(`v3 of ${shelf.reducedModel.slug} is approved; this exact pin stays at v1.`);
 
     const again = await queuePinNotices();
@@ -95,7 +107,7 @@ describe('pin notices to project members', () => {
     const v3 = await db()('reduced_versions').where({ reduced_model_id: shelf.reducedModel.id, number: 3 }).first('id');
     await transitionVersion(v3.id, 'retire', actor(shelf.reviewer), 'replaced after a sensor change');
     await runNotificationRound();
-    const viewerMail = await pinMailTo(viewer.email);
+    const viewerMail = await pinMailTo(viewer.email, 2);
     expect(viewerMail).toHaveLength(2);
     expect(viewerMail[1].text_body).toContain(`v3 of ${shelf.reducedModel.slug} has been retired; the pin now resolves to v1.`);
   });
@@ -103,7 +115,7 @@ describe('pin notices to project members', () => {
   it('mail members when the source of the resolved version changes upstream', async () => {
     await addUpstreamVersion(shelf);
     await runNotificationRound();
-    const viewerMail = await pinMailTo(viewer.email);
+    const viewerMail = await pinMailTo(viewer.email, 3);
     expect(viewerMail).toHaveLength(3);
     expect(viewerMail[2].text_body).toContain(`The source model of ${shelf.reducedModel.slug} v1 has a newer version`);
     expect(viewerMail[2].text_body).toContain('verify closed-loop behaviour against the full model and on the hardware');
