@@ -35,13 +35,14 @@ export function plateSide(): number | null {
 
 const log = (line: string) => console.log(`[seed demo large model] ${line}`);
 
-export async function seed(knex: Knex): Promise<void> {
+/** `slug` is for tests, which register the plate under a slug of their own beside the test database's seed. */
+export async function seed(knex: Knex, slug: string = SLUG): Promise<void> {
   const side = plateSide();
   if (side === null) {
     log('left out (MODESHELF_DEMO_PLATE=off)');
     return;
   }
-  if (await knex('source_models').where({ slug: SLUG }).first('id')) {
+  if (await knex('source_models').where({ slug }).first('id')) {
     log('K-7 hearth plate: already there');
     return;
   }
@@ -67,7 +68,7 @@ export async function seed(knex: Knex): Promise<void> {
       const [model] = await trx('source_models')
         .insert({
           name: 'K-7 kiln car hearth plate',
-          slug: SLUG,
+          slug,
           description:
             `Thermal network of the silicon-carbide hearth plate of the K-7 kiln car (1.5 m × 1.5 m × 25 mm), ${side} × ${side} nodes, in descriptor form: ` +
             'E holds the cells’ heat capacities, A their conductances and the losses through the car deck. Inputs: left and right heater zone power (W). ' +
@@ -105,7 +106,7 @@ export async function seed(knex: Knex): Promise<void> {
         action: 'source_model.created',
         subjectType: 'source_version',
         subjectId: version.id,
-        details: { sourceModel: SLUG, number: 1, checksum, states: plate.states, format: 'matrix-market', seeded: true },
+        details: { sourceModel: slug, number: 1, checksum, states: plate.states, format: 'matrix-market', seeded: true },
       });
       log(`K-7 hearth plate: ${plate.states} states registered in ${((Date.now() - started) / 1000).toFixed(1)} s; its analysis is queued as a ${job.worker_class} job`);
     });
