@@ -162,7 +162,7 @@ describe('the command line and the upload check refuse cleanly', () => {
     }
   });
 
-  it('the upload check reports too_large for each reader, and this process carries on', () => {
+  it('the upload check refuses each reader\'s impossible size before allocating it, and this process carries on', () => {
     const dir = mkdtempSync(path.join(tmpdir(), 'modeshelf-limits-check-'));
     try {
       const write = (name: string, text: string) => {
@@ -171,8 +171,16 @@ describe('the command line and the upload check refuse cleanly', () => {
       };
       const b = { role: 'B' as const, name: 'B.csv', path: write('B.csv', '1\n') };
       const c = { role: 'C' as const, name: 'C.csv', path: write('C.csv', '1\n') };
+      // A coordinate file takes the sparse check, which compares A's declared size with B and C before it
+      // reads A's entries, and a declared entry count with what the file's bytes can hold.
       const mm = validateModelFiles([{ role: 'A', name: 'A.mtx', path: write('A.mtx', hugeSparse) }, b, c]);
-      expect(mm).toMatchObject({ ok: false, error: { code: 'too_large', field: 'A', message: expect.stringMatching(/^A\.mtx: A declares 100,000,000×100,000,000/) } });
+      expect(mm).toMatchObject({ ok: false, error: { code: 'dimension_mismatch', field: 'A', message: expect.stringMatching(/^A\.mtx: A is 100000000×100000000 but C has 1 columns/) } });
+      const n = 3000;
+      const bTall = { role: 'B' as const, name: 'B.csv', path: write('B-tall.csv', '1\n'.repeat(n)) };
+      const cWide = { role: 'C' as const, name: 'C.csv', path: write('C-wide.csv', `${Array(n).fill('1').join(',')}\n`) };
+      const overdeclared = `%%MatrixMarket matrix coordinate real general\n${n} ${n} 900000000000\n1 1 -1\n`;
+      const sparseOutcome = validateModelFiles([{ role: 'A', name: 'A.mtx', path: write('A-over.mtx', overdeclared) }, bTall, cWide]);
+      expect(sparseOutcome).toMatchObject({ ok: false, error: { code: 'truncated_file', field: 'A', message: expect.stringMatching(/^A\.mtx: A declares 900,000,000,000 entries, but the file is only \d+ characters long/) } });
       process.env[ENV] = '100';
       const wide = Array.from({ length: 11 }, () => Array(10).fill('0').join(',')).join('\n');
       const csvOutcome = validateModelFiles([{ role: 'A', name: 'A.csv', path: write('A.csv', wide) }, b, c]);
