@@ -6,7 +6,8 @@
 #   4. vitest: unit, engine and integration tests (integration against the real PostgreSQL)
 #   5. tsc --noEmit over the whole tree; the import rules (dependency-cruiser, .dependency-cruiser.cjs) and
 #      the unused-code check (knip, knip.jsonc)
-#   6. builds the app into .next-test, serves it on a test port with one background worker (the jobs of
+#   6. builds the app into .next-test, re-creates and re-seeds the test database (the browser tests meet a
+#      fresh shelf), serves the app on a test port with one background worker (the jobs of
 #      uploads and reductions), runs the browser tests (playwright-core
 #      driving Debian's chromium), screenshots in test-output/
 # Stops what it started and exits non-zero if any step failed. Set TEST_DATABASE_URL to use another
@@ -48,21 +49,29 @@ cleanup() {
 trap cleanup EXIT
 trap 'exit 130' INT TERM
 
+OWN_DATABASE=0
 if [ -n "${TEST_DATABASE_URL:-}" ]; then
   log "using the PostgreSQL in TEST_DATABASE_URL (migrated, not dropped)"
 else
   if ! bash scripts/pg.sh status >/dev/null 2>&1; then STARTED_PG=1; fi
   bash scripts/pg.sh start || die "PostgreSQL did not start"
-  bash scripts/pg.sh reset-test >/dev/null || die "could not re-create the test database"
+  OWN_DATABASE=1
   export TEST_DATABASE_URL="$LOCAL_TEST_DATABASE_URL"
 fi
 export DATABASE_URL="$TEST_DATABASE_URL"
 
-node_modules/.bin/tsx scripts/db.ts migrate || die "migrating the test database failed"
-# The demo rows with a 200-state kiln wall (the start command seeds the thousand-state one; see
-# db/seeds/02_demo_models.ts) and a 1600-state hearth plate instead of the 22,500-state one (its analysis is
-# queued, db/seeds/03_demo_large_model.ts): the tests upload and reduce their own models.
-MODESHELF_DEMO_WALL=small MODESHELF_DEMO_PLATE=small node_modules/.bin/tsx scripts/db.ts seed || die "seeding the test database failed"
+# An empty test database (when this script owns it), migrated and seeded with the demo rows: a 200-state
+# kiln wall (the start command seeds the thousand-state one; see db/seeds/02_demo_models.ts) and a
+# 1600-state hearth plate instead of the 22,500-state one (its analysis is queued,
+# db/seeds/03_demo_large_model.ts): the tests upload and reduce their own models.
+fresh_test_database() {
+  if [ "$OWN_DATABASE" = 1 ]; then
+    bash scripts/pg.sh reset-test >/dev/null || die "could not re-create the test database"
+  fi
+  node_modules/.bin/tsx scripts/db.ts migrate || die "migrating the test database failed"
+  MODESHELF_DEMO_WALL=small MODESHELF_DEMO_PLATE=small node_modules/.bin/tsx scripts/db.ts seed || die "seeding the test database failed"
+}
+fresh_test_database
 
 stop_pidfile "$TEST_LOG_DIR/smtp.pid"
 setsid node_modules/.bin/tsx scripts/fake-smtp.ts >"$TEST_LOG_DIR/smtp.log" 2>&1 &
@@ -85,6 +94,12 @@ npm run -s check:unused || FAILED+=("unused code (npm run check:unused)")
 
 log "next build (into .next-test; log: .run/test/build.log)"
 if node_modules/.bin/next build >"$TEST_LOG_DIR/build.log" 2>&1; then
+  # The browser tests meet a freshly seeded shelf, as a new user would (the newcomer test reads the
+  # Dashboard's most recent events), not the thousand rows the integration tests left behind.
+  if [ "$OWN_DATABASE" = 1 ]; then
+    log "a freshly seeded test database for the browser tests"
+    fresh_test_database
+  fi
   stop_pidfile "$TEST_LOG_DIR/app.pid"
   setsid node_modules/.bin/next start -H 127.0.0.1 -p "$TEST_APP_PORT" >"$TEST_LOG_DIR/app.log" 2>&1 &
   echo $! >"$TEST_LOG_DIR/app.pid"
