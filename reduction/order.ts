@@ -39,6 +39,18 @@ export interface OrderSpace {
   errorBoundAt(stableOrder: number): number;
 }
 
+/**
+ * The tolerance rule itself: the first of `orders` (ascending) whose a-priori bound is at most `target`
+ * (tolerance · ‖G‖∞); undefined when none is. Shared by the engine (chooseOrder) and the recipe form's
+ * order table (components/source-models/recipe-choices.ts), so the two cannot pick different orders.
+ */
+export function firstOrderWithin(orders: readonly number[], boundAt: (order: number) => number | null | undefined, target: number): number | undefined {
+  return orders.find((order) => {
+    const bound = boundAt(order);
+    return bound !== null && bound !== undefined && bound <= target;
+  });
+}
+
 /** Validate an order rule and turn it into an allowed order (throws ModelError on `order`/`tolerance`). */
 export function chooseOrder(space: OrderSpace, rule: OrderRule, referenceNorm: () => number): OrderChoice {
   const hasOrder = rule.order !== undefined;
@@ -81,6 +93,6 @@ export function chooseOrder(space: OrderSpace, rule: OrderRule, referenceNorm: (
     throw new ModelError('invalid_option', 'tolerance', `tolerance must be a positive number, got ${tolerance}`);
   }
   const target = tolerance * referenceNorm();
-  const stableOrder = cutPoints.find((c) => space.errorBoundAt(c) <= target) ?? stableStates;
+  const stableOrder = firstOrderWithin(cutPoints, (c) => space.errorBoundAt(c), target) ?? stableStates;
   return { order: stableOrder + unstableStates, stableOrder, rule: 'tolerance', target };
 }

@@ -6,6 +6,7 @@
 import type { AnalysisRecord, OrderFigureTable, OrderFiguresRecord } from '@/lib/engine-tasks/records';
 // The engine's own ranking rule (a pure module: no linear algebra reaches the browser).
 import { rankStoredModes } from '@/reduction/mode-ranking';
+import { firstOrderWithin } from '@/reduction/order';
 
 export type Method = 'balanced' | 'residualization' | 'modal' | 'frequency-limited' | 'irka';
 export type ModalSelection = 'dominance' | 'slowest' | 'band';
@@ -84,17 +85,14 @@ export function checkLimitedBand(fromText: string, toText: string, unit: BandUni
 
 /**
  * The order the tolerance rule picks: the smallest offered order whose bound is at most tolerance·‖Gs‖∞
- * (reduction/order.ts; Antoulas 2005, §7.2). Null when no offered order meets it (the engine then goes on
+ * (reduction/order.ts firstOrderWithin; Antoulas 2005, §7.2). Null when no offered order meets it (the engine then goes on
  * to larger orders than the slider offers, up to the full stable part).
  */
 export function orderForTolerance(table: OrderFigureTable, tolerance: number, referenceNorm: number | null): { order: number; bound: number } | null {
   if (!table.available || !(tolerance > 0) || referenceNorm === null) return null;
-  const target = tolerance * referenceNorm;
-  for (const order of table.orders) {
-    const bound = table.figures[order]?.errorBound;
-    if (bound !== null && bound !== undefined && bound <= target) return { order, bound };
-  }
-  return null;
+  const bound = (order: number) => table.figures[order]?.errorBound;
+  const order = firstOrderWithin(table.orders, bound, tolerance * referenceNorm);
+  return order === undefined ? null : { order, bound: bound(order) as number };
 }
 
 /**

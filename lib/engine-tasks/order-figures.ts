@@ -158,8 +158,7 @@ export function modalOrderFigures(modes: readonly ModeRecord[], kept: KeptPoles,
   const keptLimits = stepLimitsFromPoles(snapMarginalPoles(kept.re, kept.im, kept.stability, kept.tolerance, kept.scale));
   let euler = keptLimits.forwardEuler.maxStep;
   let rk4 = keptLimits.rk4.maxStep;
-  let fast = 0;
-  let slow = Infinity;
+  const rates: number[] = [];
   let tail = ranked.reduce((s, m) => s + (m.dominance ?? 0), 0);
   let states = 0;
   const orders: number[] = [];
@@ -170,15 +169,14 @@ export function modalOrderFigures(modes: readonly ModeRecord[], kept: KeptPoles,
     const one = stepLimitsFromPoles({ re: Float64Array.of(mode.re, mode.re), im: Float64Array.of(mode.im, -mode.im) });
     euler = Math.min(euler, one.forwardEuler.maxStep);
     rk4 = Math.min(rk4, one.rk4.maxStep);
-    fast = Math.max(fast, -mode.re);
-    slow = Math.min(slow, -mode.re);
+    rates.push(-mode.re);
     const order = states + nu;
     orders.push(order);
     figures[order] = {
       errorBound: Math.max(0, tail),
       keptUnstable: kept.unstable,
       keptMarginal: kept.marginal,
-      stiffnessRatio: fast > 0 ? fast / slow : null,
+      stiffnessRatio: stiffnessFromRates(rates).stiffnessRatio,
       maxStableStepEuler: finiteOrNull(euler),
       maxStableStepRk4: finiteOrNull(rk4),
     };

@@ -22,6 +22,7 @@
  * the most dominant poles of the model.
  */
 import { ModelError } from '../errors';
+import { modalFigures } from '../poles';
 import { type Matrix, zeros, eig, inverse, solve, svd } from '../linalg/index';
 import { largestSingularValue } from '../frequency';
 import { SparseLu } from '../linalg/sparse';
@@ -407,14 +408,15 @@ export function dominantPoles(model: SparseStateSpaceModel, options: DominantPol
           yb2 += a * a + b * b;
         }
         const residueNorm = Math.sqrt(cx2 * yb2) / Math.hypot(nRe, nIm);
-        const mag = Math.hypot(best.re, best.im);
+        // ωn and ζ by the one definition (reduction/poles.ts); they do not depend on the pole's class.
+        const figures = modalFigures(best.re, best.im, 'stable');
         found.push({
           pole: {
             re: best.re,
             im: best.im,
             states: best.states,
-            naturalFrequency: mag,
-            dampingRatio: mag > 0 ? -best.re / mag : 1,
+            naturalFrequency: figures.naturalFrequency,
+            dampingRatio: figures.dampingRatio ?? 1,
             residueNorm,
             dominance: (best.states * residueNorm) / Math.max(Math.abs(best.re), Number.MIN_VALUE),
             residual,
