@@ -53,6 +53,11 @@ export interface NativeAddon {
     bRe: Float64Array, bIm: Float64Array | null, xRe: Float64Array, xIm: Float64Array | null, transpose: boolean,
   ): void;
   umfpackFree(handle: unknown): void;
+  umfpackSweep(
+    symbolic: unknown, n: number, colPtr: Int32Array, rowIndex: Int32Array, aValues: Float64Array, eValues: Float64Array,
+    frequencies: Float64Array, b: Float64Array, m: number, c: Float64Array, p: number, re: Float64Array, im: Float64Array,
+    threads: number, name?: string,
+  ): void;
   cholmodFactor(n: number, colPtr: Int32Array, rowIndex: Int32Array, values: Float64Array, imag: null, name?: string): [unknown, CholmodInfo];
   cholmodSolve(factor: unknown, b: Float64Array, x: Float64Array, columns: number): void;
   cholmodFree(factor: unknown): void;

@@ -116,6 +116,24 @@ export class SparseLu {
     return { re, im };
   }
 
+  /**
+   * The frequency sweep on this (complex) analysis of A − iωE's pattern: for each ω, −C (A − iωE)⁻¹ B into
+   * `re`/`im` as [frequency][p][m], each frequency factored anew by one of `threads` native threads sharing
+   * the analysis (reduction/native/src/sparse.cc umfpackSweep). `aValues` and `eValues` are A and E on the
+   * analysed pattern; B is n×m and C p×n, row-major. Leaves this object's own factorization alone.
+   */
+  sweep(
+    aValues: Float64Array, eValues: Float64Array, frequencies: Float64Array,
+    b: { data: Float64Array; cols: number }, c: { data: Float64Array; rows: number },
+    out: { re: Float64Array; im: Float64Array }, threads: number,
+  ): void {
+    if (!this.symbolic) throw new Error(`frequency sweep of ${this.name}: the analysis was freed`);
+    const { n, colPtr, rowIndex } = this.pattern;
+    native(`frequency sweep of ${this.name}`, () =>
+      this.lib.umfpackSweep(this.symbolic, n, colPtr, rowIndex, aValues, eValues, frequencies, b.data, b.cols, c.data, c.rows, out.re, out.im, threads, this.name),
+    );
+  }
+
   /** Frees the factorization and the analysis now (the garbage collector would, later). */
   dispose(): void {
     if (this.numeric) this.lib.umfpackFree(this.numeric);

@@ -1,10 +1,11 @@
 /**
  * Frequency response of a large sparse model, G(iω) = C (iωE − A)⁻¹ B + D, by one complex sparse LU per
  * frequency (UMFPACK, `reduction/linalg/sparse.ts`) on the union pattern of A and E: one symbolic analysis
- * serves every frequency, each frequency costs a numeric factorization and m solves. Nothing forms E⁻¹A or
- * a dense n×n matrix.
+ * serves every frequency, each frequency costs a numeric factorization and m solves, and the frequencies
+ * are spread over the cores (native threads sharing the analysis). Nothing forms E⁻¹A or a dense n×n
+ * matrix.
  */
-import { zeros } from '../linalg/index';
+import { linalgThreads, zeros } from '../linalg/index';
 import type { StateSpaceModel } from '../model';
 import { frequencyResponse, largestSingularValue, type ComplexMatrix } from '../frequency';
 import { SparseLu } from '../linalg/sparse';
@@ -19,7 +20,11 @@ export interface SparseFrequencyResponse {
   readonly response: ComplexMatrix[];
 }
 
-/** `hooks`: a stop flag looked at before each frequency, and a report after each (`done` of `total`). */
+/**
+ * `hooks`: a stop flag looked at between batches of frequencies, and a report after each (`done` of
+ * `total`). The frequencies of a batch are spread over the engine's threads (`linalgThreads()`,
+ * MODESHELF_LINALG_THREADS), each with its own numeric factorization, as many as the memory budget allows.
+ */
 export function sparseFrequencyResponse(
   model: SparseStateSpaceModel,
   frequencies: ArrayLike<number>,
@@ -27,50 +32,41 @@ export function sparseFrequencyResponse(
   hooks: LoopHooks<{ done: number; total: number }> = {},
 ): SparseFrequencyResponse {
   const { B, C, D } = model;
-  const n = model.A.n, m = B.cols, p = C.rows;
-  const sp = shiftPattern(model.A, model.E);
+  const m = B.cols, p = C.rows;
+  const w = Float64Array.from(frequencies);
   const response: ComplexMatrix[] = [];
-  let lu: SparseLu | null = null;
-  const cols: Float64Array[] = [];
-  for (let c = 0; c < m; c++) {
-    const v = new Float64Array(n);
-    for (let i = 0; i < n; i++) v[i] = B.data[i * m + c];
-    cols.push(v);
-  }
+  if (w.length === 0) return { frequencies: w, response };
+  const sp = shiftPattern(model.A, model.E);
+  // E on the union pattern: the imaginary part of A − iωE is −ω times it.
+  const eValues = new Float64Array(sp.pattern.values.length);
+  for (let q = 0; q < sp.eAt.length; q++) eValues[sp.eAt[q]] += sp.eValues[q];
+  const first = shiftedValues(sp, 0, w[0] === 0 ? Number.MIN_VALUE : w[0]);
+  const lu = SparseLu.analyze({ ...sp.pattern, values: first.values, imag: first.imag ?? new Float64Array(eValues.length) }, 'A − iωE');
   try {
-    for (let f = 0; f < frequencies.length; f++) {
+    checkFactorBudget(lu, memoryBudgetBytes, 'A − iωE');
+    const perFactor = lu.analysis.peakMemoryBytes;
+    const threads = Math.max(1, Math.min(linalgThreads(), Number.isFinite(memoryBudgetBytes) && perFactor > 0 ? Math.floor(memoryBudgetBytes / perFactor) : Infinity));
+    const batch = 2 * threads;
+    const size = p * m;
+    for (let from = 0; from < w.length; from += batch) {
       throwIfStopped(hooks.signal, 'the frequency sweep');
-      const w = frequencies[f];
-      // A − iωE (a tiny imaginary part at ω = 0 keeps the analysis complex for the frequencies after it).
-      const { values, imag } = shiftedValues(sp, 0, w === 0 ? Number.MIN_VALUE : w);
-      const im0 = imag ?? new Float64Array(values.length);
-      if (!lu) {
-        lu = SparseLu.analyze({ ...sp.pattern, values, imag: im0 }, 'A − iωE');
-        checkFactorBudget(lu, memoryBudgetBytes, 'A − iωE');
-      }
-      lu.factor(values, im0);
-      const gr = zeros(p, m), gi = zeros(p, m);
-      for (let c = 0; c < m; c++) {
-        // (iωE − A) x = b  ⇔  (A − iωE) x = −b
-        const { re, im } = lu.solveComplex(cols[c], null);
-        for (let r = 0; r < p; r++) {
-          let sr = 0, si = 0;
-          const off = r * n;
-          for (let i = 0; i < n; i++) {
-            sr += C.data[off + i] * re[i];
-            si += C.data[off + i] * im[i];
-          }
-          gr.data[r * m + c] = -sr + D.data[r * m + c];
-          gi.data[r * m + c] = -si;
+      const part = w.subarray(from, Math.min(w.length, from + batch));
+      const out = { re: new Float64Array(part.length * size), im: new Float64Array(part.length * size) };
+      lu.sweep(sp.pattern.values, eValues, part, B, C, out, threads);
+      for (let f = 0; f < part.length; f++) {
+        const gr = zeros(p, m), gi = zeros(p, m);
+        for (let k = 0; k < size; k++) {
+          gr.data[k] = out.re[f * size + k] + D.data[k];
+          gi.data[k] = out.im[f * size + k];
         }
+        response.push({ re: gr, im: gi });
       }
-      response.push({ re: gr, im: gi });
-      hooks.onStep?.({ done: f + 1, total: frequencies.length });
+      hooks.onStep?.({ done: from + part.length, total: w.length });
     }
   } finally {
-    lu?.dispose();
+    lu.dispose();
   }
-  return { frequencies: Float64Array.from(frequencies), response };
+  return { frequencies: w, response };
 }
 
 /**

@@ -12,6 +12,7 @@ char* openblas_get_config(void);
 
 namespace ms {
 int blasThreads() { return openblas_get_num_threads(); }
+void setBlasThreads(int threads) { openblas_set_num_threads(threads); }
 }  // namespace ms
 
 namespace {

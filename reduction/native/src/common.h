@@ -137,6 +137,7 @@ napi_value guard(napi_env env, F&& body) {
 }
 
 int blasThreads();
+void setBlasThreads(int threads);
 void registerDense(napi_env env, napi_value exports);
 void registerSparse(napi_env env, napi_value exports);
 void registerHammarling(napi_env env, napi_value exports);

@@ -8,12 +8,19 @@
 #include <colamd.h>
 #include <umfpack.h>
 
+#include <algorithm>
+#include <cstdio>
+#include <atomic>
+#include <mutex>
+#include <thread>
+
 #include "common.h"
 
 namespace {
 
 using ms::Args;
 using ms::fail;
+using ms::Failure;
 
 struct Csc {
   int n = 0;
@@ -210,6 +217,105 @@ napi_value UmfFree(napi_env env, napi_callback_info info) {
   });
 }
 
+std::string showNumber(double v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.6g", v);
+  return buf;
+}
+
+// umfpackSweep(symbolic, n, colPtr, rowIndex, aValues, eValues, frequencies, B, m, C, p, re, im, threads, name)
+// The frequency sweep of a sparse model: for every ω of `frequencies`, the complex LU of A − iωE (real
+// part `aValues`, imaginary part −ω·`eValues`, both on the analysed pattern; a tiny imaginary part at
+// ω = 0 keeps the factor complex), the m solves (A − iωE) X = B and −C·X written into re/im as
+// [frequency][p][m], so that G(iω) = that + D. B is n×m and C p×n, row-major. The frequencies are taken in
+// turn by `threads` threads, each with its own numeric factorization of the one shared symbolic analysis
+// (UMFPACK reads Symbolic and writes nothing to it); BLAS runs single-threaded meanwhile, so the threads
+// and BLAS do not oversubscribe the cores, and is set back afterwards. A singular A − iωE (iω an
+// eigenvalue) fails naming the frequency.
+napi_value UmfSweep(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    UmfHandle* s = handleOf(a, 0, false);
+    if (!s->complex) fail("invalid_option", "frequency sweep: the analysis must be of a complex matrix");
+    Csc c = readCsc(a, 1, "matrix", false);
+    size_t n = (size_t)c.n;
+    double* av = a.f64(4, "aValues", c.nnz);
+    double* ev = a.f64(5, "eValues", c.nnz);
+    ms::requireFinite(av, c.nnz, 0, "A");
+    ms::requireFinite(ev, c.nnz, 0, "E");
+    size_t nf = 0;
+    double* w = a.f64(6, "frequencies", 0, &nf);
+    ms::requireFinite(w, nf, 0, "frequencies");
+    int64_t m = a.integer(8, "m"), p = a.integer(10, "p");
+    if (m < 1 || p < 1) fail("invalid_option", "frequency sweep: m and p must be at least 1");
+    double* B = a.f64(7, "B", n * (size_t)m);
+    double* C = a.f64(9, "C", (size_t)p * n);
+    double* re = a.f64(11, "re", nf * (size_t)(p * m));
+    double* im = a.f64(12, "im", nf * (size_t)(p * m));
+    int64_t requested = a.integer(13, "threads");
+    std::string name = a.isNullish(14) ? "matrix" : a.string(14, "name");
+    int threads = (int)std::max<int64_t>(1, std::min<int64_t>(requested, (int64_t)nf));
+
+    std::vector<double> cols(n * (size_t)m);  // B's columns, contiguous
+    for (size_t i = 0; i < n; i++)
+      for (int64_t k = 0; k < m; k++) cols[(size_t)k * n + i] = B[i * (size_t)m + (size_t)k];
+
+    std::atomic<size_t> next{0};
+    std::atomic<bool> failed{false};
+    std::mutex errorLock;
+    Failure firstError;
+    auto run = [&]() {
+      try {
+        std::vector<double> z(c.nnz), xr(n), xi(n), zero(n, 0.0);
+        double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
+        umfpack_zi_defaults(control);
+        for (size_t f; !failed.load() && (f = next.fetch_add(1)) < nf;) {
+          double omega = w[f] == 0 ? 5e-324 : w[f];
+          for (size_t k = 0; k < c.nnz; k++) z[k] = -omega * ev[k];
+          void* num = nullptr;
+          int status = umfpack_zi_numeric(c.p, c.i, av, z.data(), s->object, &num, control, inf);
+          if (status != UMFPACK_OK) {
+            if (num) umfpack_zi_free_numeric(&num);
+            umfStatus(status, ("numeric factorization at ω = " + showNumber(w[f])).c_str(), name.c_str());
+          }
+          for (int64_t k = 0; k < m && status == UMFPACK_OK; k++) {
+            status = umfpack_zi_solve(UMFPACK_A, c.p, c.i, av, z.data(), xr.data(), xi.data(), cols.data() + (size_t)k * n, zero.data(), num, control, inf);
+            if (status != UMFPACK_OK) break;
+            for (int64_t r = 0; r < p; r++) {
+              const double* crow = C + (size_t)r * n;
+              double sr = 0, si = 0;
+              for (size_t i = 0; i < n; i++) {
+                sr += crow[i] * xr[i];
+                si += crow[i] * xi[i];
+              }
+              // (iωE − A) x = b  ⇔  (A − iωE) x = −b
+              re[f * (size_t)(p * m) + (size_t)(r * m + k)] = -sr;
+              im[f * (size_t)(p * m) + (size_t)(r * m + k)] = -si;
+            }
+          }
+          umfpack_zi_free_numeric(&num);
+          if (status != UMFPACK_OK) umfStatus(status, ("solve at ω = " + showNumber(w[f])).c_str(), name.c_str());
+        }
+      } catch (const Failure& e) {
+        std::lock_guard<std::mutex> hold(errorLock);
+        if (!failed.exchange(true)) firstError = e;
+      } catch (const std::bad_alloc&) {
+        std::lock_guard<std::mutex> hold(errorLock);
+        if (!failed.exchange(true)) firstError = Failure{"out_of_memory", "frequency sweep: out of memory for " + name};
+      }
+    };
+    int blas = ms::blasThreads();
+    if (threads > 1) ms::setBlasThreads(1);
+    std::vector<std::thread> pool;
+    for (int t = 1; t < threads; t++) pool.emplace_back(run);
+    run();
+    for (auto& th : pool) th.join();
+    if (threads > 1) ms::setBlasThreads(blas);
+    if (failed.load()) throw firstError;
+    return ms::undefinedValue(env);
+  });
+}
+
 // ---- CHOLMOD ----------------------------------------------------------------------------------
 
 struct CholHandle {
@@ -386,6 +492,7 @@ void registerSparse(napi_env env, napi_value exports) {
   define(env, exports, "umfpackNumeric", UmfNumeric);
   define(env, exports, "umfpackSolve", UmfSolve);
   define(env, exports, "umfpackFree", UmfFree);
+  define(env, exports, "umfpackSweep", UmfSweep);
   define(env, exports, "cholmodFactor", CholFactor);
   define(env, exports, "cholmodSolve", CholSolve);
   define(env, exports, "cholmodFree", CholFree);

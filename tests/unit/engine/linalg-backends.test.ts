@@ -416,7 +416,29 @@ describe('sparse direct solvers (SuiteSparse) against scipy.sparse.linalg.spsolv
     clu.factor(A.values.map((v) => 2 * v), imag.map((v) => 2 * v));
     const z2 = clu.solveComplex(b, null);
     expect(Math.abs(z2.re[7] - z.re[7] / 2)).toBeLessThan(1e-12 * cs);
+    // The threaded sweep on the same analysis (umfpackSweep, its own factor per frequency): −C (A − jωI)⁻¹ b
+    // with C = e₇ᵀ at ω = 500, three times over two threads, is minus scipy's solution's entry 7.
+    const eValues = new Float64Array(A.values.length);
+    for (let j = 0; j < A.n; j++) for (let k = A.colPtr[j]; k < A.colPtr[j + 1]; k++) if (A.rowIndex[k] === j) eValues[k] = 1;
+    const pick = new Float64Array(A.n);
+    pick[7] = 1;
+    const out = { re: new Float64Array(3), im: new Float64Array(3) };
+    clu.sweep(A.values, eValues, Float64Array.from([500, 500, 500]), { data: b, cols: 1 }, { data: pick, rows: 1 }, out, 2);
+    for (let k = 0; k < 3; k++) expect(Math.hypot(out.re[k] + shifted.re[7], out.im[k] + shifted.im[7]) / cs).toBeLessThan(1e-12);
     clu.dispose();
+  });
+
+  it('the threaded sweep refuses a frequency at a pole, naming it, with the code singular', () => {
+    // A = [[0, 1], [−1, 0]] has poles ±j: A − jωI is singular at ω = 1. The pattern holds the diagonal (E = I).
+    const pattern = { n: 2, colPtr: Int32Array.from([0, 2, 4]), rowIndex: Int32Array.from([0, 1, 0, 1]) };
+    const values = Float64Array.from([0, -1, 1, 0]);
+    const eValues = Float64Array.from([1, 0, 0, 1]);
+    const lu = SparseLu.analyze({ ...pattern, values, imag: eValues.map((e) => -0.5 * e) }, 'A − jωI');
+    const out = { re: new Float64Array(3), im: new Float64Array(3) };
+    const sweep = () => lu.sweep(values, eValues, Float64Array.from([0.5, 1, 2]), { data: Float64Array.from([0, 1]), cols: 1 }, { data: Float64Array.from([1, 0]), rows: 1 }, out, 2);
+    expect(sweep).toThrow(/A − jωI is singular \(numeric factorization at ω = 1\)/);
+    expect(() => sweep()).toThrow(expect.objectContaining({ code: 'singular' }));
+    lu.dispose();
   });
 
   it('CHOLMOD solves −A (positive definite) and AMD orders it; a singular matrix is refused with its name', () => {

@@ -5,11 +5,14 @@
  * StoppedError before the next iteration, returning nothing. No numerical reference is needed: the hooks
  * are compared with the same call made without them.
  */
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
+import { linalgThreads, setLinalgThreads } from '@/reduction/linalg/index';
 import { lowRankGramians, type AdiStep } from '@/reduction/sparse/adi';
 import { sparseFrequencyResponse } from '@/reduction/sparse/frequency';
 import { StoppedError, throwIfStopped } from '@/reduction/stop';
 import { plateModel } from './sparse-support';
+
+const initialThreads = linalgThreads();
 
 describe('stop flag', () => {
   it('throws StoppedError only once the flag is set', () => {
@@ -68,17 +71,25 @@ describe('low-rank ADI hooks', () => {
 
 describe('sparse frequency sweep hooks', () => {
   const model = plateModel(8);
-  const w = [0.1, 1, 10, 100, 1000];
+  const w = [0.1, 1, 10, 100, 1000, 3000, 10000];
 
-  it('reports done of total after each frequency and returns the same response', () => {
+  it('reports done of total after each batch of frequencies and returns the same response, one thread or two', () => {
     const seen: { done: number; total: number }[] = [];
+    setLinalgThreads(2);
     const g = sparseFrequencyResponse(model, w, Infinity, { onStep: (s) => seen.push(s) });
-    expect(seen).toEqual(w.map((_, k) => ({ done: k + 1, total: w.length })));
-    const plain = sparseFrequencyResponse(model, w);
-    expect(g.response.map((h) => Array.from(h.re.data))).toEqual(plain.response.map((h) => Array.from(h.re.data)));
+    // Batches of twice the thread count: 4, then the last 3.
+    expect(seen).toEqual([
+      { done: 4, total: w.length },
+      { done: 7, total: w.length },
+    ]);
+    setLinalgThreads(1);
+    const single = sparseFrequencyResponse(model, w);
+    expect(g.response.map((h) => Array.from(h.re.data))).toEqual(single.response.map((h) => Array.from(h.re.data)));
+    expect(g.response.map((h) => Array.from(h.im.data))).toEqual(single.response.map((h) => Array.from(h.im.data)));
   });
 
-  it('stops at the flag', () => {
+  it('stops at the flag between batches', () => {
+    setLinalgThreads(1);
     const signal = { aborted: false };
     let done = 0;
     expect(() =>
@@ -86,10 +97,12 @@ describe('sparse frequency sweep hooks', () => {
         signal,
         onStep: (s) => {
           done = s.done;
-          if (s.done === 2) signal.aborted = true;
+          signal.aborted = true;
         },
       }),
     ).toThrow(StoppedError);
     expect(done).toBe(2);
   });
+
+  afterAll(() => setLinalgThreads(initialThreads));
 });
