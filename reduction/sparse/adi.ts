@@ -24,6 +24,15 @@
  * the candidates t. A is assumed stable (Re λ(E⁻¹A) < 0); Ritz values in the closed right half-plane are
  * dropped, and the model refused when none remain.
  *
+ * When a whole pass over Penzl's shifts lowers the residual by less than a factor 100 (lightly damped,
+ * oscillating models such as structures, whose poles lie along the imaginary axis far from Penzl's few
+ * shifts), the iteration goes on with self-generating projection shifts (P. Benner, P. Kürschner & J. Saak,
+ * "Self-generating and efficient shift parameters in ADI methods for large Lyapunov and Sylvester
+ * equations", ETNA 43, 2014, §4.1): the eigenvalues of the pencil (UᵀAU, UᵀEU), U an orthonormal basis of
+ * the most recent factor columns (up to 32 of each equation), those in the right half-plane mirrored
+ * into the left one; each pass makes the next pass's shifts. These shifts are used once each, so their
+ * factorizations are not kept.
+ *
  * Factorizations: A + pE is written on the union pattern of A and E (`shiftPattern`), one numeric UMFPACK
  * factorization per distinct shift, used by both equations (the two iterations run in lockstep) and kept
  * for the next cycle when the estimated memory allows (`cacheBudgetBytes`); otherwise each use refactors
@@ -31,7 +40,7 @@
  */
 import { ModelError } from '../errors';
 import { throwIfStopped, type StopSignal } from '../stop';
-import { type Matrix, zeros, eigenvalues, symmetricEigenvalues } from '../linalg/index';
+import { type Matrix, zeros, eigenvalues, solve, symmetricEigenvalues } from '../linalg/index';
 import { SparseLu, type CscMatrix } from '../linalg/sparse';
 import { checkFactorBudget } from './budget';
 import { cscTimesVector, shiftPattern, shiftedValues, type ShiftPattern, type SparseStateSpaceModel } from './model';
@@ -47,8 +56,10 @@ export interface AdiOptions {
   readonly tolerance?: number;
   /** Most ADI steps per equation (a complex pair counts as two; default 300). */
   readonly maxIterations?: number;
-  /** Shifts to use instead of Penzl's heuristic. */
+  /** Shifts to use instead of Penzl's heuristic (used cyclically, never replaced by projection shifts). */
   readonly shifts?: readonly Shift[];
+  /** Go on with projection shifts when a pass over Penzl's shifts gains less than a factor 100 (default true). */
+  readonly projectionShifts?: boolean;
   /** Arnoldi steps on E⁻¹A, on A⁻¹E and the number of shifts (Penzl's k₊, k₋, l₀; default 30, 20, 16). */
   readonly arnoldiSteps?: number;
   readonly inverseArnoldiSteps?: number;
@@ -90,6 +101,7 @@ export interface AdiFactor {
 export interface AdiResult {
   readonly controllability?: AdiFactor;
   readonly observability?: AdiFactor;
+  /** Every shift used: Penzl's (or the given ones), then any projection shifts in the order made. */
   readonly shifts: readonly Shift[];
   /** Numeric factorizations made, and symbolic analyses made. */
   readonly factorizations: number;
@@ -144,13 +156,14 @@ class ShiftedSolvers {
     return lu;
   }
 
-  get(p: Shift): SparseLu {
+  /** The factorization of A + pE; `keep` false for a shift used once (not cached, refactored on a shared analysis). */
+  get(p: Shift, keep = true): SparseLu {
     const key = `${p.re}:${p.im}`;
     const hit = this.cache.get(key);
     if (hit) return hit;
     const { values, imag } = shiftedValues(this.sp, -p.re, -p.im);
     const complex = imag !== null;
-    if (this.caching) {
+    if (this.caching && keep) {
       const label = `A + (${p.re}${complex ? ` + ${p.im}i` : ''})·E`;
       const lu = this.analyze(values, imag, label);
       factorOrRefuse(lu, values, imag, 'A', `${label} is singular: −(shift) is a pole of the model, which a stable model's shifts never are`);
@@ -471,6 +484,60 @@ export function heuristicShifts(
   }
 }
 
+/** Factor columns a projection looks at: the most recent ones of each equation (a choice of ours). */
+const PROJECTION_COLUMNS = 32;
+
+/**
+ * Projection shifts (Benner, Kürschner & Saak 2014, §4.1): the eigenvalues of (UᵀAU, UᵀEU) for an
+ * orthonormal basis U of `columns` (at most `maxColumns` of them, the last ones), mirrored into the open
+ * left half-plane, one per conjugate pair (im ≥ 0). Empty when the columns span nothing.
+ */
+export function projectionShifts(model: SparseStateSpaceModel, columns: readonly Float64Array[], maxColumns = PROJECTION_COLUMNS): Shift[] {
+  const n = model.A.n;
+  const basis: Float64Array[] = [];
+  for (const col of columns.slice(-maxColumns)) {
+    const v = Float64Array.from(col);
+    const norm0 = Math.sqrt(v.reduce((t, x) => t + x * x, 0));
+    if (!(norm0 > 0)) continue;
+    for (let pass = 0; pass < 2; pass++) {
+      for (const u of basis) {
+        let h = 0;
+        for (let i = 0; i < n; i++) h += u[i] * v[i];
+        for (let i = 0; i < n; i++) v[i] -= h * u[i];
+      }
+    }
+    const norm = Math.sqrt(v.reduce((t, x) => t + x * x, 0));
+    if (norm > 1e-8 * norm0) basis.push(v.map((x) => x / norm));
+  }
+  const r = basis.length;
+  if (r === 0) return [];
+  const project = (op: (x: Float64Array) => Float64Array): Matrix => {
+    const out = zeros(r, r);
+    for (let j = 0; j < r; j++) {
+      const w = op(basis[j]);
+      for (let i = 0; i < r; i++) {
+        let h = 0;
+        const u = basis[i];
+        for (let t = 0; t < n; t++) h += u[t] * w[t];
+        out.data[i * r + j] = h;
+      }
+    }
+    return out;
+  };
+  const H = project((x) => cscTimesVector(model.A, x));
+  const pencil = model.E ? solve(project((x) => cscTimesVector(model.E!, x)), H) : H;
+  const ev = eigenvalues(pencil);
+  const shifts: Shift[] = [];
+  for (let i = 0; i < ev.re.length; i++) {
+    const re = -Math.abs(ev.re[i]);
+    const mag = Math.hypot(ev.re[i], ev.im[i]);
+    if (!(re < 0) || !Number.isFinite(mag) || ev.im[i] < 0) continue;
+    const im = ev.im[i] <= 1e-10 * mag ? 0 : ev.im[i];
+    if (!shifts.some((c) => Math.abs(c.re - re) <= 1e-10 * mag && Math.abs(c.im - im) <= 1e-10 * mag)) shifts.push({ re, im });
+  }
+  return shifts;
+}
+
 /**
  * Low-rank factors of the controllability and observability gramians by LR-ADI (see the header).
  * Throws ModelError('unstable') when no stable shift exists; a run that reaches maxIterations returns
@@ -501,12 +568,32 @@ export function lowRankGramians(model: SparseStateSpaceModel, options: AdiOption
   if (which.includes('controllability')) sides.push({ name: 'controllability', side: new AdiSide(columnsOf(model.B, false), model.E, false, tol) });
   if (which.includes('observability')) sides.push({ name: 'observability', side: new AdiSide(columnsOf(model.C, true), model.E, true, tol) });
   const solvers = new ShiftedSolvers(shiftPattern(model.A, model.E), options.cacheBudgetBytes ?? 2 ** 30, options.memoryBudgetBytes ?? Infinity);
+  const worstResidual = () => Math.max(...sides.map((s) => (s.side.done ? 0 : s.side.residual)));
+  const used: Shift[] = [...shifts];
+  let projecting = false;
   try {
     let k = 0;
+    let passResidual = worstResidual();
     while (sides.some((s) => !s.side.done && s.side.iterations < maxIt)) {
       throwIfStopped(options.signal, 'the low-rank ADI');
-      const p = shifts[k++ % shifts.length];
-      const lu = solvers.get(p);
+      if (k === shifts.length) {
+        // A pass over the shifts is done: go on with the same shifts, or (slow progress, or already
+        // projecting) with projection shifts from the most recent columns.
+        const now = worstResidual();
+        if (!options.shifts && options.projectionShifts !== false && (projecting || now > 1e-2 * passResidual)) {
+          const fresh = projectionShifts(model, sides.flatMap((s) => s.side.z.slice(-PROJECTION_COLUMNS)));
+          if (fresh.length > 0) {
+            if (!projecting) notes.push(`a pass over Penzl's ${shifts.length} shifts lowered the residual by less than 100×: went on with projection shifts (Benner, Kürschner & Saak 2014)`);
+            projecting = true;
+            shifts = fresh;
+          }
+        }
+        k = 0;
+        passResidual = now;
+      }
+      const p = shifts[k++];
+      if (projecting) used.push(p);
+      const lu = solvers.get(p, !projecting);
       for (const s of sides) {
         if (s.side.done || s.side.iterations >= maxIt) continue;
         s.side.step(p, lu);
@@ -523,7 +610,7 @@ export function lowRankGramians(model: SparseStateSpaceModel, options: AdiOption
   }
   return {
     ...out,
-    shifts,
+    shifts: used,
     factorizations: solvers.factorizations,
     analyses: solvers.analyses,
     seconds: (performance.now() - started) / 1000,

@@ -9,7 +9,10 @@
  *  - an independent scipy low-rank ADI (SuperLU, ARPACK Ritz values) in the same script, task "lradi".
  */
 import { describe, expect, it } from 'vitest';
-import { arnoldiRitzValues, heuristicShifts, lowRankGramians } from '@/reduction/sparse/adi';
+import { arnoldiRitzValues, heuristicShifts, lowRankGramians, projectionShifts } from '@/reduction/sparse/adi';
+import { secondOrderToDescriptor } from '@/reduction/sparse/second-order';
+import { cscFromCoo, createSparseModel } from '@/reduction/sparse/model';
+import { zeros } from '@/reduction/linalg/matrix';
 import { lowRankBalancedRealization } from '@/reduction/sparse/balanced';
 import { cscTimesVector, cscToDense, type SparseStateSpaceModel } from '@/reduction/sparse/model';
 import { SparseLu } from '@/reduction/linalg/sparse';
@@ -117,9 +120,10 @@ describe('low-rank ADI', () => {
   });
 
   it('with no memory to keep factorizations, refactors on one symbolic analysis and gets the same factor', () => {
+    // Penzl's shifts only, used cyclically (projection shifts are used once each and never kept).
     const model = plateModel(20, { convection: 300, descriptor: true, inputs: 2, outputs: 2 });
-    const cached = lowRankGramians(model);
-    const shared = lowRankGramians(model, { cacheBudgetBytes: 0 });
+    const cached = lowRankGramians(model, { projectionShifts: false });
+    const shared = lowRankGramians(model, { cacheBudgetBytes: 0, projectionShifts: false });
     expect(cached.factorizations).toBe(cached.shifts.length); // one per distinct shift
     expect(shared.analyses).toBe(1);
     expect(shared.factorizations).toBeGreaterThan(cached.factorizations);
@@ -163,4 +167,57 @@ describe('Hankel singular values from the low-rank factors', () => {
       expect(relDiff(hsv[0], ref.hsv[0])).toBeLessThan(1e-9);
     });
   }
+});
+
+describe('projection shifts (Benner, Kürschner & Saak 2014)', () => {
+  const unit = (n: number, ...at: number[]) => {
+    const v = new Float64Array(n);
+    for (const i of at) v[i] = 1;
+    return v;
+  };
+
+  it('are the eigenvalues of A on an invariant subspace, mirrored into the left half-plane, one per pair', () => {
+    // A = diag(−1, [[−2, 5], [−5, −2]], 3, −7): span{e0, e1, e2} is invariant, with eigenvalues −1 and −2 ± 5i.
+    const r = [0, 1, 1, 2, 2, 3, 4], c = [0, 1, 2, 1, 2, 3, 4], v = [-1, -2, 5, -5, -2, 3, -7];
+    const model = createSparseModel({ A: cscFromCoo(5, r, c, v), B: zeros(5, 1), C: zeros(1, 5) });
+    const got = projectionShifts(model, [unit(5, 0), unit(5, 1, 2), unit(5, 2)]).sort((a, b) => b.re - a.re);
+    expect(got).toHaveLength(2);
+    expect(got[0].re).toBeCloseTo(-1, 12);
+    expect(got[0].im).toBe(0);
+    expect(got[1].re).toBeCloseTo(-2, 12);
+    expect(got[1].im).toBeCloseTo(5, 12);
+    // The unstable eigenvalue 3 on span{e3} comes back as −3; a repeated column adds nothing.
+    expect(projectionShifts(model, [unit(5, 3), unit(5, 3)])).toEqual([{ re: -3, im: 0 }]);
+  });
+
+  it('take over when Penzl’s shifts stall on a lightly damped structure, and the factor still solves the Lyapunov equation', () => {
+    // A fixed–fixed chain of 60 unit masses and springs k = 1000 with Rayleigh damping 0.5·M + 4e-3·K:
+    // poles from about −0.26 ± 1.6i to −8 ± 62i, spread along the imaginary axis, where Penzl's few shifts
+    // (from Ritz values) do poorly.
+    const q = 60;
+    const tri = (d: number, o: number) => {
+      const r: number[] = [], c: number[] = [], v: number[] = [];
+      for (let i = 0; i < q; i++) {
+        r.push(i), c.push(i), v.push(d);
+        if (i + 1 < q && o !== 0) r.push(i, i + 1), c.push(i + 1, i), v.push(o, o);
+      }
+      return cscFromCoo(q, r, c, v);
+    };
+    const force = zeros(q, 1);
+    force.data[9] = 1;
+    const out = zeros(1, q);
+    out.data[9] = 1;
+    const model = secondOrderToDescriptor({ mass: tri(1, 0), stiffness: tri(2000, -1000), damping: tri(0.5 + 8, -4), force, displacementOutput: out });
+    const options = { maxIterations: 300, tolerance: 1e-10, equations: ['controllability' as const] };
+    const penzl = lowRankGramians(model, { ...options, projectionShifts: false });
+    const projected = lowRankGramians(model, options);
+    expect(projected.notes.join(' ')).toContain('went on with projection shifts');
+    expect(penzl.controllability!.converged).toBe(false);
+    expect(projected.controllability!.converged).toBe(true);
+    expect(projected.controllability!.iterations).toBeLessThan(200);
+    // The normalised residual the iteration reports is the true one, formed densely.
+    const r = residualRatio(model, projected.controllability!.Z, false);
+    expect(r).toBeLessThan(4 * projected.controllability!.residual);
+    expect(r).toBeGreaterThan(projected.controllability!.residual / 4);
+  });
 });
