@@ -16,7 +16,8 @@ import './cli/sweep';
 import './cli/simulate';
 
 function usage(): string {
-  const lines = ['usage: npx tsx reduction/cli.ts <verb> MODEL [options]', '', 'MODEL is one .json file, or the A, B, C and optionally D files (.mtx or .csv).', '', 'verbs:'];
+  const lines = ['usage: npx tsx reduction/cli.ts <verb> MODEL [options]', '', 'MODEL is one .json file, or the A, B, C and optionally D files (.mtx or .csv), or a second-order model:',
+    '--mass M.mtx --stiffness K.mtx [--damping D.mtx] F C [D] (sparse path; C maps displacements, or displacements then velocities).', '', 'verbs:'];
   for (const v of listVerbs()) {
     lines.push(`  ${v.name} ${v.usage}`, `      ${v.summary}`);
     for (const [name, spec] of Object.entries(v.options)) lines.push(`      --${name}${spec.value ? ' …' : ''}  ${spec.description}`);

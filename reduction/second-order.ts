@@ -135,3 +135,22 @@ export function secondOrderToFirstOrder(so: SecondOrderMatrices, description: Mo
   }
   return assembleModel({ A, B, C }, description);
 }
+
+/** A second-order model's output map C: q columns map the displacements, 2q columns [displacements, velocities]. */
+export function splitSecondOrderOutput(C: Matrix, q: number, name: string): { displacementOutput: Matrix; velocityOutput?: Matrix } {
+  if (C.cols === q) return { displacementOutput: C };
+  if (C.cols === 2 * q) {
+    const d = zeros(C.rows, q);
+    const v = zeros(C.rows, q);
+    for (let i = 0; i < C.rows; i++) {
+      d.data.set(C.data.subarray(i * 2 * q, i * 2 * q + q), i * q);
+      v.data.set(C.data.subarray(i * 2 * q + q, (i + 1) * 2 * q), i * q);
+    }
+    return { displacementOutput: d, velocityOutput: v };
+  }
+  throw new ModelError(
+    'dimension_mismatch',
+    'C',
+    `${name}: C has ${C.cols} columns, but the model has ${q} degrees of freedom: give ${q} columns (displacements) or ${2 * q} (displacements, then velocities)`,
+  );
+}

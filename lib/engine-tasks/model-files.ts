@@ -25,6 +25,7 @@ import {
   parseMatrixFile,
   parseModelJson,
   secondOrderToFirstOrder,
+  splitSecondOrderOutput,
   zeros,
   type Matrix,
   type StateSpaceModel,
@@ -167,25 +168,6 @@ const ROLE_WORDS: Record<FileRole, string> = {
   stiffness: 'stiffness matrix K',
 };
 
-/** A second-order model's output map C: q columns map the displacements, 2q columns [displacements, velocities]. */
-function splitOutput(C: Matrix, q: number, name: string): { displacementOutput: Matrix; velocityOutput?: Matrix } {
-  if (C.cols === q) return { displacementOutput: C };
-  if (C.cols === 2 * q) {
-    const d = zeros(C.rows, q);
-    const v = zeros(C.rows, q);
-    for (let i = 0; i < C.rows; i++) {
-      d.data.set(C.data.subarray(i * 2 * q, i * 2 * q + q), i * q);
-      v.data.set(C.data.subarray(i * 2 * q + q, (i + 1) * 2 * q), i * q);
-    }
-    return { displacementOutput: d, velocityOutput: v };
-  }
-  throw new ModelError(
-    'dimension_mismatch',
-    'C',
-    `${name}: C has ${C.cols} columns, but the model has ${q} degrees of freedom: give ${q} columns (displacements) or ${2 * q} (displacements, then velocities)`,
-  );
-}
-
 /** The engine's names of a second-order model's parts, as the form's fields. */
 const SECOND_ORDER_FIELD: Record<string, FileRole> = {
   mass: 'mass',
@@ -239,7 +221,7 @@ export function loadModel(files: readonly ModelFile[]): LoadedModel {
         damping: read('damping'),
         stiffness: read('stiffness')!,
         force: read('B')!,
-        ...splitOutput(C, mass.rows, byRole.get('C')!.name),
+        ...splitSecondOrderOutput(C, mass.rows, byRole.get('C')!.name),
       });
       const D = read('D');
       if (D) {
@@ -314,7 +296,7 @@ export function loadSparseModel(files: readonly ModelFile[]): LoadedSparseModel 
         damping: sparse('damping'),
         stiffness: sparse('stiffness')!,
         force: B,
-        ...splitOutput(C, mass.n, byRole.get('C')!.name),
+        ...splitSecondOrderOutput(C, mass.n, byRole.get('C')!.name),
         feedthrough: D,
       });
       return { model, format: 'second-order' };

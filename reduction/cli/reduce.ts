@@ -94,7 +94,8 @@ registerVerb({
     'MODEL --method balanced|residualization|modal (--order R | --tolerance T) [--keep dominance|slowest|band --band LOW,HIGH]\n' +
     '      MODEL --method frequency-limited --band W1,W2 --order R\n' +
     '      MODEL --method irka --order R [--irka-tolerance T] [--irka-max-iterations N]   (dense or sparse path)\n' +
-    '      A.mtx B C [D] [--E E.mtx] [--path dense|sparse|auto] --method balanced|residualization|modal --order R   (sparse path)',
+    '      A.mtx B C [D] [--E E.mtx] [--path dense|sparse|auto] --method balanced|residualization|modal --order R   (sparse path)\n' +
+    '      --mass M.mtx --stiffness K.mtx [--damping D.mtx] F C [D] --method balanced|residualization|modal|irka --order R   (second order, sparse path)',
   options: {
     method: { value: true, description: 'balanced | residualization | modal | irka | frequency-limited' },
     order: { value: true, description: 'states of the reduced model (including those kept for marginal/unstable poles)' },

@@ -8,12 +8,19 @@
  * matrix is given (`--E E.mtx`, which only the sparse path reads). Everything else takes the dense path,
  * unchanged. On the sparse path A and E are read into compressed columns (`reduction/sparse/`), B, C and D
  * by the dense readers (they are thin).
+ *
+ * A second-order model M q̈ + D q̇ + K q = F u always takes the sparse path: `--mass M.mtx --stiffness
+ * K.mtx [--damping D.mtx]` (Matrix Market coordinate files) and the positional files F (q×m), C (p×q
+ * for displacement outputs, or p×2q for displacements then velocities) and optionally the feedthrough
+ * (p×m); it goes into descriptor form without M⁻¹ (`reduction/sparse/second-order.ts`), 2q states.
  */
 import { readFileSync } from 'node:fs';
 import { ModelError } from '../errors';
 import { parseMatrixFile } from '../io/model-files';
 import { coordinateRowCount, parseSparseMatrixMarket } from '../sparse/matrix-market';
 import { createSparseModel, type SparseStateSpaceModel } from '../sparse/model';
+import { secondOrderToDescriptor } from '../sparse/second-order';
+import { splitSecondOrderOutput } from '../second-order';
 import { autoPathIsSparse, SPARSE_CROSSOVER_STATES } from '../sparse/path';
 import { integerOption, numberOption, stringOption, type OptionSpec, type ParsedArgs } from './args';
 import { largestSingularValue, logFrequencyGrid } from '../frequency';
@@ -30,6 +37,9 @@ import { sparseAnalysisCounts, sparseModesDocument } from './sparse-modes';
 export const SPARSE_PATH_OPTIONS: Readonly<Record<string, OptionSpec>> = {
   path: { value: true, description: `dense | sparse | auto (default: sparse for a Matrix Market coordinate A above ${SPARSE_CROSSOVER_STATES} states, or with --E)` },
   E: { value: true, description: 'descriptor matrix E (E ẋ = A x + B u) as a Matrix Market coordinate file; sparse path only' },
+  mass: { value: true, description: 'second-order model: mass matrix M (Matrix Market coordinate); the files are then F (force input), C and optionally D; sparse path' },
+  stiffness: { value: true, description: 'second-order model: stiffness matrix K (Matrix Market coordinate), with --mass' },
+  damping: { value: true, description: 'second-order model: damping matrix (Matrix Market coordinate), with --mass; zero when not given' },
   'adi-tolerance': { value: true, description: 'sparse path: normalised gramian residual the low-rank ADI stops at (default 1e-10)' },
   'adi-max-iterations': { value: true, description: 'sparse path: most ADI steps per gramian (default 300)' },
   'memory-budget': { value: true, description: `sparse path: MiB a sparse factorization may take, checked before it is made (default: ${MEMORY_BUDGET_ENV}, else unlimited)` },
@@ -50,6 +60,8 @@ export function sparseModelArgument(args: ParsedArgs): SparseStateSpaceModel | n
     throw new ModelError('invalid_option', 'path', `--path must be dense, sparse or auto, got "${path}"`);
   }
   const ePath = stringOption(args, 'E');
+  const secondOrder = secondOrderArgument(args, path, ePath);
+  if (secondOrder) return secondOrder;
   if (path === 'dense') {
     if (ePath !== undefined) throw new ModelError('invalid_option', 'E', '--E is read by the sparse path only; drop --path dense');
     return null;
@@ -74,6 +86,35 @@ export function sparseModelArgument(args: ParsedArgs): SparseStateSpaceModel | n
   const E = ePath === undefined ? undefined : parseSparseMatrixMarket(readText(ePath, 'E'), 'E', ePath);
   const [B, C, D] = (['B', 'C', 'D'] as const).slice(0, files.length - 1).map((field, k) => parseMatrixFile(readText(files[k + 1], field), field, files[k + 1]));
   return createSparseModel({ A, E, B, C, D });
+}
+
+/** The second-order model of `--mass`, `--stiffness`, `--damping` and the files F, C [, D]; null without them. */
+function secondOrderArgument(args: ParsedArgs, path: string, ePath: string | undefined): SparseStateSpaceModel | null {
+  const given = (['mass', 'stiffness', 'damping'] as const).filter((o) => args.options.has(o));
+  if (given.length === 0) return null;
+  for (const needed of ['mass', 'stiffness'] as const) {
+    if (!given.includes(needed)) throw new ModelError('invalid_option', needed, `a second-order model needs --mass and --stiffness (--damping is optional); --${needed} is missing`);
+  }
+  if (ePath !== undefined) throw new ModelError('invalid_option', 'E', '--E does not go with --mass: a second-order model’s E is made from M');
+  if (path === 'dense') throw new ModelError('invalid_option', 'path', 'a second-order model given by --mass and --stiffness takes the sparse path; drop --path dense');
+  const files = args.positionals;
+  if (files.length < 2 || files.length > 3) {
+    throw new ModelError('invalid_option', 'model', 'with --mass and --stiffness give the files F (force input, q×m), C (p×q or p×2q) and optionally D (p×m)');
+  }
+  const sparse = (option: 'mass' | 'stiffness' | 'damping') => {
+    const file = stringOption(args, option);
+    return file === undefined ? undefined : parseSparseMatrixMarket(readText(file, option), option, file);
+  };
+  const mass = sparse('mass')!;
+  const [force, C, D] = (['B', 'C', 'D'] as const).slice(0, files.length).map((field, k) => parseMatrixFile(readText(files[k], field), field, files[k]));
+  return secondOrderToDescriptor({
+    mass,
+    stiffness: sparse('stiffness')!,
+    damping: sparse('damping'),
+    force,
+    ...splitSecondOrderOutput(C, mass.n, files[1]),
+    feedthrough: D,
+  });
 }
 
 /** ADI options from the command line. */

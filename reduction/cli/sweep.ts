@@ -2,12 +2,19 @@
  * `sweep MODEL (--at w1,w2,… | --grid LOW,HIGH [--count N])`: the frequency response G(jω), one p×m complex
  * matrix per frequency, with σmax(G(jω)) (method: `reduction/frequency.ts`, Laub 1981). Frequencies are in
  * rad per the model's time base (rad/s unless the model says otherwise); the document names the unit.
+ * A model on the sparse path (`reduction/cli/sparse.ts`: a large coordinate A, `--E`, or `--mass`/
+ * `--stiffness`) is swept by sparse LU solves, the frequencies spread over the cores
+ * (`reduction/sparse/frequency.ts`), under `--memory-budget`.
  */
 import { ModelError } from '../errors';
 import { frequencyEvaluator, largestSingularValue, logFrequencyGrid } from '../frequency';
-import { integerOption, loadModelArgument, numberListOption, type ParsedArgs } from './args';
+import { integerOption, loadModelArgument, numberListOption, numberOption, type ParsedArgs } from './args';
 import { matrixRows, numberList } from './output';
-import { registerVerb } from './registry';
+import { ENGINE_PATH, registerVerb } from './registry';
+import { SPARSE_PATH_OPTIONS, sparseModelArgument } from './sparse';
+import { memoryBudgetBytes } from '../sparse/budget';
+import { sparseFrequencyResponse } from '../sparse/frequency';
+import type { ComplexMatrix } from '../frequency';
 
 const DEFAULT_COUNT = 200;
 
@@ -36,20 +43,33 @@ function frequenciesOf(args: ParsedArgs): number[] {
 registerVerb({
   name: 'sweep',
   summary: 'frequency response G(jω) at given frequencies or on a log-spaced grid',
-  usage: 'MODEL (--at w1,w2,… | --grid LOW,HIGH [--count N])',
+  usage: 'MODEL (--at w1,w2,… | --grid LOW,HIGH [--count N]) [--path dense|sparse|auto] [--E E.mtx]',
   options: {
+    ...SPARSE_PATH_OPTIONS,
     at: { value: true, description: 'frequencies in rad per time unit of the model (rad/s for seconds), comma-separated, each ≥ 0' },
     grid: { value: true, description: 'log-spaced grid from LOW to HIGH rad per time unit of the model' },
     count: { value: true, description: `number of grid points for --grid (default ${DEFAULT_COUNT})` },
   },
   run(args) {
-    const model = loadModelArgument(args.positionals);
+    const sparse = sparseModelArgument(args);
     const frequencies = frequenciesOf(args);
-    const evaluator = frequencyEvaluator(model);
-    const response = frequencies.map((w) => evaluator.at(w));
+    let response: ComplexMatrix[];
+    let timeBase: string | undefined;
+    if (sparse) {
+      for (const o of ['adi-tolerance', 'adi-max-iterations']) {
+        if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} does not apply to sweep`);
+      }
+      response = sparseFrequencyResponse(sparse, frequencies, memoryBudgetBytes(numberOption(args, 'memory-budget'))).response;
+    } else {
+      const model = loadModelArgument(args.positionals);
+      timeBase = model.timeBase;
+      const evaluator = frequencyEvaluator(model);
+      response = frequencies.map((w) => evaluator.at(w));
+    }
     return {
+      ...(sparse ? { [ENGINE_PATH]: 'sparse' } : {}),
       frequencies,
-      frequencyUnit: `rad/${model.timeBase ?? 's'}`,
+      frequencyUnit: `rad/${timeBase ?? 's'}`,
       response: response.map((g) => ({ re: matrixRows(g.re), im: matrixRows(g.im) })),
       largestSingularValue: numberList(response.map((g) => largestSingularValue(g))),
     };

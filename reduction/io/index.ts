@@ -8,5 +8,5 @@ export { parseMatrixMarket, writeMatrixMarket } from './matrix-market';
 export { parseModelJson, modelToJson, matrixFromJsonRows } from './json';
 export { loadModelFiles } from './files';
 export { parseModelFiles, parseMatrixFile, type ModelFileText } from './model-files';
-export { secondOrderToFirstOrder, type SecondOrderMatrices } from '../second-order';
+export { secondOrderToFirstOrder, splitSecondOrderOutput, type SecondOrderMatrices } from '../second-order';
 export { DEFAULT_MAX_DENSE_ENTRIES, MAX_DENSE_ENTRIES_ENV, maxDenseEntries, type ReadLimits } from './limits';

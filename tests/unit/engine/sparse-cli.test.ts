@@ -6,10 +6,16 @@
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { sparseBalancedReduction } from '@/reduction/sparse/balanced';
 import { frequencyResponse, logFrequencyGrid } from '@/reduction/frequency';
 import { fromRows, zeros } from '@/reduction/linalg/matrix';
+import { solve } from '@/reduction/linalg/index';
+import { cscFromCoo, type CscMatrix } from '@/reduction/sparse/model';
+import { writeSparseMatrixMarket } from '@/reduction/sparse/matrix-market';
+import { writeMatrixMarket } from '@/reduction/io/matrix-market';
 import type { StateSpaceModel } from '@/reduction/model';
 import { plateModel, relDiff, sparseReference, writeModel } from './sparse-support';
 
@@ -155,5 +161,102 @@ describe('command line: the sparse path', () => {
     const bad = cli('reduce', ...files, '--path', 'sometimes', '--method', 'balanced', '--order', '3');
     expect(bad.status).toBe(2);
     expect(bad.stderr).toContain('field: path');
+  });
+});
+
+describe('command line: a second-order model given as M, D, K', () => {
+  // A fixed–fixed chain of N equal masses m joined by N + 1 equal springs k, Rayleigh damping D = αM + βK.
+  // Undamped, ω_j = 2√(k/m)·sin(jπ/(2(N+1))) (the chain's closed form, any vibrations textbook, e.g.
+  // Meirovitch, "Fundamentals of Vibrations", 2001, §8.9); with Rayleigh damping the modes stay those of the
+  // undamped chain and mode j's poles are −(α + βω_j²)/2 ± iω_j√(1 − ζ_j²), ζ_j = (α/ω_j + βω_j)/2, so the
+  // decay rates are (α + βω_j²)/2. A static unit force at mass j moves it by
+  // j(N+1−j)/(k(N+1)) (the springs either side in parallel, each side's springs in series).
+  const N = 60, m = 1, k = 1000, alpha = 0.5, beta = 0.004, at = 10;
+  const decay = (j: number) => (alpha + beta * omega(j) ** 2) / 2;
+  const omega = (j: number) => 2 * Math.sqrt(k / m) * Math.sin((j * Math.PI) / (2 * (N + 1)));
+  const dir = mkdtempSync(path.join(tmpdir(), 'modeshelf-chain-'));
+  const tri = (d: number, o: number): CscMatrix => {
+    const r: number[] = [], c: number[] = [], v: number[] = [];
+    for (let i = 0; i < N; i++) {
+      r.push(i), c.push(i), v.push(d);
+      if (i + 1 < N && o !== 0) r.push(i, i + 1), c.push(i + 1, i), v.push(o, o);
+    }
+    return cscFromCoo(N, r, c, v);
+  };
+  writeFileSync(path.join(dir, 'M.mtx'), writeSparseMatrixMarket(tri(m, 0)));
+  writeFileSync(path.join(dir, 'K.mtx'), writeSparseMatrixMarket(tri(2 * k, -k)));
+  writeFileSync(path.join(dir, 'D.mtx'), writeSparseMatrixMarket(tri(alpha * m + 2 * k * beta, -k * beta)));
+  const F = zeros(N, 1);
+  F.data[at - 1] = 1;
+  const C = zeros(1, N);
+  C.data[at - 1] = 1;
+  writeFileSync(path.join(dir, 'F.mtx'), writeMatrixMarket(F));
+  writeFileSync(path.join(dir, 'C.mtx'), writeMatrixMarket(C));
+  const so = ['--mass', path.join(dir, 'M.mtx'), '--stiffness', path.join(dir, 'K.mtx'), '--damping', path.join(dir, 'D.mtx'), path.join(dir, 'F.mtx'), path.join(dir, 'C.mtx')];
+
+  it('analyze: 2N states on the sparse path, decay rates (α + βω²)/2 of the closed form, the static deflection as DC gain', () => {
+    const r = cli('analyze', ...so);
+    expect(r.status, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.engine.path).toBe('sparse');
+    expect(out.states).toBe(2 * N);
+    expect(relDiff(out.slowestDecayRate, decay(1))).toBeLessThan(1e-8);
+    expect(relDiff(out.fastestDecayRate, decay(N))).toBeLessThan(2e-2);
+    expect(relDiff(out.zeroFrequencyGain[0][0], (at * (N + 1 - at)) / (k * (N + 1)))).toBeLessThan(1e-10);
+  });
+
+  it('sweep and reduce: the sparse sweep is the chain’s G(iω) = C(K − ω²M + iωD)⁻¹F, and balanced truncation keeps within its bound', () => {
+    const w = [0.5, omega(1), 30];
+    const s = cli('sweep', ...so, '--at', w.join(','));
+    expect(s.status, s.stderr).toBe(0);
+    const sweep = JSON.parse(s.stdout);
+    expect(sweep.engine.path).toBe('sparse');
+    // The same G(iω) from the second-order matrices by a dense complex solve of (K − ω²M + iωD) q = F.
+    w.forEach((om, f) => {
+      const re = zeros(2 * N, 2 * N);
+      const rhs = zeros(2 * N, 1);
+      for (let i = 0; i < N; i++) {
+        // Real form of the complex system [[Re, −Im], [Im, Re]].
+        const kd = 2 * k - om * om * m, cd = om * (alpha * m + 2 * k * beta);
+        re.data[i * 2 * N + i] = kd;
+        re.data[(N + i) * 2 * N + N + i] = kd;
+        re.data[i * 2 * N + N + i] = -cd;
+        re.data[(N + i) * 2 * N + i] = cd;
+        if (i + 1 < N) {
+          for (const [a, b] of [[i, i + 1], [i + 1, i]]) {
+            re.data[a * 2 * N + b] = -k;
+            re.data[(N + a) * 2 * N + N + b] = -k;
+            re.data[a * 2 * N + N + b] = om * k * beta;
+            re.data[(N + a) * 2 * N + b] = -om * k * beta;
+          }
+        }
+      }
+      rhs.data[at - 1] = 1;
+      const q = solve(re, rhs);
+      const g = { re: q.data[at - 1], im: q.data[N + at - 1] };
+      const got = { re: sweep.response[f].re[0][0], im: sweep.response[f].im[0][0] };
+      expect(Math.hypot(got.re - g.re, got.im - g.im) / Math.hypot(g.re, g.im)).toBeLessThan(1e-9);
+    });
+    const r = cli('reduce', ...so, '--method', 'balanced', '--order', '8', '--error-points', '40');
+    expect(r.status, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.engine.path).toBe('sparse');
+    expect(out.A).toHaveLength(8);
+    expect(out.hInfinityError).toBeLessThanOrEqual(out.errorBound * (1 + 1e-6));
+  });
+
+  it('refuses an incomplete second-order model, --E beside --mass and --path dense, naming the option', () => {
+    const noK = cli('analyze', '--mass', path.join(dir, 'M.mtx'), path.join(dir, 'F.mtx'), path.join(dir, 'C.mtx'));
+    expect(noK.status).toBe(2);
+    expect(noK.stderr).toContain('field: stiffness');
+    const withE = cli('analyze', ...so, '--E', path.join(dir, 'M.mtx'));
+    expect(withE.status).toBe(2);
+    expect(withE.stderr).toContain('field: E');
+    const dense = cli('analyze', ...so, '--path', 'dense');
+    expect(dense.status).toBe(2);
+    expect(dense.stderr).toContain('field: path');
+    const wrongC = cli('analyze', '--mass', path.join(dir, 'M.mtx'), '--stiffness', path.join(dir, 'K.mtx'), path.join(dir, 'F.mtx'), path.join(dir, 'F.mtx'));
+    expect(wrongC.status).toBe(2);
+    expect(wrongC.stderr).toContain('field: C');
   });
 });
