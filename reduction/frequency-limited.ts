@@ -182,7 +182,7 @@ export function bandIntegral(A: Matrix, omega: number): Matrix {
 
 export type Band = readonly [number, number];
 
-function checkBand(band: Band): void {
+export function checkBand(band: Band): void {
   const [lo, hi] = band;
   if (!(Number.isFinite(lo) && Number.isFinite(hi) && lo >= 0 && hi > lo)) {
     throw new ModelError('invalid_option', 'band', `band must be two frequencies w1,w2 with 0 ≤ w1 < w2 (rad per time unit), got ${lo},${hi}`);

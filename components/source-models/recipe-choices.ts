@@ -12,14 +12,6 @@ export type Method = 'balanced' | 'residualization' | 'modal' | 'frequency-limit
 export type ModalSelection = 'dominance' | 'slowest' | 'band';
 
 /**
- * The methods offered for an analysed model: on the large-model path the at-scale ones (low-rank balanced
- * truncation and residualization, modal truncation of computed modes, IRKA); on the dense path all.
- */
-export function methodsFor(analysis: AnalysisRecord): readonly Method[] {
-  return analysis.path === 'sparse' ? ['balanced', 'residualization', 'modal', 'irka'] : ['balanced', 'residualization', 'modal', 'frequency-limited', 'irka'];
-}
-
-/**
  * Whether the order is chosen by number only: methods without an a-priori bound (frequency-limited balanced
  * truncation, IRKA), and every method on the large-model path (its bounds are estimates over the leading
  * Hankel values, shown on the slider for each order).
@@ -32,7 +24,12 @@ export function storedTable(analysis: AnalysisRecord, method: Method, selection:
   if (method === 'balanced') return analysis.orderFigures.balanced;
   // IRKA has no bound: the balanced orders without it on the dense path; the large-model path's plain orders.
   if (method === 'irka') return analysis.path === 'sparse' ? analysis.orderFigures.modalDominance : frequencyLimitedTable(analysis.orderFigures.balanced);
-  if (method === 'frequency-limited') return frequencyLimitedTable(analysis.orderFigures.balanced);
+  if (method === 'frequency-limited') {
+    // On the large-model path the method starts from the balanced model of every resolved value (reduction/
+    // sparse/frequency-limited.ts), so its order stays below their count.
+    const table = frequencyLimitedTable(analysis.orderFigures.balanced);
+    return analysis.path === 'sparse' && table.available ? { ...table, orders: table.orders.slice(0, -1) } : table;
+  }
   if (method === 'residualization') return analysis.orderFigures.residualization;
   if (selection === 'dominance') return analysis.orderFigures.modalDominance;
   if (selection === 'slowest') return analysis.orderFigures.modalSlowest;

@@ -9,9 +9,10 @@ import { formatFrequency, formatNumber, frequencyUnit } from '@/lib/format';
 import { OrderSlider } from '@/components/workspace/OrderSlider';
 import type { AnalysisRecord, OrderFigureTable } from '@/lib/engine-tasks/records';
 import type { ProjectBandSeed } from '@/lib/reduced-models/queries';
-import { methodsFor, orderByNumberOnly, orderForTolerance, type BandUnit, type Method, type ModalSelection } from './recipe-choices';
+import { orderByNumberOnly, orderForTolerance, type BandUnit, type Method, type ModalSelection } from './recipe-choices';
 import { typedNumber, type RecipeFormValues } from './recipe-form-schema';
 import { methodChoiceLabel } from '@/lib/recipe-words';
+import { RECIPE_METHODS } from '@/lib/reduced-models/schemas';
 
 export interface ReducedModelChoice {
   id: string;
@@ -87,7 +88,7 @@ export function MethodFields({ id, analysis, method, onMethod, selection, onSele
     <div className="grid gap-4 md:grid-cols-2">
       <Field htmlFor={`${id}-method`} label="Method">
         <select id={`${id}-method`} className="field-input" value={method} onChange={(e) => onMethod(e.target.value as Method)} disabled={!canRun}>
-          {methodsFor(analysis).map((m) => (
+          {RECIPE_METHODS.map((m) => (
             <option key={m} value={m}>
               {methodChoiceLabel(m)}
             </option>

@@ -8,6 +8,8 @@
 //                               Antoulas & Beattie 2008): no a-priori bound
 //   modal                       modal truncation of computed modes (reduction/sparse/modal.ts): the bound
 //                               needs every discarded mode, so none is given
+//   frequency-limited           Gawronski & Juang's method on the band, in two steps (reduction/sparse/
+//                               frequency-limited.ts): no a-priori bound; the band errors are measured
 //
 // and then what the comparison page draws: the full model's frequency response by one sparse LU per
 // frequency (reduction/sparse/frequency.ts, with progress and the stop flag), the reduced model's on the same
@@ -38,6 +40,8 @@ import { sparseBalancedReduction } from '../../reduction/sparse/balanced';
 import { sparseIrka } from '../../reduction/sparse/irka';
 import { sparseModalReduction } from '../../reduction/sparse/modal';
 import { sparseFrequencyResponse } from '../../reduction/sparse/frequency';
+import { sparseFrequencyLimitedReduction } from '../../reduction/sparse/frequency-limited';
+import type { AdiOptions } from '../../reduction/sparse/adi';
 import type { SparseStateSpaceModel } from '../../reduction/sparse/model';
 import { acceptancePassedColumn } from '../acceptance';
 import { METHOD_NAMES } from '../recipe-words';
@@ -46,7 +50,7 @@ import { figuresFromPoles, keptPolesOf } from './order-figures';
 import { scientific, type ProgressReporter } from './progress';
 import { acceptanceRecord, costOf, simulationEnd, type AnalysisSummary, type RecipeInput } from './reduction-task';
 import { adiFraction, type SparseTaskOptions } from './sparse-analysis-task';
-import type { AccuracyFiguresRecord, ChannelCurves, CostRowRecord, ReductionCurves, ReductionRecord, SolverCostRecord, TimeCurves } from './records';
+import type { AccuracyFiguresRecord, ChannelCurves, CostRowRecord, FrequencyLimitedRecord, ReductionCurves, ReductionRecord, SolverCostRecord, TimeCurves } from './records';
 
 const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
@@ -66,6 +70,7 @@ interface AtScale {
   errorBound: number;
   errorBoundNote: string;
   notes: string[];
+  frequencyLimited?: FrequencyLimitedRecord;
 }
 
 function reduceAtScale(model: SparseStateSpaceModel, recipe: RecipeInput, report: ProgressReporter, options: SparseTaskOptions): AtScale {
@@ -76,23 +81,41 @@ function reduceAtScale(model: SparseStateSpaceModel, recipe: RecipeInput, report
   }
   const order = recipe.order;
   const words = `Reducing by ${METHOD_NAMES[recipe.method]}`;
-  if (recipe.method === 'balanced' || recipe.method === 'residualization') {
-    const r = sparseBalancedReduction(model, {
-      method: recipe.method,
-      order,
-      adi: {
-        memoryBudgetBytes: budget,
-        signal,
-        onStep: (s) =>
-          report(`${words}: low-rank ADI of the ${s.equation} gramian`, 0.03 + 0.4 * adiFraction(s), {
-            done: s.step,
-            total: s.maxSteps,
-            atMost: true,
-            unit: 'ADI step',
-            note: `residual ${scientific(s.residual)}`,
-          }),
+  const adi: AdiOptions = {
+    memoryBudgetBytes: budget,
+    signal,
+    onStep: (s) =>
+      report(`${words}: low-rank ADI of the ${s.equation} gramian`, 0.03 + 0.4 * adiFraction(s), {
+        done: s.step,
+        total: s.maxSteps,
+        atMost: true,
+        unit: 'ADI step',
+        note: `residual ${scientific(s.residual)}`,
+      }),
+  };
+  if (recipe.method === 'frequency-limited') {
+    const band = recipe.limitedBand;
+    if (!band) throw new ModelError('invalid_option', 'band', 'frequency-limited balanced truncation needs the band to balance on');
+    const r = sparseFrequencyLimitedReduction(model, { band: [band.minFrequency, band.maxFrequency], order, adi });
+    return {
+      model: r.model,
+      order: r.order,
+      errorBound: NaN,
+      errorBoundNote: 'no a-priori bound applies to frequency-limited balanced truncation; the errors inside and outside the band are measured',
+      notes: [...r.notes, ...(r.reducedStable ? [] : ['the reduced model is not stable (frequency-limited balanced truncation does not guarantee stability)'])],
+      frequencyLimited: {
+        band: { minFrequency: band.minFrequency, maxFrequency: band.maxFrequency },
+        inBandError: r.inBandError,
+        inBandErrorFrequency: finiteOrNull(r.inBandErrorFrequency),
+        outOfBandError: r.outOfBandError,
+        outOfBandErrorFrequency: finiteOrNull(r.outOfBandErrorFrequency),
+        singularValues: Array.from(r.singularValues),
+        reducedStable: r.reducedStable,
       },
-    });
+    };
+  }
+  if (recipe.method === 'balanced' || recipe.method === 'residualization') {
+    const r = sparseBalancedReduction(model, { method: recipe.method, order, adi });
     return {
       model: r.model,
       order: r.order,
@@ -145,7 +168,7 @@ function reduceAtScale(model: SparseStateSpaceModel, recipe: RecipeInput, report
       notes: [...r.notes],
     };
   }
-  throw new ModelError('invalid_option', 'method', `${METHOD_NAMES[recipe.method]} is not offered on the large-model path (balanced truncation, residualization, modal truncation or IRKA)`);
+  throw new ModelError('invalid_option', 'method', `${METHOD_NAMES[recipe.method]} is not offered on the large-model path (balanced truncation, residualization, modal truncation, frequency-limited balanced truncation or IRKA)`);
 }
 
 function difference(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
@@ -328,10 +351,10 @@ export function runSparseReduction(
     // being an estimate is said in `estimated` and the notes.
     errorBoundNote: Number.isFinite(r.errorBound) ? null : r.errorBoundNote,
     reducedStable,
-    frequencyLimited: null,
+    frequencyLimited: r.frequencyLimited ?? null,
     engineWallMs: Date.now() - started,
     path: 'sparse',
-    estimated: ['hInfinityError', 'hInfinityErrorRelative', ...(Number.isFinite(r.errorBound) ? ['errorBound'] : [])],
+    estimated: ['hInfinityError', 'hInfinityErrorRelative', ...(Number.isFinite(r.errorBound) ? ['errorBound'] : []), ...(r.frequencyLimited ? ['frequencyLimited'] : [])],
     fullTimeResponseNote: note,
   };
   const curves: ReductionCurves = {

@@ -42,14 +42,12 @@ export function limitedBandInRadians(band: LimitedBandInput, timeBase: string): 
 
 /**
  * What the large-model path (lib/engine-tasks/sparse-reduction-task.ts) does not offer, refused before
- * anything is written: frequency-limited balanced truncation, modal truncation's band rule, the tolerance
- * rule (its bounds are estimates over the leading Hankel values: the order is chosen on the slider), and an
- * order past what the analysis resolved for the balanced methods.
+ * anything is written: modal truncation's band rule, the tolerance rule (its bounds are estimates over the
+ * leading Hankel values: the order is chosen on the slider), and an order past what the analysis resolved
+ * for the balanced methods (frequency-limited balanced truncation starts from a balanced model of the
+ * resolved values, so its order must be below their count).
  */
 function refuseOffTheLargeModelPath(recipe: ReductionRequest['recipe'], analysis: AnalysisRecord): void {
-  if (recipe.method === 'frequency-limited') {
-    throw new ApiError(400, 'invalid_request', 'Frequency-limited balanced truncation is not offered for models on the large-model path; use balanced truncation, residualization, modal truncation or IRKA.', 'recipe.method');
-  }
   if (recipe.method === 'modal' && recipe.modalSelection === 'band') {
     throw new ApiError(400, 'invalid_request', 'On the large-model path modal truncation keeps the most dominant or the slowest modes; the band rule is not offered.', 'recipe.modalSelection');
   }
@@ -59,6 +57,14 @@ function refuseOffTheLargeModelPath(recipe: ReductionRequest['recipe'], analysis
   const resolved = analysis.hankelSingularValues.length;
   if ((recipe.method === 'balanced' || recipe.method === 'residualization') && recipe.order! > resolved) {
     throw new ApiError(400, 'invalid_request', `The order ${recipe.order} is past the ${resolved} Hankel singular values the low-rank gramians resolve; keep at most ${resolved} states.`, 'recipe.order');
+  }
+  if (recipe.method === 'frequency-limited' && recipe.order! >= resolved) {
+    throw new ApiError(
+      400,
+      'invalid_request',
+      `On the large-model path frequency-limited balanced truncation starts from the balanced model of the ${resolved} resolved Hankel singular values; keep fewer than ${resolved} states.`,
+      'recipe.order',
+    );
   }
 }
 

@@ -12,7 +12,7 @@ import { frequencyLimitedReduction } from '../frequency-limited';
 import { integerOption, loadModelArgument, numberListOption, numberOption, stringOption, type ParsedArgs } from './args';
 import { complexPairs, finiteOrNull, matrixRows, numberList, hInfinityCertificate } from './output';
 import { registerVerb } from './registry';
-import { runSparseReduce, sparseModelArgument, SPARSE_REDUCE_OPTIONS } from './sparse';
+import { runSparseFrequencyLimited, runSparseReduce, sparseModelArgument, SPARSE_REDUCE_OPTIONS } from './sparse';
 import { runSparseModalReduce } from './sparse-modes';
 import { IRKA_OPTIONS, runIrkaReduce } from './irka';
 import { modelPoles as modelPolesOf } from '../spectral-split';
@@ -92,7 +92,7 @@ registerVerb({
   summary: 'reduce a model by balanced truncation, balanced residualization, modal truncation, IRKA or frequency-limited balanced truncation',
   usage:
     'MODEL --method balanced|residualization|modal (--order R | --tolerance T) [--keep dominance|slowest|band --band LOW,HIGH]\n' +
-    '      MODEL --method frequency-limited --band W1,W2 --order R\n' +
+    '      MODEL --method frequency-limited --band W1,W2 --order R   (dense or sparse path)\n' +
     '      MODEL --method irka --order R [--irka-tolerance T] [--irka-max-iterations N]   (dense or sparse path)\n' +
     '      A.mtx B C [D] [--E E.mtx] [--path dense|sparse|auto] --method balanced|residualization|modal --order R   (sparse path)\n' +
     '      --mass M.mtx --stiffness K.mtx [--damping D.mtx] F C [D] --method balanced|residualization|modal|irka --order R   (second order, sparse path)',
@@ -110,7 +110,10 @@ registerVerb({
     const method = methodOf(args);
     if (method === 'irka') return runIrkaReduce(args);
     const sparse = sparseModelArgument(args);
-    if (sparse) return method === 'modal' ? runSparseModalReduce(sparse, args, selectionOf(args, method)) : runSparseReduce(sparse, args, method);
+    if (sparse) {
+      if (method === 'frequency-limited') return runSparseFrequencyLimited(sparse, args);
+      return method === 'modal' ? runSparseModalReduce(sparse, args, selectionOf(args, method)) : runSparseReduce(sparse, args, method);
+    }
     for (const o of ['adi-tolerance', 'adi-max-iterations', 'memory-budget', 'error-points']) {
       if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to the sparse path only`);
     }

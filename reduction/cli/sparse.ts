@@ -22,7 +22,8 @@ import { createSparseModel, type SparseStateSpaceModel } from '../sparse/model';
 import { secondOrderToDescriptor } from '../sparse/second-order';
 import { splitSecondOrderOutput } from '../second-order';
 import { autoPathIsSparse, SPARSE_CROSSOVER_STATES } from '../sparse/path';
-import { integerOption, numberOption, stringOption, type OptionSpec, type ParsedArgs } from './args';
+import { integerOption, numberListOption, numberOption, stringOption, type OptionSpec, type ParsedArgs } from './args';
+import { sparseFrequencyLimitedReduction } from '../sparse/frequency-limited';
 import { largestSingularValue, logFrequencyGrid } from '../frequency';
 import { lowRankGramians, type AdiFactor, type AdiOptions, type AdiResult } from '../sparse/adi';
 import { lowRankBalancedRealization, sparseBalancedReduction } from '../sparse/balanced';
@@ -165,6 +166,52 @@ export const SPARSE_REDUCE_OPTIONS: Readonly<Record<string, OptionSpec>> = {
 };
 
 /**
+ * `reduce --method frequency-limited --band W1,W2 --order R` on the sparse path
+ * (`reduction/sparse/frequency-limited.ts`): its errors inside and outside the band measured against the full
+ * model by sparse sweeps (`--error-points`, default 40 per grid); no bound.
+ */
+export function runSparseFrequencyLimited(model: SparseStateSpaceModel, args: ParsedArgs): Record<string, unknown> {
+  const band = numberListOption(args, 'band');
+  if (band === undefined || band.length !== 2) {
+    throw new ModelError('invalid_option', 'band', '--method frequency-limited needs --band W1,W2 (rad per time unit, 0 ≤ W1 < W2)');
+  }
+  if (args.options.has('tolerance')) throw new ModelError('invalid_option', 'tolerance', '--method frequency-limited has no error bound to meet a tolerance; give --order');
+  if (args.options.has('keep')) throw new ModelError('invalid_option', 'keep', '--keep applies to --method modal only');
+  const order = integerOption(args, 'order');
+  if (order === undefined) throw new ModelError('invalid_option', 'order', '--method frequency-limited needs --order R');
+  const points = integerOption(args, 'error-points') ?? 40;
+  if (points < 2) throw new ModelError('invalid_option', 'error-points', `--error-points must be ≥ 2, got ${points}`);
+  const adi = adiOptionsOf(args);
+  const r = sparseFrequencyLimitedReduction(model, { band: [band[0], band[1]], order, adi, points });
+  return {
+    [ENGINE_PATH]: 'sparse',
+    method: r.method,
+    band: [...r.band],
+    order: r.order,
+    states: model.A.n,
+    descriptor: model.E !== undefined,
+    A: matrixRows(r.model.A),
+    B: matrixRows(r.model.B),
+    C: matrixRows(r.model.C),
+    D: matrixRows(r.model.D),
+    errorBound: null,
+    errorBoundNote: 'no a-priori bound applies to frequency-limited balanced truncation',
+    inBandError: r.inBandError,
+    inBandErrorFrequency: finiteOrNull(r.inBandErrorFrequency),
+    outOfBandError: r.outOfBandError,
+    outOfBandErrorFrequency: finiteOrNull(r.outOfBandErrorFrequency),
+    errorNote: `largest σ_max(G − Gr) against the full model over ${points} log-spaced frequencies inside the band and ${points} on each side outside it (to a hundredth of the lower edge and a hundred times the upper): lower bounds`,
+    frequencyLimitedSingularValues: numberList(r.singularValues),
+    intermediateOrder: r.intermediateOrder,
+    intermediateBound: r.intermediateBound,
+    reducedStable: r.reducedStable,
+    gramianResidual: gramianReport(r.gramians, adi.tolerance ?? 1e-10),
+    estimated: ['inBandError', 'outOfBandError', 'frequencyLimitedSingularValues', 'intermediateBound'],
+    notes: r.notes,
+  };
+}
+
+/**
  * `reduce` on the sparse path: balanced truncation or residualization to `--order R`, or to the smallest
  * order whose estimated bound 2Σσ(r+1..k) is at most `--tolerance T` times ‖G‖∞. ‖G‖∞ is then estimated
  * from below by a sweep of the full model (`--error-points`, default 40, plus ω = 0), so T·‖G‖∞ is if
@@ -172,7 +219,7 @@ export const SPARSE_REDUCE_OPTIONS: Readonly<Record<string, OptionSpec>> = {
  */
 export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, method: string): Record<string, unknown> {
   if (method !== 'balanced' && method !== 'residualization') {
-    throw new ModelError('invalid_option', 'method', `the sparse path offers --method balanced, residualization, modal or irka, not "${method}"`);
+    throw new ModelError('invalid_option', 'method', `the sparse path offers --method balanced, residualization, modal, irka or frequency-limited, not "${method}"`);
   }
   for (const o of ['keep', 'band']) if (args.options.has(o)) throw new ModelError('invalid_option', o, `--${o} applies to --method modal only`);
   const requested = integerOption(args, 'order');

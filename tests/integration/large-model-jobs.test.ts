@@ -103,7 +103,8 @@ describe('a large model through the queue', () => {
     const hsv = record.hankelSingularValues;
     expect(hsv.length).toBeGreaterThan(12);
 
-    // Refused before anything is written: the tolerance rule, frequency-limited, an order past the resolved values.
+    // Refused before anything is written: the tolerance rule, a frequency-limited order not below the resolved
+    // values (it starts from their balanced model), an order past the resolved values.
     const before = await rowsBy(engineer.id);
     const target = { kind: 'new' as const, name: uniqueName('Plate ROM'), description: '' };
     const refuse = async (recipe: Parameters<typeof requestReduction>[0]['recipe'], field: string) => {
@@ -111,8 +112,8 @@ describe('a large model through the queue', () => {
     };
     await refuse({ method: 'balanced', orderRule: 'tolerance', tolerance: 1e-3, modalSelection: 'dominance' }, 'recipe.orderRule');
     await refuse(
-      { method: 'frequency-limited', orderRule: 'order', order: 6, modalSelection: 'dominance', limitedBand: { minFrequency: 0, maxFrequency: 1, unit: 'rad' } },
-      'recipe.method',
+      { method: 'frequency-limited', orderRule: 'order', order: hsv.length, modalSelection: 'dominance', limitedBand: { minFrequency: 0, maxFrequency: 1, unit: 'rad' } },
+      'recipe.order',
     );
     await refuse({ method: 'balanced', orderRule: 'order', order: hsv.length + 1, modalSelection: 'dominance' }, 'recipe.order');
     expect(await rowsBy(engineer.id)).toEqual(before);
@@ -139,5 +140,24 @@ describe('a large model through the queue', () => {
     const v2 = await db()('reduced_versions').where({ id: second.result!.reducedVersionId }).first();
     expect(v2).toMatchObject({ number: 2, order: 6 });
     expect((await db()('recipes').where({ id: irka.recipeId }).first()).method).toBe('irka');
+
+    // Frequency-limited balanced truncation at scale: no bound, the band errors measured against the full model.
+    const limited = await requestReduction(
+      {
+        sourceVersionId: upload.version.id,
+        recipe: { method: 'frequency-limited', orderRule: 'order', order: 4, modalSelection: 'dominance', limitedBand: { minFrequency: 0, maxFrequency: 50, unit: 'rad' } },
+        target: { kind: 'existing', reducedModelId: version.reduced_model_id },
+      },
+      engineer,
+    );
+    const third = await waitFor(limited.job.id);
+    expect(third.status, third.error ?? '').toBe('succeeded');
+    const v3 = await db()('reduced_versions').where({ id: third.result!.reducedVersionId }).first();
+    expect(v3).toMatchObject({ number: 3, order: 4 });
+    const limitedReport = (await db()('accuracy_reports').where({ reduced_version_id: v3.id }).first()).figures;
+    expect(limitedReport.errorBound).toBeNull();
+    expect(limitedReport.frequencyLimited.band).toEqual({ minFrequency: 0, maxFrequency: 50 });
+    expect(limitedReport.frequencyLimited.inBandError).toBeGreaterThan(0);
+    expect(limitedReport.frequencyLimited.singularValues.length).toBeGreaterThan(4);
   });
 });

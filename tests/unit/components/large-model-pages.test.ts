@@ -15,7 +15,7 @@ import { hearthPlate } from '@/db/seeds/demo/plate';
 import { runAnalysis } from '@/lib/engine-tasks/analysis-task';
 import type { AnalysisRecord } from '@/lib/engine-tasks/records';
 import { AnalysisFigures } from '@/components/source-models/AnalysisFigures';
-import { methodsFor, orderByNumberOnly, storedTable } from '@/components/source-models/recipe-choices';
+import { orderByNumberOnly, storedTable } from '@/components/source-models/recipe-choices';
 import { recipeFormSchema, type RecipeFormContext } from '@/components/source-models/recipe-form-schema';
 import { recipeSchema } from '@/lib/reduced-models/schemas';
 
@@ -57,10 +57,10 @@ describe('the analysis page of a model on the large-model path', () => {
 });
 
 describe('the recipe form on the large-model path', () => {
-  it('offers the at-scale methods, the order by number only, and IRKA on both paths', () => {
-    expect(methodsFor(analysis)).toEqual(['balanced', 'residualization', 'modal', 'irka']);
-    expect(methodsFor(dense)).toContain('frequency-limited');
-    expect(methodsFor(dense)).toContain('irka');
+  it('offers the order by number only, and frequency-limited orders below the resolved values', () => {
+    const limited = storedTable(analysis, 'frequency-limited', 'dominance');
+    expect(limited?.available && limited.orders.length).toBe(analysis.hankelSingularValues.length - 1);
+    expect(limited?.available && Object.values(limited.figures).every((f) => f.errorBound === null)).toBe(true);
     expect(orderByNumberOnly(analysis, 'balanced')).toBe(true);
     expect(orderByNumberOnly(dense, 'balanced')).toBe(false);
     expect(orderByNumberOnly(dense, 'irka')).toBe(true);

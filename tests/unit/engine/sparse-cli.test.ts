@@ -86,6 +86,31 @@ describe('command line: the sparse path', () => {
     expect(relDiff(dc(sparse), dc(auto))).toBeLessThan(1e-8);
   });
 
+  it('reduce --method frequency-limited on the sparse path: the dense path’s reduced model and band errors on the same 400-state model', () => {
+    // The dense path runs Gawronski & Juang's method on the whole model (reduction/frequency-limited.ts,
+    // tested against the closed-form band gramians); the sparse path runs it on a balanced intermediate
+    // model whose distance from the full one is about 1e-12·σ₁, so the two reduced models must agree.
+    const plain = writeModel(plateModel(20, { convection: 100 }));
+    const f = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(plain, x));
+    const args = ['--method', 'frequency-limited', '--band', '10,300', '--order', '3'];
+    const dense = cli('reduce', ...f, ...args, '--path', 'dense');
+    const sparse = cli('reduce', ...f, ...args, '--path', 'sparse');
+    expect(dense.status, dense.stderr).toBe(0);
+    expect(sparse.status, sparse.stderr).toBe(0);
+    const d = JSON.parse(dense.stdout), s = JSON.parse(sparse.stdout);
+    expect(s.engine.path).toBe('sparse');
+    expect(s.errorBound).toBeNull();
+    expect(s.estimated).toContain('inBandError');
+    expect(s.intermediateOrder).toBeGreaterThan(3);
+    const model = (o: { A: number[][]; B: number[][]; C: number[][]; D: number[][] }): StateSpaceModel => ({ A: fromRows(o.A), B: fromRows(o.B), C: fromRows(o.C), D: fromRows(o.D) });
+    expect(responseGap(model(d), model(s), logFrequencyGrid(1, 1e4, 30))).toBeLessThan(1e-6);
+    for (let i = 0; i < 4; i++) expect(relDiff(s.frequencyLimitedSingularValues[i], d.frequencyLimitedSingularValues[i])).toBeLessThan(1e-6);
+    // The measured errors: the sparse path samples 40 points per grid, the dense path 200, so its maxima are
+    // the larger ones up to the sampling; both describe the same reduced model.
+    expect(relDiff(s.inBandError, d.inBandError)).toBeLessThan(0.05);
+    expect(s.inBandError).toBeLessThan(s.outOfBandError);
+  });
+
   it('--path auto takes a coordinate model above the crossover (1024 > 1000 states) to the sparse path; the environment moves the crossover', () => {
     const big = writeModel(plateModel(32));
     const f = ['A.mtx', 'B.mtx', 'C.mtx'].map((x) => path.join(big, x));
@@ -155,9 +180,12 @@ describe('command line: the sparse path', () => {
     const e = cli('reduce', ...files, '--E', path.join(dir, 'E.mtx'), '--path', 'dense', '--method', 'balanced', '--order', '3');
     expect(e.status).toBe(2);
     expect(e.stderr).toContain('field: E');
-    const m = cli('reduce', ...files, '--path', 'sparse', '--method', 'frequency-limited', '--band', '1,10', '--order', '3');
+    const m = cli('reduce', ...files, '--path', 'sparse', '--method', 'truncation', '--order', '3');
     expect(m.status).toBe(2);
     expect(m.stderr).toContain('field: method');
+    const noBand = cli('reduce', ...files, '--path', 'sparse', '--method', 'frequency-limited', '--order', '3');
+    expect(noBand.status).toBe(2);
+    expect(noBand.stderr).toContain('field: band');
     const bad = cli('reduce', ...files, '--path', 'sometimes', '--method', 'balanced', '--order', '3');
     expect(bad.status).toBe(2);
     expect(bad.stderr).toContain('field: path');
