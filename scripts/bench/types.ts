@@ -25,6 +25,11 @@ export interface BenchCase<Input = unknown, Output = unknown> {
   readonly largeSizes?: readonly number[];
   /** Largest n at which the portable backend is also timed (default: every size). */
   readonly maxPortableSize?: number;
+  /**
+   * False when the reference times other work than the engine (it only computes what the check needs, as
+   * the frame cases' full-model sweep): both times are printed, the ratio is not (default true).
+   */
+  readonly likeForLike?: boolean;
   /** Size for the untimed JIT warm-up run (default 60). */
   readonly warmupSize?: number;
   /** Command and arguments for the reference (default: bench_reference.py ID N DIR). */
