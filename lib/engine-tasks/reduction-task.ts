@@ -457,19 +457,46 @@ export function runReduction(
     engineWallMs: Date.now() - started,
     path: 'dense',
   };
-  const curves: ReductionCurves = {
+  report('Writing the reduced model', 0.98);
+  return reductionRecord({
+    reduced,
+    labelsFrom: model,
+    order: r.order,
+    unstableStatesKept: r.unstableStatesKept,
+    figures,
     frequency: { frequencies: w, full: full.curves, reduced: red.curves, sigmaFull: full.sigma, sigmaReduced: red.sigma, error },
     step,
     impulse,
-  };
-  report('Writing the reduced model', 0.98);
+    acceptance,
+    engineVersion,
+  });
+}
+
+/**
+ * The record a reduction run hands back, on either path: the reduced matrices (with the source model's input
+ * and output labels and time base where it has them), the figures, the curves the comparison page draws, and
+ * the acceptance column.
+ */
+export function reductionRecord(parts: {
+  reduced: StateSpaceModel;
+  labelsFrom?: StateSpaceModel;
+  order: number;
+  unstableStatesKept: number;
+  figures: AccuracyFiguresRecord;
+  frequency: ReductionCurves['frequency'];
+  step: TimeCurves;
+  impulse: TimeCurves;
+  acceptance: AcceptanceRecord | null;
+  engineVersion: string;
+}): ReductionRecord {
+  const { reduced, labelsFrom: model } = parts;
   return {
     matrices: {
       A: toRows(reduced.A),
       B: toRows(reduced.B),
       C: toRows(reduced.C),
       D: toRows(reduced.D),
-      ...(model.labels && (model.labels.inputs || model.labels.outputs)
+      ...(model?.labels && (model.labels.inputs || model.labels.outputs)
         ? {
             labels: {
               ...(model.labels.inputs ? { inputs: [...model.labels.inputs] } : {}),
@@ -477,13 +504,13 @@ export function runReduction(
             },
           }
         : {}),
-      ...(model.timeBase ? { timeBase: model.timeBase } : {}),
+      ...(model?.timeBase ? { timeBase: model.timeBase } : {}),
     },
-    order: r.order,
-    unstableStatesKept: r.unstableStatesKept,
-    figures,
-    curves,
-    acceptancePassed: acceptancePassedColumn(acceptance?.status ?? null),
-    engineVersion,
+    order: parts.order,
+    unstableStatesKept: parts.unstableStatesKept,
+    figures: parts.figures,
+    curves: { frequency: parts.frequency, step: parts.step, impulse: parts.impulse },
+    acceptancePassed: acceptancePassedColumn(parts.acceptance?.status ?? null),
+    engineVersion: parts.engineVersion,
   };
 }

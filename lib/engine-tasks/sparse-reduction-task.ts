@@ -28,7 +28,6 @@ import {
   SharedExponentials,
   stepInput,
   impulseInput,
-  toRows,
   ModelError,
   type ComplexMatrix,
   type InputSignal,
@@ -43,14 +42,13 @@ import { sparseFrequencyResponse } from '../../reduction/sparse/frequency';
 import { sparseFrequencyLimitedReduction } from '../../reduction/sparse/frequency-limited';
 import type { AdiOptions } from '../../reduction/sparse/adi';
 import type { SparseStateSpaceModel } from '../../reduction/sparse/model';
-import { acceptancePassedColumn } from '../acceptance';
 import { METHOD_NAMES } from '../recipe-words';
 import { loadSparseModel, type ModelFile } from './model-files';
 import { figuresFromPoles, keptPolesOf } from './order-figures';
 import { scientific, type ProgressReporter } from './progress';
-import { acceptanceRecord, costOf, simulationEnd, type AnalysisSummary, type RecipeInput } from './reduction-task';
+import { acceptanceRecord, costOf, reductionRecord, simulationEnd, type AnalysisSummary, type RecipeInput } from './reduction-task';
 import { adiFraction, type SparseTaskOptions } from './sparse-analysis-task';
-import type { AccuracyFiguresRecord, ChannelCurves, CostRowRecord, FrequencyLimitedRecord, ReductionCurves, ReductionRecord, SolverCostRecord, TimeCurves } from './records';
+import type { AccuracyFiguresRecord, ChannelCurves, CostRowRecord, FrequencyLimitedRecord, ReductionRecord, SolverCostRecord, TimeCurves } from './records';
 
 const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
@@ -357,19 +355,16 @@ export function runSparseReduction(
     estimated: ['hInfinityError', 'hInfinityErrorRelative', ...(Number.isFinite(r.errorBound) ? ['errorBound'] : []), ...(r.frequencyLimited ? ['frequencyLimited'] : [])],
     fullTimeResponseNote: note,
   };
-  const curves: ReductionCurves = {
-    frequency: { frequencies: w, full: f.curves, reduced: g.curves, sigmaFull: f.sigma, sigmaReduced: g.sigma, error },
-    step,
-    impulse,
-  };
   report('Writing the reduced model', 0.98);
-  return {
-    matrices: { A: toRows(reduced.A), B: toRows(reduced.B), C: toRows(reduced.C), D: toRows(reduced.D) },
+  return reductionRecord({
+    reduced,
     order: r.order,
     unstableStatesKept: 0,
     figures,
-    curves,
-    acceptancePassed: acceptancePassedColumn(acceptance?.status ?? null),
+    frequency: { frequencies: w, full: f.curves, reduced: g.curves, sigmaFull: f.sigma, sigmaReduced: g.sigma, error },
+    step,
+    impulse,
+    acceptance,
     engineVersion,
-  };
+  });
 }

@@ -21,9 +21,9 @@ export interface StoredFileEntry {
   storageKey: string;
 }
 
-export interface SourceVersionRow {
+/** What a version's row and its view share, under the same names. */
+interface SourceVersionCommon {
   id: string;
-  source_model_id: string;
   number: number;
   checksum: string;
   format: SourceFormat;
@@ -31,23 +31,18 @@ export interface SourceVersionRow {
   states: number;
   inputs: number;
   outputs: number;
-  nonzeros_a: string | number;
   notes: string;
+}
+
+export interface SourceVersionRow extends SourceVersionCommon {
+  source_model_id: string;
+  nonzeros_a: string | number;
   uploaded_by: string;
   created_at: Date;
 }
 
-export interface SourceVersionView {
-  id: string;
-  number: number;
-  checksum: string;
-  format: SourceFormat;
-  files: StoredFileEntry[];
-  states: number;
-  inputs: number;
-  outputs: number;
+export interface SourceVersionView extends SourceVersionCommon {
   nonzerosA: number;
-  notes: string;
   uploadedBy: { id: string; name: string };
   createdAt: string;
   analysed: boolean;
