@@ -58,6 +58,11 @@ export interface NativeAddon {
     frequencies: Float64Array, b: Float64Array, m: number, c: Float64Array, p: number, re: Float64Array, im: Float64Array,
     threads: number, name?: string,
   ): void;
+  umfpackShiftedSolves(
+    symbolic: unknown, n: number, colPtr: Int32Array, rowIndex: Int32Array, aValues: Float64Array, eValues: Float64Array,
+    sigmaRe: Float64Array, sigmaIm: Float64Array, fRe: Float64Array, fIm: Float64Array | null, gRe: Float64Array, gIm: Float64Array | null,
+    xRe: Float64Array, xIm: Float64Array | null, yRe: Float64Array, yIm: Float64Array | null, threads: number, name?: string,
+  ): void;
   cholmodFactor(n: number, colPtr: Int32Array, rowIndex: Int32Array, values: Float64Array, imag: null, name?: string): [unknown, CholmodInfo];
   cholmodSolve(factor: unknown, b: Float64Array, x: Float64Array, columns: number): void;
   cholmodFree(factor: unknown): void;

@@ -134,6 +134,33 @@ export class SparseLu {
     );
   }
 
+  /**
+   * For each shift σⱼ (real for a real analysis, complex for a complex one), x = (A − σⱼE)⁻¹ fⱼ and
+   * y = (A − σⱼE)⁻ᵀ gⱼ (the plain transpose), with `aValues` and `eValues` A and E on the analysed pattern;
+   * each shift factored anew by one of `threads` native threads sharing the analysis (reduction/native/src/
+   * sparse.cc umfpackShiftedSolves). Blocks of n entries, shift after shift; the imaginary parts are used
+   * for a complex analysis only. Leaves this object's own factorization alone.
+   */
+  shiftedSolves(
+    aValues: Float64Array, eValues: Float64Array, shifts: readonly { re: number; im: number }[],
+    f: { re: Float64Array; im: Float64Array | null }, g: { re: Float64Array; im: Float64Array | null }, threads: number,
+  ): { x: { re: Float64Array; im: Float64Array | null }; y: { re: Float64Array; im: Float64Array | null } } {
+    if (!this.symbolic) throw new Error(`shifted solves with ${this.name}: the analysis was freed`);
+    const { n, colPtr, rowIndex } = this.pattern;
+    const size = shifts.length * n;
+    const complex = this.pattern.imag !== undefined;
+    const x = { re: new Float64Array(size), im: complex ? new Float64Array(size) : null };
+    const y = { re: new Float64Array(size), im: complex ? new Float64Array(size) : null };
+    native(`shifted solves with ${this.name}`, () =>
+      this.lib.umfpackShiftedSolves(
+        this.symbolic, n, colPtr, rowIndex, aValues, eValues,
+        Float64Array.from(shifts, (p) => p.re), Float64Array.from(shifts, (p) => p.im),
+        f.re, f.im, g.re, g.im, x.re, x.im, y.re, y.im, threads, this.name,
+      ),
+    );
+    return { x, y };
+  }
+
   /** Frees the factorization and the analysis now (the garbage collector would, later). */
   dispose(): void {
     if (this.numeric) this.lib.umfpackFree(this.numeric);

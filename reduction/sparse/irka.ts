@@ -26,7 +26,7 @@
  */
 import { ModelError } from '../errors';
 import { throwIfStopped } from '../stop';
-import { type Matrix, zeros, matmul } from '../linalg/index';
+import { type Matrix, linalgThreads, zeros, matmul } from '../linalg/index';
 import { SparseLu } from '../linalg/sparse';
 import type { StateSpaceModel } from '../model';
 import {
@@ -198,11 +198,12 @@ class SparseProjector implements TangentialProjector {
     this.outputs = model.C.rows;
   }
 
-  private factorAt(pt: Shift): SparseLu {
-    const { values, imag } = shiftedValues(this.sp, pt.re, pt.im); // A − σE
-    const isComplex = imag !== null;
+  /** The kept analysis for this kind of shift (real or complex), made from the shift's values the first time. */
+  private analysisFor(pt: Shift, copies = 1): SparseLu {
+    const isComplex = pt.im !== 0;
     let lu = isComplex ? this.complex : this.real;
     if (!lu) {
+      const { values, imag } = shiftedValues(this.sp, pt.re, pt.im); // A − σE
       const label = isComplex ? 'A − σE (complex shifts)' : 'A − σE (real shifts)';
       lu = SparseLu.analyze({ ...this.sp.pattern, values, imag: imag ?? undefined }, label);
       this.analyses++;
@@ -211,6 +212,12 @@ class SparseProjector implements TangentialProjector {
       if (isComplex) this.complex = lu;
       else this.real = lu;
     }
+    return lu;
+  }
+
+  private factorAt(pt: Shift): SparseLu {
+    const { values, imag } = shiftedValues(this.sp, pt.re, pt.im); // A − σE
+    const lu = this.analysisFor(pt);
     try {
       lu.factor(values, imag);
     } catch (e) {
@@ -223,27 +230,98 @@ class SparseProjector implements TangentialProjector {
     return lu;
   }
 
+  /**
+   * The solves of every point of one kind (real or complex shifts) at once, the shifts spread over `threads`
+   * native threads (as many as the memory budget allows for that many factorizations side by side).
+   */
+  private solveTogether(points: readonly InterpolationPoint[], threads: number): { x: { re: Float64Array; im: Float64Array | null }; y: { re: Float64Array; im: Float64Array | null } } {
+    const n = this.states;
+    const lu = this.analysisFor(points[0]);
+    const fit = Math.floor(this.budget / Math.max(1, lu.analysis.peakMemoryBytes));
+    const t = Math.max(1, Math.min(threads, points.length, Number.isFinite(fit) ? fit : threads));
+    const complex = points[0].im !== 0;
+    const f = { re: new Float64Array(points.length * n), im: complex ? new Float64Array(points.length * n) : null };
+    const g = { re: new Float64Array(points.length * n), im: complex ? new Float64Array(points.length * n) : null };
+    points.forEach((pt, j) => {
+      const fj = timesComplex(this.model.B, pt.b);
+      const gj = transposeTimesComplex(this.model.C, pt.c);
+      f.re.set(fj.re, j * n);
+      g.re.set(gj.re, j * n);
+      if (complex) {
+        if (fj.im) f.im!.set(fj.im, j * n);
+        if (gj.im) g.im!.set(gj.im, j * n);
+      }
+    });
+    try {
+      const out = lu.shiftedSolves(this.sp.pattern.values, this.eValues(), points, f, g, t);
+      this.factorizations += points.length;
+      return out;
+    } catch (e) {
+      if ((e as { code?: string }).code === 'singular') refuseUnstable(`σE − A is singular at one of the shifts (${(e as Error).message}), so the model has a pole there`);
+      throw e;
+    }
+  }
+
+  private eOnPattern: Float64Array | null = null;
+  /** E on the union pattern (A − σE = values − σ·this). */
+  private eValues(): Float64Array {
+    if (!this.eOnPattern) {
+      this.eOnPattern = new Float64Array(this.sp.pattern.values.length);
+      for (let q = 0; q < this.sp.eAt.length; q++) this.eOnPattern[this.sp.eAt[q]] += this.sp.eValues[q];
+    }
+    return this.eOnPattern;
+  }
+
   project(points: readonly InterpolationPoint[]): ProjectedModel {
     const n = this.states;
     const r = shiftCount(points);
     const V = zeros(n, r), W = zeros(n, r);
-    let col = 0;
-    for (const pt of points) {
-      const lu = this.factorAt(pt);
-      const f = timesComplex(this.model.B, pt.b);
-      const g = transposeTimesComplex(this.model.C, pt.c);
-      if (pt.im === 0) {
-        setColumn(V, col, lu.solve(f.re));
-        setColumn(W, col, lu.solve(g.re, { transpose: true }));
-        col += 1;
-      } else {
-        const x = lu.solveComplex(f.re, f.im);
-        const y = lu.solveComplex(g.re, g.im, { transpose: true });
-        setColumn(V, col, x.re);
-        setColumn(V, col + 1, x.im);
-        setColumn(W, col, y.re);
-        setColumn(W, col + 1, y.im);
-        col += 2;
+    const threads = linalgThreads();
+    if (threads >= 2 && points.length >= 2) {
+      // Each kind's shifts solved together over the cores, then the columns in the points' order.
+      const solved = new Map<boolean, ReturnType<SparseProjector['solveTogether']>>();
+      for (const complex of [false, true]) {
+        const group = points.filter((pt) => (pt.im !== 0) === complex);
+        if (group.length > 0) solved.set(complex, this.solveTogether(group, threads));
+      }
+      const next = new Map<boolean, number>([
+        [false, 0],
+        [true, 0],
+      ]);
+      let col = 0;
+      for (const pt of points) {
+        const complex = pt.im !== 0;
+        const j = next.get(complex)!;
+        next.set(complex, j + 1);
+        const { x, y } = solved.get(complex)!;
+        const block = (v: Float64Array) => v.subarray(j * n, (j + 1) * n);
+        setColumn(V, col, block(x.re));
+        setColumn(W, col, block(y.re));
+        if (complex) {
+          setColumn(V, col + 1, block(x.im!));
+          setColumn(W, col + 1, block(y.im!));
+        }
+        col += complex ? 2 : 1;
+      }
+    } else {
+      let col = 0;
+      for (const pt of points) {
+        const lu = this.factorAt(pt);
+        const f = timesComplex(this.model.B, pt.b);
+        const g = transposeTimesComplex(this.model.C, pt.c);
+        if (pt.im === 0) {
+          setColumn(V, col, lu.solve(f.re));
+          setColumn(W, col, lu.solve(g.re, { transpose: true }));
+          col += 1;
+        } else {
+          const x = lu.solveComplex(f.re, f.im);
+          const y = lu.solveComplex(g.re, g.im, { transpose: true });
+          setColumn(V, col, x.re);
+          setColumn(V, col + 1, x.im);
+          setColumn(W, col, y.re);
+          setColumn(W, col + 1, y.im);
+          col += 2;
+        }
       }
     }
     const Vq = orthonormalBasisOf(V, 'right (input)');

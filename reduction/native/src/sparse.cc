@@ -316,6 +316,100 @@ napi_value UmfSweep(napi_env env, napi_callback_info info) {
   });
 }
 
+// umfpackShiftedSolves(symbolic, n, colPtr, rowIndex, aValues, eValues, sigmaRe, sigmaIm, fRe, fIm, gRe, gIm,
+//                      xRe, xIm, yRe, yIm, threads, name)
+// For each of k shifts σⱼ (all real when the analysis is real, all complex otherwise): the LU of A − σⱼE
+// (values `aValues` − Re σⱼ·`eValues`, imaginary part −Im σⱼ·`eValues`, on the analysed pattern), then
+// x = (A − σⱼE)⁻¹ fⱼ and y = (A − σⱼE)⁻ᵀ gⱼ (the plain transpose). fⱼ, gⱼ, xⱼ, yⱼ are the j-th blocks of n
+// entries of their arrays; the imaginary arrays are read and written for complex shifts only. The shifts are
+// taken in turn by `threads` threads, each with its own numeric factorization of the shared analysis, BLAS
+// single-threaded meanwhile (as umfpackSweep). A singular A − σE fails naming the shift.
+napi_value UmfShiftedSolves(napi_env env, napi_callback_info info) {
+  return ms::guard(env, [&] {
+    Args a(env, info);
+    UmfHandle* s = handleOf(a, 0, false);
+    Csc c = readCsc(a, 1, "matrix", false);
+    size_t n = (size_t)c.n;
+    double* av = a.f64(4, "aValues", c.nnz);
+    double* ev = a.f64(5, "eValues", c.nnz);
+    ms::requireFinite(av, c.nnz, 0, "A");
+    ms::requireFinite(ev, c.nnz, 0, "E");
+    size_t k = 0;
+    double* sr = a.f64(6, "sigmaRe", 0, &k);
+    double* si = a.f64(7, "sigmaIm", k);
+    ms::requireFinite(sr, k, 0, "shifts");
+    ms::requireFinite(si, k, 0, "shifts");
+    bool cx = s->complex;
+    for (size_t j = 0; j < k; j++)
+      if ((si[j] != 0) != cx) fail("invalid_option", cx ? "shifted solves: a real shift given to a complex analysis" : "shifted solves: a complex shift given to a real analysis");
+    double* fr = a.f64(8, "fRe", k * n);
+    double* fi = cx ? a.f64(9, "fIm", k * n) : nullptr;
+    double* gr = a.f64(10, "gRe", k * n);
+    double* gi = cx ? a.f64(11, "gIm", k * n) : nullptr;
+    double* xr = a.f64(12, "xRe", k * n);
+    double* xi = cx ? a.f64(13, "xIm", k * n) : nullptr;
+    double* yr = a.f64(14, "yRe", k * n);
+    double* yi = cx ? a.f64(15, "yIm", k * n) : nullptr;
+    int64_t requested = a.integer(16, "threads");
+    std::string name = a.isNullish(17) ? "matrix" : a.string(17, "name");
+    int threads = (int)std::max<int64_t>(1, std::min<int64_t>(requested, (int64_t)k));
+
+    std::atomic<size_t> next{0};
+    std::atomic<bool> failed{false};
+    std::mutex errorLock;
+    Failure firstError;
+    auto run = [&]() {
+      try {
+        std::vector<double> x(c.nnz), z(cx ? c.nnz : 0);
+        double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
+        if (cx) umfpack_zi_defaults(control);
+        else umfpack_di_defaults(control);
+        for (size_t j; !failed.load() && (j = next.fetch_add(1)) < k;) {
+          for (size_t q = 0; q < c.nnz; q++) x[q] = av[q] - sr[j] * ev[q];
+          if (cx) for (size_t q = 0; q < c.nnz; q++) z[q] = -si[j] * ev[q];
+          std::string at = "at σ = " + showNumber(sr[j]) + (cx ? " + " + showNumber(si[j]) + "i" : "");
+          void* num = nullptr;
+          int status = cx ? umfpack_zi_numeric(c.p, c.i, x.data(), z.data(), s->object, &num, control, inf)
+                          : umfpack_di_numeric(c.p, c.i, x.data(), s->object, &num, control, inf);
+          if (status != UMFPACK_OK) {
+            if (num) {
+              if (cx) umfpack_zi_free_numeric(&num);
+              else umfpack_di_free_numeric(&num);
+            }
+            umfStatus(status, ("numeric factorization " + at).c_str(), name.c_str());
+          }
+          size_t o = j * n;
+          if (cx) {
+            status = umfpack_zi_solve(UMFPACK_A, c.p, c.i, x.data(), z.data(), xr + o, xi + o, fr + o, fi + o, num, control, inf);
+            if (status == UMFPACK_OK) status = umfpack_zi_solve(UMFPACK_Aat, c.p, c.i, x.data(), z.data(), yr + o, yi + o, gr + o, gi + o, num, control, inf);
+            umfpack_zi_free_numeric(&num);
+          } else {
+            status = umfpack_di_solve(UMFPACK_A, c.p, c.i, x.data(), xr + o, fr + o, num, control, inf);
+            if (status == UMFPACK_OK) status = umfpack_di_solve(UMFPACK_At, c.p, c.i, x.data(), yr + o, gr + o, num, control, inf);
+            umfpack_di_free_numeric(&num);
+          }
+          if (status != UMFPACK_OK) umfStatus(status, ("solve " + at).c_str(), name.c_str());
+        }
+      } catch (const Failure& e) {
+        std::lock_guard<std::mutex> hold(errorLock);
+        if (!failed.exchange(true)) firstError = e;
+      } catch (const std::bad_alloc&) {
+        std::lock_guard<std::mutex> hold(errorLock);
+        if (!failed.exchange(true)) firstError = Failure{"out_of_memory", "shifted solves: out of memory for " + name};
+      }
+    };
+    int blas = ms::blasThreads();
+    if (threads > 1) ms::setBlasThreads(1);
+    std::vector<std::thread> pool;
+    for (int t = 1; t < threads; t++) pool.emplace_back(run);
+    run();
+    for (auto& th : pool) th.join();
+    if (threads > 1) ms::setBlasThreads(blas);
+    if (failed.load()) throw firstError;
+    return ms::undefinedValue(env);
+  });
+}
+
 // ---- CHOLMOD ----------------------------------------------------------------------------------
 
 struct CholHandle {
@@ -493,6 +587,7 @@ void registerSparse(napi_env env, napi_value exports) {
   define(env, exports, "umfpackSolve", UmfSolve);
   define(env, exports, "umfpackFree", UmfFree);
   define(env, exports, "umfpackSweep", UmfSweep);
+  define(env, exports, "umfpackShiftedSolves", UmfShiftedSolves);
   define(env, exports, "cholmodFactor", CholFactor);
   define(env, exports, "cholmodSolve", CholSolve);
   define(env, exports, "cholmodFree", CholFree);

@@ -425,7 +425,23 @@ describe('sparse direct solvers (SuiteSparse) against scipy.sparse.linalg.spsolv
     const out = { re: new Float64Array(3), im: new Float64Array(3) };
     clu.sweep(A.values, eValues, Float64Array.from([500, 500, 500]), { data: b, cols: 1 }, { data: pick, rows: 1 }, out, 2);
     for (let k = 0; k < 3; k++) expect(Math.hypot(out.re[k] + shifted.re[7], out.im[k] + shifted.im[7]) / cs).toBeLessThan(1e-12);
+    // The threaded shifted solves (umfpackShiftedSolves, IRKA's): σ = 500j twice, x = (A − σI)⁻¹ b and, A being
+    // symmetric, y = (A − σI)⁻ᵀ b the same: scipy's solution.
+    const two = Float64Array.from({ length: 2 * A.n }, (_, i) => b[i % A.n]);
+    const zero = new Float64Array(2 * A.n);
+    const solved = clu.shiftedSolves(A.values, eValues, [{ re: 0, im: 500 }, { re: 0, im: 500 }], { re: two, im: zero }, { re: two, im: zero }, 2);
+    for (const v of [solved.x, solved.y]) {
+      let gap = 0;
+      for (let i = 0; i < 2 * A.n; i++) gap = Math.max(gap, Math.hypot(v.re[i] - shifted.re[i % A.n], v.im![i] - shifted.im[i % A.n]));
+      expect(gap / cs).toBeLessThan(1e-12);
+    }
     clu.dispose();
+    // And real shifts on a real analysis: σ = 0 twice gives A⁻¹b, as scipy's spsolve.
+    const rlu = SparseLu.analyze(A, 'A');
+    const realSolved = rlu.shiftedSolves(A.values, eValues, [{ re: 0, im: 0 }, { re: 0, im: 0 }], { re: two, im: null }, { re: two, im: null }, 2);
+    expect(realSolved.x.im).toBeNull();
+    expect(Math.max(...Array.from(realSolved.x.re, (v, i) => Math.abs(v - real.re[i % A.n]))) / scale).toBeLessThan(1e-12);
+    rlu.dispose();
   });
 
   it('the threaded sweep refuses a frequency at a pole, naming it, with the code singular', () => {
@@ -438,6 +454,9 @@ describe('sparse direct solvers (SuiteSparse) against scipy.sparse.linalg.spsolv
     const sweep = () => lu.sweep(values, eValues, Float64Array.from([0.5, 1, 2]), { data: Float64Array.from([0, 1]), cols: 1 }, { data: Float64Array.from([1, 0]), rows: 1 }, out, 2);
     expect(sweep).toThrow(/A − jωI is singular \(numeric factorization at ω = 1\)/);
     expect(() => sweep()).toThrow(expect.objectContaining({ code: 'singular' }));
+    // IRKA's shifted solves at σ = j: the same pole, named.
+    const one = { re: Float64Array.from([0, 1]), im: new Float64Array(2) };
+    expect(() => lu.shiftedSolves(values, eValues, [{ re: 0, im: 1 }], one, one, 1)).toThrow(/singular \(numeric factorization at σ = 0 \+ 1i\)/);
     lu.dispose();
   });
 

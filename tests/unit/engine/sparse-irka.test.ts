@@ -23,6 +23,7 @@ import { sparseIrka } from '@/reduction/sparse/irka';
 import { cscFromCoo, cscToDense, createSparseModel, type SparseStateSpaceModel } from '@/reduction/sparse/model';
 import { logFrequencyGrid } from '@/reduction/frequency';
 import { zeros } from '@/reduction/linalg/matrix';
+import { linalgThreads, setLinalgThreads } from '@/reduction/linalg/index';
 import { ModelError } from '@/reduction/errors';
 import { StoppedError } from '@/reduction/stop';
 import { plate, plateModel, writeModel } from './sparse-support';
@@ -58,6 +59,27 @@ describe('sparse IRKA against the dense path (convection–diffusion plate, n = 
     // One numeric factorization per shift (a pair counts once) per projection: iterations + 1 projections.
     expect(sparse.factorizations).toBeGreaterThanOrEqual((sparse.report.iterations + 1) * 3);
     expect(sparse.factorizations).toBeLessThanOrEqual((sparse.report.iterations + 1) * 6);
+  });
+});
+
+describe('sparse IRKA on one core and on two', () => {
+  it('gives the same run and reduced model whether the shifts are solved one by one or together on two threads', () => {
+    // The same projections, once in sequence (one thread) and once with each kind's shifts solved together
+    // by umfpackShiftedSolves on two threads: the shifts and the reduced model must agree to rounding.
+    const model = plateModel(15, { convection: 40, descriptor: true, inputs: 2, outputs: 2 });
+    const initial = linalgThreads();
+    try {
+      setLinalgThreads(1);
+      const one = sparseIrka(model, { order: 6, tolerance: 1e-10 });
+      setLinalgThreads(2);
+      const two = sparseIrka(model, { order: 6, tolerance: 1e-10 });
+      expect(two.report.iterations).toBe(one.report.iterations);
+      expect(two.factorizations).toBe(one.factorizations);
+      expect(shiftChange(one.report.interpolationPoints, two.report.interpolationPoints)).toBeLessThan(1e-10);
+      expect(responseGap(one.model, two.model, logFrequencyGrid(1, 1e5, 30))).toBeLessThan(1e-10);
+    } finally {
+      setLinalgThreads(initial);
+    }
   });
 });
 
