@@ -22,16 +22,16 @@ SuperLU factorization of the second-order dynamic stiffness per frequency (scipy
 as ref_sweep.npy (40 x 2 x 2 complex) with w.npy. The engine's side reduces the model (balanced truncation,
 IRKA) on its first-order descriptor form, so the two times are not like for like: the table says so.
 """
-import json
 import os
-import resource
 import sys
-import time
 
 import numpy as np
 import scipy.io
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from bench_timing import best_time, print_result  # noqa: E402
 
 ALPHA, BETA = 0.04, 1e-2
 
@@ -108,28 +108,15 @@ def main():
     np.save(os.path.join(out, "w.npy"), freqs)
     seconds = None
     if timed:
-        runs = []
-        while True:
-            t0 = time.perf_counter()
-            g = sweep(m, k, d, f, c, freqs)
-            runs.append(time.perf_counter() - t0)
-            if sum(runs) > 10.0 or (len(runs) >= 3 and sum(runs) >= 1.0):
-                break
-        seconds = min(runs)
+        seconds, g = best_time(lambda: sweep(m, k, d, f, c, freqs))
         np.save(os.path.join(out, "ref_sweep.npy"), np.stack([g.real, g.imag], axis=-1))
-    print(
-        json.dumps(
-            {
-                "case": case,
-                "n": n,
-                "seconds": seconds,
-                "peakRssKb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
-                "blas": "scipy.sparse SuperLU",
-                "method": "splu of K - w^2 M + jw D per frequency (the check's full-model response; not like for like)",
-            }
-        )
+    print_result(
+        case,
+        n,
+        seconds,
+        "scipy.sparse SuperLU",
+        "splu of K - w^2 M + jw D per frequency (the check's full-model response; not like for like)",
     )
-
 
 if __name__ == "__main__":
     main()

@@ -20,11 +20,8 @@ Cases
   sparse-sweep     G(jw) = C (jwI - A)^-1 B at 60 frequencies (logspace(-1, 5)), one SuperLU factorization
                    per frequency (scipy.sparse.linalg.splu); saves ref_sweep.npy (60 x 2: re, im)
 """
-import json
 import os
-import resource
 import sys
-import time
 import warnings
 
 import numpy as np
@@ -34,6 +31,7 @@ import scipy.sparse.linalg as spla
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 from sparse_reference import lradi, penzl  # noqa: E402
+from bench_timing import best_time, print_result  # noqa: E402
 
 ORDER = 20
 CONVECTION = 10.0
@@ -107,39 +105,18 @@ def main():
     seconds = None
     extra = {}
     if timed:
-        runs = []
-        while True:
-            t0 = time.perf_counter()
-            if case == "sparse-balanced":
-                hsv, _, its = balanced(a, b, c)
-            else:
-                g = sweep(a, b, c, freqs)
-            runs.append(time.perf_counter() - t0)
-            if sum(runs) > 10.0 or (len(runs) >= 3 and sum(runs) >= 1.0):
-                break
-        seconds = min(runs)
         if case == "sparse-balanced":
+            seconds, (hsv, _, its) = best_time(lambda: balanced(a, b, c))
             np.save(os.path.join(out, "ref_hsv.npy"), hsv)
             extra = {"adiSteps": list(its)}
         else:
+            seconds, g = best_time(lambda: sweep(a, b, c, freqs))
             np.save(os.path.join(out, "ref_sweep.npy"), g)
-    print(
-        json.dumps(
-            {
-                "case": case,
-                "n": n,
-                "seconds": seconds,
-                "peakRssKb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
-                "blas": "scipy.sparse SuperLU",
-                "method": {
-                    "sparse-balanced": "low-rank ADI (SuperLU, Penzl shifts) + square-root balanced truncation",
-                    "sparse-sweep": "splu of (jwI - A) per frequency",
-                }[case],
-                **extra,
-            }
-        )
-    )
-
+    method = {
+        "sparse-balanced": "low-rank ADI (SuperLU, Penzl shifts) + square-root balanced truncation",
+        "sparse-sweep": "splu of (jwI - A) per frequency",
+    }[case]
+    print_result(case, n, seconds, "scipy.sparse SuperLU", method, **extra)
 
 if __name__ == "__main__":
     main()

@@ -19,9 +19,7 @@ Cases
 """
 import json
 import os
-import resource
 import sys
-import time
 
 import numpy as np
 import scipy.integrate
@@ -29,6 +27,7 @@ import scipy.io
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 from sparse_bench_reference import plate  # noqa: E402
+from bench_timing import best_time, print_result  # noqa: E402
 
 T_END = 0.3
 POINTS = 201
@@ -59,25 +58,19 @@ def main():
     seconds = None
     extra = {}
     if timed:
-        runs = []
-        while True:
-            t0 = time.perf_counter()
-            y, sol = step_response(a, b, c, times)
-            runs.append(time.perf_counter() - t0)
-            if sum(runs) > 10.0 or (len(runs) >= 3 and sum(runs) >= 1.0):
-                break
-        seconds = min(runs)
+        seconds, (y, sol) = best_time(lambda: step_response(a, b, c, times))
         np.save(os.path.join(out, "ref_y.npy"), np.ascontiguousarray(y))
         extra = {"steps": int(len(sol.t) - 1), "nfev": int(sol.nfev), "nlu": int(sol.nlu)}
         with open(os.path.join(out, "ref_stats.json"), "w") as f:
             json.dump(extra, f)
-    print(json.dumps({
-        "case": case, "n": n, "seconds": seconds, "peakRssKb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
-        "blas": "scipy.sparse SuperLU",
-        "method": "solve_ivp BDF (variable order 1-5), sparse jac, rtol 1e-6, atol 1e-12, 201 outputs by dense output",
+    print_result(
+        case,
+        n,
+        seconds,
+        "scipy.sparse SuperLU",
+        "solve_ivp BDF (variable order 1-5), sparse jac, rtol 1e-6, atol 1e-12, 201 outputs by dense output",
         **extra,
-    }))
-
+    )
 
 if __name__ == "__main__":
     main()
