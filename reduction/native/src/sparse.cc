@@ -223,6 +223,38 @@ std::string showNumber(double v) {
   return buf;
 }
 
+// Runs work(j) for j = 0 … count−1, the indices taken in turn by `threads` threads (this one included), each
+// with its own `State` (per-thread workspace, made by makeState). BLAS runs single-threaded meanwhile, so the
+// threads and BLAS do not oversubscribe the cores, and is set back afterwards. The first failure stops the
+// others from taking new indices and is rethrown here; std::bad_alloc becomes out_of_memory naming `what`.
+template <typename MakeState, typename Work>
+void inThreads(size_t count, int threads, const std::string& what, MakeState makeState, Work work) {
+  std::atomic<size_t> next{0};
+  std::atomic<bool> failed{false};
+  std::mutex errorLock;
+  Failure firstError;
+  auto run = [&]() {
+    try {
+      auto state = makeState();
+      for (size_t j; !failed.load() && (j = next.fetch_add(1)) < count;) work(j, state);
+    } catch (const Failure& e) {
+      std::lock_guard<std::mutex> hold(errorLock);
+      if (!failed.exchange(true)) firstError = e;
+    } catch (const std::bad_alloc&) {
+      std::lock_guard<std::mutex> hold(errorLock);
+      if (!failed.exchange(true)) firstError = Failure{"out_of_memory", what + ": out of memory"};
+    }
+  };
+  int blas = ms::blasThreads();
+  if (threads > 1) ms::setBlasThreads(1);
+  std::vector<std::thread> pool;
+  for (int t = 1; t < threads; t++) pool.emplace_back(run);
+  run();
+  for (auto& th : pool) th.join();
+  if (threads > 1) ms::setBlasThreads(blas);
+  if (failed.load()) throw firstError;
+}
+
 // umfpackSweep(symbolic, n, colPtr, rowIndex, aValues, eValues, frequencies, B, m, C, p, re, im, threads, name)
 // The frequency sweep of a sparse model: for every ω of `frequencies`, the complex LU of A − iωE (real
 // part `aValues`, imaginary part −ω·`eValues`, both on the analysed pattern; a tiny imaginary part at
@@ -260,58 +292,42 @@ napi_value UmfSweep(napi_env env, napi_callback_info info) {
     for (size_t i = 0; i < n; i++)
       for (int64_t k = 0; k < m; k++) cols[(size_t)k * n + i] = B[i * (size_t)m + (size_t)k];
 
-    std::atomic<size_t> next{0};
-    std::atomic<bool> failed{false};
-    std::mutex errorLock;
-    Failure firstError;
-    auto run = [&]() {
-      try {
-        std::vector<double> z(c.nnz), xr(n), xi(n), zero(n, 0.0);
-        double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
-        umfpack_zi_defaults(control);
-        for (size_t f; !failed.load() && (f = next.fetch_add(1)) < nf;) {
-          double omega = w[f] == 0 ? 5e-324 : w[f];
-          for (size_t k = 0; k < c.nnz; k++) z[k] = -omega * ev[k];
-          void* num = nullptr;
-          int status = umfpack_zi_numeric(c.p, c.i, av, z.data(), s->object, &num, control, inf);
-          if (status != UMFPACK_OK) {
-            if (num) umfpack_zi_free_numeric(&num);
-            umfStatus(status, ("numeric factorization at ω = " + showNumber(w[f])).c_str(), name.c_str());
-          }
-          for (int64_t k = 0; k < m && status == UMFPACK_OK; k++) {
-            status = umfpack_zi_solve(UMFPACK_A, c.p, c.i, av, z.data(), xr.data(), xi.data(), cols.data() + (size_t)k * n, zero.data(), num, control, inf);
-            if (status != UMFPACK_OK) break;
-            for (int64_t r = 0; r < p; r++) {
-              const double* crow = C + (size_t)r * n;
-              double sr = 0, si = 0;
-              for (size_t i = 0; i < n; i++) {
-                sr += crow[i] * xr[i];
-                si += crow[i] * xi[i];
-              }
-              // (iωE − A) x = b  ⇔  (A − iωE) x = −b
-              re[f * (size_t)(p * m) + (size_t)(r * m + k)] = -sr;
-              im[f * (size_t)(p * m) + (size_t)(r * m + k)] = -si;
-            }
-          }
-          umfpack_zi_free_numeric(&num);
-          if (status != UMFPACK_OK) umfStatus(status, ("solve at ω = " + showNumber(w[f])).c_str(), name.c_str());
-        }
-      } catch (const Failure& e) {
-        std::lock_guard<std::mutex> hold(errorLock);
-        if (!failed.exchange(true)) firstError = e;
-      } catch (const std::bad_alloc&) {
-        std::lock_guard<std::mutex> hold(errorLock);
-        if (!failed.exchange(true)) firstError = Failure{"out_of_memory", "frequency sweep: out of memory for " + name};
-      }
+    struct Work {
+      std::vector<double> z, xr, xi, zero;
+      double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
     };
-    int blas = ms::blasThreads();
-    if (threads > 1) ms::setBlasThreads(1);
-    std::vector<std::thread> pool;
-    for (int t = 1; t < threads; t++) pool.emplace_back(run);
-    run();
-    for (auto& th : pool) th.join();
-    if (threads > 1) ms::setBlasThreads(blas);
-    if (failed.load()) throw firstError;
+    auto makeWork = [&] {
+      Work ws{std::vector<double>(c.nnz), std::vector<double>(n), std::vector<double>(n), std::vector<double>(n, 0.0), {}, {}};
+      umfpack_zi_defaults(ws.control);
+      return ws;
+    };
+    inThreads(nf, threads, "frequency sweep of " + name, makeWork, [&](size_t f, Work& ws) {
+      double omega = w[f] == 0 ? 5e-324 : w[f];
+      for (size_t k = 0; k < c.nnz; k++) ws.z[k] = -omega * ev[k];
+      void* num = nullptr;
+      int status = umfpack_zi_numeric(c.p, c.i, av, ws.z.data(), s->object, &num, ws.control, ws.inf);
+      if (status != UMFPACK_OK) {
+        if (num) umfpack_zi_free_numeric(&num);
+        umfStatus(status, ("numeric factorization at ω = " + showNumber(w[f])).c_str(), name.c_str());
+      }
+      for (int64_t k = 0; k < m && status == UMFPACK_OK; k++) {
+        status = umfpack_zi_solve(UMFPACK_A, c.p, c.i, av, ws.z.data(), ws.xr.data(), ws.xi.data(), cols.data() + (size_t)k * n, ws.zero.data(), num, ws.control, ws.inf);
+        if (status != UMFPACK_OK) break;
+        for (int64_t r = 0; r < p; r++) {
+          const double* crow = C + (size_t)r * n;
+          double sr = 0, si = 0;
+          for (size_t i = 0; i < n; i++) {
+            sr += crow[i] * ws.xr[i];
+            si += crow[i] * ws.xi[i];
+          }
+          // (iωE − A) x = b  ⇔  (A − iωE) x = −b
+          re[f * (size_t)(p * m) + (size_t)(r * m + k)] = -sr;
+          im[f * (size_t)(p * m) + (size_t)(r * m + k)] = -si;
+        }
+      }
+      umfpack_zi_free_numeric(&num);
+      if (status != UMFPACK_OK) umfStatus(status, ("solve at ω = " + showNumber(w[f])).c_str(), name.c_str());
+    });
     return ms::undefinedValue(env);
   });
 }
@@ -322,8 +338,8 @@ napi_value UmfSweep(napi_env env, napi_callback_info info) {
 // (values `aValues` − Re σⱼ·`eValues`, imaginary part −Im σⱼ·`eValues`, on the analysed pattern), then
 // x = (A − σⱼE)⁻¹ fⱼ and y = (A − σⱼE)⁻ᵀ gⱼ (the plain transpose). fⱼ, gⱼ, xⱼ, yⱼ are the j-th blocks of n
 // entries of their arrays; the imaginary arrays are read and written for complex shifts only. The shifts are
-// taken in turn by `threads` threads, each with its own numeric factorization of the shared analysis, BLAS
-// single-threaded meanwhile (as umfpackSweep). A singular A − σE fails naming the shift.
+// taken in turn by `threads` threads (inThreads), each with its own numeric factorization of the shared
+// analysis. A singular A − σE fails naming the shift.
 napi_value UmfShiftedSolves(napi_env env, napi_callback_info info) {
   return ms::guard(env, [&] {
     Args a(env, info);
@@ -354,58 +370,42 @@ napi_value UmfShiftedSolves(napi_env env, napi_callback_info info) {
     std::string name = a.isNullish(17) ? "matrix" : a.string(17, "name");
     int threads = (int)std::max<int64_t>(1, std::min<int64_t>(requested, (int64_t)k));
 
-    std::atomic<size_t> next{0};
-    std::atomic<bool> failed{false};
-    std::mutex errorLock;
-    Failure firstError;
-    auto run = [&]() {
-      try {
-        std::vector<double> x(c.nnz), z(cx ? c.nnz : 0);
-        double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
-        if (cx) umfpack_zi_defaults(control);
-        else umfpack_di_defaults(control);
-        for (size_t j; !failed.load() && (j = next.fetch_add(1)) < k;) {
-          for (size_t q = 0; q < c.nnz; q++) x[q] = av[q] - sr[j] * ev[q];
-          if (cx) for (size_t q = 0; q < c.nnz; q++) z[q] = -si[j] * ev[q];
-          std::string at = "at σ = " + showNumber(sr[j]) + (cx ? " + " + showNumber(si[j]) + "i" : "");
-          void* num = nullptr;
-          int status = cx ? umfpack_zi_numeric(c.p, c.i, x.data(), z.data(), s->object, &num, control, inf)
-                          : umfpack_di_numeric(c.p, c.i, x.data(), s->object, &num, control, inf);
-          if (status != UMFPACK_OK) {
-            if (num) {
-              if (cx) umfpack_zi_free_numeric(&num);
-              else umfpack_di_free_numeric(&num);
-            }
-            umfStatus(status, ("numeric factorization " + at).c_str(), name.c_str());
-          }
-          size_t o = j * n;
-          if (cx) {
-            status = umfpack_zi_solve(UMFPACK_A, c.p, c.i, x.data(), z.data(), xr + o, xi + o, fr + o, fi + o, num, control, inf);
-            if (status == UMFPACK_OK) status = umfpack_zi_solve(UMFPACK_Aat, c.p, c.i, x.data(), z.data(), yr + o, yi + o, gr + o, gi + o, num, control, inf);
-            umfpack_zi_free_numeric(&num);
-          } else {
-            status = umfpack_di_solve(UMFPACK_A, c.p, c.i, x.data(), xr + o, fr + o, num, control, inf);
-            if (status == UMFPACK_OK) status = umfpack_di_solve(UMFPACK_At, c.p, c.i, x.data(), yr + o, gr + o, num, control, inf);
-            umfpack_di_free_numeric(&num);
-          }
-          if (status != UMFPACK_OK) umfStatus(status, ("solve " + at).c_str(), name.c_str());
-        }
-      } catch (const Failure& e) {
-        std::lock_guard<std::mutex> hold(errorLock);
-        if (!failed.exchange(true)) firstError = e;
-      } catch (const std::bad_alloc&) {
-        std::lock_guard<std::mutex> hold(errorLock);
-        if (!failed.exchange(true)) firstError = Failure{"out_of_memory", "shifted solves: out of memory for " + name};
-      }
+    struct Work {
+      std::vector<double> x, z;
+      double control[UMFPACK_CONTROL], inf[UMFPACK_INFO];
     };
-    int blas = ms::blasThreads();
-    if (threads > 1) ms::setBlasThreads(1);
-    std::vector<std::thread> pool;
-    for (int t = 1; t < threads; t++) pool.emplace_back(run);
-    run();
-    for (auto& th : pool) th.join();
-    if (threads > 1) ms::setBlasThreads(blas);
-    if (failed.load()) throw firstError;
+    auto makeWork = [&] {
+      Work ws{std::vector<double>(c.nnz), std::vector<double>(cx ? c.nnz : 0), {}, {}};
+      if (cx) umfpack_zi_defaults(ws.control);
+      else umfpack_di_defaults(ws.control);
+      return ws;
+    };
+    inThreads(k, threads, "shifted solves with " + name, makeWork, [&](size_t j, Work& ws) {
+      for (size_t q = 0; q < c.nnz; q++) ws.x[q] = av[q] - sr[j] * ev[q];
+      if (cx) for (size_t q = 0; q < c.nnz; q++) ws.z[q] = -si[j] * ev[q];
+      std::string at = "at σ = " + showNumber(sr[j]) + (cx ? " + " + showNumber(si[j]) + "i" : "");
+      void* num = nullptr;
+      int status = cx ? umfpack_zi_numeric(c.p, c.i, ws.x.data(), ws.z.data(), s->object, &num, ws.control, ws.inf)
+                      : umfpack_di_numeric(c.p, c.i, ws.x.data(), s->object, &num, ws.control, ws.inf);
+      if (status != UMFPACK_OK) {
+        if (num) {
+          if (cx) umfpack_zi_free_numeric(&num);
+          else umfpack_di_free_numeric(&num);
+        }
+        umfStatus(status, ("numeric factorization " + at).c_str(), name.c_str());
+      }
+      size_t o = j * n;
+      if (cx) {
+        status = umfpack_zi_solve(UMFPACK_A, c.p, c.i, ws.x.data(), ws.z.data(), xr + o, xi + o, fr + o, fi + o, num, ws.control, ws.inf);
+        if (status == UMFPACK_OK) status = umfpack_zi_solve(UMFPACK_Aat, c.p, c.i, ws.x.data(), ws.z.data(), yr + o, yi + o, gr + o, gi + o, num, ws.control, ws.inf);
+        umfpack_zi_free_numeric(&num);
+      } else {
+        status = umfpack_di_solve(UMFPACK_A, c.p, c.i, ws.x.data(), xr + o, fr + o, num, ws.control, ws.inf);
+        if (status == UMFPACK_OK) status = umfpack_di_solve(UMFPACK_At, c.p, c.i, ws.x.data(), yr + o, gr + o, num, ws.control, ws.inf);
+        umfpack_di_free_numeric(&num);
+      }
+      if (status != UMFPACK_OK) umfStatus(status, ("solve " + at).c_str(), name.c_str());
+    });
     return ms::undefinedValue(env);
   });
 }
