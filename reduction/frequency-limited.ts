@@ -324,6 +324,10 @@ export function bandErrors(full: StateSpaceModel, reduced: StateSpaceModel, band
   return { inBand: inside.best, outOfBand: outside.best, inBandPeakFrequency: inside.at, outOfBandPeakFrequency: outside.at };
 }
 
+/** The accuracy note every frequency-limited reduction carries (its first note), and the bound's absence in words. */
+export const BAND_ERRORS_MEASURED_NOTE = 'frequency-limited balanced truncation has no a-priori error bound; the errors inside and outside the band are measured';
+export const NO_BAND_BOUND = 'no a-priori bound applies to frequency-limited balanced truncation';
+
 export interface FrequencyLimitedResult {
   readonly method: 'frequency-limited';
   readonly band: Band;
@@ -362,9 +366,7 @@ export function frequencyLimitedReduction(
     );
   }
   const real = frequencyLimitedRealization(split.stable, options.band);
-  const notes = [
-    'frequency-limited balanced truncation has no a-priori error bound; the errors inside and outside the band are measured',
-  ];
+  const notes = [BAND_ERRORS_MEASURED_NOTE];
   let r = order - nu;
   if (r > real.singularValues.length) {
     notes.push(`the stable part is numerically of order ${real.singularValues.length} on this band, so only that many states are formed`);

@@ -40,6 +40,7 @@ import { sparseIrka } from '../../reduction/sparse/irka';
 import { sparseModalReduction } from '../../reduction/sparse/modal';
 import { sparseFrequencyResponse } from '../../reduction/sparse/frequency';
 import { sparseFrequencyLimitedReduction } from '../../reduction/sparse/frequency-limited';
+import { NO_BAND_BOUND } from '../../reduction/frequency-limited';
 import type { AdiOptions } from '../../reduction/sparse/adi';
 import type { SparseStateSpaceModel } from '../../reduction/sparse/model';
 import { METHOD_NAMES } from '../recipe-words';
@@ -99,7 +100,7 @@ function reduceAtScale(model: SparseStateSpaceModel, recipe: RecipeInput, report
       model: r.model,
       order: r.order,
       errorBound: NaN,
-      errorBoundNote: 'no a-priori bound applies to frequency-limited balanced truncation; the errors inside and outside the band are measured',
+      errorBoundNote: `${NO_BAND_BOUND}; the errors inside and outside the band are measured`,
       notes: [...r.notes, ...(r.reducedStable ? [] : ['the reduced model is not stable (frequency-limited balanced truncation does not guarantee stability)'])],
       frequencyLimited: {
         band: { minFrequency: band.minFrequency, maxFrequency: band.maxFrequency },

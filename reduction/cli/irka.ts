@@ -17,7 +17,7 @@ import type { SparseStateSpaceModel } from '../sparse/model';
 import { logFrequencyGrid } from '../frequency';
 import { modelPoles } from '../spectral-split';
 import { integerOption, loadModelArgument, numberOption, type OptionSpec, type ParsedArgs } from './args';
-import { complexPairs, finiteOrNull, hInfinityCertificate, matrixRows, numberList } from './output';
+import { complexPairs, finiteOrNull, hInfinityCertificate, numberList, modelMatrices } from './output';
 import { ENGINE_PATH } from './registry';
 import { sparseModelArgument } from './sparse';
 
@@ -91,10 +91,7 @@ export function runIrkaReduce(args: ParsedArgs): Record<string, unknown> {
   return {
     method: r.method,
     order: r.order,
-    A: matrixRows(r.model.A),
-    B: matrixRows(r.model.B),
-    C: matrixRows(r.model.C),
-    D: matrixRows(r.model.D),
+    ...modelMatrices(r.model),
     errorBound: null,
     errorBoundNote: NO_BOUND_NOTE,
     hInfinityError: hInf.finite ? hInf.value : null,
@@ -151,10 +148,7 @@ function runSparseIrka(model: SparseStateSpaceModel, args: ParsedArgs, order: nu
     order: r.model.A.rows,
     states: model.A.n,
     descriptor: model.E !== undefined,
-    A: matrixRows(r.model.A),
-    B: matrixRows(r.model.B),
-    C: matrixRows(r.model.C),
-    D: matrixRows(r.model.D),
+    ...modelMatrices(r.model),
     errorBound: null,
     errorBoundNote: NO_BOUND_NOTE,
     hInfinityError: measured ? measured.value : null,

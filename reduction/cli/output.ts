@@ -18,6 +18,11 @@ export function matrixRows(m: Matrix): (number | null)[][] {
   return out;
 }
 
+/** A model's A, B, C, D as the documents print them. */
+export function modelMatrices(m: { A: Matrix; B: Matrix; C: Matrix; D: Matrix }): Record<'A' | 'B' | 'C' | 'D', (number | null)[][]> {
+  return { A: matrixRows(m.A), B: matrixRows(m.B), C: matrixRows(m.C), D: matrixRows(m.D) };
+}
+
 export function numberList(values: ArrayLike<number>): (number | null)[] {
   return Array.from(values, finiteOrNull);
 }

@@ -8,9 +8,9 @@
 import { ModelError } from '../errors';
 import type { ModalSelection } from '../mode-ranking';
 import { reduceModel, REDUCTION_METHODS, type ReductionMethod } from '../reduce';
-import { frequencyLimitedReduction } from '../frequency-limited';
+import { frequencyLimitedReduction, NO_BAND_BOUND } from '../frequency-limited';
 import { integerOption, loadModelArgument, numberListOption, numberOption, stringOption, type ParsedArgs } from './args';
-import { complexPairs, finiteOrNull, matrixRows, numberList, hInfinityCertificate } from './output';
+import { complexPairs, finiteOrNull, numberList, hInfinityCertificate, modelMatrices } from './output';
 import { registerVerb } from './registry';
 import { runSparseFrequencyLimited, runSparseReduce, sparseModelArgument, SPARSE_REDUCE_OPTIONS } from './sparse';
 import { runSparseModalReduce } from './sparse-modes';
@@ -48,12 +48,9 @@ function runFrequencyLimited(args: ParsedArgs): Record<string, unknown> {
     method: r.method,
     band: [...r.band],
     order: r.order,
-    A: matrixRows(r.model.A),
-    B: matrixRows(r.model.B),
-    C: matrixRows(r.model.C),
-    D: matrixRows(r.model.D),
+    ...modelMatrices(r.model),
     errorBound: null,
-    errorBoundNote: 'no a-priori bound applies to frequency-limited balanced truncation',
+    errorBoundNote: NO_BAND_BOUND,
     inBandError: r.errors.inBand,
     inBandErrorFrequency: finiteOrNull(r.errors.inBandPeakFrequency),
     outOfBandError: r.errors.outOfBand,
@@ -129,10 +126,7 @@ registerVerb({
     return {
       method: r.method,
       order: r.order,
-      A: matrixRows(r.model.A),
-      B: matrixRows(r.model.B),
-      C: matrixRows(r.model.C),
-      D: matrixRows(r.model.D),
+      ...modelMatrices(r.model),
       errorBound: finiteOrNull(r.errorBound),
       hInfinityError: r.hInfinityError.finite ? r.hInfinityError.value : null,
       hankelSingularValues: r.hankelSingularValues ? numberList(r.hankelSingularValues) : null,

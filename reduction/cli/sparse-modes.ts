@@ -18,7 +18,7 @@ import { sampledErrorPeak } from '../sparse/frequency';
 import { memoryBudgetBytes } from '../sparse/budget';
 import type { SparseStateSpaceModel } from '../sparse/model';
 import { integerOption, numberOption, type OptionSpec, type ParsedArgs } from './args';
-import { complexPairs, finiteOrNull, matrixRows } from './output';
+import { complexPairs, finiteOrNull, modelMatrices } from './output';
 import { ENGINE_PATH } from './registry';
 
 export const SPARSE_ANALYSIS_OPTIONS: Readonly<Record<string, OptionSpec>> = {
@@ -122,10 +122,7 @@ export function runSparseModalReduce(model: SparseStateSpaceModel, args: ParsedA
     order: red.order,
     states: model.A.n,
     descriptor: model.E !== undefined,
-    A: matrixRows(red.model.A),
-    B: matrixRows(red.model.B),
-    C: matrixRows(red.model.C),
-    D: matrixRows(red.model.D),
+    ...modelMatrices(red.model),
     errorBound: null,
     errorBoundNote:
       `the modal bound Σ‖Rᵢ‖/|Re λᵢ| needs every discarded mode; the sparse path computes ${r.computedStates} states' worth of modes, ` +

@@ -24,6 +24,7 @@ import { splitSecondOrderOutput } from '../second-order';
 import { autoPathIsSparse, SPARSE_CROSSOVER_STATES } from '../sparse/path';
 import { integerOption, numberListOption, numberOption, stringOption, type OptionSpec, type ParsedArgs } from './args';
 import { sparseFrequencyLimitedReduction } from '../sparse/frequency-limited';
+import { NO_BAND_BOUND } from '../frequency-limited';
 import { largestSingularValue, logFrequencyGrid } from '../frequency';
 import { lowRankGramians, type AdiFactor, type AdiOptions, type AdiResult } from '../sparse/adi';
 import { lowRankBalancedRealization, sparseBalancedReduction } from '../sparse/balanced';
@@ -31,7 +32,7 @@ import { sampledErrorPeak, sparseFrequencyResponse } from '../sparse/frequency';
 import { balancedErrorBound } from '../balanced';
 import { memoryBudgetBytes, MEMORY_BUDGET_ENV } from '../sparse/budget';
 import { analyzeSparseModel } from '../sparse/analysis';
-import { finiteOrNull, matrixRows, numberList } from './output';
+import { finiteOrNull, matrixRows, numberList, modelMatrices } from './output';
 import { ENGINE_PATH } from './registry';
 import { sparseAnalysisCounts, sparseModesDocument } from './sparse-modes';
 
@@ -190,12 +191,9 @@ export function runSparseFrequencyLimited(model: SparseStateSpaceModel, args: Pa
     order: r.order,
     states: model.A.n,
     descriptor: model.E !== undefined,
-    A: matrixRows(r.model.A),
-    B: matrixRows(r.model.B),
-    C: matrixRows(r.model.C),
-    D: matrixRows(r.model.D),
+    ...modelMatrices(r.model),
     errorBound: null,
-    errorBoundNote: 'no a-priori bound applies to frequency-limited balanced truncation',
+    errorBoundNote: NO_BAND_BOUND,
     inBandError: r.inBandError,
     inBandErrorFrequency: finiteOrNull(r.inBandErrorFrequency),
     outOfBandError: r.outOfBandError,
@@ -263,10 +261,7 @@ export function runSparseReduce(model: SparseStateSpaceModel, args: ParsedArgs, 
     order: r.order,
     states: model.A.n,
     descriptor: model.E !== undefined,
-    A: matrixRows(r.model.A),
-    B: matrixRows(r.model.B),
-    C: matrixRows(r.model.C),
-    D: matrixRows(r.model.D),
+    ...modelMatrices(r.model),
     errorBound: finiteOrNull(r.errorBound),
     errorBoundNote: `2Σσ(r+1..k) over the ${r.factorRank} Hankel singular values the low-rank gramians resolve; the values past the ${r.factorRank}th are not computed, so this is an estimate of the a-priori bound`,
     hankelSingularValues: numberList(r.hankelSingularValues),

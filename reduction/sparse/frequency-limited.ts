@@ -18,7 +18,7 @@
  */
 import { ModelError } from '../errors';
 import { largestSingularValue, logFrequencyGrid, frequencyResponse } from '../frequency';
-import { checkBand, frequencyLimitedReduction, type Band } from '../frequency-limited';
+import { BAND_ERRORS_MEASURED_NOTE, checkBand, frequencyLimitedReduction, type Band } from '../frequency-limited';
 import type { StateSpaceModel } from '../model';
 import { lowRankGramians, type AdiOptions, type AdiResult } from './adi';
 import { lowRankBalancedRealization, sparseBalancedReduction } from './balanced';
@@ -80,11 +80,11 @@ export function sparseFrequencyLimitedReduction(model: SparseStateSpaceModel, op
   // Step 2: the dense method on the intermediate model.
   const fl = frequencyLimitedReduction(intermediate.model, { band, order });
   const notes = [
-    'frequency-limited balanced truncation has no a-priori error bound; the errors inside and outside the band are measured against the full model',
+    `${BAND_ERRORS_MEASURED_NOTE} against the full model`,
     `computed in two steps: low-rank balanced truncation to ${k} states (estimated distance ${intermediateBound.toExponential(2)} from the full model${
       k === hsv.length ? ': every Hankel singular value the factors resolve was kept, and those past them are not computed' : ''
     }), then frequency-limited balanced truncation of that model`,
-    ...fl.notes.filter((n) => !n.startsWith('frequency-limited balanced truncation has no a-priori')),
+    ...fl.notes.filter((n) => n !== BAND_ERRORS_MEASURED_NOTE),
   ];
   // Measured errors against the full model, by sparse sweeps on log grids inside and outside the band.
   const lo = band[0] > 0 ? band[0] : band[1] / 1e4;
