@@ -345,15 +345,19 @@ export interface FrequencyLimitedResult {
   readonly notes: readonly string[];
 }
 
+/** The reduction without its measured errors, and the full model's stable part it was made from. */
+export type FrequencyLimitedTruncation = Omit<FrequencyLimitedResult, 'errors' | 'hInfinityError'> & { readonly fullStablePart: StateSpaceModel };
+
 /**
  * Reduce to `order` states in total (states kept for marginal and unstable poles included) by
- * frequency-limited balanced truncation on `band` (rad per time unit). Throws ModelError on a bad band
- * or order.
+ * frequency-limited balanced truncation on `band` (rad per time unit), without measuring the errors (the
+ * callers that measure them against another model, or with other tools, start here). Throws ModelError on
+ * a bad band or order.
  */
-export function frequencyLimitedReduction(
+export function frequencyLimitedTruncation(
   model: StateSpaceModel,
   options: { band: Band; order: number; stabilityTolerance?: number },
-): FrequencyLimitedResult {
+): FrequencyLimitedTruncation {
   checkBand(options.band);
   const split = splitStableUnstable(model, { tolerance: options.stabilityTolerance ?? DEFAULT_STABILITY_TOLERANCE });
   const nu = split.unstableStates;
@@ -386,24 +390,32 @@ export function frequencyLimitedReduction(
           C: stackColumns(stablePart.C, split.unstable.C),
           D: stablePart.D,
         };
-  const errors = bandErrors(split.stable, stablePart, options.band);
-  let hInfinityError: number | null = null;
-  if (reducedStable) {
-    const h = hInfinityNorm(errorSystem(split.stable, stablePart));
-    hInfinityError = h.finite ? h.value : null;
-  }
   return {
     method: 'frequency-limited',
     band: options.band,
     model: full,
     stablePart,
+    fullStablePart: split.stable,
     order: full.A.rows,
     stableOrder: stablePart.A.rows,
     unstableStatesKept: nu,
     singularValues: real.singularValues,
-    errors,
-    hInfinityError,
     reducedStable,
     notes,
   };
+}
+
+/** frequencyLimitedTruncation with its errors measured: inside and outside the band, and ‖G − Gr‖∞ when the reduced model is stable. */
+export function frequencyLimitedReduction(
+  model: StateSpaceModel,
+  options: { band: Band; order: number; stabilityTolerance?: number },
+): FrequencyLimitedResult {
+  const t = frequencyLimitedTruncation(model, options);
+  const errors = bandErrors(t.fullStablePart, t.stablePart, options.band);
+  let hInfinityError: number | null = null;
+  if (t.reducedStable) {
+    const h = hInfinityNorm(errorSystem(t.fullStablePart, t.stablePart));
+    hInfinityError = h.finite ? h.value : null;
+  }
+  return { ...t, errors, hInfinityError };
 }

@@ -20,7 +20,6 @@ import {
   frequencyEvaluator,
   h2Norm,
   hInfinityNorm,
-  splitStableUnstable,
   largestSingularValue,
   logFrequencyGrid,
   modelPoles,
@@ -40,7 +39,7 @@ import {
   type SolverStats,
   type StateSpaceModel,
 } from '../../reduction/index';
-import { frequencyLimitedReduction } from '../../reduction/frequency-limited';
+import { bandErrors, frequencyLimitedTruncation, type Band } from '../../reduction/frequency-limited';
 import { loadModel, type ModelFile } from './model-files';
 import { spectralRadius } from '../../reduction/poles';
 import { acceptancePassedColumn } from '../acceptance';
@@ -159,9 +158,11 @@ export function frequencyLimitedRun(model: StateSpaceModel, recipe: RecipeInput,
   const band = recipe.limitedBand;
   if (!band) throw new ModelError('invalid_option', 'band', 'frequency-limited balanced truncation needs the band to balance on');
   if (recipe.order === null) throw new ModelError('invalid_option', 'order', 'frequency-limited balanced truncation needs an order (it has no bound for a tolerance to meet)');
-  const r = frequencyLimitedReduction(model, { band: [band.minFrequency, band.maxFrequency], order: recipe.order, stabilityTolerance });
-  const split = splitStableUnstable(model, { tolerance: stabilityTolerance });
-  const error = errorSystem(split.stable, r.stablePart);
+  const limits: Band = [band.minFrequency, band.maxFrequency];
+  // The errors are measured here, with the H2 error and the evaluator shared (not by frequencyLimitedReduction).
+  const r = frequencyLimitedTruncation(model, { band: limits, order: recipe.order, stabilityTolerance });
+  const errors = bandErrors(r.fullStablePart, r.stablePart, limits);
+  const error = errorSystem(r.fullStablePart, r.stablePart);
   const evaluator = frequencyEvaluator(error);
   const unstable = 'the reduced model has poles in the closed right half-plane (frequency-limited balanced truncation does not guarantee stability)';
   const hInfinityError: HInfinityResult = r.reducedStable ? hInfinityNorm(error, { evaluator, stabilityTolerance }) : { finite: false, reason: unstable };
@@ -175,7 +176,7 @@ export function frequencyLimitedRun(model: StateSpaceModel, recipe: RecipeInput,
   return {
     model: r.model,
     stablePart: r.stablePart,
-    fullStablePart: split.stable,
+    fullStablePart: r.fullStablePart,
     method: 'frequency-limited',
     order: r.order,
     stableOrder: r.stableOrder,
@@ -189,10 +190,10 @@ export function frequencyLimitedRun(model: StateSpaceModel, recipe: RecipeInput,
     notes: [...r.notes],
     frequencyLimited: {
       band: { minFrequency: band.minFrequency, maxFrequency: band.maxFrequency },
-      inBandError: r.errors.inBand,
-      inBandErrorFrequency: finiteOrNull(r.errors.inBandPeakFrequency),
-      outOfBandError: r.errors.outOfBand,
-      outOfBandErrorFrequency: finiteOrNull(r.errors.outOfBandPeakFrequency),
+      inBandError: errors.inBand,
+      inBandErrorFrequency: finiteOrNull(errors.inBandPeakFrequency),
+      outOfBandError: errors.outOfBand,
+      outOfBandErrorFrequency: finiteOrNull(errors.outOfBandPeakFrequency),
       singularValues: Array.from(r.singularValues),
       reducedStable: r.reducedStable,
     },

@@ -18,7 +18,7 @@
  */
 import { ModelError } from '../errors';
 import { largestSingularValue, logFrequencyGrid, frequencyResponse } from '../frequency';
-import { BAND_ERRORS_MEASURED_NOTE, checkBand, frequencyLimitedReduction, type Band } from '../frequency-limited';
+import { BAND_ERRORS_MEASURED_NOTE, checkBand, frequencyLimitedTruncation, type Band } from '../frequency-limited';
 import type { StateSpaceModel } from '../model';
 import { lowRankGramians, type AdiOptions, type AdiResult } from './adi';
 import { lowRankBalancedRealization, sparseBalancedReduction } from './balanced';
@@ -78,7 +78,7 @@ export function sparseFrequencyLimitedReduction(model: SparseStateSpaceModel, op
   const intermediate = sparseBalancedReduction(model, { method: 'balanced', order: k, adi: options.adi, gramians });
   const intermediateBound = balancedErrorBound(hsv, k);
   // Step 2: the dense method on the intermediate model.
-  const fl = frequencyLimitedReduction(intermediate.model, { band, order });
+  const fl = frequencyLimitedTruncation(intermediate.model, { band, order });
   const notes = [
     `${BAND_ERRORS_MEASURED_NOTE} against the full model`,
     `computed in two steps: low-rank balanced truncation to ${k} states (estimated distance ${intermediateBound.toExponential(2)} from the full model${
